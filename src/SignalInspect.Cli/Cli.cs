@@ -1,0 +1,68 @@
+using System.CommandLine;
+using System.Reflection;
+using SignalInspect.Capture;
+
+namespace SignalInspect.Cli;
+
+/// <summary>
+/// The command layer: parses the command line, calls one core entry point per command and maps
+/// outcomes to <see cref="ExitCodes"/>. User errors are one line on stderr; only an unexpected
+/// exception prints diagnostics.
+/// </summary>
+public static class Cli
+{
+    /// <summary>Runs the tool with <paramref name="args"/>, writing to the given streams; returns the exit code.</summary>
+    public static int Run(string[] args, TextWriter stdout, TextWriter stderr)
+    {
+        RootCommand root = Build(stdout, stderr);
+        ParseResult parsed = root.Parse(args);
+        if (parsed.Errors.Count > 0)
+        {
+            foreach (var e in parsed.Errors) stderr.WriteLine($"signalinspect: error: {OneLine(e.Message)}");
+            stderr.WriteLine("signalinspect: try 'signalinspect --help' or 'signalinspect COMMAND --help'");
+            return ExitCodes.BadInput;
+        }
+        try
+        {
+            return parsed.Invoke(new InvocationConfiguration { EnableDefaultExceptionHandler = false, Output = stdout, Error = stderr });
+        }
+        catch (Exception e) when (UserMessage(e) is { } message)
+        {
+            stderr.WriteLine($"signalinspect: error: {message}");
+            return ExitCodes.BadInput;
+        }
+        catch (Exception e)
+        {
+            stderr.WriteLine($"signalinspect: internal error: {e.GetType().Name}: {OneLine(e.Message)}");
+            stderr.WriteLine("This is a bug in SignalInspect. Please report it with the command line and the details below.");
+            stderr.WriteLine(e.ToString());
+            return ExitCodes.InternalError;
+        }
+    }
+
+    /// <summary>The one-line message of a user error, or null when the exception is a bug.</summary>
+    internal static string? UserMessage(Exception e) => e switch
+    {
+        CaptureException c => OneLine(c.Message),
+        UsageException u => OneLine(u.Message),
+        ArgumentOutOfRangeException a when a.ParamName?.StartsWith("--", StringComparison.Ordinal) == true =>
+            $"{a.ParamName}: {OneLine(a.Message.Split(" (Parameter", 2)[0])} (got {a.ActualValue})",
+        _ => null,
+    };
+
+    private static RootCommand Build(TextWriter stdout, TextWriter stderr)
+    {
+        string version = typeof(Cli).Assembly.GetCustomAttribute<AssemblyInformationalVersionAttribute>()?.InformationalVersion.Split('+')[0] ?? "0";
+        var root = new RootCommand(
+            $"SignalInspect {version}: offline measurements of radio signal recordings (WAV/RF64 audio or IQ, raw IQ, SigMF).\n" +
+            "Exit codes: 0 success, 1 a limit failed, 2 bad input or usage, 3 internal error.")
+        {
+            InfoCommand.Create(stdout, stderr),
+            SynthCommand.Create(stdout, stderr),
+            DemoCommand.Create(stdout, stderr),
+        };
+        return root;
+    }
+
+    internal static string OneLine(string s) => s.ReplaceLineEndings(" ").Trim();
+}

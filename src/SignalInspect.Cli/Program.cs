@@ -1,0 +1,1 @@
+return SignalInspect.Cli.Cli.Run(args, Console.Out, Console.Error);

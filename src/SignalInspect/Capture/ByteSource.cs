@@ -1,0 +1,124 @@
+using NAudio.Wave;
+
+namespace SignalInspect.Capture;
+
+/// <summary>The sample-data bytes of a capture, read sequentially with seeks; never the whole file at once.</summary>
+internal abstract class ByteSource : IDisposable
+{
+    /// <summary>Sample-data bytes available.</summary>
+    public abstract long Length { get; }
+
+    /// <summary>Moves to a byte offset within the sample data.</summary>
+    public abstract void Seek(long offset);
+
+    /// <summary>Reads up to <paramref name="buffer"/>.Length bytes; returns 0 only at the end.</summary>
+    public abstract int Read(Span<byte> buffer);
+
+    /// <inheritdoc />
+    public abstract void Dispose();
+
+    /// <summary>Opens a file for reading only, shared with other readers, for sequential access.</summary>
+    public static FileStream OpenReadOnly(string path) =>
+        new(path, new FileStreamOptions
+        {
+            Mode = FileMode.Open,
+            Access = FileAccess.Read,
+            Share = FileShare.Read | FileShare.Delete,
+            Options = FileOptions.SequentialScan,
+            BufferSize = 0,
+        });
+}
+
+/// <summary>One contiguous byte range of a file.</summary>
+internal readonly record struct FileExtent(long Offset, long Length);
+
+/// <summary>Sample data held in one or more byte ranges of a file (raw files, SigMF data, tar members).</summary>
+internal sealed class FileExtentSource : ByteSource
+{
+    private readonly FileStream _stream;
+    private readonly FileExtent[] _extents;
+    private readonly long _length;
+    private long _position;
+
+    public FileExtentSource(string path, IReadOnlyList<FileExtent> extents)
+    {
+        _stream = OpenReadOnly(path);
+        _extents = [.. extents];
+        _length = _extents.Sum(e => e.Length);
+    }
+
+    public override long Length => _length;
+
+    public override void Seek(long offset) => _position = Math.Clamp(offset, 0, _length);
+
+    public override int Read(Span<byte> buffer)
+    {
+        int total = 0;
+        while (total < buffer.Length && _position < _length)
+        {
+            long start = 0;
+            FileExtent extent = default;
+            foreach (FileExtent e in _extents)
+            {
+                if (_position < start + e.Length) { extent = e; break; }
+                start += e.Length;
+            }
+            long within = _position - start;
+            int want = (int)Math.Min(buffer.Length - total, extent.Length - within);
+            _stream.Position = extent.Offset + within;
+            int got = _stream.Read(buffer.Slice(total, want));
+            if (got <= 0) break;
+            total += got;
+            _position += got;
+        }
+        return total;
+    }
+
+    public override void Dispose() => _stream.Dispose();
+}
+
+/// <summary>The data chunk of a WAV/RF64 file, read through NAudio's reader (whole blocks only).</summary>
+internal sealed class WaveDataSource : ByteSource
+{
+    private readonly Stream _stream;
+    private readonly WaveFileReader _reader;
+    private readonly long _length;
+
+    public WaveDataSource(Stream stream, WaveFileReader reader, long length)
+    {
+        _stream = stream;
+        _reader = reader;
+        _length = length;
+    }
+
+    public override long Length => _length;
+
+    public override void Seek(long offset)
+    {
+        long block = _reader.BlockAlign;
+        _reader.Position = Math.Clamp(offset, 0, _length) / block * block;
+    }
+
+    public override int Read(Span<byte> buffer)
+    {
+        long left = _length - _reader.Position;
+        if (left <= 0) return 0;
+        int block = _reader.BlockAlign;
+        int want = (int)Math.Min(buffer.Length, left) / block * block;
+        if (want == 0) return 0;
+        int total = 0;
+        while (total < want)
+        {
+            int got = _reader.Read(buffer[total..want]);
+            if (got <= 0) break;
+            total += got;
+        }
+        return total;
+    }
+
+    public override void Dispose()
+    {
+        _reader.Dispose();
+        _stream.Dispose();
+    }
+}

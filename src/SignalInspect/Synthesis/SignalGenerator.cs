@@ -1,0 +1,102 @@
+namespace SignalInspect.Synthesis;
+
+/// <summary>
+/// Generates the samples of a <see cref="SignalSpec"/> block by block (interleaved I, Q for
+/// complex output). Phases are computed from the sample index, not accumulated, except for
+/// FSK whose phase is continuous by definition; the result does not depend on the block size.
+/// </summary>
+public sealed class SignalGenerator
+{
+    private readonly SignalSpec _spec;
+    private readonly Random _random;
+    private readonly double _noiseSigma;
+    private long _n;
+    private double _fskCycles;
+    private long _symbol = -1;
+    private int _bit;
+    private double? _spareGaussian;
+
+    /// <summary>Creates a generator at sample 0.</summary>
+    /// <exception cref="ArgumentOutOfRangeException">The spec is invalid.</exception>
+    public SignalGenerator(SignalSpec spec)
+    {
+        spec.Validate();
+        _spec = spec;
+        _random = new Random(spec.Seed);
+        _noiseSigma = spec.SnrDb is { } snr ? Math.Sqrt(spec.SignalPower / Math.Pow(10, snr / 10)) : 0;
+        if (spec.Kind == SignalKind.Noise) _noiseSigma = Math.Sqrt(spec.SignalPower);
+    }
+
+    /// <summary>Values per sample: 2 for complex, 1 for real.</summary>
+    public int ValuesPerSample => _spec.IsComplex ? 2 : 1;
+
+    /// <summary>Samples still to come.</summary>
+    public long Remaining => _spec.SampleCount - _n;
+
+    /// <summary>Fills <paramref name="destination"/> with the next samples; returns how many.</summary>
+    public int Generate(Span<double> destination)
+    {
+        int count = (int)Math.Min(destination.Length / ValuesPerSample, Remaining);
+        SignalSpec s = _spec;
+        double fs = s.SampleRateHz;
+        for (int i = 0; i < count; i++, _n++)
+        {
+            double t = _n / fs;
+            double a = s.Amplitude;
+            double cycles = Frac(s.CarrierOffsetHz * _n / fs) + Frac(0.5 * s.DriftHzPerS * t * t);
+            double phi = 0;
+            switch (s.Kind)
+            {
+                case SignalKind.Am:
+                    a *= 1 + s.AmDepth * Math.Cos(2 * Math.PI * Frac(s.ModulatingFrequencyHz * _n / fs));
+                    break;
+                case SignalKind.Fm:
+                    phi = s.PeakDeviationHz / s.ModulatingFrequencyHz * Math.Sin(2 * Math.PI * Frac(s.ModulatingFrequencyHz * _n / fs));
+                    break;
+                case SignalKind.Pm:
+                    phi = s.PeakPhaseRad * Math.Sin(2 * Math.PI * Frac(s.ModulatingFrequencyHz * _n / fs));
+                    break;
+                case SignalKind.Fsk:
+                    long k = (long)Math.Floor(_n * s.SymbolRateBd / fs);
+                    while (_symbol < k) { _bit = _random.Next(2); _symbol++; }
+                    cycles += _fskCycles;
+                    _fskCycles = Frac(_fskCycles + (_bit == 1 ? 0.5 : -0.5) * s.FskShiftHz / fs);
+                    break;
+                case SignalKind.Noise:
+                    a = 0;
+                    break;
+            }
+            double theta = 2 * Math.PI * cycles + phi;
+            if (s.IsComplex)
+            {
+                double ni = 0, nq = 0;
+                if (_noiseSigma > 0) { ni = Gaussian() * _noiseSigma / Math.Sqrt(2); nq = Gaussian() * _noiseSigma / Math.Sqrt(2); }
+                destination[2 * i] = a * Math.Cos(theta) + ni;
+                destination[2 * i + 1] = a * Math.Sin(theta) + nq;
+            }
+            else
+            {
+                destination[i] = a * Math.Cos(theta) + (_noiseSigma > 0 ? Gaussian() * _noiseSigma : 0);
+            }
+        }
+        return count;
+    }
+
+    private static double Frac(double x) => x - Math.Floor(x);
+
+    /// <summary>Standard normal deviate (Marsaglia polar method) from the seeded generator.</summary>
+    private double Gaussian()
+    {
+        if (_spareGaussian is { } spare) { _spareGaussian = null; return spare; }
+        double u, v, q;
+        do
+        {
+            u = 2 * _random.NextDouble() - 1;
+            v = 2 * _random.NextDouble() - 1;
+            q = u * u + v * v;
+        } while (q >= 1 || q == 0);
+        double f = Math.Sqrt(-2 * Math.Log(q) / q);
+        _spareGaussian = v * f;
+        return u * f;
+    }
+}
