@@ -179,12 +179,15 @@ public sealed class CaptureSource
     }
 
     /// <summary>Validates a sample rate from a file or an option.</summary>
+    /// <param name="path">File, for the message.</param>
+    /// <param name="rateHz">The rate, null when none was found.</param>
+    /// <param name="origin">Where the rate came from (e.g. "global.core:sample_rate"), or why there is none.</param>
     internal static double CheckRate(string path, double? rateHz, string origin)
     {
         if (rateHz is not { } r)
             throw CaptureException.ForFile(path, $"sample rate missing ({origin}): give --sample-rate HZ");
         if (!double.IsFinite(r) || r <= 0)
-            throw CaptureException.ForFile(path, $"sample rate {r:R} Hz ({origin}) must be a positive number");
+            throw CaptureException.ForFile(path, $"sample rate {r:R} Hz from {origin} must be a positive number");
         return r;
     }
 }

@@ -25,7 +25,7 @@ internal static class RawReader
         {
             throw CaptureException.ForFile(path, "not a WAV or SigMF file, and the datatype of a raw file is unknown: give --datatype (e.g. cu8, ci16_le, cf32_le) and --sample-rate HZ");
         }
-        double rate = CaptureSource.CheckRate(path, options.SampleRateHz, "a raw file has no header");
+        double rate = CaptureSource.CheckRate(path, options.SampleRateHz, options.SampleRateHz is null ? "a raw file has no header" : "--sample-rate");
         var warnings = new List<string>();
         long tail = size % format.BytesPerSample;
         if (tail != 0) warnings.Add($"file length is not a whole number of {format.Name} samples: the last {tail} byte(s) are ignored");

@@ -95,7 +95,7 @@ internal static class SigMfReader
             }
             else
             {
-                rate = CaptureSource.CheckRate(metaPath, fileRate, "no global.core:sample_rate in the metadata");
+                rate = CaptureSource.CheckRate(metaPath, fileRate, fileRate is null ? "no global.core:sample_rate in the metadata" : "global.core:sample_rate");
             }
             long channels = m.Integer(global, "global", "core:num_channels") ?? 1;
             if (channels < 1) throw m.Error("global.core:num_channels must be 1 or more");
@@ -236,7 +236,8 @@ internal static class SigMfReader
     private static string FirstSentence(string s)
     {
         s = s.ReplaceLineEndings(" ");
-        int cut = s.IndexOf(" Path:", StringComparison.Ordinal);
+        int cut = s.IndexOf(" LineNumber:", StringComparison.Ordinal);
+        if (cut < 0) cut = s.IndexOf(" Path:", StringComparison.Ordinal);
         return (cut > 0 ? s[..cut] : s).Trim();
     }
 

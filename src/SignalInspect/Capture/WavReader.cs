@@ -167,7 +167,7 @@ internal static class WavReader
             {
                 sawFmt = true;
                 if (size < 16) throw CaptureException.ForFile(path, $"fmt chunk of {size} bytes is too short (16 at least)");
-                if (bodyAt + size > fileSize) throw CaptureException.ForFile(path, $"fmt chunk declares {size} bytes, more than the file holds");
+                if (bodyAt + size > fileSize) throw CaptureException.ForFile(path, $"truncated or damaged WAV header: the fmt chunk declares {size} bytes, more than the file holds");
                 int want = (int)Math.Min(size, 40);
                 fs.ReadAtLeast(body[..want], want, throwOnEndOfStream: false);
                 if (BinaryPrimitives.ReadUInt16LittleEndian(body[2..]) == 0) throw CaptureException.ForFile(path, "the file declares zero channels");
