@@ -60,6 +60,8 @@ internal sealed class SampleDecoder
         bool swap = _format.BigEndian == BitConverter.IsLittleEndian;
         double inv = 1.0 / _format.CodeFullScale;
         double off = _format.UnsignedOffset;
+        // Unsigned codes divide by a full scale that is not a power of two: divide (exactly as defined) rather than multiply by a rounded inverse.
+        double fullScale = _format.CodeFullScale;
         int n = dst.Length;
         switch (_format.Encoding)
         {
@@ -82,7 +84,7 @@ internal sealed class SampleDecoder
                 for (int i = 0; i < n; i++) dst[i] = (sbyte)src[i] * inv;
                 break;
             case ComponentEncoding.UInt8:
-                for (int i = 0; i < n; i++) dst[i] = (src[i] - off) * inv;
+                for (int i = 0; i < n; i++) dst[i] = (src[i] - off) / fullScale;
                 break;
             case ComponentEncoding.Int16:
                 if (!swap)
@@ -96,7 +98,7 @@ internal sealed class SampleDecoder
                 for (int i = 0; i < n; i++)
                 {
                     ushort v = _format.BigEndian ? BinaryPrimitives.ReadUInt16BigEndian(src[(2 * i)..]) : BinaryPrimitives.ReadUInt16LittleEndian(src[(2 * i)..]);
-                    dst[i] = (v - off) * inv;
+                    dst[i] = (v - off) / fullScale;
                 }
                 break;
             case ComponentEncoding.Int24:
@@ -120,7 +122,7 @@ internal sealed class SampleDecoder
                 for (int i = 0; i < n; i++)
                 {
                     uint v = _format.BigEndian ? BinaryPrimitives.ReadUInt32BigEndian(src[(4 * i)..]) : BinaryPrimitives.ReadUInt32LittleEndian(src[(4 * i)..]);
-                    dst[i] = (v - off) * inv;
+                    dst[i] = (v - off) / fullScale;
                 }
                 break;
         }

@@ -1,0 +1,95 @@
+namespace SignalInspect.Tests.Cli;
+
+/// <summary>
+/// Each malformed input of testdata/bad/ (made by make_python_captures.py; listed in
+/// testdata/bad/README.md) fails with exit code 2 and one line on stderr naming the file and the
+/// problem, prints nothing on stdout, and leaves the input unchanged.
+/// </summary>
+public class BadInputTests
+{
+    [Theory]
+    [InlineData("empty.wav", "file is empty")]
+    [InlineData("truncated-header.wav", "truncated")]
+    [InlineData("text-named.wav", "not a WAV file")]
+    [InlineData("zero-channels.wav", "zero channels")]
+    [InlineData("fmt-size-lies.wav", "more than the file holds")]
+    [InlineData("noise.cu8", "sample rate missing")]
+    [InlineData("odd-length.cs16", "sample rate missing")]
+    [InlineData("unknown-ending.bin", "give --datatype")]
+    [InlineData("syntax-error.sigmf-meta", "not valid JSON at line 4, column 31")]
+    [InlineData("rate-is-string.sigmf-meta", "global.core:sample_rate must be a number, not a string")]
+    [InlineData("unknown-datatype.sigmf-meta", "unknown datatype 'cf16_xx'")]
+    [InlineData("rate-missing.sigmf-meta", "sample rate missing")]
+    [InlineData("rate-zero.sigmf-meta", "must be a positive number")]
+    [InlineData("rate-negative.sigmf-meta", "sample rate -48000 Hz from global.core:sample_rate must be a positive number")]
+    [InlineData("captures-not-array.sigmf-meta", "'captures' must be a JSON array")]
+    [InlineData("data-missing.sigmf-meta", "data file data-missing.sigmf-data not found")]
+    [InlineData("header-bytes-too-large.sigmf-meta", "beyond the 4000-byte data file")]
+    [InlineData("sha512-mismatch.sigmf-meta", "core:sha512 does not match")]
+    [InlineData("zero-channels.sigmf-meta", "core:num_channels must be 1 or more")]
+    [InlineData("deeply-nested.sigmf-meta", "maximum configured depth")]
+    [InlineData("climbing-member.sigmf", "unsafe path")]
+    [InlineData("link-member.sigmf", "is a link")]
+    [InlineData("not-a-tar.sigmf", "not a tar archive")]
+    public void Malformed_input_fails_cleanly_with_exit_code_2(string file, string problem)
+    {
+        string path = TestData.Path("bad", file);
+        string before = TestData.Sha256(path);
+        var (code, stdout, stderr) = CliRunner.Run("info", path);
+        Assert.Equal(2, code);
+        Assert.Equal(string.Empty, stdout);
+        string line = Assert.Single(stderr.Split('\n', StringSplitOptions.RemoveEmptyEntries));
+        Assert.StartsWith($"signalinspect: error: {file}: ", line);
+        Assert.Contains(problem, line);
+        Assert.DoesNotContain("   at ", stderr);
+        Assert.Equal(before, TestData.Sha256(path));
+    }
+
+    [Theory]
+    [InlineData("--datatype", "cf99_le", "unknown datatype 'cf99_le'")]
+    [InlineData("--sample-rate", "0", "must be a positive number")]
+    [InlineData("--sample-rate", "-2.4M", "must be a positive number")]
+    public void Bad_reader_options_fail_with_exit_code_2(string option, string value, string problem)
+    {
+        var (code, _, stderr) = CliRunner.Run("info", TestData.Path("raw", "tone-100k-2048k.cu8"), option, value, option == "--datatype" ? "--sample-rate" : "--datatype", option == "--datatype" ? "1M" : "cu8");
+        Assert.Equal(2, code);
+        Assert.Contains(problem, stderr);
+    }
+
+    [Theory]
+    [InlineData("info", "--no-such-option")]
+    [InlineData("info", "x.wav", "--sample-rate", "fast")]
+    [InlineData("frobnicate")]
+    [InlineData("synth", "out.cf32", "--kind", "qam")]
+    public void Usage_errors_exit_with_2(params string[] args)
+    {
+        var (code, stdout, stderr) = CliRunner.Run(args);
+        Assert.Equal(2, code);
+        Assert.Equal(string.Empty, stdout);
+        Assert.StartsWith("signalinspect: error: ", stderr);
+    }
+
+    [Fact]
+    public void Missing_file_and_folder_are_named()
+    {
+        var (code, _, stderr) = CliRunner.Run("info", "/nonexistent/capture.wav");
+        Assert.Equal(2, code);
+        Assert.Contains("capture.wav: file not found", stderr);
+        (code, _, stderr) = CliRunner.Run("info", TestData.Path("bad"));
+        Assert.Equal(2, code);
+        Assert.Contains("is a folder", stderr);
+    }
+
+    [Fact]
+    public void A_truncated_recording_is_read_with_a_warning_on_stderr()
+    {
+        using var tmp = new TempDir();
+        string path = tmp.File("cut.wav");
+        byte[] whole = File.ReadAllBytes(TestData.Path("wav", "sox-mono-s16.wav"));
+        File.WriteAllBytes(path, whole[..500]);
+        var (code, stdout, stderr) = CliRunner.Run("info", path);
+        Assert.Equal(0, code);
+        Assert.Contains("samples            228", stdout);
+        Assert.Contains("signalinspect: warning: cut.wav: data chunk declares 800 bytes", stderr);
+    }
+}

@@ -1,0 +1,67 @@
+using System.Text.Json;
+
+namespace SignalInspect.Tests.Cli;
+
+public class SynthCommandTests
+{
+    [Theory]
+    [InlineData("a.sigmf-meta", "SigMF")]
+    [InlineData("a.sigmf", "SigMF archive")]
+    [InlineData("a.wav", "WAV")]
+    [InlineData("a.cs16", "raw")]
+    public void Writes_each_container_and_info_reads_it_back(string file, string container)
+    {
+        using var tmp = new TempDir();
+        string path = tmp.File(file);
+        var (code, stdout, stderr) = CliRunner.Run("synth", path, "--kind", "am", "--depth", "80", "--sample-rate", "96k", "--duration", "0.25", "--center-frequency", "1.53M", "--snr", "30");
+        Assert.True(code == 0, stderr);
+        Assert.Contains("wrote", stdout);
+        string[] extra = file.EndsWith(".cs16") ? ["--sample-rate", "96000"] : [];
+        var (code2, json, err2) = CliRunner.Run(["info", path, "--json", .. extra]);
+        Assert.True(code2 == 0, err2);
+        JsonElement j = JsonDocument.Parse(json).RootElement;
+        Assert.Equal(container, j.GetProperty("container").GetString());
+        Assert.Equal(96000, j.GetProperty("sampleRateHz").GetDouble());
+        Assert.Equal(24000, j.GetProperty("samples").GetInt64());
+        if (container.StartsWith("SigMF")) Assert.Equal(1.53e6, j.GetProperty("centerFrequencyHz").GetDouble());
+    }
+
+    [Fact]
+    public void Refuses_to_overwrite_without_force()
+    {
+        using var tmp = new TempDir();
+        string path = tmp.File("x.cf32");
+        File.WriteAllText(path, "keep me");
+        var (code, _, stderr) = CliRunner.Run("synth", path);
+        Assert.Equal(2, code);
+        Assert.Contains("already exists (use --force", stderr);
+        Assert.Equal("keep me", File.ReadAllText(path));
+        Assert.Equal(0, CliRunner.Run("synth", path, "--force", "--duration", "0.01").Code);
+        Assert.Equal(480 * 8, new FileInfo(path).Length);
+    }
+
+    [Theory]
+    [InlineData("--amplitude", "2", "--amplitude: must be from 0 to 1")]
+    [InlineData("--offset", "30k", "--offset: must lie inside")]
+    [InlineData("--datatype", "cq8", "unknown datatype")]
+    public void Bad_parameters_exit_with_2_and_name_the_option(string option, string value, string message)
+    {
+        using var tmp = new TempDir();
+        var (code, _, stderr) = CliRunner.Run("synth", tmp.File("y.cf32"), option, value);
+        Assert.Equal(2, code);
+        Assert.Contains(message, stderr);
+        Assert.Empty(Directory.GetFiles(tmp.Path));
+    }
+
+    [Fact]
+    public void Real_audio_output_is_a_mono_WAV()
+    {
+        using var tmp = new TempDir();
+        string path = tmp.File("audio.wav");
+        Assert.Equal(0, CliRunner.Run("synth", path, "--real", "--kind", "fm", "--offset", "6k", "--datatype", "ri16_le", "--duration", "0.1").Code);
+        var (_, json, _) = CliRunner.Run("info", path, "--json");
+        JsonElement j = JsonDocument.Parse(json).RootElement;
+        Assert.False(j.GetProperty("isComplex").GetBoolean());
+        Assert.Equal("ri16_le", j.GetProperty("datatype").GetString());
+    }
+}

@@ -1,0 +1,108 @@
+using System.Numerics;
+using SignalInspect.Synthesis;
+
+namespace SignalInspect.Tests.Synthesis;
+
+/// <summary>The synthesiser follows the formulas it documents (SignalSpec); later tests rely on it.</summary>
+public class SignalGeneratorTests
+{
+    private static Complex[] Complexes(SignalSpec spec)
+    {
+        var v = new double[spec.SampleCount * 2];
+        Assert.Equal(spec.SampleCount, new SignalGenerator(spec).Generate(v));
+        return [.. Enumerable.Range(0, (int)spec.SampleCount).Select(n => new Complex(v[2 * n], v[2 * n + 1]))];
+    }
+
+    [Fact]
+    public void Carrier_is_A_exp_j_2pi_f0_t()
+    {
+        var spec = new SignalSpec { Kind = SignalKind.Cw, SampleRateHz = 10000, DurationS = 0.2, CarrierOffsetHz = 1234.5, Amplitude = 0.3 };
+        Complex[] z = Complexes(spec);
+        for (int n = 0; n < z.Length; n++)
+            Assert.True((z[n] - Complex.FromPolarCoordinates(0.3, 2 * Math.PI * 1234.5 * n / 10000)).Magnitude < 1e-12);
+    }
+
+    [Fact]
+    public void FM_phase_is_D_over_fm_sin_2pi_fm_t()
+    {
+        var spec = new SignalSpec { Kind = SignalKind.Fm, SampleRateHz = 48000, DurationS = 0.1, CarrierOffsetHz = 300, PeakDeviationHz = 2500, ModulatingFrequencyHz = 1000 };
+        Complex[] z = Complexes(spec);
+        for (int n = 0; n < z.Length; n++)
+        {
+            double t = n / 48000.0;
+            Complex want = Complex.FromPolarCoordinates(0.5, 2 * Math.PI * 300 * t + 2.5 * Math.Sin(2 * Math.PI * 1000 * t));
+            Assert.True((z[n] - want).Magnitude < 1e-9);
+        }
+    }
+
+    [Fact]
+    public void AM_envelope_is_A_1_plus_m_cos()
+    {
+        var spec = new SignalSpec { Kind = SignalKind.Am, SampleRateHz = 8000, DurationS = 0.1, Amplitude = 0.4, AmDepth = 0.8, ModulatingFrequencyHz = 500 };
+        Complex[] z = Complexes(spec);
+        for (int n = 0; n < z.Length; n++)
+            Assert.Equal(0.4 * (1 + 0.8 * Math.Cos(2 * Math.PI * 500 * n / 8000.0)), z[n].Magnitude, 12);
+    }
+
+    [Fact]
+    public void FSK_steps_by_plus_or_minus_half_the_shift_with_continuous_phase()
+    {
+        var spec = new SignalSpec { Kind = SignalKind.Fsk, SampleRateHz = 48000, DurationS = 0.1, CarrierOffsetHz = 200, FskShiftHz = 1000, SymbolRateBd = 1200 };
+        Complex[] z = Complexes(spec);
+        int[] seen = new int[2];
+        for (int n = 0; n + 1 < z.Length; n++)
+        {
+            double f = (z[n + 1] * Complex.Conjugate(z[n])).Phase * 48000 / (2 * Math.PI);
+            bool upper = Math.Abs(f - 700) < 1e-6, lower = Math.Abs(f + 300) < 1e-6;
+            Assert.True(upper || lower, $"step {n}: {f} Hz");
+            seen[upper ? 1 : 0]++;
+        }
+        Assert.True(seen[0] > 1000 && seen[1] > 1000);
+    }
+
+    [Fact]
+    public void Noise_power_follows_the_SNR_over_the_sampled_bandwidth()
+    {
+        var clean = new SignalSpec { Kind = SignalKind.Fm, SampleRateHz = 100000, DurationS = 2, PeakDeviationHz = 5000 };
+        var noisy = clean with { SnrDb = 10, Seed = 42 };
+        Complex[] a = Complexes(clean), b = Complexes(noisy);
+        double noise = a.Zip(b, (x, y) => (y - x).Magnitude * (y - x).Magnitude).Average();
+        double signal = a.Average(x => x.Magnitude * x.Magnitude);
+        // 200 000 complex Gaussian draws: the power estimate has a relative spread of 1/sqrt(200000) = 0.22 %.
+        Assert.Equal(10.0, 10 * Math.Log10(signal / noise), 1);
+        Assert.InRange(signal / noise, 10 * 0.99, 10 * 1.01);
+        Assert.Equal(0.25, signal, 12);
+    }
+
+    [Fact]
+    public void Output_does_not_depend_on_block_size()
+    {
+        var spec = new SignalSpec { Kind = SignalKind.Fsk, SampleRateHz = 24000, DurationS = 0.3, SnrDb = 20, Seed = 9 };
+        var whole = new double[spec.SampleCount * 2];
+        new SignalGenerator(spec).Generate(whole);
+        var gen = new SignalGenerator(spec);
+        var parts = new List<double>();
+        var block = new double[2 * 77];
+        int n;
+        while ((n = gen.Generate(block)) > 0) parts.AddRange(block[..(2 * n)]);
+        Assert.Equal(whole, parts);
+    }
+
+    [Theory]
+    [InlineData("--amplitude")]
+    [InlineData("--sample-rate")]
+    [InlineData("--offset")]
+    [InlineData("--depth")]
+    public void Invalid_parameters_name_the_option(string option)
+    {
+        SignalSpec bad = option switch
+        {
+            "--amplitude" => new SignalSpec { Amplitude = 1.5 },
+            "--sample-rate" => new SignalSpec { SampleRateHz = -1 },
+            "--offset" => new SignalSpec { SampleRateHz = 1000, CarrierOffsetHz = 600 },
+            _ => new SignalSpec { Kind = SignalKind.Am, AmDepth = 1.5 },
+        };
+        var e = Assert.Throws<ArgumentOutOfRangeException>(() => new SignalGenerator(bad));
+        Assert.Equal(option, e.ParamName);
+    }
+}
