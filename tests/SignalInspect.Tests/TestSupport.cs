@@ -71,3 +71,13 @@ internal static class CliRunner
         return (code, o.ToString(), e.ToString());
     }
 }
+
+/// <summary>Assertions with an explicit absolute tolerance (xunit's precision argument rounds, which misleads at the edge).</summary>
+internal static class Near
+{
+    public static void Equal(double expected, double actual, double tolerance, string? what = null)
+    {
+        Assert.True(Math.Abs(expected - actual) <= tolerance,
+            $"{what ?? "value"}: expected {expected:R} +/- {tolerance:R}, got {actual:R} (off by {Math.Abs(expected - actual):G3})");
+    }
+}

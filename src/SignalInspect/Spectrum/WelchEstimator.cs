@@ -1,0 +1,325 @@
+using System.Numerics;
+using System.Runtime.InteropServices;
+using SignalInspect.Capture;
+using SignalInspect.Dsp;
+
+namespace SignalInspect.Spectrum;
+
+/// <summary>
+/// Welch's method (Welch 1967): the capture is cut into segments of N samples, S = N - overlap
+/// apart (segments that would run past the end are not used, as scipy.signal.welch does); each is
+/// windowed (no detrending), transformed, and its periodogram |X|^2 is combined: mean (the PSD),
+/// per-bin maximum (max-hold) and, per run of segments, a spectrogram row. One streaming pass,
+/// memory independent of the capture's length; the segments are shared out between threads, each
+/// with its own reader, FFT plan and sums.
+/// Scaling follows scipy.signal.welch exactly: density = |X|^2 / (fs sum w^2), one-sided spectra
+/// of real input double every bin but DC and Nyquist.
+/// </summary>
+public static class WelchEstimator
+{
+    private const int MinStagingSamples = 1 << 16;
+
+    /// <summary>Estimates the spectrum of a window of a capture.</summary>
+    /// <param name="source">The capture.</param>
+    /// <param name="settings">FFT size, window, overlap, spectrogram size, threads.</param>
+    /// <param name="firstSample">First sample of the analysed window.</param>
+    /// <param name="sampleCount">Samples in the window; null for "to the end".</param>
+    /// <param name="progress">Called now and then with the samples processed so far (from worker threads).</param>
+    /// <param name="cancel">Stops the pass between segments.</param>
+    /// <exception cref="CaptureException">The window holds fewer samples than one segment.</exception>
+    /// <exception cref="ArgumentOutOfRangeException">A setting is out of range.</exception>
+    public static SpectrumResult Estimate(CaptureSource source, SpectrumSettings settings, long firstSample = 0, long? sampleCount = null,
+                                          Action<long>? progress = null, CancellationToken cancel = default)
+    {
+        settings.Validate();
+        CaptureInfo info = source.Info;
+        int n = settings.FftSize;
+        int step = settings.StepSamples;
+        long count = Math.Min(sampleCount ?? long.MaxValue, info.SampleCount - firstSample);
+        long segments = count >= n ? (count - n) / step + 1 : 0;
+        if (segments == 0)
+            throw CaptureException.ForFile(info.Path, $"holds {Math.Max(count, 0)} samples, fewer than one FFT segment of {n}: use a smaller --fft");
+        Window window = Window.Create(settings.Window, n, settings.KaiserBeta);
+        bool complex = info.IsComplex;
+        int bins = complex ? n : n / 2 + 1;
+
+        int rows = (int)Math.Min(settings.SpectrogramRows, segments);
+        long perRow = (segments + rows - 1) / rows;
+        rows = (int)((segments + perRow - 1) / perRow);
+        int q = (bins + settings.SpectrogramColumns - 1) / settings.SpectrogramColumns;
+        int columns = (bins + q - 1) / q;
+        var layout = new Layout(n, step, complex, bins, info.SampleRateHz, window, perRow, segments, q, columns) { RowMax = settings.SpectrogramAveraging == SpectrumAveraging.MaxHold };
+
+        int threads = Math.Max(1, Math.Min(settings.Threads ?? Environment.ProcessorCount, rows));
+        var workers = new Worker[threads];
+        var gram = new double[(long)rows * columns];
+        long done = 0;
+        Action<long>? report = progress is null ? null : delta => progress(Interlocked.Add(ref done, delta));
+        Parallel.For(0, threads, new ParallelOptions { MaxDegreeOfParallelism = threads, CancellationToken = cancel }, w =>
+        {
+            int r0 = (int)((long)rows * w / threads), r1 = (int)((long)rows * (w + 1) / threads);
+            var worker = new Worker(layout);
+            worker.Run(source, firstSample, r0, r1, gram, report, cancel);
+            workers[w] = worker;
+        });
+
+        // Combine the workers' sums, then scale and order the bins (ascending frequency).
+        var sum = new double[n];
+        var max = new double[n];
+        long nonFinite = 0;
+        foreach (Worker wk in workers)
+        {
+            for (int k = 0; k < n; k++) { sum[k] += wk.Sum[k]; max[k] = Math.Max(max[k], wk.Max[k]); }
+            nonFinite += wk.NonFiniteSegments;
+        }
+        double[] freqs = layout.Frequencies();
+        double[] mean = layout.Order(sum, 1.0 / segments);
+        double[] hold = layout.Order(max, 1.0);
+        int dcBins = 0;
+        if (settings.SuppressDc && complex)
+        {
+            dcBins = SuppressDc(mean, n / 2, window.MainLobeHalfWidthBins);
+            SuppressDc(hold, n / 2, window.MainLobeHalfWidthBins);
+            if (q == 1) for (int r = 0; r < rows; r++) SuppressDc(gram.AsSpan(r * columns, columns), n / 2, window.MainLobeHalfWidthBins);
+        }
+        double? centre = complex ? info.CenterFrequencyHz : null;
+        var rowTimes = new double[rows];
+        for (int r = 0; r < rows; r++)
+        {
+            long s0 = r * perRow, s1 = Math.Min(segments, (r + 1) * perRow) - 1;
+            rowTimes[r] = (s0 * step + s1 * step + n) / 2.0 / info.SampleRateHz;
+        }
+        var colFreqs = new double[columns];
+        for (int c = 0; c < columns; c++)
+        {
+            int a = c * q, b = Math.Min(bins, a + q) - 1;
+            colFreqs[c] = (freqs[a] + freqs[b]) / 2;
+        }
+        return new SpectrumResult
+        {
+            Mean = new PowerSpectrum(freqs, mean, SpectrumScaling.DensityPerHz, SpectrumAveraging.Mean, settings, window, info.SampleRateHz, centre, !complex, segments),
+            MaxHold = new PowerSpectrum(freqs, hold, SpectrumScaling.DensityPerHz, SpectrumAveraging.MaxHold, settings, window, info.SampleRateHz, centre, !complex, segments),
+            Spectrogram = new Spectrogram(rows, columns, gram, rowTimes, colFreqs, (int)perRow, settings.SpectrogramAveraging, settings.CalibrationDb),
+            FirstSample = firstSample,
+            SamplesAnalysed = (segments - 1) * step + n,
+            DcBinsSuppressed = dcBins,
+            NonFiniteSegments = nonFinite,
+            Threads = threads,
+        };
+    }
+
+    /// <summary>Replaces bins centre-hw..centre+hw by a straight line between their neighbours; returns the bins replaced.</summary>
+    private static int SuppressDc(Span<double> v, int centre, int hw)
+    {
+        int lo = centre - hw - 1, hi = centre + hw + 1;
+        if (lo < 0 || hi >= v.Length) return 0;
+        for (int i = lo + 1; i < hi; i++) v[i] = v[lo] + (v[hi] - v[lo]) * (i - lo) / (hi - lo);
+        return hi - lo - 1;
+    }
+
+    /// <summary>The fixed geometry of one estimate: bin order, scaling, rows.</summary>
+    private sealed class Layout(int n, int step, bool complex, int bins, double fs, Window window, long perRow, long segments, int q, int columns)
+    {
+        public int N => n;
+        public int Step => step;
+        public bool Complex => complex;
+        public int Bins => bins;
+        public Window Window => window;
+        public long PerRow => perRow;
+        public long Segments => segments;
+        public int Columns => columns;
+        public bool RowMax { get; init; }
+
+        private readonly double _density = 1.0 / (fs * window.SumOfSquares);
+
+        /// <summary>FFT bin of output index i (ascending frequency).</summary>
+        public int BinOf(int i) => complex ? (i - n / 2 + n) % n : i;
+
+        public double[] Frequencies()
+        {
+            var f = new double[bins];
+            for (int i = 0; i < bins; i++) f[i] = (complex ? i - n / 2 : i) * fs / n;
+            return f;
+        }
+
+        /// <summary>Density of output index i from a raw |X|^2 value: 1/(fs sum w^2), doubled for one-sided interior bins.</summary>
+        public double Scale(int i)
+        {
+            if (complex) return _density;
+            bool nyquist = n % 2 == 0 && i == n / 2;
+            return i == 0 || nyquist ? _density : 2 * _density;
+        }
+
+        public double[] Order(double[] raw, double factor)
+        {
+            var o = new double[bins];
+            for (int i = 0; i < bins; i++) o[i] = raw[BinOf(i)] * Scale(i) * factor;
+            return o;
+        }
+
+        /// <summary>Writes a finished row (raw sums over its segments) into the spectrogram.</summary>
+        public void WriteRow(double[] gram, int row, double[] raw, long segmentsInRow, bool mean)
+        {
+            double f = mean ? 1.0 / segmentsInRow : 1.0;
+            Span<double> dst = gram.AsSpan(row * columns, columns);
+            for (int c = 0; c < columns; c++)
+            {
+                int a = c * q, b = Math.Min(bins, a + q);
+                double s = 0;
+                for (int i = a; i < b; i++) s += raw[BinOf(i)] * Scale(i);
+                dst[c] = s * f / (b - a);
+            }
+        }
+    }
+
+    /// <summary>One thread's share: its reader, FFT plan and sums.</summary>
+    private sealed class Worker
+    {
+        private readonly Layout _l;
+        private readonly FftPlan _fft;
+        private readonly double[] _re, _im, _w, _row;
+
+        public Worker(Layout layout)
+        {
+            _l = layout;
+            _fft = new FftPlan(layout.N);
+            _re = new double[layout.N];
+            _im = new double[layout.N];
+            _w = layout.Window.Coefficients.ToArray();
+            _row = new double[layout.N];
+            Sum = new double[layout.N];
+            Max = new double[layout.N];
+        }
+
+        public double[] Sum { get; }
+        public double[] Max { get; }
+        public long NonFiniteSegments { get; private set; }
+
+        public void Run(CaptureSource source, long firstSample, int r0, int r1, double[] gram, Action<long>? report, CancellationToken cancel)
+        {
+            if (r0 >= r1) return;
+            int n = _l.N, step = _l.Step;
+            long seg0 = r0 * _l.PerRow, seg1 = Math.Min(_l.Segments, r1 * _l.PerRow);
+            long samples = (seg1 - seg0 - 1) * step + n;
+            using CaptureReader reader = source.OpenReader(firstSample + seg0 * step, samples);
+            int vps = reader.ValuesPerSample;
+            int capacity = Math.Max(MinStagingSamples, 4 * n) + n;
+            var staging = new double[capacity * vps];
+            int filled = 0, pos = 0;
+            long segment = seg0;
+            int row = r0;
+            long rowStart = seg0;
+            bool mean = !_l.RowMax;
+            Array.Clear(_row);
+            while (segment < seg1)
+            {
+                cancel.ThrowIfCancellationRequested();
+                if (pos + n > filled)
+                {
+                    int keep = filled - pos;
+                    staging.AsSpan(pos * vps, keep * vps).CopyTo(staging);
+                    filled = keep;
+                    pos = 0;
+                    int got = reader.Read(staging.AsSpan(filled * vps));
+                    if (got == 0) break;
+                    filled += got;
+                    report?.Invoke(got);
+                    continue;
+                }
+                Periodogram(staging.AsSpan(pos * vps, n * vps), vps == 2);
+                segment++;
+                pos += step;
+                if (segment - rowStart == _l.PerRow || segment == seg1)
+                {
+                    _l.WriteRow(gram, row, _row, segment - rowStart, mean);
+                    Array.Clear(_row);
+                    row++;
+                    rowStart = segment;
+                }
+            }
+        }
+
+        private void Periodogram(ReadOnlySpan<double> x, bool complex)
+        {
+            Window(x, complex, sanitize: false);
+            if (!PowerInto(_re))
+            {
+                // The segment held NaN or infinity: take those samples as 0.
+                NonFiniteSegments++;
+                Window(x, complex, sanitize: true);
+                PowerInto(_re);
+            }
+            int vw = Vector<double>.Count;
+            ReadOnlySpan<Vector<double>> vp = MemoryMarshal.Cast<double, Vector<double>>(_re.AsSpan());
+            Span<Vector<double>> vsum = MemoryMarshal.Cast<double, Vector<double>>(Sum.AsSpan());
+            Span<Vector<double>> vmax = MemoryMarshal.Cast<double, Vector<double>>(Max.AsSpan());
+            Span<Vector<double>> vrow = MemoryMarshal.Cast<double, Vector<double>>(_row.AsSpan());
+            for (int v = 0; v < vp.Length; v++)
+            {
+                vsum[v] += vp[v];
+                vmax[v] = Vector.Max(vmax[v], vp[v]);
+                vrow[v] = _l.RowMax ? Vector.Max(vrow[v], vp[v]) : vrow[v] + vp[v];
+            }
+            for (int k = vp.Length * vw; k < _l.N; k++)
+            {
+                Sum[k] += _re[k];
+                Max[k] = Math.Max(Max[k], _re[k]);
+                _row[k] = _l.RowMax ? Math.Max(_row[k], _re[k]) : _row[k] + _re[k];
+            }
+        }
+
+        /// <summary>Windows a segment into the FFT arrays (non-finite samples as 0 when sanitising) and transforms it.</summary>
+        private void Window(ReadOnlySpan<double> x, bool complex, bool sanitize)
+        {
+            int n = _l.N;
+            Span<double> re = _re, im = _im;
+            ReadOnlySpan<double> w = _w;
+            if (complex)
+            {
+                for (int i = 0; i < n; i++)
+                {
+                    re[i] = x[2 * i] * w[i];
+                    im[i] = x[2 * i + 1] * w[i];
+                }
+            }
+            else
+            {
+                for (int i = 0; i < n; i++) re[i] = x[i] * w[i];
+                im.Clear();
+            }
+            if (sanitize)
+            {
+                for (int i = 0; i < n; i++)
+                {
+                    if (!double.IsFinite(re[i])) re[i] = 0;
+                    if (!double.IsFinite(im[i])) im[i] = 0;
+                }
+            }
+            _fft.Forward(re, im);
+        }
+
+        /// <summary>Writes |X|^2 into <paramref name="power"/> (over the real part); false when a value is not finite.</summary>
+        private bool PowerInto(double[] power)
+        {
+            int vw = Vector<double>.Count;
+            Span<Vector<double>> vre = MemoryMarshal.Cast<double, Vector<double>>(_re.AsSpan());
+            ReadOnlySpan<Vector<double>> vim = MemoryMarshal.Cast<double, Vector<double>>(_im.AsSpan());
+            Span<Vector<double>> vp = MemoryMarshal.Cast<double, Vector<double>>(power.AsSpan());
+            var total = Vector<double>.Zero;
+            for (int v = 0; v < vre.Length; v++)
+            {
+                Vector<double> p = vre[v] * vre[v] + vim[v] * vim[v];
+                vp[v] = p;
+                total += p;
+            }
+            double sum = Vector.Sum(total);
+            for (int k = vre.Length * vw; k < _l.N; k++)
+            {
+                double p = _re[k] * _re[k] + _im[k] * _im[k];
+                power[k] = p;
+                sum += p;
+            }
+            return double.IsFinite(sum);
+        }
+    }
+}
