@@ -3,7 +3,7 @@
 
 Run from the repository root:  /usr/bin/python3 testdata/spectrum/make_welch_refs.py
 Writes, in testdata/spectrum/:
-  in-complex.cf64, in-real.rf64       small inputs (raw little-endian float64; no quantisation)
+  in-complex.cf64, in-real.f64le       small inputs (raw little-endian float64; no quantisation)
   welch-<case>.csv                    frequencyHz,psd  (linear density, FS^2/Hz, ascending frequency)
   capture-<name>.csv                  frequencyHz,psdDbfsPerHz for committed captures, read here with numpy
 Every call is scipy.signal.welch(x, fs, window, nperseg, noverlap, detrend=False,
@@ -39,7 +39,7 @@ inter.astype("<f8").tofile(os.path.join(HERE, "in-complex.cf64"))
 fs_r, n_r = 8000.0, 5000
 t = np.arange(n_r) / fs_r
 xr = 0.7 * np.cos(2 * np.pi * 1234.5 * t) + 0.002 * rng.standard_normal(n_r)
-xr.astype("<f8").tofile(os.path.join(HERE, "in-real.rf64"))
+xr.astype("<f8").tofile(os.path.join(HERE, "in-real.f64le"))
 
 cases = [  # name, window (scipy spelling), nperseg, noverlap
     ("hann-256-128", "hann", 256, 128),
