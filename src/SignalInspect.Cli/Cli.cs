@@ -59,6 +59,7 @@ public static class Cli
         {
             InfoCommand.Create(stdout, stderr),
             SynthCommand.Create(stdout, stderr),
+            SpectrumCommand.Create(stdout, stderr),
             DemoCommand.Create(stdout, stderr),
         };
         return root;

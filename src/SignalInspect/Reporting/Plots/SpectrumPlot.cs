@@ -1,0 +1,85 @@
+using ScottPlot;
+using SignalInspect.Spectrum;
+
+namespace SignalInspect.Reporting.Plots;
+
+/// <summary>Renders a power spectrum (dB against frequency) as a PNG image.</summary>
+public static class SpectrumPlot
+{
+    /// <summary>Marks drawn over the spectrum: vertical lines (e.g. occupied-bandwidth edges) and a limit trace.</summary>
+    public sealed record Marks
+    {
+        /// <summary>Vertical lines at frequencies in Hz on the plot's axis (absolute RF when the plot is absolute, else offsets), with labels.</summary>
+        public IReadOnlyList<(double FrequencyHz, string Label)> Lines { get; init; } = [];
+
+        /// <summary>A limit trace (e.g. an emission mask) as (frequency, dB) points, null for none.</summary>
+        public IReadOnlyList<(double FrequencyHz, double Db)>? Limit { get; init; }
+
+        /// <summary>Legend text of the limit trace.</summary>
+        public string LimitLabel { get; init; } = "limit";
+    }
+
+    /// <summary>Renders the spectrum to PNG bytes.</summary>
+    /// <param name="spectrum">The spectrum (any scaling; the axis label follows it).</param>
+    /// <param name="title">Plot title.</param>
+    /// <param name="widthPx">Width in pixels.</param>
+    /// <param name="heightPx">Height in pixels.</param>
+    /// <param name="scale">Scale factor of fonts and lines (2 or 3 for print resolution).</param>
+    /// <param name="marks">Optional lines and limit trace.</param>
+    /// <param name="absolute">Label the axis with absolute RF frequency in MHz when the centre is known.</param>
+    public static byte[] RenderPng(PowerSpectrum spectrum, string title, int widthPx = 1200, int heightPx = 600, double scale = 1, Marks? marks = null, bool absolute = false)
+    {
+        Plot plot = PlotStyle.NewPlot();
+        plot.ScaleFactor = scale;
+        bool abs = absolute && spectrum.CenterFrequencyHz is not null && !spectrum.IsOneSided;
+        double offset = abs ? spectrum.CenterFrequencyHz!.Value : 0;
+        (double div, string unit) = AxisUnit(spectrum, abs);
+        var xs = new double[spectrum.Count];
+        var ys = new double[spectrum.Count];
+        for (int i = 0; i < spectrum.Count; i++)
+        {
+            xs[i] = (spectrum.FrequenciesHz[i] + offset) / div;
+            ys[i] = spectrum.Db(i);
+        }
+        var trace = plot.Add.ScatterLine(xs, ys, PlotStyle.Trace);
+        trace.LineWidth = 1;
+        trace.LegendText = spectrum.Averaging == SpectrumAveraging.MaxHold ? "max hold" : "mean (Welch)";
+        double top = ys.Max(), floor = Percentile(ys, 0.05);
+        plot.Axes.SetLimitsY(Math.Max(floor - 15, top - 140), top + 8);
+        plot.Axes.SetLimitsX(xs[0], xs[^1]);
+        if (marks is not null)
+        {
+            foreach (var (f, label) in marks.Lines)
+            {
+                var line = plot.Add.VerticalLine(f / div, 1.5f, PlotStyle.Edge, LinePattern.Dashed);
+                line.LegendText = label;
+            }
+            if (marks.Limit is { Count: > 1 } limit)
+            {
+                var l = plot.Add.ScatterLine(limit.Select(p => p.FrequencyHz / div).ToArray(), limit.Select(p => p.Db).ToArray(), PlotStyle.Limit);
+                l.LineWidth = 1.5f;
+                l.LegendText = marks.LimitLabel;
+            }
+            plot.ShowLegend(Alignment.UpperRight);
+        }
+        string cal = spectrum.Settings.CalibrationDb != 0 ? "dBm" : "dBFS";
+        plot.YLabel(spectrum.Scaling == SpectrumScaling.DensityPerHz ? $"PSD ({cal}/Hz)" : $"power per bin ({cal})");
+        plot.XLabel(abs ? $"frequency ({unit})" : spectrum.IsOneSided ? $"frequency ({unit})" : $"offset from centre ({unit})");
+        plot.Title(title);
+        return plot.GetImageBytes(widthPx, heightPx, ImageFormat.Png);
+    }
+
+    /// <summary>Chooses Hz, kHz or MHz for the axis.</summary>
+    internal static (double Divisor, string Unit) AxisUnit(PowerSpectrum s, bool absolute)
+    {
+        double span = absolute ? s.CenterFrequencyHz!.Value + s.SampleRateHz : s.SampleRateHz;
+        if (absolute && span >= 1e6) return (1e6, "MHz");
+        return s.SampleRateHz >= 20e3 ? (1e3, "kHz") : (1, "Hz");
+    }
+
+    private static double Percentile(double[] v, double p)
+    {
+        double[] sorted = [.. v.Where(double.IsFinite).Order()];
+        return sorted.Length == 0 ? -100 : sorted[(int)Math.Clamp(p * (sorted.Length - 1), 0, sorted.Length - 1)];
+    }
+}
