@@ -148,6 +148,67 @@ public sealed class FftPlan
         }
     }
 
+    /// <summary>
+    /// Forward transform of a windowed segment: X = DFT(w[n] x[n]). The samples are interleaved
+    /// I, Q (complex) or real; the result lands in <paramref name="re"/>, <paramref name="im"/>.
+    /// For powers of two the windowing is fused with the input permutation (one pass fewer).
+    /// Returns the sum of the windowed values, which is not finite when an input was NaN or infinite.
+    /// </summary>
+    public double ForwardWindowed(ReadOnlySpan<double> samples, bool complex, ReadOnlySpan<double> window, Span<double> re, Span<double> im)
+    {
+        int n = _n;
+        if (re.Length != n || im.Length != n || window.Length != n || samples.Length < (complex ? 2 * n : n))
+            throw new ArgumentException($"spans must hold {n} points");
+        double check = 0;
+        if (_inner is not null || n < 4)
+        {
+            for (int i = 0; i < n; i++)
+            {
+                re[i] = (complex ? samples[2 * i] : samples[i]) * window[i];
+                im[i] = complex ? samples[2 * i + 1] * window[i] : 0;
+                check += re[i] + im[i];
+            }
+            Forward(re, im);
+            return check;
+        }
+        // Bit-reversed load, window and the first two stages in one pass: output group g..g+3
+        // takes the inputs rev[g], rev[g] + n/2, rev[g] + n/4, rev[g] + 3n/4.
+        ref int rev = ref MemoryMarshal.GetArrayDataReference(_bitReverse);
+        ref double x = ref MemoryMarshal.GetReference(samples);
+        ref double w = ref MemoryMarshal.GetReference(window);
+        ref double r = ref MemoryMarshal.GetReference(re);
+        ref double q = ref MemoryMarshal.GetReference(im);
+        int half = n / 2, quarter = n / 4;
+        for (int g = 0; g < n; g += 4)
+        {
+            int j0 = Unsafe.Add(ref rev, g), j1 = j0 + half, j2 = j0 + quarter, j3 = j2 + half;
+            double w0 = Unsafe.Add(ref w, j0), w1 = Unsafe.Add(ref w, j1), w2 = Unsafe.Add(ref w, j2), w3 = Unsafe.Add(ref w, j3);
+            double x0r, x0i, x1r, x1i, x2r, x2i, x3r, x3i;
+            if (complex)
+            {
+                x0r = Unsafe.Add(ref x, 2 * j0) * w0; x0i = Unsafe.Add(ref x, 2 * j0 + 1) * w0;
+                x1r = Unsafe.Add(ref x, 2 * j1) * w1; x1i = Unsafe.Add(ref x, 2 * j1 + 1) * w1;
+                x2r = Unsafe.Add(ref x, 2 * j2) * w2; x2i = Unsafe.Add(ref x, 2 * j2 + 1) * w2;
+                x3r = Unsafe.Add(ref x, 2 * j3) * w3; x3i = Unsafe.Add(ref x, 2 * j3 + 1) * w3;
+            }
+            else
+            {
+                x0r = Unsafe.Add(ref x, j0) * w0; x1r = Unsafe.Add(ref x, j1) * w1;
+                x2r = Unsafe.Add(ref x, j2) * w2; x3r = Unsafe.Add(ref x, j3) * w3;
+                x0i = x1i = x2i = x3i = 0;
+            }
+            check += x0r + x1r + x2r + x3r + x0i + x1i + x2i + x3i;
+            double r0 = x0r + x1r, i0 = x0i + x1i, r1 = x0r - x1r, i1 = x0i - x1i;
+            double r2 = x2r + x3r, i2 = x2i + x3i, r3 = x2r - x3r, i3 = x2i - x3i;
+            Unsafe.Add(ref r, g) = r0 + r2; Unsafe.Add(ref q, g) = i0 + i2;
+            Unsafe.Add(ref r, g + 2) = r0 - r2; Unsafe.Add(ref q, g + 2) = i0 - i2;
+            Unsafe.Add(ref r, g + 1) = r1 + i3; Unsafe.Add(ref q, g + 1) = i1 - r3;
+            Unsafe.Add(ref r, g + 3) = r1 - i3; Unsafe.Add(ref q, g + 3) = i1 + r3;
+        }
+        LaterStages(re, im);
+        return check;
+    }
+
     private void Radix2(Span<double> re, Span<double> im)
     {
         int n = _n;
@@ -162,6 +223,13 @@ public sealed class FftPlan
                 (im[i], im[j]) = (im[j], im[i]);
             }
         }
+        Butterflies(re, im);
+    }
+
+    /// <summary>The butterfly stages of a decimation-in-time FFT on bit-reversed input.</summary>
+    private void Butterflies(Span<double> re, Span<double> im)
+    {
+        int n = _n;
         // Stages 1 and 2 together (radix-4 on groups of four, twiddles 1 and -i).
         if (n >= 4)
         {
@@ -185,10 +253,51 @@ public sealed class FftPlan
             re[1] = r0 - re[1]; im[1] = i0 - im[1];
             return;
         }
+        LaterStages(re, im);
+    }
+
+    /// <summary>Stages 3 and up: radix-2^2 passes with SIMD, then a last radix-2 stage when the count is odd.</summary>
+    private void LaterStages(Span<double> re, Span<double> im)
+    {
+        int n = _n;
         int vw = Vector<double>.Count;
         ref double reRef = ref MemoryMarshal.GetReference(re);
         ref double imRef = ref MemoryMarshal.GetReference(im);
-        for (int s = 3, h = 4; s <= _log2; s++, h <<= 1)
+        int s = 3, h = 4;
+        // Two radix-2 stages per pass (radix 2^2): stage s pairs (a0, a1) and (a2, a3) with
+        // w1 = W_2h^k; stage s+1 pairs (b0, b2) with w2 = W_4h^k and (b1, b3) with -i w2.
+        for (; s + 1 <= _log2 && h >= vw; s += 2, h <<= 2)
+        {
+            ref double w1r = ref _twRe[_stageOffset[s]];
+            ref double w1i = ref _twIm[_stageOffset[s]];
+            ref double w2r = ref _twRe[_stageOffset[s + 1]];
+            ref double w2i = ref _twIm[_stageOffset[s + 1]];
+            for (int g = 0; g < n; g += 4 * h)
+            {
+                for (int k = 0; k < h; k += vw)
+                {
+                    int i0 = g + k, i1 = i0 + h, i2 = i1 + h, i3 = i2 + h;
+                    Vector<double> ar = LoadV(ref w1r, k), ai = LoadV(ref w1i, k);
+                    Vector<double> a1r = LoadV(ref reRef, i1), a1i = LoadV(ref imRef, i1);
+                    Vector<double> a3r = LoadV(ref reRef, i3), a3i = LoadV(ref imRef, i3);
+                    Vector<double> t1r = ar * a1r - ai * a1i, t1i = ar * a1i + ai * a1r;
+                    Vector<double> t3r = ar * a3r - ai * a3i, t3i = ar * a3i + ai * a3r;
+                    Vector<double> a0r = LoadV(ref reRef, i0), a0i = LoadV(ref imRef, i0);
+                    Vector<double> a2r = LoadV(ref reRef, i2), a2i = LoadV(ref imRef, i2);
+                    Vector<double> b0r = a0r + t1r, b0i = a0i + t1i, b1r = a0r - t1r, b1i = a0i - t1i;
+                    Vector<double> b2r = a2r + t3r, b2i = a2i + t3i, b3r = a2r - t3r, b3i = a2i - t3i;
+                    Vector<double> cr = LoadV(ref w2r, k), ci = LoadV(ref w2i, k);
+                    Vector<double> u2r = cr * b2r - ci * b2i, u2i = cr * b2i + ci * b2r;
+                    // (-i w2) b3 = -i (w2 b3): (x + iy)(-i) = y - ix
+                    Vector<double> v3r = cr * b3r - ci * b3i, v3i = cr * b3i + ci * b3r;
+                    StoreV(b0r + u2r, ref reRef, i0); StoreV(b0i + u2i, ref imRef, i0);
+                    StoreV(b0r - u2r, ref reRef, i2); StoreV(b0i - u2i, ref imRef, i2);
+                    StoreV(b1r + v3i, ref reRef, i1); StoreV(b1i - v3r, ref imRef, i1);
+                    StoreV(b1r - v3i, ref reRef, i3); StoreV(b1i + v3r, ref imRef, i3);
+                }
+            }
+        }
+        for (; s <= _log2; s++, h <<= 1)
         {
             int tw = _stageOffset[s];
             ref double twr = ref _twRe[tw];

@@ -241,85 +241,43 @@ public static class WelchEstimator
 
         private void Periodogram(ReadOnlySpan<double> x, bool complex)
         {
-            Window(x, complex, sanitize: false);
-            if (!PowerInto(_re))
+            double check = _fft.ForwardWindowed(x, complex, _w, _re, _im);
+            if (!double.IsFinite(check))
             {
                 // The segment held NaN or infinity: take those samples as 0.
                 NonFiniteSegments++;
-                Window(x, complex, sanitize: true);
-                PowerInto(_re);
+                int n = _l.N;
+                var clean = new double[complex ? 2 * n : n];
+                for (int i = 0; i < clean.Length; i++) clean[i] = double.IsFinite(x[i]) ? x[i] : 0;
+                _fft.ForwardWindowed(clean, complex, _w, _re, _im);
             }
+            Accumulate();
+        }
+
+        /// <summary>|X|^2 of the transformed segment into the sum, the max-hold and the current row, in one pass.</summary>
+        private void Accumulate()
+        {
             int vw = Vector<double>.Count;
-            ReadOnlySpan<Vector<double>> vp = MemoryMarshal.Cast<double, Vector<double>>(_re.AsSpan());
+            ReadOnlySpan<Vector<double>> vre = MemoryMarshal.Cast<double, Vector<double>>(_re.AsSpan());
+            ReadOnlySpan<Vector<double>> vim = MemoryMarshal.Cast<double, Vector<double>>(_im.AsSpan());
             Span<Vector<double>> vsum = MemoryMarshal.Cast<double, Vector<double>>(Sum.AsSpan());
             Span<Vector<double>> vmax = MemoryMarshal.Cast<double, Vector<double>>(Max.AsSpan());
             Span<Vector<double>> vrow = MemoryMarshal.Cast<double, Vector<double>>(_row.AsSpan());
-            for (int v = 0; v < vp.Length; v++)
-            {
-                vsum[v] += vp[v];
-                vmax[v] = Vector.Max(vmax[v], vp[v]);
-                vrow[v] = _l.RowMax ? Vector.Max(vrow[v], vp[v]) : vrow[v] + vp[v];
-            }
-            for (int k = vp.Length * vw; k < _l.N; k++)
-            {
-                Sum[k] += _re[k];
-                Max[k] = Math.Max(Max[k], _re[k]);
-                _row[k] = _l.RowMax ? Math.Max(_row[k], _re[k]) : _row[k] + _re[k];
-            }
-        }
-
-        /// <summary>Windows a segment into the FFT arrays (non-finite samples as 0 when sanitising) and transforms it.</summary>
-        private void Window(ReadOnlySpan<double> x, bool complex, bool sanitize)
-        {
-            int n = _l.N;
-            Span<double> re = _re, im = _im;
-            ReadOnlySpan<double> w = _w;
-            if (complex)
-            {
-                for (int i = 0; i < n; i++)
-                {
-                    re[i] = x[2 * i] * w[i];
-                    im[i] = x[2 * i + 1] * w[i];
-                }
-            }
-            else
-            {
-                for (int i = 0; i < n; i++) re[i] = x[i] * w[i];
-                im.Clear();
-            }
-            if (sanitize)
-            {
-                for (int i = 0; i < n; i++)
-                {
-                    if (!double.IsFinite(re[i])) re[i] = 0;
-                    if (!double.IsFinite(im[i])) im[i] = 0;
-                }
-            }
-            _fft.Forward(re, im);
-        }
-
-        /// <summary>Writes |X|^2 into <paramref name="power"/> (over the real part); false when a value is not finite.</summary>
-        private bool PowerInto(double[] power)
-        {
-            int vw = Vector<double>.Count;
-            Span<Vector<double>> vre = MemoryMarshal.Cast<double, Vector<double>>(_re.AsSpan());
-            ReadOnlySpan<Vector<double>> vim = MemoryMarshal.Cast<double, Vector<double>>(_im.AsSpan());
-            Span<Vector<double>> vp = MemoryMarshal.Cast<double, Vector<double>>(power.AsSpan());
-            var total = Vector<double>.Zero;
+            bool rowMax = _l.RowMax;
             for (int v = 0; v < vre.Length; v++)
             {
                 Vector<double> p = vre[v] * vre[v] + vim[v] * vim[v];
-                vp[v] = p;
-                total += p;
+                vsum[v] += p;
+                vmax[v] = Vector.Max(vmax[v], p);
+                vrow[v] = rowMax ? Vector.Max(vrow[v], p) : vrow[v] + p;
             }
-            double sum = Vector.Sum(total);
             for (int k = vre.Length * vw; k < _l.N; k++)
             {
                 double p = _re[k] * _re[k] + _im[k] * _im[k];
-                power[k] = p;
-                sum += p;
+                Sum[k] += p;
+                Max[k] = Math.Max(Max[k], p);
+                _row[k] = rowMax ? Math.Max(_row[k], p) : _row[k] + p;
             }
-            return double.IsFinite(sum);
         }
     }
 }
