@@ -60,6 +60,7 @@ public static class Cli
             InfoCommand.Create(stdout, stderr),
             SynthCommand.Create(stdout, stderr),
             SpectrumCommand.Create(stdout, stderr),
+            AnalyzeCommand.Create(stdout, stderr),
             DemoCommand.Create(stdout, stderr),
         };
         return root;

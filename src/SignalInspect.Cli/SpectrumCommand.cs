@@ -31,9 +31,11 @@ internal static class SpectrumCommand
             c.Add(Fft); c.Add(Rbw); c.Add(Window); c.Add(Overlap); c.Add(SuppressDc); c.Add(Calibration); c.Add(Start); c.Add(Duration); c.Add(Threads);
         }
 
+        public (WindowKind Kind, double Beta) WindowKindOf(ParseResult r) => ParseWindow(r.GetValue(Window)!);
+
         public SpectrumSettings Read(ParseResult r, CaptureInfo info)
         {
-            (WindowKind kind, double beta) = ParseWindow(r.GetValue(Window)!);
+            (WindowKind kind, double beta) = WindowKindOf(r);
             int fft = r.GetValue(Rbw) is { } rbw
                 ? SpectrumSettings.FftSizeForRbw(rbw, info.SampleRateHz, kind, beta)
                 : r.GetValue(Fft) ?? SpectrumSettings.DefaultFftSize;

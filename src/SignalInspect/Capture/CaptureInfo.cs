@@ -57,6 +57,9 @@ public sealed record CaptureInfo
     /// <summary>Time of the first sample, null when unknown.</summary>
     public DateTimeOffset? StartTime { get; init; }
 
+    /// <summary>The file that holds the samples (the .sigmf-data file of a SigMF pair; else the file named).</summary>
+    public string? DataPath { get; init; }
+
     /// <summary>Size of the file the user named, in bytes.</summary>
     public required long FileSizeBytes { get; init; }
 

@@ -35,6 +35,7 @@ internal static class RawReader
         var info = new CaptureInfo
         {
             Path = path,
+            DataPath = path,
             Container = "raw",
             SampleRateHz = rate,
             CenterFrequencyHz = options.CenterFrequencyHz,

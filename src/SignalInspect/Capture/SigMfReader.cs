@@ -205,6 +205,7 @@ internal static class SigMfReader
             var info = new CaptureInfo
             {
                 Path = metaPath,
+                DataPath = dataPath,
                 Container = container,
                 SampleRateHz = rate,
                 CenterFrequencyHz = centre,

@@ -58,6 +58,7 @@ internal static class WavReader
         var info = new CaptureInfo
         {
             Path = path,
+            DataPath = path,
             Container = scan.Magic == "RIFF" ? "WAV" : scan.Magic,
             SampleRateHz = rateHz,
             CenterFrequencyHz = options.CenterFrequencyHz,

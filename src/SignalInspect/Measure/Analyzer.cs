@@ -1,0 +1,589 @@
+using System.Globalization;
+using System.Security.Cryptography;
+using SignalInspect.Capture;
+using SignalInspect.Dsp;
+using SignalInspect.Spectrum;
+
+namespace SignalInspect.Measure;
+
+/// <summary>
+/// The measurement pipeline: one Welch pass for the spectrum and bandwidths, then one pass that
+/// shifts the signal to 0 Hz, channel-filters and decimates it and demodulates it (envelope,
+/// instantaneous frequency, phase), with a third pass only for the phase of PM. Memory does not
+/// grow with the capture: every statistic is a running sum, a fixed histogram or a Welch accumulator.
+/// </summary>
+public static class Analyzer
+{
+    private const double PeakUpper = 0.999, PeakLower = 0.001;
+
+    /// <summary>A sample component this close to full scale counts as clipped (the top code of a 16-bit capture is 0.99997).</summary>
+    private const double FullScaleCode = 0.9999;
+
+    /// <summary>Analyses a capture.</summary>
+    /// <exception cref="CaptureException">The capture is too short or cannot be read.</exception>
+    /// <exception cref="ArgumentOutOfRangeException">An option is out of range (named).</exception>
+    public static AnalysisResult Analyze(CaptureSource source, AnalysisOptions? options = null, Action<long>? progress = null, CancellationToken cancel = default)
+    {
+        options ??= new AnalysisOptions();
+        options.Validate();
+        CaptureInfo info = source.Info;
+        double fs = info.SampleRateHz;
+        long first = (long)Math.Round(options.StartS * fs);
+        if (first >= info.SampleCount) throw CaptureException.ForFile(info.Path, $"--start {options.StartS:R} s lies beyond the end of the capture ({info.DurationS:0.######} s)");
+        long count = Math.Min(options.DurationS is { } d ? (long)Math.Round(d * fs) : long.MaxValue, info.SampleCount - first);
+        Task<string> hash = Task.Run(() => Sha256(info.DataPath ?? info.Path), cancel);
+        var warnings = new List<string>(info.Warnings);
+
+        // Pass A: the spectrum, the bandwidths and a first carrier estimate.
+        int fft = options.FftSize ?? 4096;
+        if (options.FftSize is null) while (fft > 64 && count < 8L * fft) fft /= 2;
+        var spectrumSettings = new SpectrumSettings { FftSize = fft, Window = options.Window, SuppressDc = options.SuppressDc, Threads = options.Threads };
+        SpectrumResult spectrum = WelchEstimator.Estimate(source, spectrumSettings, first, count, progress, cancel);
+        PowerSpectrum psd = spectrum.Mean;
+        BandwidthResult bw = BandwidthMeasurement.Measure(psd, 1 - options.ObwPercent / 100, options.Xdb, options.ObwNoise);
+        double bin = psd.BinWidthHz;
+        double noiseInBand = bw.NoiseFloorDensity * Math.Max(bw.OccupiedHz, psd.RbwHz);
+        double snrDb = noiseInBand > 0 ? Math.Min(200, 10 * Math.Log10(Math.Max(bw.SignalPower, 1e-300) / noiseInBand)) : 200;
+        (double lineHz, double lineFraction) = StrongestLine(psd, bw);
+        double coarse = lineFraction >= 0.3 ? lineHz : bw.CentroidHz;
+        if (!info.IsComplex && coarse <= bin)
+            throw CaptureException.ForFile(info.Path, "the real signal has its power at 0 Hz: there is no carrier in the audio band to analyse");
+
+        // Channel filter around the signal: flat to 1.5 x the farther occupied-bandwidth edge (so
+        // the outer sidebands that carry the peaks pass), then decimated to keep the band.
+        double reach = Math.Max(Math.Max(bw.UpperEdgeHz - coarse, coarse - bw.LowerEdgeHz), 0);
+        double passEdge = Math.Max(1.5 * reach + 4 * bin, 25 * bin);
+        double nyquist = fs / 2;
+        double usable = info.IsComplex ? nyquist : Math.Min(coarse, nyquist - coarse);
+        bool filter = 1.25 * passEdge < 0.9 * usable;
+        if (!info.IsComplex && !filter)
+            warnings.Add("the carrier sits close to 0 Hz or to half the sample rate for its bandwidth: the analytic signal keeps some of the mirror image");
+        double transition = filter ? Math.Min(0.5 * passEdge, 0.9 * usable - passEdge) : 0;
+        double half = passEdge + transition / 2;
+        int decimation = filter ? Math.Max(1, (int)Math.Floor(fs / (2.5 * (half + transition / 2)))) : 1;
+        double fsd = fs / decimation;
+        double[] taps = filter ? FirDesign.LowPass(half, fs, transition, 80, 4095) : [1.0];
+        if (!filter) half = usable;
+        string channel = filter
+            ? string.Create(CultureInfo.InvariantCulture, $"shift {-coarse:0.###} Hz, Kaiser-windowed sinc low-pass {half:0.#} Hz ({taps.Length} taps, 80 dB), decimation {decimation} to {fsd:0.###} Hz")
+            : string.Create(CultureInfo.InvariantCulture, $"shift {-coarse:0.###} Hz, no channel filter (the signal fills the band)");
+        double postLp = options.PostLowPassHz ?? Math.Min(15000, 0.9 * Math.Min(half, fsd / 2));
+        postLp = Math.Min(postLp, 0.45 * fsd);
+        var plan = new PassPlan(source, first, count, taps, decimation, -coarse, fs, fsd, postLp, options.PostHighPassHz, options.DeEmphasisUs, info.IsComplex);
+
+        // Pass B: demodulation.
+        PassResult b = RunPass(plan, fit: null, cancel);
+        if (b.Samples < 16) throw CaptureException.ForFile(info.Path, "too few samples remain after the channel filter to demodulate");
+        double slope = b.Slope;                  // rad per decimated sample
+        double residualHz = slope * fsd / (2 * Math.PI);
+        double carrierAxisHz = coarse + residualHz;
+
+        // Features and classification.
+        double sigmaPhase = Math.Sqrt(Math.Max(b.PhaseResidualVariance, 0));
+        double aMax = b.Envelope.Percentile(PeakUpper), aMin = b.Envelope.Percentile(PeakLower), aMean = b.EnvelopeMean;
+        double mEnv = aMax + aMin > 0 ? (aMax - aMin) / (aMax + aMin) : 0;
+        double meanDev = b.FreqMean;
+        double pPos = b.Freq.Percentile(PeakUpper) - meanDev, pNeg = meanDev - b.Freq.Percentile(PeakLower);
+        var fsk = FindFskTones(b.Freq, meanDev);
+        Classification cls = Classify(snrDb, lineFraction, mEnv, sigmaPhase, fsk.Dwell, options.Expect);
+        ModulationKind kind = cls.Kind;
+        if (snrDb < 10 && kind != ModulationKind.Noise)
+            warnings.Add(string.Create(CultureInfo.InvariantCulture, $"SNR in the occupied bandwidth is about {snrDb:0.#} dB: readings are unreliable and the classification uncertain"));
+
+        // Modulating frequency from the demodulated spectra.
+        double minTone = Math.Max(3 * b.ToneSpectrum.BinWidthHz, 2 * fs / Math.Max(count, 1));
+        Measured? tone = null;
+        LineSpectrum? toneSource = kind switch { ModulationKind.Am => b.EnvelopeSpectrum, ModulationKind.Fm or ModulationKind.Pm => b.ToneSpectrum, _ => null };
+        if (toneSource?.Peak(minTone, postLp) is { } tp)
+            tone = new Measured(tp.FrequencyHz, Math.Max(toneSource.BinWidthHz / 10, 1e-6 * tp.FrequencyHz));
+        if (tone is { } t0 && count / fs < 10 / t0.Value)
+            warnings.Add(string.Create(CultureInfo.InvariantCulture, $"the capture holds fewer than 10 periods of the {t0.Value:0.#} Hz modulating frequency"));
+
+        string peakNote = "raw percentiles";
+        double snrLin = Math.Pow(10, Math.Min(snrDb, 60) / 10);
+        double noiseGrowth = Math.Max(1, Math.Sqrt(1000 / snrLin));   // type-B terms grow below 30 dB
+        AmResult? am = null;
+        FmResult? fm = null;
+        PmResult? pm = null;
+        FskResult? fskResult = null;
+        double? necessary = null;
+        switch (kind)
+        {
+            case ModulationKind.Am:
+            {
+                if (tone is { } tA)
+                {
+                    var (tv, nv) = b.EnvelopeSpectrum.Split(tA.Value, minTone, postLp);
+                    double sigma = Math.Sqrt(nv);
+                    if (tv >= 0.8 * (tv + nv))
+                    {
+                        aMax = aMean + SinePeak.FromPercentile(aMax - aMean, sigma);
+                        aMin = aMean - SinePeak.FromPercentile(aMean - aMin, sigma);
+                        mEnv = (aMax - aMin) / (aMax + aMin);
+                        peakNote = "tone peaks corrected for the measured noise (sine-plus-Gaussian model)";
+                    }
+                }
+                double? sb = tone is { } tn ? SidebandDepth(psd, carrierAxisHz, tn.Value) : null;
+                am = new AmResult
+                {
+                    DepthPercent = new Measured(100 * mEnv, 0.3 * noiseGrowth),
+                    PositivePeakPercent = 100 * (aMax - aMean) / aMean,
+                    NegativePeakPercent = 100 * (aMean - aMin) / aMean,
+                    SidebandDepthPercent = sb is { } s ? 100 * s : null,
+                };
+                if (tone is { } m) necessary = EmissionDesignator.AmBandwidthHz(m.Value);
+                break;
+            }
+            case ModulationKind.Fm:
+            {
+                if (tone is { } tF)
+                {
+                    var (tv, nv) = b.ToneSpectrum.Split(tF.Value, minTone, postLp);
+                    if (tv >= 0.8 * (tv + nv))
+                    {
+                        double sigma = Math.Sqrt(nv);
+                        pPos = SinePeak.FromPercentile(pPos, sigma);
+                        pNeg = SinePeak.FromPercentile(pNeg, sigma);
+                        peakNote = "tone peaks corrected for the measured noise (sine-plus-Gaussian model)";
+                    }
+                }
+                double peak = Math.Max(pPos, pNeg);
+                fm = new FmResult
+                {
+                    PeakDeviationHz = new Measured(peak, Math.Sqrt(Math.Pow(0.002 * peak * noiseGrowth, 2) + Math.Pow(b.Freq.BinWidth, 2))),
+                    PositivePeakHz = pPos,
+                    NegativePeakHz = pNeg,
+                    HalfPeakToPeakHz = (pPos + pNeg) / 2,
+                    RmsDeviationHz = b.FreqRms,
+                    ModulationIndex = tone is { } m ? peak / m.Value : null,
+                };
+                if (tone is { } mm) necessary = EmissionDesignator.AngleModulationBandwidthHz(mm.Value, peak);
+                break;
+            }
+            case ModulationKind.Pm:
+            {
+                PassResult c = RunPass(plan, fit: (b.Intercept, slope), cancel);
+                double up = c.Phase!.Percentile(PeakUpper), lo = c.Phase.Percentile(PeakLower);
+                if (tone is not null && aMean > 0)
+                {
+                    // Additive noise moves the phase by sigma_a / A (its quadrature part), read from the envelope's noise.
+                    var (_, nv) = b.EnvelopeSpectrum.Split(0, minTone, 0.45 * fsd);
+                    double sigmaPhi = Math.Sqrt(nv) / aMean;
+                    up = SinePeak.FromPercentile(up, sigmaPhi);
+                    lo = -SinePeak.FromPercentile(-lo, sigmaPhi);
+                    peakNote = "tone peaks corrected for the measured noise (sine-plus-Gaussian model)";
+                }
+                double p = (up - lo) / 2;
+                pm = new PmResult { PeakDeviationRad = new Measured(p, 0.003 * p * noiseGrowth), PositivePeakRad = up, NegativePeakRad = -lo };
+                if (tone is { } m) necessary = EmissionDesignator.AngleModulationBandwidthHz(m.Value, p * m.Value);
+                break;
+            }
+            case ModulationKind.Fsk:
+            {
+                double[] tones = [.. fsk.Tones.Select(x => x + coarse)];
+                double shift = tones.Length >= 2 ? tones[^1] - tones[0] : 2 * Math.Max(pPos, pNeg);
+                Measured? rate = null;
+                if (b.TransitionSpectrum.Peaks(Math.Max(minTone, 0.02 * shift), Math.Min(postLp, 4 * shift), 0.5) is { Count: > 0 } peaks)
+                    rate = new Measured(peaks[0].FrequencyHz, Math.Max(b.TransitionSpectrum.BinWidthHz / 5, 1e-4 * peaks[0].FrequencyHz));
+                fskResult = new FskResult
+                {
+                    ToneFrequenciesHz = [.. tones.Select(x => AxisToReport(info, x))],
+                    ShiftHz = new Measured(shift, Math.Sqrt(Math.Pow(0.003 * shift * noiseGrowth, 2) + Math.Pow(b.Freq.BinWidth, 2))),
+                    DeviationHz = shift / 2,
+                    SymbolRateBd = rate,
+                    ModulationIndex = rate is { } r ? shift / r.Value : null,
+                };
+                if (rate is { } rr) necessary = EmissionDesignator.FskBandwidthHz(rr.Value, shift);
+                break;
+            }
+        }
+
+        // Carrier: frequency on the capture's axis, then absolute and offset.
+        double seSlope = Math.Sqrt(Math.Max(b.SlopeVariance, 0)) * fsd / (2 * Math.PI);
+        double carrierU = Math.Sqrt(seSlope * seSlope + Math.Pow(0.05 * bin * (kind is ModulationKind.Noise ? 10 : 0), 2) + 1e-6);
+        CarrierResult? carrier = kind == ModulationKind.Noise ? null : MakeCarrier(info, options, carrierAxisHz, carrierU, kind);
+        string? designator = EmissionDesignator.Format(kind, necessary);
+
+        // Warnings that protect the reader.
+        if (kind != ModulationKind.Noise && (info.IsComplex ? Math.Max(Math.Abs(bw.LowerEdgeHz), Math.Abs(bw.UpperEdgeHz)) > 0.9 * nyquist : bw.UpperEdgeHz > 0.9 * nyquist))
+            warnings.Add("the signal reaches the edge of the sampled band: the sample rate may be too low for its bandwidth, and the bandwidth reads low");
+        if (kind != ModulationKind.Noise && bw.OccupiedHz > 0.8 * (info.IsComplex ? fs : nyquist))
+            warnings.Add("the occupied bandwidth fills most of the sampled band: the sample rate is too low for this signal, or it is noise");
+        if (b.NearFullScale > Math.Max(3, 1e-5 * count))
+            warnings.Add(string.Create(CultureInfo.InvariantCulture, $"{b.NearFullScale} sample value(s) at full scale: the capture is probably clipped, and levels, depth and bandwidth read wrong"));
+        if (spectrum.NonFiniteSegments > 0)
+            warnings.Add($"{spectrum.NonFiniteSegments} spectrum segment(s) held NaN or infinite samples (taken as 0)");
+
+        var method = new MethodRecord
+        {
+            Spectrum = spectrumSettings,
+            RbwHz = psd.RbwHz,
+            ChannelFilter = channel,
+            DemodRateHz = fsd,
+            PostLowPassHz = postLp,
+            PostHighPassHz = options.PostHighPassHz,
+            DeEmphasisUs = options.DeEmphasisUs,
+            PeakStatistic = "positive peak = 99.9th percentile, negative peak = 0.1th percentile of the post-detection signal, interpolated 8x between samples; " + peakNote,
+            ObwNoise = options.ObwNoise,
+        };
+        var (waveT, waveV, waveLabel) = Waveform(b, kind, tone?.Value, fsd, coarse, meanDev);
+        return new AnalysisResult
+        {
+            Capture = info,
+            Sha256 = hash.Result,
+            Window = (first, count),
+            Classification = cls,
+            ChannelSnrDb = snrDb,
+            Carrier = carrier,
+            Bandwidth = bw,
+            OccupiedUncertaintyHz = Math.Max(psd.RbwHz / Math.Sqrt(3), 0.005 * bw.OccupiedHz),
+            Am = am,
+            Fm = fm,
+            Pm = pm,
+            Fsk = fskResult,
+            ModulatingFrequencyHz = kind is ModulationKind.Am or ModulationKind.Fm or ModulationKind.Pm ? tone : null,
+            NecessaryBandwidthHz = necessary,
+            EmissionDesignator = designator,
+            Spectrum = spectrum,
+            Method = method,
+            Warnings = warnings,
+            Waveform = [.. waveT.Zip(waveV)],
+            WaveformLabel = waveLabel,
+        };
+    }
+
+    /// <summary>A frequency on the capture's axis as reported: absolute RF when the centre is known (complex input).</summary>
+    public static double AxisToReport(CaptureInfo info, double axisHz) =>
+        info.IsComplex && info.CenterFrequencyHz is { } c ? c + axisHz : axisHz;
+
+    private static CarrierResult MakeCarrier(CaptureInfo info, AnalysisOptions o, double axisHz, double u, ModulationKind kind)
+    {
+        double reported = AxisToReport(info, axisHz);
+        bool absolute = info.IsComplex && info.CenterFrequencyHz is not null;
+        double offset;
+        string reference;
+        double? rf = absolute ? reported : null;
+        if (o.NominalHz is { } nominal)
+        {
+            offset = reported - nominal;
+            reference = string.Create(CultureInfo.InvariantCulture, $"nominal {nominal:0.###} Hz (--nominal)");
+            rf ??= absolute || nominal > 0 ? nominal : null;
+            if (!absolute && !info.IsComplex) rf = null;
+        }
+        else if (info.IsComplex)
+        {
+            offset = axisHz;
+            reference = info.CenterFrequencyHz is { } c ? string.Create(CultureInfo.InvariantCulture, $"capture centre {c:0.###} Hz") : "capture centre (RF unknown)";
+        }
+        else
+        {
+            offset = axisHz;
+            reference = "0 Hz of the audio band (real input; give --nominal for an offset)";
+        }
+        string method = kind is ModulationKind.Cw or ModulationKind.Am
+            ? "envelope-weighted least-squares fit of the unwrapped carrier phase (Tretter 1985; efficient at high SNR, Rife and Boorstyn 1974 bound)"
+            : "mean instantaneous frequency: least-squares slope of the unwrapped phase over the whole window";
+        return new CarrierResult
+        {
+            FrequencyHz = new Measured(reported, u),
+            OffsetHz = offset,
+            OffsetPpm = rf is { } r && r != 0 ? offset / r * 1e6 : null,
+            OffsetReference = reference,
+            Method = method,
+        };
+    }
+
+    /// <summary>The strongest narrow line: its interpolated frequency and its share of the signal power (floor removed).</summary>
+    private static (double Hz, double Fraction) StrongestLine(PowerSpectrum psd, BandwidthResult bw)
+    {
+        int k = psd.PeakIndex();
+        ReadOnlySpan<double> v = psd.Values;
+        double line = 0;
+        int hw = psd.Window.MainLobeHalfWidthBins + 1;
+        for (int i = Math.Max(0, k - hw); i <= Math.Min(v.Length - 1, k + hw); i++) line += Math.Max(0, v[i] - bw.NoiseFloorDensity) * psd.BinWidthHz;
+        double hz = psd.FrequenciesHz[k];
+        if (k > 0 && k < v.Length - 1)
+        {
+            double a = Math.Log(Math.Max(v[k - 1], 1e-300)), b = Math.Log(v[k]), c = Math.Log(Math.Max(v[k + 1], 1e-300));
+            double den = a - 2 * b + c;
+            if (den < 0) hz += Math.Clamp(0.5 * (a - c) / den, -0.5, 0.5) * psd.BinWidthHz;
+        }
+        return (hz, bw.SignalPower > 0 ? Math.Min(1, line / bw.SignalPower) : 0);
+    }
+
+    /// <summary>m = 2 sqrt(mean sideband power / carrier power) from the first sideband pair (AM, 20 log10(m/2) dBc per sideband).</summary>
+    private static double? SidebandDepth(PowerSpectrum psd, double carrierHz, double toneHz)
+    {
+        double Line(double f)
+        {
+            int k = (int)Math.Round((f - psd.FrequenciesHz[0]) / psd.BinWidthHz);
+            int hw = psd.Window.MainLobeHalfWidthBins + 1;
+            if (k - hw < 0 || k + hw >= psd.Count) return double.NaN;
+            double s = 0;
+            for (int i = k - hw; i <= k + hw; i++) s += psd.Values[i];
+            return s;
+        }
+        if (toneHz < 4 * psd.Window.MainLobeHalfWidthBins * psd.BinWidthHz) return null;
+        double pc = Line(carrierHz), pl = Line(carrierHz - toneHz), pu = Line(carrierHz + toneHz);
+        if (double.IsNaN(pc)) return null;
+        double ps = double.IsNaN(pl) ? pu : double.IsNaN(pu) ? pl : (pl + pu) / 2;
+        return double.IsNaN(ps) || pc <= 0 ? null : 2 * Math.Sqrt(ps / pc);
+    }
+
+    private static Classification Classify(double snrDb, double lineFraction, double mEnv, double sigmaPhase, double dwell, ModulationKind? expect)
+    {
+        ModulationKind detected;
+        double conf;
+        string why;
+        CultureInfo c = CultureInfo.InvariantCulture;
+        if (snrDb < 3)
+        {
+            detected = ModulationKind.Noise;
+            conf = Math.Clamp(0.6 + (3 - snrDb) / 10, 0.5, 0.95);
+            why = string.Create(c, $"no signal stands above the noise floor (SNR in band {snrDb:0.#} dB)");
+        }
+        else if (sigmaPhase < 0.15)
+        {
+            if (mEnv > 0.03)
+            {
+                detected = ModulationKind.Am;
+                conf = Math.Clamp(0.6 + 4 * (mEnv - 0.03) + (0.15 - sigmaPhase), 0.5, 0.99);
+                why = string.Create(c, $"steady phase (rms {sigmaPhase:0.###} rad) with an envelope that varies (depth {100 * mEnv:0.#} %)");
+            }
+            else
+            {
+                detected = ModulationKind.Cw;
+                conf = Math.Clamp(0.7 + (0.03 - mEnv) * 5 + (0.15 - sigmaPhase), 0.5, 0.99);
+                why = string.Create(c, $"steady phase (rms {sigmaPhase:0.###} rad) and envelope (depth {100 * mEnv:0.##} %): an unmodulated carrier");
+            }
+        }
+        else if (dwell > 0.6)
+        {
+            detected = ModulationKind.Fsk;
+            conf = Math.Clamp(0.5 + (dwell - 0.6) * 1.5, 0.5, 0.99);
+            why = string.Create(c, $"the instantaneous frequency dwells on discrete tones ({100 * dwell:0} % of the time)");
+        }
+        else if (sigmaPhase * Math.Sqrt(2) <= Math.PI / 2)
+        {
+            detected = ModulationKind.Pm;
+            conf = 0.55;
+            why = string.Create(c, $"angle modulation of small peak phase (about {sigmaPhase * Math.Sqrt(2):0.##} rad): read as PM; a tone cannot tell PM from FM, give --expect fm if it is FM");
+        }
+        else
+        {
+            detected = ModulationKind.Fm;
+            conf = Math.Clamp(0.6 + (sigmaPhase * Math.Sqrt(2) - Math.PI / 2) / 4 + (0.6 - dwell) / 2, 0.5, 0.97);
+            why = string.Create(c, $"angle modulation (peak phase about {sigmaPhase * Math.Sqrt(2):0.#} rad) with a continuous instantaneous frequency");
+        }
+        if (snrDb < 15 && detected != ModulationKind.Noise) conf *= Math.Clamp((snrDb - 3) / 12, 0.3, 1);
+        _ = lineFraction;
+        return expect is { } e
+            ? new Classification(e, detected, conf, true, $"measured as {e.Name()} (--expect); the classifier found {detected.Name()}: {why}")
+            : new Classification(detected, detected, conf, false, why);
+    }
+
+    /// <summary>FSK tones from the deviation histogram: the two strongest modes, refined to the mean of their neighbourhoods; dwell = share of time near them.</summary>
+    private static (double[] Tones, double Dwell) FindFskTones(Histogram h, double mean)
+    {
+        double lo = h.Percentile(0.005), hi = h.Percentile(0.995);
+        if (!(hi > lo)) return ([], 0);
+        const int bins = 200;
+        double w = (hi - lo) / bins;
+        var coarse = new double[bins];
+        for (int i = 0; i < h.Bins; i++)
+        {
+            double x = h.Centre(i);
+            if (x < lo || x >= hi || h[i] == 0) continue;
+            coarse[Math.Min(bins - 1, (int)((x - lo) / w))] += h[i];
+        }
+        int p1 = Array.IndexOf(coarse, coarse.Max());
+        int p2 = -1;
+        for (int i = 0; i < bins; i++)
+            if (Math.Abs(i - p1) > bins / 5 && (p2 < 0 || coarse[i] > coarse[p2])) p2 = i;
+        if (p2 < 0) return ([], 0);
+        double f1 = lo + (p1 + 0.5) * w, f2 = lo + (p2 + 0.5) * w;
+        double sep = Math.Abs(f2 - f1);
+        double t1 = Mode(h, Math.Min(f1, f2), 0.15 * sep), t2 = Mode(h, Math.Max(f1, f2), 0.15 * sep);
+        double dwell = h.FractionBetween(t1 - 0.1 * sep, t1 + 0.1 * sep) + h.FractionBetween(t2 - 0.1 * sep, t2 + 0.1 * sep);
+        _ = mean;
+        return ([t1, t2], dwell);
+    }
+
+    /// <summary>
+    /// The most frequent value near <paramref name="guess"/>: the dwell frequency of an FSK tone. The
+    /// histogram is smoothed over 1 % of the search width and the peak refined by a parabola; unlike a
+    /// mean it is not pulled outwards by the overshoot at symbol transitions.
+    /// </summary>
+    private static double Mode(Histogram h, double guess, double width)
+    {
+        int i0 = Math.Max(0, (int)((guess - width - h.Low) / h.BinWidth)), i1 = Math.Min(h.Bins - 1, (int)((guess + width - h.Low) / h.BinWidth));
+        int k = Math.Max(1, (int)(0.01 * width / h.BinWidth));
+        var sm = new double[i1 - i0 + 1];
+        for (int i = i0; i <= i1; i++)
+        {
+            double s = 0;
+            for (int j = Math.Max(0, i - k); j <= Math.Min(h.Bins - 1, i + k); j++) s += h[j];
+            sm[i - i0] = s;
+        }
+        int best = Array.IndexOf(sm, sm.Max());
+        double delta = 0;
+        if (best > 0 && best < sm.Length - 1)
+        {
+            double den = sm[best - 1] - 2 * sm[best] + sm[best + 1];
+            if (den < 0) delta = Math.Clamp(0.5 * (sm[best - 1] - sm[best + 1]) / den, -0.5, 0.5);
+        }
+        return h.Centre(i0 + best) + delta * h.BinWidth;
+    }
+
+    private static (double[] T, double[] V, string Label) Waveform(PassResult b, ModulationKind kind, double? toneHz, double fsd, double coarse, double meanDev)
+    {
+        bool am = kind is ModulationKind.Am or ModulationKind.Cw;
+        double[] src = am ? b.WaveEnvelope : b.WaveFreq;
+        int n = src.Length;
+        if (toneHz is { } f && f > 0) n = Math.Min(n, (int)Math.Ceiling(5 * fsd / f));
+        else if (kind == ModulationKind.Fsk) n = Math.Min(n, (int)(0.02 * fsd) + 1);
+        n = Math.Max(2, Math.Min(n, src.Length));
+        int step = Math.Max(1, n / 2000);
+        var t = new List<double>();
+        var v = new List<double>();
+        for (int i = 0; i < n; i += step)
+        {
+            t.Add(i / fsd);
+            v.Add(am ? src[i] : src[i] - meanDev);
+        }
+        _ = coarse;
+        return ([.. t], [.. v], am ? "envelope (full scale)" : "instantaneous frequency deviation (Hz)");
+    }
+
+    private static string Sha256(string path)
+    {
+        using FileStream fs = ByteSource.OpenReadOnly(path);
+        return Convert.ToHexStringLower(SHA256.HashData(fs));
+    }
+
+    private sealed record PassPlan(CaptureSource Source, long First, long Count, double[] Taps, int Decimation, double ShiftHz, double Fs, double Fsd,
+                                   double PostLowPassHz, double? HighPassHz, double? DeEmphasisUs, bool Complex);
+
+    private sealed class PassResult
+    {
+        public long Samples;
+        public double Slope, Intercept, SlopeVariance, PhaseResidualVariance;
+        public double EnvelopeMean, FreqMean, FreqRms;
+        public long NearFullScale;
+        public required Histogram Envelope, Freq;
+        public Histogram? Phase;
+        public required LineSpectrum EnvelopeSpectrum, ToneSpectrum, TransitionSpectrum;
+        public double[] WaveEnvelope = [], WaveFreq = [];
+    }
+
+    /// <summary>
+    /// One pass over the capture: shift, channel filter, decimate, then envelope, phase and
+    /// instantaneous frequency. With <paramref name="fit"/> (intercept, slope of the phase), also the
+    /// histogram of the phase about that line (for PM).
+    /// </summary>
+    private static PassResult RunPass(PassPlan p, (double Intercept, double Slope)? fit, CancellationToken cancel)
+    {
+        var dec = new ChannelDecimator(p.Taps, p.Decimation, p.ShiftHz, p.Fs, p.Complex);
+        double[] lpTaps = p.PostLowPassHz < 0.45 * p.Fsd
+            ? FirDesign.LowPass(p.PostLowPassHz, p.Fsd, Math.Max(0.1 * p.PostLowPassHz, 2 * p.Fsd / 4095), 70, 1023)
+            : [1.0];
+        var lp = new RealFir(lpTaps);
+        // The phase difference of consecutive samples averages the frequency over one sample: a
+        // response sin(pi f/fs)/(pi f/fs). This 3-tap filter, 1 + (wT)^2/24 for small wT, undoes it
+        // (residual below 0.2 % up to fs/7.5; the decimation keeps the channel below that).
+        var comp = new RealFir([-1.0 / 24, 1 + 1.0 / 12, -1.0 / 24]);
+        OnePole? hp = p.HighPassHz is { } hz ? OnePole.HighPass(hz, p.Fsd) : null;
+        OnePole? de = p.DeEmphasisUs is { } us ? OnePole.DeEmphasis(us * 1e-6, p.Fsd) : null;
+        long expected = p.Count / p.Decimation;
+        int settle = dec.DelaySamples / p.Decimation + 2 + lp.DelaySamples * 2 + (hp is null ? 0 : (int)Math.Min(expected / 4, 3 * p.Fsd / p.HighPassHz!.Value)) + (de is null ? 0 : (int)Math.Min(expected / 4, 5 * p.DeEmphasisUs!.Value * 1e-6 * p.Fsd));
+        settle = (int)Math.Min(settle, expected / 4);
+        int demodFft = 256;
+        while (demodFft < 65536 && p.Fsd / demodFft > 1.0 && 4L * demodFft * 2 <= expected) demodFft *= 2;
+        double ampRange = p.Complex ? 1.5 : 0.75;
+        var r = new PassResult
+        {
+            Envelope = new Histogram(0, ampRange, 1 << 16),
+            Freq = new Histogram(-p.Fsd / 2, p.Fsd / 2, 1 << 18),
+            Phase = fit is null ? null : new Histogram(-64, 64, 1 << 20),
+            EnvelopeSpectrum = new LineSpectrum(demodFft, p.Fsd),
+            ToneSpectrum = new LineSpectrum(demodFft, p.Fsd),
+            TransitionSpectrum = new LineSpectrum(demodFft, p.Fsd),
+        };
+        const int waveMax = 16384;
+        const int up = 8;
+        var upA = new Upsampler(up);
+        var upF = new Upsampler(up);
+        var upP = fit is null ? null : new Upsampler(up);
+        Span<double> ubuf = stackalloc double[up];
+        var waveA = new List<double>();
+        var waveF = new List<double>();
+        using CaptureReader reader = p.Source.OpenReader(p.First, p.Count);
+        int vps = reader.ValuesPerSample;
+        var input = new double[65536 * vps];
+        var output = new double[2 * (65536 / p.Decimation + 2)];
+        double tMid = expected / 2.0;
+        double prevR = 0, prevI = 0, phase = 0, prevD = 0;
+        long n = 0, used = 0;
+        double sw = 0, swt = 0, swtt = 0, swp = 0, swtp = 0, swpp = 0;
+        double sa = 0, sd = 0, sdd = 0;
+        int got;
+        while ((got = reader.Read(input)) > 0)
+        {
+            cancel.ThrowIfCancellationRequested();
+            for (int i = 0; i < got * vps; i++) if (Math.Abs(input[i]) >= FullScaleCode) r.NearFullScale++;
+            int m = dec.Process(input.AsSpan(0, got * vps), output);
+            for (int i = 0; i < m; i++, n++)
+            {
+                double zr = output[2 * i], zi = output[2 * i + 1];
+                double a = Math.Sqrt(zr * zr + zi * zi);
+                double dphi = n == 0 ? 0 : Math.Atan2(zi * prevR - zr * prevI, zr * prevR + zi * prevI);
+                prevR = zr; prevI = zi;
+                phase += dphi;
+                double dev = comp.Next(dphi * p.Fsd / (2 * Math.PI));
+                if (hp is not null) dev = hp.Next(dev);
+                if (de is not null) dev = de.Next(dev);
+                double df = lp.Next(dev);
+                if (n < settle) { prevD = df; continue; }
+                double t = n - tMid, w = a * a;
+                sw += w; swt += w * t; swtt += w * t * t; swp += w * phase; swtp += w * t * phase; swpp += w * phase * phase;
+                // The interpolators need 17 inputs before their output is valid.
+                bool warm = used >= 17;
+                upA.Next(a, ubuf);
+                if (warm) foreach (double v in ubuf) r.Envelope.Add(v);
+                upF.Next(df, ubuf);
+                if (warm) foreach (double v in ubuf) r.Freq.Add(v);
+                sa += a; sd += df; sdd += df * df;
+                r.EnvelopeSpectrum.Add(a);
+                r.ToneSpectrum.Add(df);
+                r.TransitionSpectrum.Add(Math.Abs(df - prevD));
+                prevD = df;
+                if (fit is { } f)
+                {
+                    upP!.Next(phase - (f.Intercept + f.Slope * t), ubuf);
+                    if (warm) foreach (double v in ubuf) r.Phase!.Add(v);
+                }
+                if (waveA.Count < waveMax) { waveA.Add(a); waveF.Add(df); }
+                used++;
+            }
+        }
+        r.Samples = used;
+        if (used > 0 && sw > 0)
+        {
+            double mt = swt / sw, mp = swp / sw;
+            double stt = swtt / sw - mt * mt, stp = swtp / sw - mt * mp, spp = swpp / sw - mp * mp;
+            r.Slope = stt > 0 ? stp / stt : 0;
+            r.Intercept = mp - r.Slope * mt;
+            r.PhaseResidualVariance = Math.Max(0, spp - r.Slope * stp);
+            // Standard error of a weighted slope with the residual variance as the noise variance.
+            double effective = sw * sw / Math.Max(swpp > 0 ? sw : 1, 1e-300);
+            r.SlopeVariance = stt > 0 ? r.PhaseResidualVariance / (stt * used) : 0;
+            _ = effective;
+            r.EnvelopeMean = sa / used;
+            r.FreqMean = sd / used;
+            r.FreqRms = Math.Sqrt(Math.Max(0, sdd / used - r.FreqMean * r.FreqMean));
+        }
+        r.WaveEnvelope = [.. waveA];
+        r.WaveFreq = [.. waveF];
+        return r;
+    }
+}

@@ -1,0 +1,78 @@
+namespace SignalInspect.Measure;
+
+/// <summary>
+/// A fixed-range histogram of a stream of values with bounded memory, for percentiles of long
+/// signals (envelope, instantaneous frequency, phase). Values outside the range are counted in
+/// the first or last bin. Percentiles interpolate linearly within a bin.
+/// </summary>
+public sealed class Histogram
+{
+    private readonly long[] _counts;
+    private readonly double _lo, _width;
+
+    /// <summary>Creates a histogram of <paramref name="bins"/> bins over [<paramref name="lo"/>, <paramref name="hi"/>).</summary>
+    public Histogram(double lo, double hi, int bins)
+    {
+        if (!(hi > lo)) throw new ArgumentOutOfRangeException(nameof(hi), hi, "must be above lo");
+        ArgumentOutOfRangeException.ThrowIfLessThan(bins, 2);
+        _counts = new long[bins];
+        _lo = lo;
+        _width = (hi - lo) / bins;
+    }
+
+    /// <summary>Values counted.</summary>
+    public long Count { get; private set; }
+
+    /// <summary>Lower end of the range.</summary>
+    public double Low => _lo;
+
+    /// <summary>Bin width.</summary>
+    public double BinWidth => _width;
+
+    /// <summary>Number of bins.</summary>
+    public int Bins => _counts.Length;
+
+    /// <summary>Count of a bin.</summary>
+    public long this[int bin] => _counts[bin];
+
+    /// <summary>Centre of a bin.</summary>
+    public double Centre(int bin) => _lo + (bin + 0.5) * _width;
+
+    /// <summary>Adds a value (NaN is ignored).</summary>
+    public void Add(double v)
+    {
+        if (double.IsNaN(v)) return;
+        int b = (int)Math.Clamp(Math.Floor((v - _lo) / _width), 0, _counts.Length - 1);
+        _counts[b]++;
+        Count++;
+    }
+
+    /// <summary>The value below which a fraction <paramref name="p"/> (0 to 1) of the values lie.</summary>
+    public double Percentile(double p)
+    {
+        if (Count == 0) return double.NaN;
+        double target = Math.Clamp(p, 0, 1) * Count;
+        long cum = 0;
+        for (int b = 0; b < _counts.Length; b++)
+        {
+            if (cum + _counts[b] >= target && _counts[b] > 0)
+            {
+                double frac = (target - cum) / _counts[b];
+                return _lo + (b + frac) * _width;
+            }
+            cum += _counts[b];
+        }
+        return _lo + _counts.Length * _width;
+    }
+
+    /// <summary>Fraction of the values within [<paramref name="a"/>, <paramref name="b"/>].</summary>
+    public double FractionBetween(double a, double b)
+    {
+        if (Count == 0) return 0;
+        int i0 = (int)Math.Clamp(Math.Floor((a - _lo) / _width), 0, _counts.Length - 1);
+        int i1 = (int)Math.Clamp(Math.Floor((b - _lo) / _width), 0, _counts.Length - 1);
+        long s = 0;
+        for (int i = i0; i <= i1; i++) s += _counts[i];
+        return (double)s / Count;
+    }
+}

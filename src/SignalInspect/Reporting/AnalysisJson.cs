@@ -1,0 +1,167 @@
+using System.Text.Json;
+using SignalInspect.Measure;
+
+namespace SignalInspect.Reporting;
+
+/// <summary>
+/// Writes an <see cref="AnalysisResult"/> as JSON (the <c>analyze --json</c> output): units in
+/// the key names, SI units, stable key order, null where a value does not apply. Documented key by
+/// key in the README.
+/// </summary>
+public static class AnalysisJson
+{
+    /// <summary>Format version of this JSON.</summary>
+    public const string SchemaVersion = "1";
+
+    /// <summary>Serialises the result to UTF-8 JSON bytes.</summary>
+    public static byte[] ToBytes(AnalysisResult r, bool indented = true)
+    {
+        using var ms = new MemoryStream();
+        using (var w = new Utf8JsonWriter(ms, new JsonWriterOptions { Indented = indented })) Write(w, r);
+        return ms.ToArray();
+    }
+
+    /// <summary>Writes the result as one JSON object.</summary>
+    public static void Write(Utf8JsonWriter w, AnalysisResult r)
+    {
+        var info = r.Capture;
+        bool abs = info.IsComplex && info.CenterFrequencyHz is not null;
+        double Abs(double axisHz) => Analyzer.AxisToReport(info, axisHz);
+        w.WriteStartObject();
+        w.WriteString("schemaVersion", SchemaVersion);
+        w.WriteString("software", "SignalInspect " + Version);
+        w.WriteStartObject("capture");
+        w.WriteString("file", info.Path);
+        w.WriteString("container", info.Container);
+        w.WriteString("datatype", info.Datatype);
+        w.WriteNumber("sampleRateHz", info.SampleRateHz);
+        CaptureInfoJson.WriteNumberOrNull(w, "centerFrequencyHz", info.CenterFrequencyHz);
+        w.WriteBoolean("isComplex", info.IsComplex);
+        w.WriteNumber("samples", info.SampleCount);
+        w.WriteNumber("durationS", info.DurationS);
+        w.WriteNumber("analysedFirstSample", r.Window.First);
+        w.WriteNumber("analysedSamples", r.Window.Count);
+        w.WriteString("sha256", r.Sha256);
+        w.WriteEndObject();
+        w.WriteString("modulation", r.Classification.Kind.Name());
+        w.WriteStartObject("classification");
+        w.WriteString("detected", r.Classification.Detected.Name());
+        w.WriteNumber("confidence", Math.Round(r.Classification.Confidence, 3));
+        w.WriteBoolean("expected", r.Classification.Expected);
+        w.WriteString("reason", r.Classification.Reason);
+        w.WriteNumber("channelSnrDb", Math.Round(r.ChannelSnrDb, 2));
+        w.WriteEndObject();
+        if (r.Carrier is { } c)
+        {
+            w.WriteStartObject("carrier");
+            w.WriteNumber("frequencyHz", c.FrequencyHz.Value);
+            w.WriteNumber("frequencyUncertaintyHz", c.FrequencyHz.StandardUncertainty);
+            w.WriteNumber("offsetHz", c.OffsetHz);
+            CaptureInfoJson.WriteNumberOrNull(w, "offsetPpm", c.OffsetPpm);
+            w.WriteString("offsetReference", c.OffsetReference);
+            w.WriteString("method", c.Method);
+            w.WriteEndObject();
+        }
+        else
+        {
+            w.WriteStartObject("carrier");
+            w.WriteNull("frequencyHz");
+            w.WriteNull("frequencyUncertaintyHz");
+            w.WriteNull("offsetHz");
+            w.WriteNull("offsetPpm");
+            w.WriteEndObject();
+        }
+        var b = r.Bandwidth;
+        w.WriteStartObject("bandwidth");
+        w.WriteNumber("occupiedHz", b.OccupiedHz);
+        w.WriteNumber("occupiedUncertaintyHz", r.OccupiedUncertaintyHz);
+        w.WriteNumber("occupiedPercent", 100 * (1 - b.Beta));
+        w.WriteNumber("lowerEdgeHz", Abs(b.LowerEdgeHz));
+        w.WriteNumber("upperEdgeHz", Abs(b.UpperEdgeHz));
+        w.WriteNumber("xdbHz", b.XdbHz);
+        w.WriteNumber("xdb", b.Xdb);
+        w.WriteNumber("xdbLowerEdgeHz", Abs(b.XdbLowerEdgeHz));
+        w.WriteNumber("xdbUpperEdgeHz", Abs(b.XdbUpperEdgeHz));
+        w.WriteNumber("rbwHz", r.Method.RbwHz);
+        w.WriteString("noiseFloor", b.Treatment == NoiseFloorTreatment.Subtract ? "subtracted" : "kept");
+        w.WriteNumber("noiseFloorDbfsPerHz", b.NoiseFloorDensity > 0 ? Math.Round(10 * Math.Log10(b.NoiseFloorDensity), 3) : -400);
+        w.WriteBoolean("edgesAbsolute", abs);
+        w.WriteEndObject();
+        w.WriteStartObject("am");
+        if (r.Am is { } am)
+        {
+            w.WriteNumber("depthPercent", am.DepthPercent.Value);
+            w.WriteNumber("depthUncertaintyPercent", am.DepthPercent.StandardUncertainty);
+            w.WriteNumber("positivePeakPercent", am.PositivePeakPercent);
+            w.WriteNumber("negativePeakPercent", am.NegativePeakPercent);
+            CaptureInfoJson.WriteNumberOrNull(w, "sidebandDepthPercent", am.SidebandDepthPercent);
+        }
+        else { w.WriteNull("depthPercent"); w.WriteNull("positivePeakPercent"); w.WriteNull("negativePeakPercent"); }
+        w.WriteEndObject();
+        w.WriteStartObject("fm");
+        if (r.Fm is { } fm)
+        {
+            w.WriteNumber("peakDeviationHz", fm.PeakDeviationHz.Value);
+            w.WriteNumber("peakDeviationUncertaintyHz", fm.PeakDeviationHz.StandardUncertainty);
+            w.WriteNumber("positivePeakHz", fm.PositivePeakHz);
+            w.WriteNumber("negativePeakHz", fm.NegativePeakHz);
+            w.WriteNumber("halfPeakToPeakHz", fm.HalfPeakToPeakHz);
+            w.WriteNumber("rmsDeviationHz", fm.RmsDeviationHz);
+            CaptureInfoJson.WriteNumberOrNull(w, "modulationIndex", fm.ModulationIndex);
+        }
+        else { w.WriteNull("peakDeviationHz"); w.WriteNull("positivePeakHz"); w.WriteNull("negativePeakHz"); w.WriteNull("rmsDeviationHz"); }
+        w.WriteEndObject();
+        w.WriteStartObject("pm");
+        if (r.Pm is { } pm)
+        {
+            w.WriteNumber("peakDeviationRad", pm.PeakDeviationRad.Value);
+            w.WriteNumber("peakDeviationUncertaintyRad", pm.PeakDeviationRad.StandardUncertainty);
+            w.WriteNumber("positivePeakRad", pm.PositivePeakRad);
+            w.WriteNumber("negativePeakRad", pm.NegativePeakRad);
+        }
+        else w.WriteNull("peakDeviationRad");
+        w.WriteEndObject();
+        w.WriteStartObject("fsk");
+        if (r.Fsk is { } fsk)
+        {
+            w.WriteNumber("shiftHz", fsk.ShiftHz.Value);
+            w.WriteNumber("shiftUncertaintyHz", fsk.ShiftHz.StandardUncertainty);
+            w.WriteNumber("deviationHz", fsk.DeviationHz);
+            CaptureInfoJson.WriteNumberOrNull(w, "symbolRateBd", fsk.SymbolRateBd?.Value);
+            CaptureInfoJson.WriteNumberOrNull(w, "symbolRateUncertaintyBd", fsk.SymbolRateBd?.StandardUncertainty);
+            CaptureInfoJson.WriteNumberOrNull(w, "modulationIndex", fsk.ModulationIndex);
+            w.WriteStartArray("toneFrequenciesHz");
+            foreach (double t in fsk.ToneFrequenciesHz) w.WriteNumberValue(t);
+            w.WriteEndArray();
+        }
+        else { w.WriteNull("shiftHz"); w.WriteNull("symbolRateBd"); w.WriteStartArray("toneFrequenciesHz"); w.WriteEndArray(); }
+        w.WriteEndObject();
+        CaptureInfoJson.WriteNumberOrNull(w, "modulatingFrequencyHz", r.ModulatingFrequencyHz?.Value);
+        CaptureInfoJson.WriteNumberOrNull(w, "necessaryBandwidthHz", r.NecessaryBandwidthHz);
+        if (r.EmissionDesignator is { } d) w.WriteString("emissionDesignator", d); else w.WriteNull("emissionDesignator");
+        var m = r.Method;
+        w.WriteStartObject("method");
+        w.WriteString("window", r.Spectrum.Mean.Window.Name);
+        w.WriteNumber("fftSize", m.Spectrum.FftSize);
+        w.WriteNumber("overlapPercent", 100.0 * m.Spectrum.OverlapSamples / m.Spectrum.FftSize);
+        w.WriteNumber("segments", r.Spectrum.Mean.Segments);
+        w.WriteString("channelFilter", m.ChannelFilter);
+        w.WriteNumber("demodRateHz", m.DemodRateHz);
+        w.WriteNumber("postLowPassHz", m.PostLowPassHz);
+        CaptureInfoJson.WriteNumberOrNull(w, "postHighPassHz", m.PostHighPassHz);
+        CaptureInfoJson.WriteNumberOrNull(w, "deEmphasisUs", m.DeEmphasisUs);
+        w.WriteString("peakStatistic", m.PeakStatistic);
+        w.WriteBoolean("dcSuppressed", r.Spectrum.DcBinsSuppressed > 0);
+        w.WriteEndObject();
+        w.WriteStartArray("notes");
+        foreach (string n in info.Notes) w.WriteStringValue(n);
+        w.WriteEndArray();
+        w.WriteStartArray("warnings");
+        foreach (string s in r.Warnings) w.WriteStringValue(s);
+        w.WriteEndArray();
+        w.WriteEndObject();
+    }
+
+    /// <summary>The software version written into outputs.</summary>
+    public static string Version => typeof(AnalysisJson).Assembly.GetName().Version?.ToString(3) ?? "0";
+}
