@@ -19,7 +19,7 @@ internal static class AnalyzeCommand
         var xdb = new Option<double>("--xdb") { Description = "The x of the x-dB bandwidth (default 26 dB).", DefaultValueFactory = _ => 26, HelpName = "DB" };
         var obwNoise = new Option<string>("--obw-noise") { Description = "Noise floor in the occupied bandwidth: subtract (default) or keep.", DefaultValueFactory = _ => "subtract", HelpName = "subtract|keep" };
         obwNoise.AcceptOnlyFromAmong("subtract", "keep");
-        var lp = Units.SiOption("--post-lowpass", "Post-detection low-pass cutoff in Hz (default 15 kHz, less for narrow channels).");
+        var lp = Units.SiOption("--post-lowpass", "Post-detection low-pass cutoff in Hz (default: the channel filter's width, so every modulating frequency the occupied bandwidth allows passes).");
         var hp = Units.SiOption("--post-highpass", "Post-detection high-pass corner in Hz (default off).");
         var deemph = new Option<double?>("--deemphasis") { Description = "De-emphasis time constant in microseconds (e.g. 50 or 75; default off).", HelpName = "US" };
         var force = new Option<bool>("--force") { Description = "Replace an existing output file." };

@@ -19,7 +19,7 @@ public sealed record AnalysisOptions
     public int? FftSize { get; init; }
     /// <summary>Window of the bandwidth spectrum.</summary>
     public WindowKind Window { get; init; } = WindowKind.Hann;
-    /// <summary>Post-detection low-pass cutoff, Hz; null for the default (15 kHz, or less when the channel is narrower).</summary>
+    /// <summary>Post-detection low-pass cutoff, Hz; null for the default (the channel filter's width).</summary>
     public double? PostLowPassHz { get; init; }
     /// <summary>Post-detection high-pass corner, Hz; null for none.</summary>
     public double? PostHighPassHz { get; init; }

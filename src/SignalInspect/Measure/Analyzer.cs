@@ -49,10 +49,12 @@ public static class Analyzer
         if (!info.IsComplex && coarse <= bin)
             throw CaptureException.ForFile(info.Path, "the real signal has its power at 0 Hz: there is no carrier in the audio band to analyse");
 
-        // Channel filter around the signal: flat to 1.5 x the farther occupied-bandwidth edge (so
-        // the outer sidebands that carry the peaks pass), then decimated to keep the band.
-        double reach = Math.Max(Math.Max(bw.UpperEdgeHz - coarse, coarse - bw.LowerEdgeHz), 0);
-        double passEdge = Math.Max(1.5 * reach + 4 * bin, 25 * bin);
+        // Channel filter around the signal: flat over every part of the spectrum that stands out of
+        // the noise (to 60 dB below the peak), so the weak outer sidebands that shape the peaks of
+        // an angle-modulated signal pass; at least 1.2 x the occupied bandwidth. Then decimated.
+        double reach = Math.Max(Math.Max(bw.UpperEdgeHz - coarse, coarse - bw.LowerEdgeHz), 0) * 1.2;
+        reach = Math.Max(reach, SpectralReach(psd, coarse, bw.NoiseFloorDensity));
+        double passEdge = Math.Max(reach + 4 * bin, 25 * bin);
         double nyquist = fs / 2;
         double usable = info.IsComplex ? nyquist : Math.Min(coarse, nyquist - coarse);
         bool filter = 1.25 * passEdge < 0.9 * usable;
@@ -67,7 +69,9 @@ public static class Analyzer
         string channel = filter
             ? string.Create(CultureInfo.InvariantCulture, $"shift {-coarse:0.###} Hz, Kaiser-windowed sinc low-pass {half:0.#} Hz ({taps.Length} taps, 80 dB), decimation {decimation} to {fsd:0.###} Hz")
             : string.Create(CultureInfo.InvariantCulture, $"shift {-coarse:0.###} Hz, no channel filter (the signal fills the band)");
-        double postLp = options.PostLowPassHz ?? Math.Min(15000, 0.9 * Math.Min(half, fsd / 2));
+        // Default post-detection bandwidth: the channel's, so that every modulating frequency the
+        // occupied bandwidth allows passes (a fixed 15 kHz would halve a 15 kHz broadcast tone).
+        double postLp = options.PostLowPassHz ?? 0.9 * Math.Min(half, fsd / 2);
         postLp = Math.Min(postLp, 0.45 * fsd);
         var plan = new PassPlan(source, first, count, taps, decimation, -coarse, fs, fsd, postLp, options.PostHighPassHz, options.DeEmphasisUs, info.IsComplex);
 
@@ -77,6 +81,7 @@ public static class Analyzer
         double slope = b.Slope;                  // rad per decimated sample
         double residualHz = slope * fsd / (2 * Math.PI);
         double carrierAxisHz = coarse + residualHz;
+        bool fskCarrier = false;
 
         // Features and classification.
         double sigmaPhase = Math.Sqrt(Math.Max(b.PhaseResidualVariance, 0));
@@ -181,6 +186,12 @@ public static class Analyzer
             case ModulationKind.Fsk:
             {
                 double[] tones = [.. fsk.Tones.Select(x => x + coarse)];
+                if (tones.Length >= 2)
+                {
+                    // The carrier of FSK is the centre of its tones (the mean frequency depends on the data).
+                    carrierAxisHz = (tones[0] + tones[^1]) / 2;
+                    fskCarrier = true;
+                }
                 double shift = tones.Length >= 2 ? tones[^1] - tones[0] : 2 * Math.Max(pPos, pNeg);
                 Measured? rate = null;
                 if (b.TransitionSpectrum.Peaks(Math.Max(minTone, 0.02 * shift), Math.Min(postLp, 4 * shift), 0.5) is { Count: > 0 } peaks)
@@ -201,6 +212,7 @@ public static class Analyzer
         // Carrier: frequency on the capture's axis, then absolute and offset.
         double seSlope = Math.Sqrt(Math.Max(b.SlopeVariance, 0)) * fsd / (2 * Math.PI);
         double carrierU = Math.Sqrt(seSlope * seSlope + Math.Pow(0.05 * bin * (kind is ModulationKind.Noise ? 10 : 0), 2) + 1e-6);
+        if (fskCarrier) carrierU = Math.Sqrt(carrierU * carrierU + Math.Pow(0.002 * (fskResult?.ShiftHz.Value ?? 0), 2));
         CarrierResult? carrier = kind == ModulationKind.Noise ? null : MakeCarrier(info, options, carrierAxisHz, carrierU, kind);
         string? designator = EmissionDesignator.Format(kind, necessary);
 
@@ -280,9 +292,12 @@ public static class Analyzer
             offset = axisHz;
             reference = "0 Hz of the audio band (real input; give --nominal for an offset)";
         }
-        string method = kind is ModulationKind.Cw or ModulationKind.Am
-            ? "envelope-weighted least-squares fit of the unwrapped carrier phase (Tretter 1985; efficient at high SNR, Rife and Boorstyn 1974 bound)"
-            : "mean instantaneous frequency: least-squares slope of the unwrapped phase over the whole window";
+        string method = kind switch
+        {
+            ModulationKind.Cw or ModulationKind.Am => "envelope-weighted least-squares fit of the unwrapped carrier phase (Tretter 1985; efficient at high SNR, Rife and Boorstyn 1974 bound)",
+            ModulationKind.Fsk => "centre of the two tones (the most frequent instantaneous frequencies)",
+            _ => "mean instantaneous frequency: least-squares slope of the unwrapped phase over the whole window",
+        };
         return new CarrierResult
         {
             FrequencyHz = new Measured(reported, u),
@@ -291,6 +306,20 @@ public static class Analyzer
             OffsetReference = reference,
             Method = method,
         };
+    }
+
+    /// <summary>
+    /// How far from <paramref name="centreHz"/> the spectrum stays above both 60 dB below its peak and
+    /// 10 dB above the noise floor (the farthest such bin, on either side).
+    /// </summary>
+    private static double SpectralReach(PowerSpectrum psd, double centreHz, double floor)
+    {
+        ReadOnlySpan<double> v = psd.Values;
+        double threshold = Math.Max(v[psd.PeakIndex()] * 1e-6, floor * 10);
+        double reach = 0;
+        for (int i = 0; i < v.Length; i++)
+            if (v[i] > threshold) reach = Math.Max(reach, Math.Abs(psd.FrequenciesHz[i] - centreHz));
+        return reach;
     }
 
     /// <summary>The strongest narrow line: its interpolated frequency and its share of the signal power (floor removed).</summary>
