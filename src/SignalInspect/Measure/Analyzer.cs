@@ -89,8 +89,8 @@ public static class Analyzer
         double mEnv = aMax + aMin > 0 ? (aMax - aMin) / (aMax + aMin) : 0;
         double meanDev = b.FreqMean;
         double pPos = b.Freq.Percentile(PeakUpper) - meanDev, pNeg = meanDev - b.Freq.Percentile(PeakLower);
-        var fsk = FindFskTones(b.Freq, meanDev);
-        Classification cls = Classify(snrDb, lineFraction, mEnv, sigmaPhase, fsk.Dwell, options.Expect);
+        var fsk = FindFskTones(b.Freq);
+        Classification cls = Classify(snrDb, mEnv, sigmaPhase, fsk.Dwell, options.Expect);
         ModulationKind kind = cls.Kind;
         if (snrDb < 10 && kind != ModulationKind.Noise)
             warnings.Add(string.Create(CultureInfo.InvariantCulture, $"SNR in the occupied bandwidth is about {snrDb:0.#} dB: readings are unreliable and the classification uncertain"));
@@ -238,7 +238,7 @@ public static class Analyzer
             PeakStatistic = "positive peak = 99.9th percentile, negative peak = 0.1th percentile of the post-detection signal, interpolated 8x between samples; " + peakNote,
             ObwNoise = options.ObwNoise,
         };
-        var (waveT, waveV, waveLabel) = Waveform(b, kind, tone?.Value, fsd, coarse, meanDev);
+        var (waveT, waveV, waveLabel) = Waveform(b, kind, tone?.Value, fsd, meanDev);
         return new AnalysisResult
         {
             Capture = info,
@@ -359,7 +359,7 @@ public static class Analyzer
         return double.IsNaN(ps) || pc <= 0 ? null : 2 * Math.Sqrt(ps / pc);
     }
 
-    private static Classification Classify(double snrDb, double lineFraction, double mEnv, double sigmaPhase, double dwell, ModulationKind? expect)
+    private static Classification Classify(double snrDb, double mEnv, double sigmaPhase, double dwell, ModulationKind? expect)
     {
         ModulationKind detected;
         double conf;
@@ -405,14 +405,13 @@ public static class Analyzer
             why = string.Create(c, $"angle modulation (peak phase about {sigmaPhase * Math.Sqrt(2):0.#} rad) with a continuous instantaneous frequency");
         }
         if (snrDb < 15 && detected != ModulationKind.Noise) conf *= Math.Clamp((snrDb - 3) / 12, 0.3, 1);
-        _ = lineFraction;
         return expect is { } e
             ? new Classification(e, detected, conf, true, $"measured as {e.Name()} (--expect); the classifier found {detected.Name()}: {why}")
             : new Classification(detected, detected, conf, false, why);
     }
 
     /// <summary>FSK tones from the deviation histogram: the two strongest modes, refined to the mean of their neighbourhoods; dwell = share of time near them.</summary>
-    private static (double[] Tones, double Dwell) FindFskTones(Histogram h, double mean)
+    private static (double[] Tones, double Dwell) FindFskTones(Histogram h)
     {
         double lo = h.Percentile(0.005), hi = h.Percentile(0.995);
         if (!(hi > lo)) return ([], 0);
@@ -434,7 +433,6 @@ public static class Analyzer
         double sep = Math.Abs(f2 - f1);
         double t1 = Mode(h, Math.Min(f1, f2), 0.15 * sep), t2 = Mode(h, Math.Max(f1, f2), 0.15 * sep);
         double dwell = h.FractionBetween(t1 - 0.1 * sep, t1 + 0.1 * sep) + h.FractionBetween(t2 - 0.1 * sep, t2 + 0.1 * sep);
-        _ = mean;
         return ([t1, t2], dwell);
     }
 
@@ -464,7 +462,7 @@ public static class Analyzer
         return h.Centre(i0 + best) + delta * h.BinWidth;
     }
 
-    private static (double[] T, double[] V, string Label) Waveform(PassResult b, ModulationKind kind, double? toneHz, double fsd, double coarse, double meanDev)
+    private static (double[] T, double[] V, string Label) Waveform(PassResult b, ModulationKind kind, double? toneHz, double fsd, double meanDev)
     {
         bool am = kind is ModulationKind.Am or ModulationKind.Cw;
         double[] src = am ? b.WaveEnvelope : b.WaveFreq;
@@ -480,7 +478,6 @@ public static class Analyzer
             t.Add(i / fsd);
             v.Add(am ? src[i] : src[i] - meanDev);
         }
-        _ = coarse;
         return ([.. t], [.. v], am ? "envelope (full scale)" : "instantaneous frequency deviation (Hz)");
     }
 
@@ -604,9 +601,7 @@ public static class Analyzer
             r.Intercept = mp - r.Slope * mt;
             r.PhaseResidualVariance = Math.Max(0, spp - r.Slope * stp);
             // Standard error of a weighted slope with the residual variance as the noise variance.
-            double effective = sw * sw / Math.Max(swpp > 0 ? sw : 1, 1e-300);
             r.SlopeVariance = stt > 0 ? r.PhaseResidualVariance / (stt * used) : 0;
-            _ = effective;
             r.EnvelopeMean = sa / used;
             r.FreqMean = sd / used;
             r.FreqRms = Math.Sqrt(Math.Max(0, sdd / used - r.FreqMean * r.FreqMean));
