@@ -1,6 +1,7 @@
 using System.CommandLine;
 using System.Globalization;
 using SignalInspect.Capture;
+using SignalInspect.Compliance;
 using SignalInspect.Measure;
 using SignalInspect.Reporting;
 
@@ -22,12 +23,20 @@ internal static class AnalyzeCommand
         var lp = Units.SiOption("--post-lowpass", "Post-detection low-pass cutoff in Hz (default: the channel filter's width, so every modulating frequency the occupied bandwidth allows passes).");
         var hp = Units.SiOption("--post-highpass", "Post-detection high-pass corner in Hz (default off).");
         var deemph = new Option<double?>("--deemphasis") { Description = "De-emphasis time constant in microseconds (e.g. 50 or 75; default off).", HelpName = "US" };
-        var force = new Option<bool>("--force") { Description = "Replace an existing output file." };
+        var force = new Option<bool>("--force") { Description = "Replace existing output files." };
+        var report = new Option<string?>("--report") { Description = "Write a PDF measurement report to OUT.pdf, with the same report model as JSON beside it (OUT.json).", HelpName = "OUT.pdf" };
+        var limits = new Option<string?>("--limits") { Description = "Limit profile (JSON, see profiles/README.md): verdicts PASS / FAIL / INCONCLUSIVE for each limit; exit code 1 when any fails.", HelpName = "PROFILE" };
+        var title = new Option<string?>("--title") { Description = "Report title.", HelpName = "TEXT" };
+        var op = new Option<string?>("--operator") { Description = "Who measured (report).", HelpName = "NAME" };
+        var eut = new Option<string?>("--equipment") { Description = "Equipment under test (report).", HelpName = "TEXT" };
+        var notes = new Option<string?>("--notes") { Description = "Notes for the report.", HelpName = "TEXT" };
+        var paper = new Option<string>("--paper") { Description = "Paper size of the report: a4 (default) or letter.", DefaultValueFactory = _ => "a4", HelpName = "a4|letter" };
+        paper.AcceptOnlyFromAmong("a4", "letter");
         var reader = new ReaderOptionSet();
         var spec = new SpectrumCommand.SpectrumOptionSet();
         var cmd = new Command("analyze", "Measure a capture: modulation type, carrier frequency and offset (Hz, ppm), occupied and x-dB bandwidth, AM depth, FM/PM deviation, FSK shift and rate, modulating frequency, emission designator.")
         {
-            capture, nominal, expect, json, obw, xdb, obwNoise, lp, hp, deemph, force,
+            capture, nominal, expect, json, obw, xdb, obwNoise, lp, hp, deemph, force, report, limits, title, op, eut, notes, paper,
         };
         reader.AddTo(cmd);
         spec.AddTo(cmd);
@@ -36,6 +45,15 @@ internal static class AnalyzeCommand
             string? jsonOut = r.GetValue(json);
             bool overwrite = r.GetValue(force);
             if (jsonOut is not null && jsonOut != "-") AtomicFile.CheckWritable(jsonOut, overwrite);
+            string? pdfOut = r.GetValue(report);
+            if (pdfOut is not null)
+            {
+                if (!pdfOut.EndsWith(".pdf", StringComparison.OrdinalIgnoreCase)) throw new UsageException($"--report: '{pdfOut}' should end in .pdf");
+                AtomicFile.CheckWritable(pdfOut, overwrite);
+                AtomicFile.CheckWritable(Path.ChangeExtension(pdfOut, ".json"), overwrite);
+            }
+            string? profilePath = r.GetValue(limits);
+            LimitProfile? profile = profilePath is null ? null : LimitProfile.Load(profilePath);
             CaptureSource source = CaptureSource.Open(r.GetValue(capture)!, reader.Read(r));
             var (kind, beta) = spec.WindowKindOf(r);
             ModulationKind? expected = null;
@@ -46,7 +64,7 @@ internal static class AnalyzeCommand
             }
             var options = new AnalysisOptions
             {
-                NominalHz = r.GetValue(nominal),
+                NominalHz = r.GetValue(nominal) ?? profile?.NominalFrequencyHz,
                 Expect = expected,
                 ObwPercent = r.GetValue(obw),
                 Xdb = r.GetValue(xdb),
@@ -67,6 +85,31 @@ internal static class AnalyzeCommand
             TextWriter summary = toStdout ? stderr : stdout;
             WriteSummary(summary, result);
             foreach (string w in result.Warnings) stderr.WriteLine($"signalinspect: warning: {w}");
+            IReadOnlyList<LimitCheck> checks = profile is null ? [] : Judgement.Check(result, profile);
+            Verdict? overall = profile is null ? null : Judgement.Overall(checks);
+            if (profile is not null) WriteVerdicts(summary, profile, checks, overall!.Value);
+            if (pdfOut is not null)
+            {
+                DateTimeOffset now = DateTimeOffset.UtcNow;
+                var model = new MeasurementReport
+                {
+                    ReportId = MeasurementReport.MakeId(now, result.Sha256),
+                    Created = now,
+                    Title = r.GetValue(title) ?? $"Measurement of {Path.GetFileName(source.Info.Path)}",
+                    Operator = r.GetValue(op),
+                    Equipment = r.GetValue(eut),
+                    Notes = r.GetValue(notes),
+                    Analysis = result,
+                    Profile = profile,
+                    ProfilePath = profilePath,
+                    Checks = checks,
+                    Overall = overall,
+                    Paper = r.GetValue(paper) == "letter" ? PaperSize.Letter : PaperSize.A4,
+                    CommandLine = "signalinspect " + string.Join(' ', Environment.GetCommandLineArgs().Skip(1).Select(Quote)),
+                };
+                WriteReport(model, pdfOut, overwrite);
+                summary.WriteLine($"wrote {pdfOut} and {Path.ChangeExtension(pdfOut, ".json")}");
+            }
             if (jsonOut is not null)
             {
                 byte[] bytes = AnalysisJson.ToBytes(result);
@@ -77,9 +120,27 @@ internal static class AnalyzeCommand
                     summary.WriteLine($"wrote {jsonOut}");
                 }
             }
-            return ExitCodes.Success;
+            return overall == Verdict.Fail ? ExitCodes.LimitFailed : ExitCodes.Success;
         });
         return cmd;
+    }
+
+    private static string Quote(string a) => a.Contains(' ') ? $"\"{a}\"" : a;
+
+    /// <summary>Writes the PDF and its JSON model, each atomically.</summary>
+    internal static void WriteReport(MeasurementReport model, string pdfOut, bool overwrite)
+    {
+        AtomicFile.Write(Path.ChangeExtension(pdfOut, ".json"), overwrite, s => s.Write(ReportJson.ToBytes(model)));
+        AtomicFile.Write(pdfOut, overwrite, s => PdfReportWriter.Write(model, s));
+    }
+
+    internal static void WriteVerdicts(TextWriter o, LimitProfile profile, IReadOnlyList<LimitCheck> checks, Verdict overall)
+    {
+        CultureInfo c = CultureInfo.InvariantCulture;
+        o.WriteLine($"limits                {profile.Name}");
+        foreach (LimitCheck k in checks)
+            o.WriteLine(string.Create(c, $"  {k.Verdict.ToString().ToUpperInvariant(),-13} {k.Measurement}: {k.Value:0.###} {k.Unit} (U {k.ExpandedUncertainty:0.###}), limit {k.LimitText}, margin {k.Margin:+0.###;-0.###}"));
+        o.WriteLine($"verdict               {overall.ToString().ToUpperInvariant()}");
     }
 
     internal static void WriteSummary(TextWriter o, AnalysisResult r)

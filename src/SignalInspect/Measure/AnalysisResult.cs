@@ -151,6 +151,10 @@ public sealed record AnalysisResult
     public required IReadOnlyList<string> Warnings { get; init; }
     /// <summary>A short stretch of the demodulated signal for plots: time (s) and value (envelope, Hz or rad).</summary>
     public required IReadOnlyList<(double TimeS, double Value)> Waveform { get; init; }
+    /// <summary>Highest value per 5 ms over the first 16384 demodulated samples, for the time plot.</summary>
+    public IReadOnlyList<(double TimeS, double Value)> TrendHigh { get; init; } = [];
+    /// <summary>Lowest value per 5 ms, same times as <see cref="TrendHigh"/>.</summary>
+    public IReadOnlyList<(double TimeS, double Value)> TrendLow { get; init; } = [];
     /// <summary>What the waveform shows (e.g. "instantaneous frequency (Hz)").</summary>
     public required string WaveformLabel { get; init; }
 }

@@ -239,6 +239,7 @@ public static class Analyzer
             ObwNoise = options.ObwNoise,
         };
         var (waveT, waveV, waveLabel) = Waveform(b, kind, tone?.Value, fsd, meanDev);
+        var (longT, longHigh, longLow) = Trend(b, kind, fsd, meanDev);
         return new AnalysisResult
         {
             Capture = info,
@@ -260,6 +261,8 @@ public static class Analyzer
             Method = method,
             Warnings = warnings,
             Waveform = [.. waveT.Zip(waveV)],
+            TrendHigh = [.. longT.Zip(longHigh)],
+            TrendLow = [.. longT.Zip(longLow)],
             WaveformLabel = waveLabel,
         };
     }
@@ -462,12 +465,13 @@ public static class Analyzer
         return h.Centre(i0 + best) + delta * h.BinWidth;
     }
 
-    private static (double[] T, double[] V, string Label) Waveform(PassResult b, ModulationKind kind, double? toneHz, double fsd, double meanDev)
+    private static (double[] T, double[] V, string Label) Waveform(PassResult b, ModulationKind kind, double? toneHz, double fsd, double meanDev, bool whole = false)
     {
         bool am = kind is ModulationKind.Am or ModulationKind.Cw;
         double[] src = am ? b.WaveEnvelope : b.WaveFreq;
         int n = src.Length;
-        if (toneHz is { } f && f > 0) n = Math.Min(n, (int)Math.Ceiling(5 * fsd / f));
+        if (whole) { }
+        else if (toneHz is { } f && f > 0) n = Math.Min(n, (int)Math.Ceiling(5 * fsd / f));
         else if (kind == ModulationKind.Fsk) n = Math.Min(n, (int)(0.02 * fsd) + 1);
         n = Math.Max(2, Math.Min(n, src.Length));
         int step = Math.Max(1, n / 2000);
@@ -479,6 +483,26 @@ public static class Analyzer
             v.Add(am ? src[i] : src[i] - meanDev);
         }
         return ([.. t], [.. v], am ? "envelope (full scale)" : "instantaneous frequency deviation (Hz)");
+    }
+
+    /// <summary>The highest and the lowest value per 5 ms of the stored stretch (shows drift, bursts and over-deviation at a glance).</summary>
+    private static (double[] T, double[] High, double[] Low) Trend(PassResult b, ModulationKind kind, double fsd, double meanDev)
+    {
+        bool am = kind is ModulationKind.Am or ModulationKind.Cw;
+        double[] src = am ? b.WaveEnvelope : b.WaveFreq;
+        int chunk = Math.Max(2, (int)(0.005 * fsd));
+        var t = new List<double>();
+        var v = new List<double>();
+        var lows = new List<double>();
+        for (int i = 0; i + chunk <= src.Length; i += chunk)
+        {
+            double hi = double.NegativeInfinity, lo = double.PositiveInfinity;
+            for (int j = i; j < i + chunk; j++) { hi = Math.Max(hi, src[j]); lo = Math.Min(lo, src[j]); }
+            double off = am ? 0 : meanDev;
+            t.Add((i + chunk / 2) / fsd); v.Add(hi - off);
+            lows.Add(lo - off);
+        }
+        return ([.. t], [.. v], [.. lows]);
     }
 
     private static string Sha256(string path)

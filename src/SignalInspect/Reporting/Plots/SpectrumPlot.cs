@@ -60,7 +60,7 @@ public static class SpectrumPlot
                 l.LineWidth = 1.5f;
                 l.LegendText = marks.LimitLabel;
             }
-            plot.ShowLegend(Alignment.UpperRight);
+            plot.ShowLegend(Alignment.UpperLeft);
         }
         string cal = spectrum.Settings.CalibrationDb != 0 ? "dBm" : "dBFS";
         plot.YLabel(spectrum.Scaling == SpectrumScaling.DensityPerHz ? $"PSD ({cal}/Hz)" : $"power per bin ({cal})");

@@ -1,0 +1,72 @@
+using System.Globalization;
+using System.Text.Json;
+using SignalInspect.Compliance;
+
+namespace SignalInspect.Reporting;
+
+/// <summary>Writes a <see cref="MeasurementReport"/> as JSON (beside the PDF): report metadata, the analysis (as analyze --json), limits and checks.</summary>
+public static class ReportJson
+{
+    /// <summary>Serialises the report to UTF-8 JSON bytes.</summary>
+    public static byte[] ToBytes(MeasurementReport report)
+    {
+        using var ms = new MemoryStream();
+        using (var w = new Utf8JsonWriter(ms, new JsonWriterOptions { Indented = true }))
+        {
+            w.WriteStartObject();
+            w.WriteStartObject("report");
+            w.WriteString("id", report.ReportId);
+            w.WriteString("created", report.Created.UtcDateTime.ToString("yyyy-MM-dd'T'HH:mm:ss'Z'", CultureInfo.InvariantCulture));
+            w.WriteString("title", report.Title);
+            w.WriteString("operator", report.Operator);
+            w.WriteString("equipment", report.Equipment);
+            w.WriteString("notes", report.Notes);
+            w.WriteString("commandLine", report.CommandLine);
+            w.WriteString("software", "SignalInspect " + AnalysisJson.Version);
+            w.WriteEndObject();
+            w.WritePropertyName("analysis");
+            AnalysisJson.Write(w, report.Analysis);
+            if (report.Profile is { } p)
+            {
+                w.WriteStartObject("limits");
+                w.WriteString("profile", p.Name);
+                w.WriteString("file", report.ProfilePath);
+                w.WriteString("source", p.Source);
+                w.WriteNumber("coverageFactor", p.CoverageFactor);
+                w.WriteString("decisionRule", Judgement.DecisionRule);
+                w.WriteEndObject();
+                w.WriteStartArray("checks");
+                foreach (LimitCheck c in report.Checks)
+                {
+                    w.WriteStartObject();
+                    w.WriteString("measurement", c.Measurement);
+                    Num(w, "value", c.Value);
+                    w.WriteString("unit", c.Unit);
+                    Num(w, "expandedUncertainty", c.ExpandedUncertainty);
+                    Num(w, "limit", c.Limit);
+                    w.WriteString("limitText", c.LimitText);
+                    Num(w, "margin", c.Margin);
+                    w.WriteString("verdict", c.Verdict.ToString().ToUpperInvariant());
+                    w.WriteString("basis", c.Basis);
+                    w.WriteEndObject();
+                }
+                w.WriteEndArray();
+                w.WriteString("verdict", report.Overall?.ToString().ToUpperInvariant());
+            }
+            else
+            {
+                w.WriteNull("limits");
+                w.WriteStartArray("checks");
+                w.WriteEndArray();
+                w.WriteNull("verdict");
+            }
+            w.WriteEndObject();
+        }
+        return ms.ToArray();
+    }
+
+    private static void Num(Utf8JsonWriter w, string name, double v)
+    {
+        if (double.IsFinite(v)) w.WriteNumber(name, v); else w.WriteNull(name);
+    }
+}
