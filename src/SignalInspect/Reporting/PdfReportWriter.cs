@@ -110,8 +110,13 @@ public static class PdfReportWriter
         string F(double v, string f) => double.IsFinite(v) ? v.ToString(f, C) : "-";
         foreach (LimitCheck c in r.Checks)
             rows.Add([c.Measurement, F(c.Value, "0.###"), c.Unit, F(c.ExpandedUncertainty, "0.###"), c.LimitText, F(c.Margin, "+0.##;-0.##"), c.Verdict.ToString().ToUpperInvariant()]);
-        void Info(string what, double value, string unit, double u, string fmt = "0.###") =>
+        // Values already judged above are not repeated as information rows.
+        var judged = r.Checks.Select(c => c.Measurement).ToList();
+        void Info(string what, double value, string unit, double u, string fmt = "0.###")
+        {
+            if (judged.Any(j => j.StartsWith(what, StringComparison.Ordinal))) return;
             rows.Add([what, F(value, fmt), unit, double.IsNaN(u) ? "-" : F(k * u, "0.###"), "-", "-", "-"]);
+        }
         rows.Add(["modulation", a.Classification.Kind.Name().ToUpperInvariant(), "", "", "-", "-", string.Create(C, $"conf. {a.Classification.Confidence:0.00}")]);
         if (a.Carrier is { } car)
         {
@@ -124,14 +129,14 @@ public static class PdfReportWriter
         if (a.Fm is { } fm)
         {
             Info("FM peak deviation", fm.PeakDeviationHz.Value, "Hz", fm.PeakDeviationHz.StandardUncertainty, "0.#");
-            Info("FM +peak / -peak", fm.PositivePeakHz, "Hz", double.NaN, "0.#");
+            rows.Add(["FM +peak / -peak", "", "Hz", "-", "-", "-", "-"]);
             rows[^1][1] = $"{fm.PositivePeakHz.ToString("0.#", C)} / {fm.NegativePeakHz.ToString("0.#", C)}";
             Info("FM rms deviation", fm.RmsDeviationHz, "Hz", double.NaN, "0.#");
         }
         if (a.Am is { } am)
         {
             Info("AM depth", am.DepthPercent.Value, "%", am.DepthPercent.StandardUncertainty, "0.##");
-            Info("AM +peak / -peak", am.PositivePeakPercent, "%", double.NaN, "0.##");
+            rows.Add(["AM +peak / -peak", "", "%", "-", "-", "-", "-"]);
             rows[^1][1] = $"{am.PositivePeakPercent.ToString("0.##", C)} / {am.NegativePeakPercent.ToString("0.##", C)}";
         }
         if (a.Pm is { } pm) Info("PM peak phase deviation", pm.PeakDeviationRad.Value, "rad", pm.PeakDeviationRad.StandardUncertainty, "0.####");
@@ -376,7 +381,7 @@ public static class PdfReportWriter
         public void ResultsTable(IReadOnlyList<string[]> rows)
         {
             string[] head = ["Measurement", "Value", "Unit", "U", "Limit", "Margin", "Verdict"];
-            double[] frac = [0.26, 0.13, 0.05, 0.08, 0.20, 0.11, 0.17];
+            double[] frac = [0.25, 0.13, 0.07, 0.08, 0.19, 0.11, 0.17];
             double[] widths = [.. frac.Select(f => f * ContentWidth)];
             void Row(string[] cells, XFont font, XBrush? fill, bool verdictColours)
             {

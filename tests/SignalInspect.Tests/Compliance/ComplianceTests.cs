@@ -1,0 +1,98 @@
+using SignalInspect.Capture;
+using SignalInspect.Compliance;
+
+namespace SignalInspect.Tests.Compliance;
+
+public class ComplianceTests
+{
+    [Theory]
+    // 47 CFR 90.210(d) mask D [R]; checks [D] from REFERENCE-VALUES.md: fd 10 kHz -> 51.76 dB, 12.5 kHz -> 69.94 dB.
+    [InlineData(3000, 0)]
+    [InlineData(5625, 0)]
+    [InlineData(10000, 51.7624)]
+    [InlineData(12500, 69.9374)]
+    [InlineData(-10000, 51.7624)]
+    [InlineData(20000, 70)]
+    public void Mask_D_follows_90_210_d(double offsetHz, double db)
+    {
+        var mask = new EmissionMask { Name = "D", Rule = "47cfr90.210d" };
+        Near.Equal(db, mask.RequiredAttenuationDb(offsetHz), 1e-3, $"{offsetHz} Hz");
+    }
+
+    [Fact]
+    public void Mask_D_floor_uses_the_transmitter_power_when_given()
+    {
+        // 50 + 10 log10(5 W) = 56.99 dB, below the 70 dB cap.
+        var mask = new EmissionMask { Name = "D", Rule = "47cfr90.210d", TransmitterPowerW = 5 };
+        Near.Equal(56.9897, mask.RequiredAttenuationDb(30000), 1e-3);
+    }
+
+    [Fact]
+    public void Point_masks_interpolate_and_hold()
+    {
+        var mask = new EmissionMask { Name = "p", Points = [(1000, 0), (2000, 20), (4000, 60)] };
+        Assert.Equal(10, mask.RequiredAttenuationDb(1500));
+        Assert.Equal(60, mask.RequiredAttenuationDb(9000));
+    }
+
+    [Theory]
+    // Guarded acceptance with w = U (common practice, a rule of the kind ILAC-G8:09/2019 describes).
+    [InlineData(2400, 50, 2500, Verdict.Pass)]
+    [InlineData(2450, 50, 2500, Verdict.Pass)]
+    [InlineData(2480, 50, 2500, Verdict.Inconclusive)]
+    [InlineData(2530, 50, 2500, Verdict.Inconclusive)]
+    [InlineData(2551, 50, 2500, Verdict.Fail)]
+    public void The_guard_band_is_the_expanded_uncertainty(double value, double u, double limit, Verdict verdict) =>
+        Assert.Equal(verdict, Judgement.UpperVerdict(value, u, limit));
+
+    [Fact]
+    public void Overall_verdict_is_the_worst()
+    {
+        LimitCheck C(Verdict v) => new("x", 1, "Hz", 0, 2, "<= 2", 1, v, "");
+        Assert.Equal(Verdict.Fail, Judgement.Overall([C(Verdict.Pass), C(Verdict.Fail), C(Verdict.Inconclusive)]));
+        Assert.Equal(Verdict.Inconclusive, Judgement.Overall([C(Verdict.Pass), C(Verdict.Inconclusive)]));
+        Assert.Equal(Verdict.Pass, Judgement.Overall([C(Verdict.Pass)]));
+    }
+
+    [Fact]
+    public void Shipped_profiles_parse()
+    {
+        string dir = Path.Combine(Path.GetDirectoryName(TestData.Path("x"))!, "..", "profiles");
+        string[] files = Directory.GetFiles(dir, "*.json");
+        Assert.True(files.Length >= 5);
+        foreach (string f in files) Assert.False(string.IsNullOrWhiteSpace(LimitProfile.Load(f).Name));
+        LimitProfile vhf = LimitProfile.Load(Path.Combine(dir, "land-mobile-12k5-vhf.json"));
+        Assert.Equal(2.5, vhf.FrequencyTolerancePpm);
+        Assert.Equal(2500, vhf.MaxPeakDeviationHz);
+        Assert.Equal("47cfr90.210d", vhf.Mask!.Rule);
+    }
+
+    [Theory]
+    [InlineData("{\"maxPeakDeviationHz\": 2500}", "name is missing")]
+    [InlineData("{\"name\": \"x\", \"maxPeakDeviationHz\": \"2.5k\"}", "maxPeakDeviationHz must be a number")]
+    [InlineData("{\"name\": \"x\", \"maxPeakDeviationHz\": -1}", "maxPeakDeviationHz must be a positive number")]
+    [InlineData("{\"name\": \"x\", \"frequencyTolerance\": {}}", "frequencyTolerance needs")]
+    [InlineData("{\"name\": \"x\", \"mask\": {\"rule\": \"90.210z\"}}", "mask.rule '90.210z' is not a known rule")]
+    [InlineData("{\"name\": \"x\", \"mask\": {\"points\": [[1000, 0], [500, 10]]}}", "mask.points[1] offsets must be 0 or more and ascending")]
+    [InlineData("{\"name\": \"x\", \"maxDeviation\": 2500}", "maxDeviation is not a profile field")]
+    [InlineData("{\"name\": \"x\", \"am\": {\"maxPositivePeakPercent\": true}}", "am.maxPositivePeakPercent must be a number")]
+    public void A_bad_profile_gives_one_line_naming_the_field(string json, string message)
+    {
+        using var tmp = new TempDir();
+        string path = tmp.File("p.json");
+        File.WriteAllText(path, json);
+        var e = Assert.Throws<CaptureException>(() => LimitProfile.Load(path));
+        Assert.Contains(message, e.Message);
+        Assert.DoesNotContain('\n', e.Message);
+    }
+
+    [Fact]
+    public void A_profile_with_a_syntax_error_names_the_line()
+    {
+        using var tmp = new TempDir();
+        string path = tmp.File("p.json");
+        File.WriteAllText(path, "{\n \"name\": \"x\",\n \"maxPeakDeviationHz\" 2500\n}");
+        var e = Assert.Throws<CaptureException>(() => LimitProfile.Load(path));
+        Assert.Contains("line 3", e.Message);
+    }
+}

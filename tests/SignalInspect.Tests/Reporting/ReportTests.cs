@@ -1,0 +1,108 @@
+using System.Text.Json;
+using UglyToad.PdfPig;
+
+namespace SignalInspect.Tests.Reporting;
+
+/// <summary>The PDF report read back with PdfPig: values with units, verdicts and the hash are in its text.</summary>
+public class ReportTests
+{
+    private static string ProfilePath(string name) => Path.Combine(Path.GetDirectoryName(TestData.Path("x"))!, "..", "profiles", name);
+
+    private static string PdfText(string path)
+    {
+        using PdfDocument doc = PdfDocument.Open(path);
+        return string.Join("\n", doc.GetPages().Select(p => string.Join(" ", p.GetWords().Select(w => w.Text))));
+    }
+
+    [Fact]
+    public void Report_on_an_outside_capture_holds_deviation_bandwidth_offset_hash_and_verdicts()
+    {
+        using var tmp = new TempDir();
+        string pdf = tmp.File("nbfm.pdf");
+        string capture = TestData.Path("measure", "nbfm-151625.sigmf-meta");
+        var (code, stdout, stderr) = CliRunner.Run("analyze", capture, "--report", pdf, "--limits", ProfilePath("land-mobile-12k5-vhf.json"),
+            "--operator", "A. Mensah", "--equipment", "Reference generator", "--title", "NBFM reference check", "--paper", "letter");
+        Assert.True(code is 0 or 1, stderr);
+        Assert.Contains("verdict", stdout);
+        string text = PdfText(pdf);
+        JsonElement model = JsonDocument.Parse(File.ReadAllText(Path.ChangeExtension(pdf, ".json"))).RootElement;
+        string sha = model.GetProperty("analysis").GetProperty("capture").GetProperty("sha256").GetString()!;
+        Assert.Contains(sha, text.Replace(" ", string.Empty).Replace("\n", string.Empty));
+        Assert.Contains("FM peak deviation", text);
+        Assert.Contains("occupied bandwidth", text);
+        Assert.Contains("carrier frequency error", text);
+        Assert.Contains("Hz", text);
+        Assert.Contains("A. Mensah", text);
+        Assert.Contains("Reference generator", text);
+        Assert.Contains("page 3 of 3", text);
+        Assert.Contains("dummy load", text);
+        Assert.Contains("informative", text);
+        double dev = model.GetProperty("analysis").GetProperty("fm").GetProperty("peakDeviationHz").GetDouble();
+        Assert.Contains(dev.ToString("0.###", System.Globalization.CultureInfo.InvariantCulture), text);
+        double obw = model.GetProperty("analysis").GetProperty("bandwidth").GetProperty("occupiedHz").GetDouble();
+        Assert.Contains(obw.ToString("0.###", System.Globalization.CultureInfo.InvariantCulture), text);
+        JsonElement[] checks = [.. model.GetProperty("checks").EnumerateArray()];
+        Assert.Equal(4, checks.Length); // tolerance, deviation, OBW, mask
+        foreach (JsonElement c in checks) Assert.Contains(c.GetProperty("verdict").GetString()!, text);
+        Assert.Contains(model.GetProperty("report").GetProperty("id").GetString()!, text);
+        Assert.Equal(2, Directory.GetFiles(tmp.Path).Length); // the PDF and its JSON, no temporary file left
+    }
+
+    [Fact]
+    public void Over_deviation_fails_and_the_exit_code_is_1()
+    {
+        using var tmp = new TempDir();
+        string capture = tmp.File("over.sigmf");
+        Assert.Equal(0, CliRunner.Run("synth", capture, "--kind", "fm", "--deviation", "3.2k", "--sample-rate", "48k", "--duration", "1", "--snr", "40", "--center-frequency", "155.3125M").Code);
+        var (code, stdout, _) = CliRunner.Run("analyze", capture, "--limits", ProfilePath("land-mobile-12k5-vhf.json"));
+        Assert.Equal(1, code);
+        Assert.Contains("FAIL", stdout);
+        var (pass, _, _) = CliRunner.Run("analyze", capture, "--limits", ProfilePath("gmrs-main.json"));
+        Assert.Equal(0, pass); // 3.2 kHz is inside the 5 kHz GMRS limit
+    }
+
+    [Fact]
+    public void An_existing_report_is_kept_without_force_and_replaced_with_it()
+    {
+        using var tmp = new TempDir();
+        string pdf = tmp.File("r.pdf");
+        File.WriteAllText(pdf, "previous report");
+        string capture = TestData.Path("measure", "cw-462.sigmf-meta");
+        var (code, _, stderr) = CliRunner.Run("analyze", capture, "--report", pdf);
+        Assert.Equal(2, code);
+        Assert.Contains("already exists (use --force", stderr);
+        Assert.Equal("previous report", File.ReadAllText(pdf));
+        Assert.False(File.Exists(Path.ChangeExtension(pdf, ".json")));
+        (code, _, stderr) = CliRunner.Run("analyze", capture, "--report", pdf, "--force");
+        Assert.True(code == 0, stderr);
+        Assert.StartsWith("%PDF", File.ReadAllText(pdf)[..4]);
+        Assert.Contains("NO LIMITS APPLIED", PdfText(pdf));
+    }
+
+    [Fact]
+    public void A_bad_profile_fails_before_anything_is_written()
+    {
+        using var tmp = new TempDir();
+        string profile = tmp.File("bad.json");
+        File.WriteAllText(profile, "{\"name\": \"x\", \"maxPeakDeviationHz\": \"wide\"}");
+        var (code, _, stderr) = CliRunner.Run("analyze", TestData.Path("measure", "cw-462.sigmf-meta"), "--limits", profile, "--report", tmp.File("r.pdf"));
+        Assert.Equal(2, code);
+        Assert.Contains("bad.json: maxPeakDeviationHz must be a number", stderr);
+        Assert.Single(Directory.GetFiles(tmp.Path));
+    }
+
+    [Fact]
+    public void Demo_writes_three_reports_with_their_verdicts()
+    {
+        using var tmp = new TempDir();
+        var (code, stdout, stderr) = CliRunner.Run("demo", "--out", tmp.Path);
+        Assert.True(code == 0, stderr);
+        string[] pdfs = Directory.GetFiles(Path.Combine(tmp.Path, "demo"), "*.pdf");
+        Assert.Equal(3, pdfs.Length);
+        Assert.Contains("FAIL", stdout);   // the handheld over-deviates (3.1 kHz against 2.5 kHz)
+        Assert.Contains("PASS", stdout);
+        string handheld = PdfText(pdfs.Single(p => p.Contains("handheld")));
+        Assert.Contains("FAIL", handheld);
+        Assert.Contains("Harbour Water Authority", handheld);
+    }
+}
