@@ -114,7 +114,7 @@ public static class PdfReportWriter
         var judged = r.Checks.Select(c => c.Measurement).ToList();
         void Info(string what, double value, string unit, double u, string fmt = "0.###")
         {
-            if (judged.Any(j => j.StartsWith(what, StringComparison.Ordinal))) return;
+            if (judged.Any(j => j == what || j.StartsWith(what + " (", StringComparison.Ordinal))) return;
             rows.Add([what, F(value, fmt), unit, double.IsNaN(u) ? "-" : F(k * u, "0.###"), "-", "-", "-"]);
         }
         rows.Add(["modulation", a.Classification.Kind.Name().ToUpperInvariant(), "", "", "-", "-", string.Create(C, $"conf. {a.Classification.Confidence:0.00}")]);
