@@ -27,7 +27,7 @@ public static class PdfReportWriter
         public byte[] GetFont(string faceName) => File.ReadAllBytes(faceName == "si-bold" ? bold : regular);
     }
 
-    private static void EnsureFonts()
+    internal static void EnsureFonts()
     {
         lock (FontGate)
         {
@@ -245,7 +245,7 @@ public static class PdfReportWriter
     }
 
     /// <summary>A cursor over pages with the house fonts, wrapping text and simple tables.</summary>
-    private sealed class Layout
+    internal sealed class Layout
     {
         private readonly PdfDocument _doc;
         private readonly PaperSize _paper;
@@ -419,6 +419,55 @@ public static class PdfReportWriter
             foreach (string[] r in rows) Row(r, Body, null, true);
         }
 
+        /// <summary>A table whose first column is a small image (a spectrum thumbnail); the last column coloured by verdict.</summary>
+        public void ThumbnailTable(string[] head, double[] frac, IReadOnlyList<(byte[]? Png, string[] Cells)> rows, double thumbHeight)
+        {
+            double[] widths = [.. frac.Select(f => f * ContentWidth)];
+            double headH = LineHeight(Bold) + 4;
+            void Head()
+            {
+                Need(headH);
+                _g!.DrawRectangle(new XSolidBrush(XColor.FromArgb(232, 238, 245)), new XRect(Margin, _y, ContentWidth, headH));
+                double hx = Margin;
+                for (int i = 0; i < head.Length; i++) { _g.DrawString(head[i], Bold, XBrushes.Black, new XRect(hx + 3, _y + 2, widths[i] - 6, headH), XStringFormats.TopLeft); hx += widths[i]; }
+                _y += headH;
+            }
+            Head();
+            foreach (var (png, cells) in rows)
+            {
+                var wrapped = cells.Select((c, i) => Wrap(c, i == cells.Length - 1 ? Bold : Small, widths[i + 1] - 6)).ToArray();
+                double h = Math.Max(thumbHeight + 4, wrapped.Max(w => w.Count) * LineHeight(Small) + 4);
+                if (_y + h > Bottom) { NewPage(); Head(); }
+                if (png is not null)
+                {
+                    using var ms = new MemoryStream(png);
+                    using XImage img = XImage.FromStream(ms);
+                    _g!.DrawImage(img, Margin + 2, _y + 2, widths[0] - 4, thumbHeight);
+                }
+                double x = Margin + widths[0];
+                for (int i = 0; i < cells.Length; i++)
+                {
+                    bool last = i == cells.Length - 1;
+                    XBrush brush = last ? cells[i] switch
+                    {
+                        "FAIL" or "ERROR" => new XSolidBrush(XColor.FromArgb(192, 0, 0)),
+                        "PASS" => new XSolidBrush(XColor.FromArgb(46, 125, 50)),
+                        "INCONCLUSIVE" => new XSolidBrush(XColor.FromArgb(191, 120, 0)),
+                        _ => XBrushes.Black,
+                    } : XBrushes.Black;
+                    double y = _y + 2;
+                    foreach (string line in wrapped[i])
+                    {
+                        _g!.DrawString(line, last ? Bold : Small, brush, new XRect(x + 3, y, widths[i + 1] - 6, LineHeight(Small)), XStringFormats.TopLeft);
+                        y += LineHeight(Small);
+                    }
+                    x += widths[i + 1];
+                }
+                _y += h;
+                _g!.DrawLine(new XPen(XColor.FromArgb(210, 210, 210), 0.5), Margin, _y, Margin + ContentWidth, _y);
+            }
+        }
+
         public void Image(byte[] png, double width, double height)
         {
             Need(height);
@@ -428,7 +477,9 @@ public static class PdfReportWriter
             _y += height;
         }
 
-        public void Finish(MeasurementReport r)
+        public void Finish(MeasurementReport r) => Finish(r.ReportId);
+
+        public void Finish(string id)
         {
             _g?.Dispose();
             _g = null;
@@ -436,7 +487,7 @@ public static class PdfReportWriter
             for (int i = 0; i < n; i++)
             {
                 using XGraphics g = XGraphics.FromPdfPage(_doc.Pages[i], XGraphicsPdfPageOptions.Append);
-                string left = $"SignalInspect {AnalysisJson.Version}  |  report {r.ReportId}  |  informative results, see the last page";
+                string left = $"SignalInspect {AnalysisJson.Version}  |  {id}  |  informative results, see the last page";
                 g.DrawString(left, Small, XBrushes.DimGray, new XRect(Margin, PageHeight - Margin + 4, ContentWidth, 10), XStringFormats.TopLeft);
                 g.DrawString($"page {i + 1} of {n}", Small, XBrushes.DimGray, new XRect(Margin, PageHeight - Margin + 4, ContentWidth, 10), XStringFormats.TopRight);
             }

@@ -27,7 +27,8 @@ public static class SpectrumPlot
     /// <param name="scale">Scale factor of fonts and lines (2 or 3 for print resolution).</param>
     /// <param name="marks">Optional lines and limit trace.</param>
     /// <param name="absolute">Label the axis with absolute RF frequency in MHz when the centre is known.</param>
-    public static byte[] RenderPng(PowerSpectrum spectrum, string title, int widthPx = 1200, int heightPx = 600, double scale = 1, Marks? marks = null, bool absolute = false)
+    /// <param name="compact">A thumbnail without axis labels or legend.</param>
+    public static byte[] RenderPng(PowerSpectrum spectrum, string title, int widthPx = 1200, int heightPx = 600, double scale = 1, Marks? marks = null, bool absolute = false, bool compact = false)
     {
         Plot plot = PlotStyle.NewPlot();
         plot.ScaleFactor = scale;
@@ -66,6 +67,13 @@ public static class SpectrumPlot
         plot.YLabel(spectrum.Scaling == SpectrumScaling.DensityPerHz ? $"PSD ({cal}/Hz)" : $"power per bin ({cal})");
         plot.XLabel(abs ? $"frequency ({unit})" : spectrum.IsOneSided ? $"frequency ({unit})" : $"offset from centre ({unit})");
         plot.Title(title);
+        if (compact)
+        {
+            // A thumbnail: the trace and its axes' numbers only.
+            plot.XLabel(string.Empty);
+            plot.YLabel(string.Empty);
+            plot.Legend.IsVisible = false;
+        }
         return plot.GetImageBytes(widthPx, heightPx, ImageFormat.Png);
     }
 

@@ -1,0 +1,324 @@
+using System.Collections.Concurrent;
+using System.Security.Cryptography;
+using System.Text;
+using System.Text.Json;
+using SignalInspect.Capture;
+using SignalInspect.Compliance;
+using SignalInspect.Measure;
+using SignalInspect.Reporting;
+using SignalInspect.Reporting.Plots;
+
+namespace SignalInspect.Batch;
+
+/// <summary>Settings of a batch run.</summary>
+public sealed record BatchOptions
+{
+    /// <summary>Output folder.</summary>
+    public required string OutDir { get; init; }
+    /// <summary>Reader options used as defaults (a sidecar overrides them per file).</summary>
+    public ReaderOptions Reader { get; init; } = ReaderOptions.Default;
+    /// <summary>Analysis options.</summary>
+    public AnalysisOptions Analysis { get; init; } = new();
+    /// <summary>Limit profile, null for none.</summary>
+    public LimitProfile? Profile { get; init; }
+    /// <summary>Path of the profile, for the reports.</summary>
+    public string? ProfilePath { get; init; }
+    /// <summary>Captures analysed at once (1 or more).</summary>
+    public int Jobs { get; init; } = Math.Max(1, Environment.ProcessorCount);
+    /// <summary>Write a PDF report per capture.</summary>
+    public bool Reports { get; init; }
+    /// <summary>Skip captures already in the output folder's summary (matched by content hash).</summary>
+    public bool Resume { get; init; }
+    /// <summary>This shard (1-based) of <see cref="ShardCount"/>.</summary>
+    public int ShardIndex { get; init; } = 1;
+    /// <summary>Number of shards.</summary>
+    public int ShardCount { get; init; } = 1;
+}
+
+/// <summary>What a batch run did.</summary>
+/// <param name="Records">All records of the summary (sorted by file).</param>
+/// <param name="Analysed">Captures analysed in this run.</param>
+/// <param name="Skipped">Captures skipped by --resume.</param>
+/// <param name="Cancelled">True when the run was stopped before the end.</param>
+public sealed record BatchOutcome(IReadOnlyList<BatchRecord> Records, int Analysed, int Skipped, bool Cancelled);
+
+/// <summary>One capture found by discovery: its path and the reader options for it.</summary>
+/// <param name="Path">The file to open.</param>
+/// <param name="Key">Its path relative to the input it was found under (used for sharding).</param>
+/// <param name="Options">Reader options (defaults plus its sidecar).</param>
+/// <param name="Bytes">Size of its files.</param>
+public sealed record BatchInput(string Path, string Key, ReaderOptions Options, long Bytes);
+
+/// <summary>
+/// Batch triage: finds captures under folders, files and globs, analyses them in parallel with
+/// bounded memory, and writes summary.csv, summary.jsonl, summary.pdf (and optionally a report
+/// per capture) into the output folder. A bad capture becomes an error record and the run goes on.
+/// The summary is appended line by line as captures finish, so a stopped run keeps what it did;
+/// the final files are sorted by path, so the result does not depend on the number of jobs.
+/// </summary>
+public static class BatchRunner
+{
+    /// <summary>Name of a raw capture's sidecar: the capture's file name plus this ending.</summary>
+    public const string SidecarSuffix = ".si.json";
+
+    private static readonly string[] CaptureEndings = [".wav", ".rf64", ".bw64", ".sigmf", ".sigmf-meta", ".cu8", ".cs8", ".ci8", ".cs16", ".ci16", ".cs32", ".cf32", ".cfile", ".fc32", ".cf64", ".ru8", ".rs16", ".rf32"];
+
+    /// <summary>Finds the captures named by folders (searched recursively), files and globs (* and ? in the file name).</summary>
+    /// <exception cref="CaptureException">An input names nothing.</exception>
+    public static IReadOnlyList<BatchInput> Discover(IEnumerable<string> inputs, ReaderOptions defaults)
+    {
+        var found = new SortedDictionary<string, BatchInput>(StringComparer.Ordinal);
+        foreach (string input in inputs)
+        {
+            if (Directory.Exists(input))
+            {
+                foreach (string f in Directory.EnumerateFiles(input, "*", new EnumerationOptions { RecurseSubdirectories = true, IgnoreInaccessible = true, AttributesToSkip = FileAttributes.Hidden }))
+                    if (LooksLikeCapture(f)) Add(found, f, Path.GetRelativePath(input, f), defaults);
+            }
+            else if (File.Exists(input))
+            {
+                Add(found, input, Path.GetFileName(input), defaults);
+            }
+            else if (input.IndexOfAny(['*', '?']) >= 0)
+            {
+                string dir = Path.GetDirectoryName(input) is { Length: > 0 } d ? d : ".";
+                if (!Directory.Exists(dir)) throw CaptureException.ForFile(input, "the folder of this pattern does not exist");
+                foreach (string f in Directory.EnumerateFiles(dir, Path.GetFileName(input)))
+                    if (!f.EndsWith(SidecarSuffix, StringComparison.Ordinal)) Add(found, f, Path.GetFileName(f), defaults);
+            }
+            else
+            {
+                throw CaptureException.ForFile(input, "no such file, folder or pattern");
+            }
+        }
+        return [.. found.Values];
+    }
+
+    private static bool LooksLikeCapture(string f)
+    {
+        string l = f.ToLowerInvariant();
+        if (l.EndsWith(SidecarSuffix, StringComparison.Ordinal)) return false;
+        if (l.EndsWith(".sigmf-data", StringComparison.Ordinal)) return !File.Exists(f[..^".sigmf-data".Length] + ".sigmf-meta");
+        return CaptureEndings.Any(e => l.EndsWith(e, StringComparison.Ordinal)) || File.Exists(f + SidecarSuffix);
+    }
+
+    private static void Add(SortedDictionary<string, BatchInput> found, string path, string key, ReaderOptions defaults)
+    {
+        string full = Path.GetFullPath(path);
+        if (full.EndsWith(".sigmf-data", StringComparison.OrdinalIgnoreCase) && File.Exists(full[..^11] + ".sigmf-meta")) full = full[..^11] + ".sigmf-meta";
+        if (found.ContainsKey(full)) return;
+        long bytes = new FileInfo(full).Length + (full.EndsWith(".sigmf-meta", StringComparison.OrdinalIgnoreCase) && File.Exists(full[..^11] + ".sigmf-data") ? new FileInfo(full[..^11] + ".sigmf-data").Length : 0);
+        found[full] = new BatchInput(path, key.Replace('\\', '/'), defaults, bytes);
+    }
+
+    /// <summary>Reads a raw capture's sidecar (datatype, sampleRateHz, centerFrequencyHz) over the defaults.</summary>
+    /// <exception cref="CaptureException">The sidecar is malformed.</exception>
+    public static ReaderOptions WithSidecar(string capture, ReaderOptions defaults)
+    {
+        string side = capture + SidecarSuffix;
+        if (!File.Exists(side)) return defaults;
+        try
+        {
+            using JsonDocument doc = JsonDocument.Parse(File.ReadAllText(side));
+            JsonElement e = doc.RootElement;
+            if (e.ValueKind != JsonValueKind.Object) throw CaptureException.ForFile(side, "a sidecar must be a JSON object");
+            string? dt = e.TryGetProperty("datatype", out JsonElement d) ? (d.ValueKind == JsonValueKind.String ? d.GetString() : throw CaptureException.ForFile(side, "datatype must be a string")) : null;
+            double? Num(string k) => e.TryGetProperty(k, out JsonElement v) ? (v.ValueKind == JsonValueKind.Number ? v.GetDouble() : throw CaptureException.ForFile(side, $"{k} must be a number")) : null;
+            return defaults with
+            {
+                Datatype = dt ?? defaults.Datatype,
+                SampleRateHz = Num("sampleRateHz") ?? defaults.SampleRateHz,
+                CenterFrequencyHz = Num("centerFrequencyHz") ?? defaults.CenterFrequencyHz,
+            };
+        }
+        catch (JsonException)
+        {
+            throw CaptureException.ForFile(side, "sidecar is not valid JSON");
+        }
+    }
+
+    /// <summary>The shard (0-based) of a capture: FNV-1a 64 of its key, modulo the shard count. Stable across machines and runs.</summary>
+    public static int ShardOf(string key, int shards)
+    {
+        ulong h = 14695981039346656037UL;
+        foreach (byte b in Encoding.UTF8.GetBytes(key)) { h ^= b; h *= 1099511628211UL; }
+        return (int)(h % (ulong)shards);
+    }
+
+    /// <summary>SHA-256 of a capture's content: the file, and for a SigMF pair its data file too.</summary>
+    public static string ContentHash(string path)
+    {
+        using var sha = IncrementalHash.CreateHash(HashAlgorithmName.SHA256);
+        void Feed(string p)
+        {
+            using FileStream fs = ByteSource.OpenReadOnly(p);
+            byte[] buf = new byte[1 << 20];
+            int n;
+            while ((n = fs.Read(buf)) > 0) sha.AppendData(buf, 0, n);
+        }
+        Feed(path);
+        if (path.EndsWith(".sigmf-meta", StringComparison.OrdinalIgnoreCase) && File.Exists(path[..^11] + ".sigmf-data")) Feed(path[..^11] + ".sigmf-data");
+        return Convert.ToHexStringLower(sha.GetHashAndReset());
+    }
+
+    /// <summary>Runs the batch.</summary>
+    /// <param name="inputs">Discovered captures.</param>
+    /// <param name="options">Settings.</param>
+    /// <param name="onRecord">Called after each capture (from worker threads, serialised).</param>
+    /// <param name="cancel">Stops scheduling new captures; those running finish, and the summary is written.</param>
+    public static BatchOutcome Run(IReadOnlyList<BatchInput> inputs, BatchOptions options, Action<BatchRecord, BatchInput>? onRecord = null, CancellationToken cancel = default)
+    {
+        Directory.CreateDirectory(options.OutDir);
+        string jsonl = Path.Combine(options.OutDir, "summary.jsonl");
+        var done = new Dictionary<string, BatchRecord>(StringComparer.Ordinal);
+        if (options.Resume && File.Exists(jsonl))
+            foreach (BatchRecord r in ReadJsonl(jsonl)) done[r.ContentSha256 ?? "path:" + r.File] = r;
+        else if (File.Exists(jsonl))
+            File.Delete(jsonl);
+        List<BatchInput> mine = [.. inputs.Where(i => ShardOf(i.Key, options.ShardCount) == options.ShardIndex - 1)];
+        var records = new ConcurrentBag<BatchRecord>(done.Values);
+        object gate = new();
+        int analysed = 0, skipped = 0;
+        bool cancelled = false;
+        using var append = new StreamWriter(new FileStream(jsonl, FileMode.Append, FileAccess.Write, FileShare.Read), new UTF8Encoding(false)) { AutoFlush = true, NewLine = "\n" };
+        try
+        {
+            Parallel.ForEach(mine, new ParallelOptions { MaxDegreeOfParallelism = Math.Max(1, options.Jobs), CancellationToken = cancel }, input =>
+            {
+                string? hash = null;
+                try { hash = ContentHash(input.Path); } catch (IOException) { } catch (UnauthorizedAccessException) { }
+                if (options.Resume && (hash is not null ? done.ContainsKey(hash) : done.ContainsKey("path:" + input.Path)))
+                {
+                    Interlocked.Increment(ref skipped);
+                    return;
+                }
+                BatchRecord rec = AnalyseOne(input, hash, options);
+                lock (gate)
+                {
+                    append.WriteLine(rec.ToJsonLine());
+                    records.Add(rec);
+                    analysed++;
+                    onRecord?.Invoke(rec, input);
+                }
+            });
+        }
+        catch (OperationCanceledException)
+        {
+            cancelled = true;
+        }
+        append.Dispose();
+        List<BatchRecord> all = [.. records.OrderBy(r => r.File, StringComparer.Ordinal).ThenBy(r => r.ContentSha256, StringComparer.Ordinal)];
+        WriteOutputs(options.OutDir, all, options.Profile?.Name);
+        return new BatchOutcome(all, analysed, skipped, cancelled);
+    }
+
+    private static BatchRecord AnalyseOne(BatchInput input, string? hash, BatchOptions o)
+    {
+        string file = input.Path;
+        try
+        {
+            CaptureSource source = CaptureSource.Open(file, WithSidecar(file, input.Options));
+            AnalysisResult r = Analyzer.Analyze(source, o.Analysis with { Threads = 1, NominalHz = o.Analysis.NominalHz ?? o.Profile?.NominalFrequencyHz });
+            IReadOnlyList<LimitCheck> checks = o.Profile is null ? [] : Judgement.Check(r, o.Profile);
+            Verdict? overall = o.Profile is null ? null : Judgement.Overall(checks);
+            string stem = (hash ?? r.Sha256)[..16];
+            string thumbRel = Path.Combine("thumbs", stem + ".png");
+            Directory.CreateDirectory(Path.Combine(o.OutDir, "thumbs"));
+            byte[] png = SpectrumPlot.RenderPng(r.Spectrum.Mean, "", 480, 150, 1, absolute: false, compact: true);
+            AtomicFile.Write(Path.Combine(o.OutDir, thumbRel), overwrite: true, s => s.Write(png));
+            string? reportRel = null;
+            if (o.Reports)
+            {
+                reportRel = Path.Combine("reports", Path.GetFileNameWithoutExtension(file.Replace(".sigmf-meta", string.Empty)) + "-" + stem[..8] + ".pdf");
+                Directory.CreateDirectory(Path.Combine(o.OutDir, "reports"));
+                DateTimeOffset now = DateTimeOffset.UtcNow;
+                var model = new MeasurementReport
+                {
+                    ReportId = MeasurementReport.MakeId(now, r.Sha256), Created = now, Title = "Measurement of " + Path.GetFileName(file),
+                    Analysis = r, Profile = o.Profile, ProfilePath = o.ProfilePath, Checks = checks, Overall = overall, CommandLine = "signalinspect batch",
+                };
+                string pdf = Path.Combine(o.OutDir, reportRel);
+                AtomicFile.Write(Path.ChangeExtension(pdf, ".json"), true, s => s.Write(ReportJson.ToBytes(model)));
+                AtomicFile.Write(pdf, true, s => PdfReportWriter.Write(model, s));
+            }
+            return new BatchRecord
+            {
+                File = file,
+                Status = "ok",
+                ContentSha256 = hash,
+                Bytes = input.Bytes,
+                Modulation = r.Classification.Kind.Name(),
+                Confidence = Math.Round(r.Classification.Confidence, 3),
+                ChannelSnrDb = Math.Round(r.ChannelSnrDb, 2),
+                SampleRateHz = source.Info.SampleRateHz,
+                DurationS = source.Info.DurationS,
+                CarrierFrequencyHz = r.Carrier?.FrequencyHz.Value,
+                OffsetHz = r.Carrier?.OffsetHz,
+                OccupiedHz = r.Bandwidth.OccupiedHz,
+                PeakDeviationHz = r.Fm?.PeakDeviationHz.Value ?? r.Fsk?.DeviationHz,
+                DepthPercent = r.Am?.DepthPercent.Value,
+                EmissionDesignator = r.EmissionDesignator,
+                Verdict = overall?.ToString().ToUpperInvariant(),
+                Warnings = r.Warnings.Count > 0 ? string.Join("; ", r.Warnings) : null,
+                Report = reportRel?.Replace('\\', '/'),
+                Thumbnail = thumbRel.Replace('\\', '/'),
+            };
+        }
+        catch (Exception e) when (e is CaptureException or ArgumentOutOfRangeException or IOException or UnauthorizedAccessException)
+        {
+            string message = e is ArgumentOutOfRangeException a ? $"{a.ParamName}: {a.Message.Split(" (Parameter", 2)[0]}" : e.Message;
+            return new BatchRecord { File = file, Status = "error", ContentSha256 = hash, Bytes = input.Bytes, Error = message.ReplaceLineEndings(" ").Trim() };
+        }
+    }
+
+    /// <summary>Reads the records of a summary.jsonl.</summary>
+    public static IEnumerable<BatchRecord> ReadJsonl(string path)
+    {
+        foreach (string line in File.ReadLines(path))
+            if (!string.IsNullOrWhiteSpace(line)) yield return BatchRecord.FromJsonLine(line, path);
+    }
+
+    /// <summary>Writes summary.csv, summary.jsonl (sorted) and summary.pdf, each atomically.</summary>
+    public static void WriteOutputs(string outDir, IReadOnlyList<BatchRecord> records, string? profileName)
+    {
+        AtomicFile.Write(Path.Combine(outDir, "summary.jsonl"), true, s =>
+        {
+            using var w = new StreamWriter(s, new UTF8Encoding(false)) { NewLine = "\n" };
+            foreach (BatchRecord r in records) w.WriteLine(r.ToJsonLine());
+        });
+        AtomicFile.Write(Path.Combine(outDir, "summary.csv"), true, s =>
+        {
+            using var w = new StreamWriter(s, new UTF8Encoding(false)) { NewLine = "\n" };
+            w.WriteLine(string.Join(',', BatchRecord.Columns));
+            foreach (BatchRecord r in records) w.WriteLine(r.ToCsvRow());
+        });
+        AtomicFile.Write(Path.Combine(outDir, "summary.pdf"), true, s => BatchSummaryPdf.Write(records, outDir, profileName, s));
+    }
+
+    /// <summary>Joins the summaries of several output folders (shards) into one, de-duplicated by content hash.</summary>
+    public static IReadOnlyList<BatchRecord> Merge(IEnumerable<string> dirs, string outDir)
+    {
+        var byHash = new SortedDictionary<string, BatchRecord>(StringComparer.Ordinal);
+        Directory.CreateDirectory(outDir);
+        foreach (string dir in dirs)
+        {
+            string jsonl = Path.Combine(dir, "summary.jsonl");
+            if (!File.Exists(jsonl)) throw CaptureException.ForFile(dir, "holds no summary.jsonl (not a batch output folder)");
+            foreach (BatchRecord r in ReadJsonl(jsonl))
+            {
+                byHash[(r.ContentSha256 ?? "path:" + r.File) + "|" + r.File] = r;
+                foreach (string? rel in new[] { r.Thumbnail, r.Report, r.Report is { } rp ? Path.ChangeExtension(rp, ".json") : null })
+                {
+                    if (rel is null) continue;
+                    string src = Path.Combine(dir, rel), dst = Path.Combine(outDir, rel);
+                    if (!File.Exists(src) || Path.GetFullPath(src) == Path.GetFullPath(dst)) continue;
+                    Directory.CreateDirectory(Path.GetDirectoryName(dst)!);
+                    File.Copy(src, dst, overwrite: true);
+                }
+            }
+        }
+        List<BatchRecord> all = [.. byHash.Values.OrderBy(r => r.File, StringComparer.Ordinal).ThenBy(r => r.ContentSha256, StringComparer.Ordinal)];
+        WriteOutputs(outDir, all, null);
+        return all;
+    }
+}

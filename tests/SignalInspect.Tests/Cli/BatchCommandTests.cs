@@ -1,0 +1,111 @@
+using System.Text.Json;
+
+namespace SignalInspect.Tests.Cli;
+
+/// <summary>
+/// Batch triage over a folder of captures SignalInspect did not write (testdata/measure, numpy) mixed
+/// with malformed files (testdata/bad): every good capture measured as analyze does, every bad one an
+/// error row; parallel equals serial; shards joined equal the whole; resume completes an interrupted run.
+/// </summary>
+public class BatchCommandTests
+{
+    private static string MakeFolder(TempDir tmp)
+    {
+        string dir = Path.Combine(tmp.Path, "field");
+        Directory.CreateDirectory(Path.Combine(dir, "day2"));
+        foreach (string f in new[] { "am-audio-12k.wav", "pm-iq.wav", "cw-462.sigmf-meta", "cw-462.sigmf-data", "nbfm-151625.sigmf-meta", "nbfm-151625.sigmf-data", "wbfm-1024k.cu8" })
+            File.Copy(TestData.Path("measure", f), Path.Combine(dir, f));
+        File.WriteAllText(Path.Combine(dir, "wbfm-1024k.cu8.si.json"), "{\"datatype\": \"cu8\", \"sampleRateHz\": 1024000, \"centerFrequencyHz\": 98100000}");
+        foreach (string f in new[] { "empty.wav", "text-named.wav", "syntax-error.sigmf-meta", "syntax-error.sigmf-data" })
+            File.Copy(TestData.Path("bad", f), Path.Combine(dir, "day2", f));
+        File.WriteAllText(Path.Combine(dir, "day2", "notes.txt"), "not a capture");
+        return dir;
+    }
+
+    private static string Csv(string dir) => File.ReadAllText(Path.Combine(dir, "summary.csv"));
+
+    [Fact]
+    public void Mixed_folder_gives_one_row_per_capture_and_errors_for_the_bad_ones()
+    {
+        using var tmp = new TempDir();
+        string dir = MakeFolder(tmp), outDir = tmp.File("out");
+        var (code, stdout, stderr) = CliRunner.Run("batch", dir, "--out", outDir, "--jobs", "2");
+        Assert.Equal(2, code); // some could not be read
+        Assert.Contains("8 (5 ok, 3 could not be read)", stdout);
+        Assert.Contains("batch: [", stderr);
+        string[] lines = File.ReadAllLines(Path.Combine(outDir, "summary.jsonl"));
+        Assert.Equal(8, lines.Length);
+        var recs = lines.Select(l => JsonDocument.Parse(l).RootElement).ToList();
+        JsonElement nbfm = recs.Single(r => r.GetProperty("file").GetString()!.EndsWith("nbfm-151625.sigmf-meta"));
+        Assert.Equal("ok", nbfm.GetProperty("status").GetString());
+        Assert.Equal("fm", nbfm.GetProperty("modulation").GetString());
+        // The same numbers as analyze gives for this capture.
+        var (_, json, _) = CliRunner.Run("analyze", TestData.Path("measure", "nbfm-151625.sigmf-meta"), "--json", "-");
+        JsonElement a = JsonDocument.Parse(json).RootElement;
+        Assert.Equal(a.GetProperty("fm").GetProperty("peakDeviationHz").GetDouble(), nbfm.GetProperty("peakDeviationHz").GetDouble(), 6);
+        Assert.Equal(a.GetProperty("bandwidth").GetProperty("occupiedHz").GetDouble(), nbfm.GetProperty("occupiedHz").GetDouble(), 6);
+        Assert.Equal(a.GetProperty("carrier").GetProperty("offsetHz").GetDouble(), nbfm.GetProperty("offsetHz").GetDouble(), 6);
+        JsonElement wbfm = recs.Single(r => r.GetProperty("file").GetString()!.EndsWith(".cu8"));
+        Near.Equal(75000, wbfm.GetProperty("peakDeviationHz").GetDouble(), 750, "sidecar-read cu8 deviation");
+        var errors = recs.Where(r => r.GetProperty("status").GetString() == "error").ToList();
+        Assert.Equal(3, errors.Count);
+        Assert.All(errors, e => Assert.False(string.IsNullOrEmpty(e.GetProperty("error").GetString())));
+        Assert.Contains(errors, e => e.GetProperty("error").GetString()!.Contains("not valid JSON at line"));
+        Assert.StartsWith("file,status,modulation,carrierFrequencyHz,offsetHz,occupiedHz,peakDeviationHz,depthPercent,verdict,error", Csv(outDir));
+        Assert.True(new FileInfo(Path.Combine(outDir, "summary.pdf")).Length > 1000);
+    }
+
+    [Fact]
+    public void Parallel_equals_serial_and_shards_join_to_the_whole()
+    {
+        using var tmp = new TempDir();
+        string dir = MakeFolder(tmp);
+        string profile = Path.Combine(Path.GetDirectoryName(TestData.Path("x"))!, "..", "profiles", "land-mobile-12k5-vhf.json");
+        CliRunner.Run("batch", dir, "--out", tmp.File("serial"), "--jobs", "1", "--limits", profile);
+        CliRunner.Run("batch", dir, "--out", tmp.File("parallel"), "--jobs", "3", "--limits", profile);
+        Assert.Equal(Csv(tmp.File("serial")), Csv(tmp.File("parallel")));
+        for (int i = 1; i <= 3; i++) CliRunner.Run("batch", dir, "--out", tmp.File($"shard{i}"), "--shard", $"{i}/3", "--limits", profile);
+        int parts = Enumerable.Range(1, 3).Sum(i => File.ReadAllLines(Path.Combine(tmp.File($"shard{i}"), "summary.jsonl")).Length);
+        Assert.Equal(8, parts); // each capture in exactly one shard
+        var (code, _, stderr) = CliRunner.Run("batch", "merge", tmp.File("shard1"), tmp.File("shard2"), tmp.File("shard3"), "--out", tmp.File("merged"));
+        Assert.True(code is 1 or 2, stderr);
+        Assert.Equal(Csv(tmp.File("serial")), Csv(tmp.File("merged")));
+    }
+
+    [Fact]
+    public void Resume_after_an_interrupted_run_gives_the_same_summary()
+    {
+        using var tmp = new TempDir();
+        string dir = MakeFolder(tmp), outDir = tmp.File("out"), whole = tmp.File("whole");
+        CliRunner.Run("batch", dir, "--out", whole);
+        CliRunner.Run("batch", dir, "--out", outDir);
+        // Interrupted: only the first three records reached the summary.
+        string jsonl = Path.Combine(outDir, "summary.jsonl");
+        File.WriteAllLines(jsonl, File.ReadAllLines(jsonl).Take(3));
+        var (_, stdout, _) = CliRunner.Run("batch", dir, "--out", outDir, "--resume");
+        Assert.Contains("analysed 5, skipped 3", stdout);
+        Assert.Equal(Csv(whole), Csv(outDir));
+    }
+
+    [Theory]
+    [InlineData("--shard", "0/3")]
+    [InlineData("--shard", "4/3")]
+    [InlineData("--shard", "two")]
+    [InlineData("--jobs", "0")]
+    public void Bad_options_exit_with_2(string option, string value)
+    {
+        using var tmp = new TempDir();
+        var (code, _, stderr) = CliRunner.Run("batch", TestData.Path("measure"), "--out", tmp.File("o"), option, value);
+        Assert.Equal(2, code);
+        Assert.Contains(option, stderr);
+    }
+
+    [Fact]
+    public void A_missing_input_is_named()
+    {
+        using var tmp = new TempDir();
+        var (code, _, stderr) = CliRunner.Run("batch", "/nonexistent/field", "--out", tmp.File("o"));
+        Assert.Equal(2, code);
+        Assert.Contains("no such file, folder or pattern", stderr);
+    }
+}
