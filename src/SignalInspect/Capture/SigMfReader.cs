@@ -65,6 +65,14 @@ internal static class SigMfReader
 
     private static CaptureSource Build(string metaPath, byte[] json, string dataPath, long dataOffset, long dataLength, string container, long fileSize, ReaderOptions options)
     {
+        try
+        {
+            new System.Text.UTF8Encoding(false, throwOnInvalidBytes: true).GetCharCount(json);
+        }
+        catch (System.Text.DecoderFallbackException e)
+        {
+            throw CaptureException.ForFile(metaPath, $"metadata is not valid UTF-8 (byte {e.Index})");
+        }
         JsonDocument doc;
         try
         {

@@ -40,6 +40,10 @@ public static class Analyzer
         var spectrumSettings = new SpectrumSettings { FftSize = fft, Window = options.Window, SuppressDc = options.SuppressDc, Threads = options.Threads };
         SpectrumResult spectrum = WelchEstimator.Estimate(source, spectrumSettings, first, count, progress, cancel);
         PowerSpectrum psd = spectrum.Mean;
+        if (!(psd.TotalPower() > 1e-30))
+            throw CaptureException.ForFile(info.Path, spectrum.NonFiniteSegments > 0
+                ? "holds only NaN, infinite or zero samples: there is nothing to measure"
+                : "holds only zero samples (a silent or empty recording): there is nothing to measure");
         BandwidthResult bw = BandwidthMeasurement.Measure(psd, 1 - options.ObwPercent / 100, options.Xdb, options.ObwNoise);
         double bin = psd.BinWidthHz;
         double noiseInBand = bw.NoiseFloorDensity * Math.Max(bw.OccupiedHz, psd.RbwHz);
