@@ -227,6 +227,8 @@ public static class Analyzer
             warnings.Add("the occupied bandwidth fills most of the sampled band: the sample rate is too low for this signal, or it is noise");
         if (b.NearFullScale > Math.Max(3, 1e-5 * count))
             warnings.Add(string.Create(CultureInfo.InvariantCulture, $"{b.NearFullScale} sample value(s) at full scale: the capture is probably clipped, and levels, depth and bandwidth read wrong"));
+        if (info.IsComplex && !options.SuppressDc && HasDcSpike(psd, carrierAxisHz, bw.NoiseFloorDensity))
+            warnings.Add("a narrow spike sits at 0 Hz apart from the carrier (the receiver's DC offset or LO leakage): it can bias bandwidth and classification; --suppress-dc removes it");
         if (spectrum.NonFiniteSegments > 0)
             warnings.Add($"{spectrum.NonFiniteSegments} spectrum segment(s) held NaN or infinite samples (taken as 0)");
 
@@ -327,6 +329,24 @@ public static class Analyzer
         for (int i = 0; i < v.Length; i++)
             if (v[i] > threshold) reach = Math.Max(reach, Math.Abs(psd.FrequenciesHz[i] - centreHz));
         return reach;
+    }
+
+    /// <summary>A line at exactly 0 Hz, 10 dB above its surroundings and the floor, away from the carrier: a receiver's DC spike.</summary>
+    private static bool HasDcSpike(PowerSpectrum psd, double carrierAxisHz, double floor)
+    {
+        int centre = Array.IndexOf(psd.FrequenciesHz.ToArray(), 0.0);
+        int hw = psd.Window.MainLobeHalfWidthBins;
+        if (centre < 0 || Math.Abs(carrierAxisHz) < 4 * hw * psd.BinWidthHz) return false;
+        var around = new List<double>();
+        for (int k = 3 * hw; k <= 8 * hw; k++)
+        {
+            if (centre - k >= 0) around.Add(psd.Values[centre - k]);
+            if (centre + k < psd.Count) around.Add(psd.Values[centre + k]);
+        }
+        if (around.Count == 0) return false;
+        around.Sort();
+        double med = around[around.Count / 2];
+        return psd.Values[centre] > 10 * med && psd.Values[centre] > 10 * floor;
     }
 
     /// <summary>The strongest narrow line: its interpolated frequency and its share of the signal power (floor removed).</summary>

@@ -166,3 +166,37 @@ public class ReliabilityTests
         }
     }
 }
+
+/// <summary>Warnings that protect the reader from a wrong number.</summary>
+public class WarningTests
+{
+    [Fact]
+    public void A_DC_spike_and_clipping_are_warned_about()
+    {
+        using var tmp = new TempDir();
+        // FM at +5 kHz plus a constant offset of 0.05 (a DC spike), then a clipped copy.
+        var spec = new SignalInspect.Synthesis.SignalSpec { Kind = SignalInspect.Synthesis.SignalKind.Fm, SampleRateHz = 48000, DurationS = 1, CarrierOffsetHz = 5000, PeakDeviationHz = 2000, SnrDb = 40 };
+        var x = new double[spec.SampleCount * 2];
+        new SignalInspect.Synthesis.SignalGenerator(spec).Generate(x);
+        for (int i = 0; i < x.Length; i += 2) x[i] += 0.05;
+        string dc = tmp.File("dc.cf64"), clip = tmp.File("clip.cf64");
+        File.WriteAllBytes(dc, x.SelectMany(BitConverter.GetBytes).ToArray());
+        File.WriteAllBytes(clip, x.Select(v => Math.Clamp(v * 2.5, -1, 1)).SelectMany(BitConverter.GetBytes).ToArray());
+        var (_, _, e1) = CliRunner.Run("analyze", dc, "--sample-rate", "48k", "--datatype", "cf64_le");
+        Assert.Contains("spike sits at 0 Hz", e1);
+        var (_, _, e2) = CliRunner.Run("analyze", dc, "--sample-rate", "48k", "--datatype", "cf64_le", "--suppress-dc");
+        Assert.DoesNotContain("spike sits at 0 Hz", e2);
+        var (_, _, e3) = CliRunner.Run("analyze", clip, "--sample-rate", "48k", "--datatype", "cf64_le");
+        Assert.Contains("clipped", e3);
+    }
+
+    [Fact]
+    public void A_signal_too_wide_for_the_sample_rate_is_warned_about()
+    {
+        using var tmp = new TempDir();
+        string path = tmp.File("wide.sigmf");
+        CliRunner.Run("synth", path, "--kind", "fm", "--sample-rate", "24k", "--deviation", "9k", "--tone", "2k", "--duration", "1", "--snr", "40");
+        var (_, _, stderr) = CliRunner.Run("analyze", path);
+        Assert.Contains("sample rate", stderr);
+    }
+}
