@@ -213,3 +213,44 @@ with tarfile.open(out("bad", "link-member.sigmf"), "w", format=tarfile.USTAR_FOR
     tar.addfile(link)
 open(out("bad", "not-a-tar.sigmf"), "w").write("just text in a file named .sigmf\n" * 40)
 print("done")
+
+# --- more hostile inputs (issue: malformed-input corpus) -------------------------------------
+s24 = open(out("wav", "sox-mono-s24.wav"), "rb").read()
+# Chunk boundaries of the sox 24-bit file: after RIFF header (12), fmt header (20), fmt body (60),
+# fact chunk (72), data header (80); each cut is its own file.
+for cut in (4, 12, 20, 36, 60, 72, 80, 81):
+    open(out("bad", "cut-at-%d.wav" % cut), "wb").write(s24[:cut])
+lie = bytearray(good)
+lie[40:44] = struct.pack("<I", 10_000_000)          # data chunk claims 10 MB in an 844-byte file
+open(out("bad", "data-size-lies.wav"), "wb").write(lie)
+ff = bytearray(good)
+ff[40:44] = struct.pack("<I", 0xFFFFFFFF)            # streaming writer's "unknown length", no ds64
+open(out("bad", "data-size-ffffffff.wav"), "wb").write(ff)
+many = bytearray(good)
+many[22:24] = struct.pack("<H", 65535)
+open(out("bad", "channels-65535.wav"), "wb").write(many)
+
+
+def float_wav(path, samples):
+    data = np.asarray(samples, dtype="<f4").tobytes()
+    fmt = struct.pack("<HHIIHH", 3, 1, 8000, 32000, 4, 32)
+    with open(path, "wb") as f:
+        f.write(b"RIFF" + struct.pack("<I", 4 + 24 + 8 + len(data)) + b"WAVE" + b"fmt " + struct.pack("<I", 16) + fmt
+                + b"data" + struct.pack("<I", len(data)) + data)
+
+
+t8 = np.arange(8000) / 8000
+x = 0.5 * np.cos(2 * np.pi * 1000 * t8)
+x[100] = np.nan
+x[4000] = np.inf
+float_wav(out("bad", "nan-inf.wav"), x)
+float_wav(out("bad", "all-nan.wav"), np.full(8000, np.nan))
+float_wav(out("bad", "all-zero.wav"), np.zeros(8000))
+float_wav(out("bad", "twenty-samples.wav"), 0.5 * np.cos(np.arange(20)))
+m = json.loads(json.dumps(base_meta)); m["annotations"] = [{"core:sample_start": i, "core:label": "x" * 50} for i in range(20000)]
+bad_sigmf("large-annotations", json.dumps(m))
+m = json.loads(json.dumps(base_meta)); m["global"]["core:num_channels"] = "one"
+bad_sigmf("channels-is-string", json.dumps(m, indent=2))
+m = json.loads(json.dumps(base_meta)); m["captures"][0]["core:frequency"] = [462e6]
+bad_sigmf("frequency-is-array", json.dumps(m, indent=2))
+print("more done")

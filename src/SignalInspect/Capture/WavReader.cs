@@ -15,6 +15,9 @@ internal static class WavReader
     private const ushort FormatFloat = 3;
     private const ushort FormatExtensible = 0xFFFE;
 
+    /// <summary>Most channels a WAV file may declare (a header claiming more is taken as damaged).</summary>
+    public const int MaxChannels = 1024;
+
     public static CaptureSource Open(string path, ReaderOptions options)
     {
         long fileSize = new FileInfo(path).Length;
@@ -171,7 +174,9 @@ internal static class WavReader
                 if (bodyAt + size > fileSize) throw CaptureException.ForFile(path, $"truncated or damaged WAV header: the fmt chunk declares {size} bytes, more than the file holds");
                 int want = (int)Math.Min(size, 40);
                 fs.ReadAtLeast(body[..want], want, throwOnEndOfStream: false);
-                if (BinaryPrimitives.ReadUInt16LittleEndian(body[2..]) == 0) throw CaptureException.ForFile(path, "the file declares zero channels");
+                ushort declaredChannels = BinaryPrimitives.ReadUInt16LittleEndian(body[2..]);
+                if (declaredChannels == 0) throw CaptureException.ForFile(path, "the file declares zero channels");
+                if (declaredChannels > MaxChannels) throw CaptureException.ForFile(path, $"the file declares {declaredChannels} channels, more than the {MaxChannels} read");
                 if (BinaryPrimitives.ReadUInt16LittleEndian(body) == FormatExtensible && want >= 26)
                     sub = BinaryPrimitives.ReadUInt16LittleEndian(body[24..]);
             }

@@ -28,6 +28,7 @@ public static class Analyzer
         options.Validate();
         CaptureInfo info = source.Info;
         double fs = info.SampleRateHz;
+        if (info.SampleCount == 0) throw CaptureException.ForFile(info.Path, "holds no samples: there is nothing to measure");
         long first = (long)Math.Round(options.StartS * fs);
         if (first >= info.SampleCount) throw CaptureException.ForFile(info.Path, $"--start {options.StartS:R} s lies beyond the end of the capture ({info.DurationS:0.######} s)");
         long count = Math.Min(options.DurationS is { } d ? (long)Math.Round(d * fs) : long.MaxValue, info.SampleCount - first);

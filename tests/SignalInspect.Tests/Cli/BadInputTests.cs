@@ -93,3 +93,48 @@ public class BadInputTests
         Assert.Contains("signalinspect: warning: cut.wav: data chunk declares 800 bytes", stderr);
     }
 }
+
+/// <summary>
+/// The whole malformed-input corpus (testdata/bad/README.md) through <c>analyze</c>: a clean one-line
+/// error with exit code 2, or, for the documented recoverable cases, a result with its warning.
+/// </summary>
+public class CorpusTests
+{
+    // Recoverable by design (README "Damaged files"): read what is there, and say so.
+    private static readonly Dictionary<string, string> Warned = new()
+    {
+        ["data-size-lies.wav"] = "looks truncated",
+        ["data-size-ffffffff.wav"] = "0xFFFFFFFF",
+        ["nan-inf.wav"] = "NaN or infinite",
+    };
+
+    public static TheoryData<string> Files()
+    {
+        var d = new TheoryData<string>();
+        foreach (string f in Directory.GetFiles(TestData.Path("bad")).Select(p => Path.GetFileName(p)).Order(StringComparer.Ordinal))
+            if (!f.EndsWith(".sigmf-data") && f != "README.md") d.Add(f);
+        return d;
+    }
+
+    [Theory]
+    [MemberData(nameof(Files))]
+    public void Every_corpus_file_fails_cleanly_or_warns(string file)
+    {
+        string path = TestData.Path("bad", file);
+        string before = TestData.Sha256(path);
+        var (code, _, stderr) = CliRunner.Run("analyze", path);
+        Assert.DoesNotContain("internal error", stderr);
+        Assert.DoesNotContain("   at ", stderr);
+        if (Warned.TryGetValue(file, out string? warning))
+        {
+            Assert.Equal(0, code);
+            Assert.Contains(warning, stderr);
+        }
+        else
+        {
+            Assert.Equal(2, code);
+            Assert.Single(stderr.Split('\n', StringSplitOptions.RemoveEmptyEntries), l => l.StartsWith("signalinspect: error: "));
+        }
+        Assert.Equal(before, TestData.Sha256(path));
+    }
+}
