@@ -2,6 +2,24 @@ using MathNet.Numerics;
 
 namespace SignalInspect.Dsp;
 
+/// <summary>Inner products with SIMD (System.Numerics.Vector), the kernel of every FIR here.</summary>
+internal static class Simd
+{
+    /// <summary>sum a[i] b[i] over the common length.</summary>
+    public static double Dot(ReadOnlySpan<double> a, ReadOnlySpan<double> b)
+    {
+        int n = Math.Min(a.Length, b.Length);
+        int w = System.Numerics.Vector<double>.Count;
+        var acc = System.Numerics.Vector<double>.Zero;
+        int i = 0;
+        for (; i + w <= n; i += w)
+            acc += new System.Numerics.Vector<double>(a.Slice(i, w)) * new System.Numerics.Vector<double>(b.Slice(i, w));
+        double s = System.Numerics.Vector.Sum(acc);
+        for (; i < n; i++) s += a[i] * b[i];
+        return s;
+    }
+}
+
 /// <summary>Linear-phase FIR design: Kaiser-windowed sinc (Kaiser 1974; the window method).</summary>
 public static class FirDesign
 {
@@ -57,6 +75,8 @@ public sealed class ChannelDecimator
     private int _histPos;
     private long _n;
     private int _phase;
+    private double _c = 1, _s;
+    private readonly double _stepC, _stepS;
 
     /// <summary>Creates the plan.</summary>
     /// <param name="taps">Low-pass taps (from <see cref="FirDesign.LowPass"/>).</param>
@@ -71,6 +91,8 @@ public sealed class ChannelDecimator
         _decimation = decimation;
         _complexInput = complexInput;
         _shiftCyclesPerSample = shiftHz / sampleRateHz;
+        _stepC = Math.Cos(2 * Math.PI * _shiftCyclesPerSample);
+        _stepS = Math.Sin(2 * Math.PI * _shiftCyclesPerSample);
         // History doubled so that a window of taps is always contiguous.
         _histRe = new double[2 * taps.Length];
         _histIm = new double[2 * taps.Length];
@@ -97,9 +119,17 @@ public sealed class ChannelDecimator
         {
             double xr = _complexInput ? input[2 * i] : input[i];
             double xi = _complexInput ? input[2 * i + 1] : 0;
-            double cyc = _shiftCyclesPerSample * _n;
-            double a = 2 * Math.PI * (cyc - Math.Floor(cyc));
-            double c = Math.Cos(a), s = Math.Sin(a);
+            // Oscillator: a rotation per sample, re-anchored to the exact phase every 1024 samples.
+            if ((_n & 1023) == 0)
+            {
+                double cyc = _shiftCyclesPerSample * _n;
+                double a = 2 * Math.PI * (cyc - Math.Floor(cyc));
+                _c = Math.Cos(a);
+                _s = Math.Sin(a);
+            }
+            double c = _c, s = _s;
+            _c = c * _stepC - s * _stepS;
+            _s = c * _stepS + s * _stepC;
             double yr = xr * c - xi * s, yi = xr * s + xi * c;
             _histRe[_histPos] = yr; _histRe[_histPos + taps] = yr;
             _histIm[_histPos] = yi; _histIm[_histPos + taps] = yi;
@@ -108,10 +138,8 @@ public sealed class ChannelDecimator
             _phase = 0;
             // The window of the last `taps` inputs, oldest first, starts at _histPos.
             ReadOnlySpan<double> wr = _histRe.AsSpan(_histPos, taps), wi = _histIm.AsSpan(_histPos, taps);
-            double accR = 0, accI = 0;
-            for (int k = 0; k < taps; k++) { accR += h[k] * wr[k]; accI += h[k] * wi[k]; }
-            output[2 * produced] = accR;
-            output[2 * produced + 1] = accI;
+            output[2 * produced] = Simd.Dot(h, wr);
+            output[2 * produced + 1] = Simd.Dot(h, wi);
             produced++;
         }
         return produced;
@@ -142,11 +170,7 @@ public sealed class RealFir
         _hist[_pos] = x;
         _hist[_pos + taps] = x;
         _pos = _pos + 1 == taps ? 0 : _pos + 1;
-        ReadOnlySpan<double> w = _hist.AsSpan(_pos, taps);
-        ReadOnlySpan<double> h = _taps;
-        double acc = 0;
-        for (int k = 0; k < taps; k++) acc += h[k] * w[k];
-        return acc;
+        return Simd.Dot(_taps, _hist.AsSpan(_pos, taps));
     }
 }
 
@@ -230,6 +254,7 @@ public sealed class Upsampler
                 int idx = k * factor + j;
                 p[k] = idx < total ? h[idx] : 0;
             }
+            Array.Reverse(p);
             _phases[j] = p;
         }
         _hist = new double[2 * (_taps + 1)];
@@ -246,13 +271,9 @@ public sealed class Upsampler
         _hist[_pos + len] = x;
         int newest = _pos;
         _pos = _pos + 1 == len ? 0 : _pos + 1;
-        for (int j = 0; j < Factor; j++)
-        {
-            double[] p = _phases[j];
-            double acc = 0;
-            // Output j of the newest input: sum_k h[k L + j] x[n - k].
-            for (int k = 0; k < len; k++) acc += p[k] * _hist[newest - k + len];
-            output[j] = acc;
-        }
+        // Output j of the newest input: sum_k h[k L + j] x[n - k]; the phases are stored reversed so
+        // that the window (oldest first) is contiguous.
+        ReadOnlySpan<double> window = _hist.AsSpan(newest + 1, len);
+        for (int j = 0; j < Factor; j++) output[j] = Simd.Dot(_phases[j], window);
     }
 }
