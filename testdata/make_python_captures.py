@@ -254,3 +254,8 @@ bad_sigmf("channels-is-string", json.dumps(m, indent=2))
 m = json.loads(json.dumps(base_meta)); m["captures"][0]["core:frequency"] = [462e6]
 bad_sigmf("frequency-is-array", json.dumps(m, indent=2))
 print("more done")
+with tarfile.open(out("bad", "absolute-member.sigmf"), "w", format=tarfile.USTAR_FORMAT) as tar:
+    for name, payload in (("/tmp/rec.sigmf-meta", json.dumps(base_meta).encode()), ("/tmp/rec.sigmf-data", bytes(400))):
+        info = tarfile.TarInfo(name)
+        info.size = len(payload)
+        tar.addfile(info, io.BytesIO(payload))
