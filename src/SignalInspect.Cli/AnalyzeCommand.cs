@@ -85,28 +85,18 @@ internal static class AnalyzeCommand
             TextWriter summary = toStdout ? stderr : stdout;
             WriteSummary(summary, result);
             foreach (string w in result.Warnings) stderr.WriteLine($"signalinspect: warning: {w}");
-            IReadOnlyList<LimitCheck> checks = profile is null ? [] : Judgement.Check(result, profile);
-            Verdict? overall = profile is null ? null : Judgement.Overall(checks);
-            if (profile is not null) WriteVerdicts(summary, profile, checks, overall!.Value);
+            MeasurementReport model = MeasurementReport.Create(result, profile, profilePath, r.GetValue(title) ?? $"Measurement of {Path.GetFileName(source.Info.Path)}") with
+            {
+                Operator = r.GetValue(op),
+                Equipment = r.GetValue(eut),
+                Notes = r.GetValue(notes),
+                Paper = r.GetValue(paper) == "letter" ? PaperSize.Letter : PaperSize.A4,
+                CommandLine = "signalinspect " + string.Join(' ', Environment.GetCommandLineArgs().Skip(1).Select(Quote)),
+            };
+            Verdict? overall = model.Overall;
+            if (profile is not null) WriteVerdicts(summary, profile, model.Checks, overall!.Value);
             if (pdfOut is not null)
             {
-                DateTimeOffset now = DateTimeOffset.UtcNow;
-                var model = new MeasurementReport
-                {
-                    ReportId = MeasurementReport.MakeId(now, result.Sha256),
-                    Created = now,
-                    Title = r.GetValue(title) ?? $"Measurement of {Path.GetFileName(source.Info.Path)}",
-                    Operator = r.GetValue(op),
-                    Equipment = r.GetValue(eut),
-                    Notes = r.GetValue(notes),
-                    Analysis = result,
-                    Profile = profile,
-                    ProfilePath = profilePath,
-                    Checks = checks,
-                    Overall = overall,
-                    Paper = r.GetValue(paper) == "letter" ? PaperSize.Letter : PaperSize.A4,
-                    CommandLine = "signalinspect " + string.Join(' ', Environment.GetCommandLineArgs().Skip(1).Select(Quote)),
-                };
                 WriteReport(model, pdfOut, overwrite);
                 summary.WriteLine($"wrote {pdfOut} and {Path.ChangeExtension(pdfOut, ".json")}");
             }

@@ -65,24 +65,14 @@ internal static class DemoCommand
                 CaptureSource source = CaptureSource.Open(path, new ReaderOptions { CenterFrequencyHz = wav ? spec.CenterFrequencyHz : null });
                 LimitProfile profile = EmbeddedProfile(profileName);
                 AnalysisResult result = Analyzer.Analyze(source, new AnalysisOptions { NominalHz = spec.CenterFrequencyHz });
-                IReadOnlyList<LimitCheck> checks = Judgement.Check(result, profile);
-                Verdict overall = Judgement.Overall(checks);
-                DateTimeOffset now = DateTimeOffset.UtcNow;
-                var model = new MeasurementReport
+                MeasurementReport model = MeasurementReport.Create(result, profile, "profiles/" + profileName, "Harbour Water Authority radio shop: " + equipment) with
                 {
-                    ReportId = MeasurementReport.MakeId(now, result.Sha256),
-                    Created = now,
-                    Title = "Harbour Water Authority radio shop: " + equipment,
                     Operator = "demo (synthesised recording)",
                     Equipment = equipment,
                     Notes = "Demonstration: the recording was synthesised by 'signalinspect demo' (" + Synthesizer.Describe(spec) + ").",
-                    Analysis = result,
-                    Profile = profile,
-                    ProfilePath = "profiles/" + profileName,
-                    Checks = checks,
-                    Overall = overall,
                     CommandLine = "signalinspect demo",
                 };
+                Verdict overall = model.Overall!.Value;
                 string pdf = Path.Combine(dir, Path.GetFileNameWithoutExtension(file.Replace(".sigmf-meta", string.Empty)) + ".pdf");
                 AnalyzeCommand.WriteReport(model, pdf, overwrite: true);
                 rows.Add([file, result.Classification.Kind.Name(), KeyReading(result), overall.ToString().ToUpperInvariant(), pdf]);

@@ -219,8 +219,8 @@ public static class BatchRunner
         {
             CaptureSource source = CaptureSource.Open(file, WithSidecar(file, input.Options));
             AnalysisResult r = Analyzer.Analyze(source, o.Analysis with { Threads = 1, NominalHz = o.Analysis.NominalHz ?? o.Profile?.NominalFrequencyHz });
-            IReadOnlyList<LimitCheck> checks = o.Profile is null ? [] : Judgement.Check(r, o.Profile);
-            Verdict? overall = o.Profile is null ? null : Judgement.Overall(checks);
+            MeasurementReport model = MeasurementReport.Create(r, o.Profile, o.ProfilePath, "Measurement of " + Path.GetFileName(file)) with { CommandLine = "signalinspect batch" };
+            Verdict? overall = model.Overall;
             string stem = (hash ?? r.Sha256)[..16];
             string thumbRel = Path.Combine("thumbs", stem + ".png");
             Directory.CreateDirectory(Path.Combine(o.OutDir, "thumbs"));
@@ -231,12 +231,6 @@ public static class BatchRunner
             {
                 reportRel = Path.Combine("reports", Path.GetFileNameWithoutExtension(file.Replace(".sigmf-meta", string.Empty)) + "-" + stem[..8] + ".pdf");
                 Directory.CreateDirectory(Path.Combine(o.OutDir, "reports"));
-                DateTimeOffset now = DateTimeOffset.UtcNow;
-                var model = new MeasurementReport
-                {
-                    ReportId = MeasurementReport.MakeId(now, r.Sha256), Created = now, Title = "Measurement of " + Path.GetFileName(file),
-                    Analysis = r, Profile = o.Profile, ProfilePath = o.ProfilePath, Checks = checks, Overall = overall, CommandLine = "signalinspect batch",
-                };
                 string pdf = Path.Combine(o.OutDir, reportRel);
                 AtomicFile.Write(Path.ChangeExtension(pdf, ".json"), true, s => s.Write(ReportJson.ToBytes(model)));
                 AtomicFile.Write(pdf, true, s => PdfReportWriter.Write(model, s));

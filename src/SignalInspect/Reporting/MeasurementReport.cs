@@ -46,6 +46,27 @@ public sealed record MeasurementReport
     /// <summary>The command that made the report, for reproduction.</summary>
     public string? CommandLine { get; init; }
 
+    /// <summary>
+    /// The report of an analysis: judges it against the profile (when given) and fills the id and
+    /// time; the caller adds operator, equipment, notes, paper and command line with <c>with</c>.
+    /// </summary>
+    public static MeasurementReport Create(AnalysisResult analysis, LimitProfile? profile, string? profilePath, string title, DateTimeOffset? created = null)
+    {
+        DateTimeOffset now = created ?? DateTimeOffset.UtcNow;
+        IReadOnlyList<LimitCheck> checks = profile is null ? [] : Judgement.Check(analysis, profile);
+        return new MeasurementReport
+        {
+            ReportId = MakeId(now, analysis.Sha256),
+            Created = now,
+            Title = title,
+            Analysis = analysis,
+            Profile = profile,
+            ProfilePath = profilePath,
+            Checks = checks,
+            Overall = profile is null ? null : Judgement.Overall(checks),
+        };
+    }
+
     /// <summary>Makes the report id from the time and the capture hash.</summary>
     public static string MakeId(DateTimeOffset created, string sha256) =>
         "SI-" + created.UtcDateTime.ToString("yyyyMMdd-HHmmss", CultureInfo.InvariantCulture) + "-" + sha256[..Math.Min(8, sha256.Length)].ToUpperInvariant();
