@@ -53,15 +53,8 @@ internal static class SpectrumCommand
             return s;
         }
 
-        public (long First, long? Count) AnalysedWindow(ParseResult r, CaptureInfo info)
-        {
-            double start = r.GetValue(Start) ?? 0;
-            double? duration = r.GetValue(Duration);
-            if (!double.IsFinite(start) || start < 0 || (start > 0 && start >= info.DurationS))
-                throw new UsageException($"--start {start:R} s lies outside the capture (0 to {info.DurationS:0.######} s)");
-            if (duration is { } d && (!double.IsFinite(d) || d <= 0)) throw new UsageException($"--duration {d:R} s must be positive");
-            return ((long)Math.Round(start * info.SampleRateHz), duration is { } du ? (long)Math.Round(du * info.SampleRateHz) : null);
-        }
+        public (long First, long Count) AnalysedWindow(ParseResult r, CaptureSource source) =>
+            source.WindowSamples(r.GetValue(Start) ?? 0, r.GetValue(Duration));
 
         private static (WindowKind, double) ParseWindow(string name)
         {
@@ -96,12 +89,12 @@ internal static class SpectrumCommand
         {
             CaptureSource source = CaptureSource.Open(r.GetValue(capture)!, reader.Read(r));
             SpectrumSettings settings = spectrum.Read(r, source.Info);
-            var (first, count) = spectrum.AnalysedWindow(r, source.Info);
+            var (first, count) = spectrum.AnalysedWindow(r, source);
             bool force_ = r.GetValue(force);
             string? csvPath = r.GetValue(csv), pngPath = r.GetValue(png);
             if (csvPath is not null) AtomicFile.CheckWritable(csvPath, force_);
             if (pngPath is not null) AtomicFile.CheckWritable(pngPath, force_);
-            long total = Math.Min(count ?? long.MaxValue, source.Info.SampleCount - first);
+            long total = count;
             var clock = Stopwatch.StartNew();
             SpectrumResult result = CliProgress.Run(stderr, "spectrum", total, report => WelchEstimator.Estimate(source, settings, first, count, report));
             clock.Stop();

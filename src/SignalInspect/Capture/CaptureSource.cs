@@ -99,11 +99,14 @@ public sealed class CaptureSource
         return new CaptureReader(Info, _openBytes(), decoder, _firstSample + firstSample, count);
     }
 
-    /// <summary>Opens a reader over a window given in seconds from the capture's first sample.</summary>
+    /// <summary>
+    /// A window given in seconds from the capture's first sample, as (first sample, sample count);
+    /// the count is clipped to the end of the capture.
+    /// </summary>
     /// <param name="startS">Start time in seconds, 0 or more and less than the duration.</param>
     /// <param name="durationS">Length in seconds, null for "to the end".</param>
     /// <exception cref="CaptureException">The window lies outside the capture.</exception>
-    public CaptureReader OpenReader(double startS, double? durationS)
+    public (long First, long Count) WindowSamples(double startS, double? durationS)
     {
         if (!double.IsFinite(startS) || startS < 0 || (startS > 0 && startS >= Info.DurationS))
             throw CaptureException.ForFile(Info.Path, $"--start {startS:R} s lies outside the capture (0 to {Info.DurationS:0.######} s)");
@@ -111,6 +114,14 @@ public sealed class CaptureSource
             throw CaptureException.ForFile(Info.Path, $"--duration {d:R} s must be positive");
         long first = (long)Math.Round(startS * Info.SampleRateHz);
         long count = durationS is { } dur ? (long)Math.Round(dur * Info.SampleRateHz) : Info.SampleCount - first;
+        return (first, Math.Min(count, Info.SampleCount - first));
+    }
+
+    /// <summary>Opens a reader over a window given in seconds from the capture's first sample (see <see cref="WindowSamples"/>).</summary>
+    /// <exception cref="CaptureException">The window lies outside the capture.</exception>
+    public CaptureReader OpenReader(double startS, double? durationS)
+    {
+        var (first, count) = WindowSamples(startS, durationS);
         return OpenReader(first, count);
     }
 

@@ -78,10 +78,16 @@ internal static class WavReader
         return new CaptureSource(info, () => OpenData(path, scan.Magic, length), stored, channels, pick);
     }
 
-    private static ByteSource OpenData(string path, string magic, long length)
+    /// <summary>The file as NAudio should see it: BW64 is RF64 under another name.</summary>
+    private static Stream OpenWaveStream(string path, string magic)
     {
         Stream stream = ByteSource.OpenReadOnly(path);
-        if (magic == "BW64") stream = new MagicPatchStream(stream, "RF64"u8.ToArray());
+        return magic == "BW64" ? new MagicPatchStream(stream, "RF64"u8.ToArray()) : stream;
+    }
+
+    private static ByteSource OpenData(string path, string magic, long length)
+    {
+        Stream stream = OpenWaveStream(path, magic);
         try
         {
             var reader = new WaveFileReader(stream);
@@ -97,9 +103,7 @@ internal static class WavReader
     private static (SampleFormat Stored, int Channels, int Rate) ReadFormat(string path, ChunkScan scan)
     {
         WaveFormat fmt;
-        Stream stream = ByteSource.OpenReadOnly(path);
-        if (scan.Magic == "BW64") stream = new MagicPatchStream(stream, "RF64"u8.ToArray());
-        using (stream)
+        using (Stream stream = OpenWaveStream(path, scan.Magic))
         {
             try
             {

@@ -29,9 +29,7 @@ public static class Analyzer
         CaptureInfo info = source.Info;
         double fs = info.SampleRateHz;
         if (info.SampleCount == 0) throw CaptureException.ForFile(info.Path, "holds no samples: there is nothing to measure");
-        long first = (long)Math.Round(options.StartS * fs);
-        if (first >= info.SampleCount) throw CaptureException.ForFile(info.Path, $"--start {options.StartS:R} s lies beyond the end of the capture ({info.DurationS:0.######} s)");
-        long count = Math.Min(options.DurationS is { } d ? (long)Math.Round(d * fs) : long.MaxValue, info.SampleCount - first);
+        var (first, count) = source.WindowSamples(options.StartS, options.DurationS);
         Task<string> hash = Task.Run(() => Sha256(info.DataPath ?? info.Path), cancel);
         var warnings = new List<string>(info.Warnings);
 
@@ -359,12 +357,7 @@ public static class Analyzer
         int hw = psd.Window.MainLobeHalfWidthBins + 1;
         for (int i = Math.Max(0, k - hw); i <= Math.Min(v.Length - 1, k + hw); i++) line += Math.Max(0, v[i] - bw.NoiseFloorDensity) * psd.BinWidthHz;
         double hz = psd.FrequenciesHz[k];
-        if (k > 0 && k < v.Length - 1)
-        {
-            double a = Math.Log(Math.Max(v[k - 1], 1e-300)), b = Math.Log(v[k]), c = Math.Log(Math.Max(v[k + 1], 1e-300));
-            double den = a - 2 * b + c;
-            if (den < 0) hz += Math.Clamp(0.5 * (a - c) / den, -0.5, 0.5) * psd.BinWidthHz;
-        }
+        if (k > 0 && k < v.Length - 1) hz += PeakInterpolation.LogParabolic(v[k - 1], v[k], v[k + 1]) * psd.BinWidthHz;
         return (hz, bw.SignalPower > 0 ? Math.Min(1, line / bw.SignalPower) : 0);
     }
 
@@ -481,12 +474,7 @@ public static class Analyzer
             sm[i - i0] = s;
         }
         int best = Array.IndexOf(sm, sm.Max());
-        double delta = 0;
-        if (best > 0 && best < sm.Length - 1)
-        {
-            double den = sm[best - 1] - 2 * sm[best] + sm[best + 1];
-            if (den < 0) delta = Math.Clamp(0.5 * (sm[best - 1] - sm[best + 1]) / den, -0.5, 0.5);
-        }
+        double delta = best > 0 && best < sm.Length - 1 ? PeakInterpolation.Parabolic(sm[best - 1], sm[best], sm[best + 1]) : 0;
         return h.Centre(i0 + best) + delta * h.BinWidth;
     }
 

@@ -92,13 +92,7 @@ public sealed class LineSpectrum
         return list;
     }
 
-    private double Refine(int k)
-    {
-        double a = Math.Log(Math.Max(_sum[k - 1], 1e-300)), b = Math.Log(Math.Max(_sum[k], 1e-300)), c = Math.Log(Math.Max(_sum[k + 1], 1e-300));
-        double den = a - 2 * b + c;
-        double delta = den < 0 ? 0.5 * (a - c) / den : 0;
-        return k + Math.Clamp(delta, -0.5, 0.5);
-    }
+    private double Refine(int k) => k + Spectrum.PeakInterpolation.LogParabolic(_sum[k - 1], _sum[k], _sum[k + 1]);
 }
 
 /// <summary>Variance estimates from a <see cref="LineSpectrum"/>: how much of a stream is a tone and how much is noise.</summary>

@@ -122,8 +122,6 @@ public static class WelchEstimator
     {
         public int N => n;
         public int Step => step;
-        public bool Complex => complex;
-        public int Bins => bins;
         public Window Window => window;
         public long PerRow => perRow;
         public long Segments => segments;

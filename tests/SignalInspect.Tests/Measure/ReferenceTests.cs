@@ -114,3 +114,44 @@ public class ReferenceTests
         Near.Equal(99000, b.OccupiedHz, 0.005 * 99000, "OBW");
     }
 }
+
+/// <summary>Numbers of the analysis that the other tests did not pin to an outside value.</summary>
+public class CoverageTests
+{
+    [Fact]
+    public void X_dB_bandwidth_follows_the_AM_sideband_level()
+    {
+        // Single-tone AM, m = 0.5: sidebands at 20 log10(m/2) = -12.04 dBc [D]. So the 26 dB
+        // bandwidth spans both sidebands (2 fm plus the window's main lobe), and the 10 dB bandwidth
+        // holds only the carrier line (SM.443 Annex 2 definition: outermost points x dB down).
+        using var tmp = new TempDir();
+        var spec = new SignalSpec { Kind = SignalKind.Am, SampleRateHz = 48000, DurationS = 1, AmDepth = 0.5, ModulatingFrequencyHz = 2000, SnrDb = 50 };
+        AnalysisResult x26 = Measuring.Analyze(tmp, spec);
+        AnalysisResult x10 = Measuring.Analyze(tmp, spec, new AnalysisOptions { Xdb = 10 });
+        double rbw = x26.Method.RbwHz;
+        Near.Equal(4000, x26.Bandwidth.XdbHz, 2 * rbw, "26 dB bandwidth");
+        Assert.True(x10.Bandwidth.XdbHz < 3 * rbw, $"10 dB bandwidth {x10.Bandwidth.XdbHz} Hz");
+    }
+
+    [Fact]
+    public void Channel_SNR_follows_the_band_ratio()
+    {
+        // synth's SNR is over the whole sampled band (README); inside an occupied bandwidth B the
+        // noise is B / fs of it, so SNR_B = SNR + 10 log10(fs / B) [D]. The reading runs about 1 dB
+        // high (the noise floor is the 10th percentile of the averaged PSD bins, below their mean);
+        // hence the 1.5 dB tolerance.
+        using var tmp = new TempDir();
+        AnalysisResult r = Measuring.Analyze(tmp, new SignalSpec { Kind = SignalKind.Fm, SampleRateHz = 48000, DurationS = 1.5, PeakDeviationHz = 2500, SnrDb = 25, Seed = 8 });
+        double expected = 25 + 10 * Math.Log10(48000 / r.Bandwidth.OccupiedHz);
+        Near.Equal(expected, r.ChannelSnrDb, 1.5, "SNR in the occupied bandwidth");
+    }
+
+    [Fact]
+    public void FSK_index_is_shift_over_rate()
+    {
+        // h = 2D / R = shift / symbol rate (common practice): 1000 Hz at 1200 Bd -> 0.833.
+        using var tmp = new TempDir();
+        AnalysisResult r = Measuring.Analyze(tmp, new SignalSpec { Kind = SignalKind.Fsk, SampleRateHz = 48000, DurationS = 1.5, FskShiftHz = 1000, SymbolRateBd = 1200, SnrDb = 30 });
+        Near.Equal(1000.0 / 1200, r.Fsk!.ModulationIndex!.Value, 0.02, "h");
+    }
+}
