@@ -1,0 +1,75 @@
+#!/usr/bin/env bash
+# Whole-pipeline benchmark, run by hand (see RESULTS.md):
+#   bash tests/Benchmarks/pipeline.sh [--keep]
+# In one run: synthesises a 60 s and a 10 s 2.4 MS/s cf32 FM capture (75 kHz deviation by 1 kHz,
+# SNR 40 dB) with `signalinspect synth`, runs `signalinspect analyze --json` and the numpy/scipy
+# reference (reference_pipeline.py) on each under /usr/bin/time -v, and prints wall time, MS/s,
+# peak RSS, the ratio, 60 s / 10 s linearity and whether the shared results agree (occupied
+# bandwidth within 0.1 %, peak deviation within 0.5 %). Both sides use the same settings: Welch
+# Hann 4096 / 50 %, 99 % OBW with the noise kept, a 15 kHz post-detection low-pass.
+# Installs Debian's python3-numpy and python3-scipy when missing (apt-get, needs root).
+# Captures go to ${TMPDIR:-/tmp} (1.15 GB + 0.19 GB); --keep reuses them from an earlier run.
+set -euo pipefail
+cd "$(dirname "$0")/../.."
+keep=false
+[[ "${1:-}" == "--keep" ]] && keep=true
+tmp="${TMPDIR:-/tmp}"
+PY=/usr/bin/python3
+if ! "$PY" -c "import numpy, scipy" >/dev/null 2>&1; then
+  echo "installing python3-numpy python3-scipy (Debian)"
+  (apt-get update -q && DEBIAN_FRONTEND=noninteractive apt-get install -y -q python3-numpy python3-scipy) >/dev/null
+fi
+[[ -x /usr/bin/time ]] || (DEBIAN_FRONTEND=noninteractive apt-get install -y -q time >/dev/null)
+dotnet build -c Release src/SignalInspect.Cli/SignalInspect.Cli.csproj >/dev/null
+SI=(dotnet src/SignalInspect.Cli/bin/Release/net10.0/signalinspect.dll)
+FS=2400000
+LP=15000
+
+# measure NAME CMD...: runs CMD under /usr/bin/time -v; stdout to $tmp/NAME.out; sets WALL and RSS_MB.
+measure() {
+  local name=$1; shift
+  /usr/bin/time -v -o "$tmp/$name.time" "$@" >"$tmp/$name.out" 2>"$tmp/$name.err" || { cat "$tmp/$name.err" >&2; exit 3; }
+  local e
+  e=$(sed -n 's/.*Elapsed (wall clock) time (h:mm:ss or m:ss): //p' "$tmp/$name.time")
+  WALL=$("$PY" -c "import sys; p=[float(x) for x in sys.argv[1].split(':')]; print(sum(v*60**i for i,v in enumerate(reversed(p))))" "$e")
+  RSS_MB=$(( $(sed -n 's/.*Maximum resident set size (kbytes): //p' "$tmp/$name.time") / 1024 ))
+}
+
+declare -A wall rss
+for s in 60 10; do
+  f="$tmp/si-pipeline-${s}s.cf32"
+  if ! $keep || [[ ! -f "$f" ]]; then
+    "${SI[@]}" synth "$f" --kind fm --sample-rate $FS --duration $s --deviation 75000 --tone 1000 --snr 40 --offset 12500 --force >/dev/null
+  fi
+  cat "$f" >/dev/null   # the same page-cache state for both programs
+  measure "si-$s" "${SI[@]}" analyze "$f" --sample-rate $FS --obw-noise keep --post-lowpass $LP --json -
+  wall[si-$s]=$WALL; rss[si-$s]=$RSS_MB
+  measure "py-$s" "$PY" tests/Benchmarks/reference_pipeline.py "$f" $FS $LP
+  wall[py-$s]=$WALL; rss[py-$s]=$RSS_MB
+done
+
+"$PY" - "$tmp" "${wall[si-60]}" "${rss[si-60]}" "${wall[py-60]}" "${rss[py-60]}" "${wall[si-10]}" "${rss[si-10]}" "${wall[py-10]}" "${rss[py-10]}" <<'EOF'
+import json, sys
+tmp = sys.argv[1]
+w = dict(zip(["si60", "si60r", "py60", "py60r", "si10", "si10r", "py10", "py10r"], map(float, sys.argv[2:])))
+ok = True
+print("| capture | program | wall (s) | MS/s | peak RSS (MB) |")
+print("|---|---|---|---|---|")
+for s, n in ((60, 144e6), (10, 24e6)):
+    print(f"| {s} s | signalinspect analyze | {w[f'si{s}']:.2f} | {n / w[f'si{s}'] / 1e6:.1f} | {w[f'si{s}r']:.0f} |")
+    print(f"| {s} s | numpy/scipy reference | {w[f'py{s}']:.2f} | {n / w[f'py{s}'] / 1e6:.1f} | {w[f'py{s}r']:.0f} |")
+for s in (60, 10):
+    print(f"{s} s: reference / signalinspect wall time = {w[f'py{s}'] / w[f'si{s}']:.2f}")
+print(f"linearity: signalinspect 60 s / 10 s = {w['si60'] / w['si10']:.2f} (target 6 +/- 1)")
+for s in (60, 10):
+    si = json.load(open(f"{tmp}/si-{s}.out"))
+    py = json.loads(open(f"{tmp}/py-{s}.out").read())
+    obw_si, obw_py = si["bandwidth"]["occupiedHz"], py["occupiedHz"]
+    dev_si, dev_py = si["fm"]["peakDeviationHz"], py["peakDeviationHz"]
+    d_obw, d_dev = abs(obw_si / obw_py - 1), abs(dev_si / dev_py - 1)
+    agree = d_obw <= 1e-3 and d_dev <= 5e-3
+    ok &= agree
+    print(f"{s} s: OBW {obw_si:.1f} Hz vs {obw_py:.1f} Hz ({100 * d_obw:.4f} %, limit 0.1 %); "
+          f"peak deviation {dev_si:.1f} Hz vs {dev_py:.1f} Hz ({100 * d_dev:.3f} %, limit 0.5 %): {'agree' if agree else 'DISAGREE'}")
+sys.exit(0 if ok else 1)
+EOF
