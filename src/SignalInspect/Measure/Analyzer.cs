@@ -1,3 +1,4 @@
+using System.Diagnostics;
 using System.Globalization;
 using System.Security.Cryptography;
 using SignalInspect.Capture;
@@ -16,8 +17,6 @@ public static class Analyzer
 {
     private const double PeakUpper = 0.999, PeakLower = 0.001;
 
-    /// <summary>A sample component this close to full scale counts as clipped (the top code of a 16-bit capture is 0.99997).</summary>
-    private const double FullScaleCode = 0.9999;
 
     /// <summary>Analyses a capture.</summary>
     /// <exception cref="CaptureException">The capture is too short or cannot be read.</exception>
@@ -30,6 +29,7 @@ public static class Analyzer
         double fs = info.SampleRateHz;
         if (info.SampleCount == 0) throw CaptureException.ForFile(info.Path, "holds no samples: there is nothing to measure");
         var (first, count) = source.WindowSamples(options.StartS, options.DurationS);
+        var clock = Stopwatch.StartNew();
         Task<string> hash = Task.Run(() => Sha256(info.DataPath ?? info.Path), cancel);
         var warnings = new List<string>(info.Warnings);
 
@@ -38,6 +38,7 @@ public static class Analyzer
         if (options.FftSize is null) while (fft > 64 && count < 8L * fft) fft /= 2;
         var spectrumSettings = new SpectrumSettings { FftSize = fft, Window = options.Window, SuppressDc = options.SuppressDc, Threads = options.Threads };
         SpectrumResult spectrum = WelchEstimator.Estimate(source, spectrumSettings, first, count, progress, cancel);
+        Profile.Stage("spectrum pass", clock);
         PowerSpectrum psd = spectrum.Mean;
         if (!(psd.TotalPower() > 1e-30))
             throw CaptureException.ForFile(info.Path, spectrum.NonFiniteSegments > 0
@@ -76,10 +77,12 @@ public static class Analyzer
         // occupied bandwidth allows passes (a fixed 15 kHz would halve a 15 kHz broadcast tone).
         double postLp = options.PostLowPassHz ?? 0.9 * Math.Min(half, fsd / 2);
         postLp = Math.Min(postLp, 0.45 * fsd);
-        var plan = new PassPlan(source, first, count, taps, decimation, -coarse, fs, fsd, postLp, options.PostHighPassHz, options.DeEmphasisUs, info.IsComplex);
+        var plan = new PassPlan(source, first, count, taps, decimation, -coarse, fs, fsd, postLp, options.PostHighPassHz, options.DeEmphasisUs, info.IsComplex,
+                                Math.Max(1, options.Threads ?? Environment.ProcessorCount));
 
         // Pass B: demodulation.
-        PassResult b = RunPass(plan, fit: null, cancel);
+        PassResult b = DemodulationPass.Run(plan, fit: null, offsets: null, cancel);
+        Profile.Stage("demodulation pass", clock);
         if (b.Samples < 16) throw CaptureException.ForFile(info.Path, "too few samples remain after the channel filter to demodulate");
         double slope = b.Slope;                  // rad per decimated sample
         double residualHz = slope * fsd / (2 * Math.PI);
@@ -170,7 +173,8 @@ public static class Analyzer
             }
             case ModulationKind.Pm:
             {
-                PassResult c = RunPass(plan, fit: (b.Intercept, slope), cancel);
+                PassResult c = DemodulationPass.Run(plan, fit: (b.Intercept, slope), offsets: b.ChunkPhaseOffsets, cancel);
+                Profile.Stage("phase pass", clock);
                 double up = c.Phase!.Percentile(PeakUpper), lo = c.Phase.Percentile(PeakLower);
                 if (tone is not null && aMean > 0)
                 {
@@ -243,12 +247,14 @@ public static class Analyzer
             PeakStatistic = "positive peak = 99.9th percentile, negative peak = 0.1th percentile of the post-detection signal, interpolated 8x between samples; " + peakNote,
             ObwNoise = options.ObwNoise,
         };
+        string sha = hash.Result;
+        Profile.Stage("hash wait", clock);
         var (waveT, waveV, waveLabel) = Waveform(b, kind, tone?.Value, fsd, meanDev);
         var (longT, longHigh, longLow) = Trend(b, kind, fsd, meanDev);
         return new AnalysisResult
         {
             Capture = info,
-            Sha256 = hash.Result,
+            Sha256 = sha,
             Window = (first, count),
             Classification = cls,
             ChannelSnrDb = snrDb,
@@ -522,129 +528,5 @@ public static class Analyzer
     {
         using FileStream fs = ByteSource.OpenReadOnly(path);
         return Convert.ToHexStringLower(SHA256.HashData(fs));
-    }
-
-    private sealed record PassPlan(CaptureSource Source, long First, long Count, double[] Taps, int Decimation, double ShiftHz, double Fs, double Fsd,
-                                   double PostLowPassHz, double? HighPassHz, double? DeEmphasisUs, bool Complex);
-
-    private sealed class PassResult
-    {
-        public long Samples;
-        public double Slope, Intercept, SlopeVariance, PhaseResidualVariance;
-        public double EnvelopeMean, FreqMean, FreqRms;
-        public long NearFullScale;
-        public required Histogram Envelope, Freq;
-        public Histogram? Phase;
-        public required LineSpectrum EnvelopeSpectrum, ToneSpectrum, TransitionSpectrum;
-        public double[] WaveEnvelope = [], WaveFreq = [];
-    }
-
-    /// <summary>
-    /// One pass over the capture: shift, channel filter, decimate, then envelope, phase and
-    /// instantaneous frequency. With <paramref name="fit"/> (intercept, slope of the phase), also the
-    /// histogram of the phase about that line (for PM).
-    /// </summary>
-    private static PassResult RunPass(PassPlan p, (double Intercept, double Slope)? fit, CancellationToken cancel)
-    {
-        var dec = new ChannelDecimator(p.Taps, p.Decimation, p.ShiftHz, p.Fs, p.Complex);
-        double[] lpTaps = p.PostLowPassHz < 0.45 * p.Fsd
-            ? FirDesign.LowPass(p.PostLowPassHz, p.Fsd, Math.Max(0.1 * p.PostLowPassHz, 2 * p.Fsd / 4095), 70, 1023)
-            : [1.0];
-        var lp = new RealFir(lpTaps);
-        // The phase difference of consecutive samples averages the frequency over one sample: a
-        // response sin(pi f/fs)/(pi f/fs). This 3-tap filter, 1 + (wT)^2/24 for small wT, undoes it
-        // (residual below 0.2 % up to fs/7.5; the decimation keeps the channel below that).
-        var comp = new RealFir([-1.0 / 24, 1 + 1.0 / 12, -1.0 / 24]);
-        OnePole? hp = p.HighPassHz is { } hz ? OnePole.HighPass(hz, p.Fsd) : null;
-        OnePole? de = p.DeEmphasisUs is { } us ? OnePole.DeEmphasis(us * 1e-6, p.Fsd) : null;
-        long expected = p.Count / p.Decimation;
-        int settle = dec.DelaySamples / p.Decimation + 2 + lp.DelaySamples * 2 + (hp is null ? 0 : (int)Math.Min(expected / 4, 3 * p.Fsd / p.HighPassHz!.Value)) + (de is null ? 0 : (int)Math.Min(expected / 4, 5 * p.DeEmphasisUs!.Value * 1e-6 * p.Fsd));
-        settle = (int)Math.Min(settle, expected / 4);
-        int demodFft = 256;
-        while (demodFft < 65536 && p.Fsd / demodFft > 1.0 && 4L * demodFft * 2 <= expected) demodFft *= 2;
-        double ampRange = p.Complex ? 1.5 : 0.75;
-        var r = new PassResult
-        {
-            Envelope = new Histogram(0, ampRange, 1 << 16),
-            Freq = new Histogram(-p.Fsd / 2, p.Fsd / 2, 1 << 18),
-            Phase = fit is null ? null : new Histogram(-64, 64, 1 << 20),
-            EnvelopeSpectrum = new LineSpectrum(demodFft, p.Fsd),
-            ToneSpectrum = new LineSpectrum(demodFft, p.Fsd),
-            TransitionSpectrum = new LineSpectrum(demodFft, p.Fsd),
-        };
-        const int waveMax = 16384;
-        const int up = 8;
-        var upA = new Upsampler(up);
-        var upF = new Upsampler(up);
-        var upP = fit is null ? null : new Upsampler(up);
-        Span<double> ubuf = stackalloc double[up];
-        var waveA = new List<double>();
-        var waveF = new List<double>();
-        using CaptureReader reader = p.Source.OpenReader(p.First, p.Count);
-        int vps = reader.ValuesPerSample;
-        var input = new double[65536 * vps];
-        var output = new double[2 * (65536 / p.Decimation + 2)];
-        double tMid = expected / 2.0;
-        double prevR = 0, prevI = 0, phase = 0, prevD = 0;
-        long n = 0, used = 0;
-        double sw = 0, swt = 0, swtt = 0, swp = 0, swtp = 0, swpp = 0;
-        double sa = 0, sd = 0, sdd = 0;
-        int got;
-        while ((got = reader.Read(input)) > 0)
-        {
-            cancel.ThrowIfCancellationRequested();
-            for (int i = 0; i < got * vps; i++) if (Math.Abs(input[i]) >= FullScaleCode) r.NearFullScale++;
-            int m = dec.Process(input.AsSpan(0, got * vps), output);
-            for (int i = 0; i < m; i++, n++)
-            {
-                double zr = output[2 * i], zi = output[2 * i + 1];
-                double a = Math.Sqrt(zr * zr + zi * zi);
-                double dphi = n == 0 ? 0 : Math.Atan2(zi * prevR - zr * prevI, zr * prevR + zi * prevI);
-                prevR = zr; prevI = zi;
-                phase += dphi;
-                double dev = comp.Next(dphi * p.Fsd / (2 * Math.PI));
-                if (hp is not null) dev = hp.Next(dev);
-                if (de is not null) dev = de.Next(dev);
-                double df = lp.Next(dev);
-                if (n < settle) { prevD = df; continue; }
-                double t = n - tMid, w = a * a;
-                sw += w; swt += w * t; swtt += w * t * t; swp += w * phase; swtp += w * t * phase; swpp += w * phase * phase;
-                // The interpolators need 17 inputs before their output is valid.
-                bool warm = used >= 17;
-                upA.Next(a, ubuf);
-                if (warm) foreach (double v in ubuf) r.Envelope.Add(v);
-                upF.Next(df, ubuf);
-                if (warm) foreach (double v in ubuf) r.Freq.Add(v);
-                sa += a; sd += df; sdd += df * df;
-                r.EnvelopeSpectrum.Add(a);
-                r.ToneSpectrum.Add(df);
-                r.TransitionSpectrum.Add(Math.Abs(df - prevD));
-                prevD = df;
-                if (fit is { } f)
-                {
-                    upP!.Next(phase - (f.Intercept + f.Slope * t), ubuf);
-                    if (warm) foreach (double v in ubuf) r.Phase!.Add(v);
-                }
-                if (waveA.Count < waveMax) { waveA.Add(a); waveF.Add(df); }
-                used++;
-            }
-        }
-        r.Samples = used;
-        if (used > 0 && sw > 0)
-        {
-            double mt = swt / sw, mp = swp / sw;
-            double stt = swtt / sw - mt * mt, stp = swtp / sw - mt * mp, spp = swpp / sw - mp * mp;
-            r.Slope = stt > 0 ? stp / stt : 0;
-            r.Intercept = mp - r.Slope * mt;
-            r.PhaseResidualVariance = Math.Max(0, spp - r.Slope * stp);
-            // Standard error of a weighted slope with the residual variance as the noise variance.
-            r.SlopeVariance = stt > 0 ? r.PhaseResidualVariance / (stt * used) : 0;
-            r.EnvelopeMean = sa / used;
-            r.FreqMean = sd / used;
-            r.FreqRms = Math.Sqrt(Math.Max(0, sdd / used - r.FreqMean * r.FreqMean));
-        }
-        r.WaveEnvelope = [.. waveA];
-        r.WaveFreq = [.. waveF];
-        return r;
     }
 }

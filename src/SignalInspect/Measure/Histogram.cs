@@ -1,3 +1,6 @@
+using System.Numerics;
+using System.Runtime.InteropServices;
+
 namespace SignalInspect.Measure;
 
 /// <summary>
@@ -45,6 +48,53 @@ public sealed class Histogram
         int b = (int)Math.Clamp(Math.Floor((v - _lo) / _width), 0, _counts.Length - 1);
         _counts[b]++;
         Count++;
+    }
+
+    /// <summary>Adds every value of a block (NaN is ignored); the same counts as <see cref="Add(double)"/> one by one.</summary>
+    public void Add(ReadOnlySpan<double> values)
+    {
+        int n = values.Length, w = Vector<double>.Count, i = 0, last = _counts.Length - 1;
+        long added = 0;
+        Span<long> bins = stackalloc long[Vector<long>.Count];
+        if (Vector.IsHardwareAccelerated)
+        {
+            var lo = new Vector<double>(_lo);
+            var inv = new Vector<double>(1 / _width);
+            var top = new Vector<double>(last);
+            ReadOnlySpan<Vector<double>> vv = MemoryMarshal.Cast<double, Vector<double>>(values);
+            for (int v = 0; v < vv.Length; v++, i += w)
+            {
+                Vector<double> x = vv[v];
+                // Bin in [0, last] as a double, then to integers; NaN lanes are skipped below.
+                Vector<double> f = Vector.Min(Vector.Max(Vector.Floor((x - lo) * inv), Vector<double>.Zero), top);
+                Vector.ConvertToInt64(f).CopyTo(bins);
+                for (int l = 0; l < w; l++)
+                {
+                    double xl = x[l];
+                    if (double.IsNaN(xl)) continue;
+                    _counts[bins[l]]++;
+                    added++;
+                }
+            }
+        }
+        for (; i < n; i++)
+        {
+            double v = values[i];
+            if (double.IsNaN(v)) continue;
+            _counts[(int)Math.Clamp(Math.Floor((v - _lo) / _width), 0, last)]++;
+            added++;
+        }
+        Count += added;
+    }
+
+    /// <summary>Adds the counts of a histogram of the same range and bins.</summary>
+    /// <exception cref="ArgumentException">The histograms differ in range or bins.</exception>
+    public void Add(Histogram other)
+    {
+        if (other._counts.Length != _counts.Length || other._lo != _lo || other._width != _width)
+            throw new ArgumentException("the histograms differ in range or bins");
+        for (int i = 0; i < _counts.Length; i++) _counts[i] += other._counts[i];
+        Count += other.Count;
     }
 
     /// <summary>The value below which a fraction <paramref name="p"/> (0 to 1) of the values lie.</summary>

@@ -3,19 +3,19 @@ using SignalInspect.Dsp;
 namespace SignalInspect.Measure;
 
 /// <summary>
-/// Welch power spectrum of a real stream fed one sample at a time (4-term Blackman-Harris, whose
-/// 92 dB sidelobes keep a strong tone from leaking into the noise estimate; 50 % overlap; power-per-bin
-/// scaling, one-sided), for finding spectral lines in demodulated signals: the modulating tone, an
-/// FSK symbol-rate line. Bounded memory: one segment and one accumulator.
+/// Welch power spectrum of a real stream, built from segments handed in whole (4-term
+/// Blackman-Harris, whose 92 dB sidelobes keep a strong tone from leaking into the noise estimate;
+/// power-per-bin scaling, one-sided), for finding spectral lines in demodulated signals: the
+/// modulating tone, an FSK symbol-rate line. The caller chooses the segments (the demodulation
+/// pass takes at most a fixed number, 50 % overlapped, spread over the capture). Bounded memory:
+/// one accumulator.
 /// </summary>
 public sealed class LineSpectrum
 {
     private readonly int _n;
     private readonly double _fs;
-    private readonly double[] _buf, _re, _im, _sum;
+    private readonly double[] _sum;
     private readonly Window _window;
-    private readonly FftPlan _fft;
-    private int _fill;
     private long _segments;
 
     /// <summary>Creates the accumulator.</summary>
@@ -25,12 +25,8 @@ public sealed class LineSpectrum
     {
         _n = fftSize;
         _fs = sampleRateHz;
-        _buf = new double[fftSize];
-        _re = new double[fftSize];
-        _im = new double[fftSize];
         _sum = new double[fftSize / 2 + 1];
         _window = Window.Create(WindowKind.BlackmanHarris, fftSize);
-        _fft = new FftPlan(fftSize);
     }
 
     /// <summary>Lowest bin searched for lines: above the Blackman-Harris main lobe of the mean (+/-4 bins) and its first sidelobe.</summary>
@@ -45,19 +41,38 @@ public sealed class LineSpectrum
     /// <summary>Sum of the squared window coefficients.</summary>
     public double WindowSumOfSquares => _window.SumOfSquares;
 
+    /// <summary>The window (for <see cref="Workspace"/>).</summary>
+    public Window Window => _window;
+
     /// <summary>Segments accumulated.</summary>
     public long Segments => _segments;
 
-    /// <summary>Adds one sample.</summary>
-    public void Add(double x)
+    /// <summary>FFT plan and buffers for <see cref="AddSegment"/>; one per thread.</summary>
+    public sealed class Workspace(int fftSize)
     {
-        _buf[_fill++] = x;
-        if (_fill < _n) return;
-        _fft.ForwardWindowed(_buf, complex: false, _window.Coefficients, _re, _im);
-        for (int k = 0; k < _sum.Length; k++) _sum[k] += _re[k] * _re[k] + _im[k] * _im[k];
+        internal readonly FftPlan Fft = new(fftSize);
+        internal readonly double[] Re = new double[fftSize], Im = new double[fftSize];
+    }
+
+    /// <summary>Adds the periodogram of one segment of exactly <see cref="FftSize"/> samples.</summary>
+    /// <exception cref="ArgumentException">The segment or the workspace has another size.</exception>
+    public void AddSegment(ReadOnlySpan<double> segment, Workspace ws)
+    {
+        if (segment.Length != _n || ws.Re.Length != _n) throw new ArgumentException($"the segment and the workspace must hold {_n} samples");
+        ws.Fft.ForwardWindowed(segment, complex: false, _window.Coefficients, ws.Re, ws.Im);
+        for (int k = 0; k < _sum.Length; k++) _sum[k] += ws.Re[k] * ws.Re[k] + ws.Im[k] * ws.Im[k];
         _segments++;
-        Array.Copy(_buf, _n / 2, _buf, 0, _n / 2);
-        _fill = _n / 2;
+    }
+
+    /// <summary>Adds the sums of another accumulator of the same size and rate, then clears it.</summary>
+    /// <exception cref="ArgumentException">The sizes differ.</exception>
+    public void Take(LineSpectrum other)
+    {
+        if (other._n != _n) throw new ArgumentException("the spectra differ in size");
+        for (int k = 0; k < _sum.Length; k++) _sum[k] += other._sum[k];
+        _segments += other._segments;
+        Array.Clear(other._sum);
+        other._segments = 0;
     }
 
     /// <summary>Power of bin k (relative units).</summary>

@@ -1,0 +1,376 @@
+using System.Numerics;
+using System.Runtime.InteropServices;
+using SignalInspect.Capture;
+using SignalInspect.Dsp;
+
+namespace SignalInspect.Measure;
+
+/// <summary>What one demodulation pass does: the window, the channel filter, the rates and the post-detection filters.</summary>
+internal sealed record PassPlan(CaptureSource Source, long First, long Count, double[] Taps, int Decimation, double ShiftHz, double Fs, double Fsd,
+                                double PostLowPassHz, double? HighPassHz, double? DeEmphasisUs, bool Complex, int Threads);
+
+/// <summary>The running statistics of a demodulation pass.</summary>
+internal sealed class PassResult
+{
+    public long Samples;
+    public double Slope, Intercept, SlopeVariance, PhaseResidualVariance;
+    public double EnvelopeMean, FreqMean, FreqRms;
+    public long NearFullScale;
+    public required Histogram Envelope, Freq;
+    public Histogram? Phase;
+    public required LineSpectrum EnvelopeSpectrum, ToneSpectrum, TransitionSpectrum;
+    public double[] WaveEnvelope = [], WaveFreq = [];
+    /// <summary>Unwrapped phase at the start of each chunk (see <see cref="DemodulationPass"/>), for a later pass over the same chunks.</summary>
+    public double[] ChunkPhaseOffsets = [];
+}
+
+/// <summary>
+/// One pass over the capture: shift, channel filter, decimate, then envelope, phase and
+/// instantaneous frequency, into running sums, histograms and line spectra. The decimated stream
+/// is cut into chunks of <see cref="ChunkOutputs"/> samples that the worker threads take in turn;
+/// each chunk starts its reader early enough that every filter has settled (a warm-up whose
+/// outputs are dropped), so a chunk's samples are those of one long run. The chunks' sums are
+/// combined in chunk order, and the unwrapped phase is carried from chunk to chunk through its
+/// value just before each chunk's first sample, so the results do not depend on the thread count.
+/// Memory does not grow with the capture.
+/// </summary>
+internal static class DemodulationPass
+{
+    /// <summary>Decimated samples per chunk.</summary>
+    internal const int ChunkOutputs = 1 << 20;
+
+    /// <summary>Line-spectrum segments per stream, at most; spread evenly over the capture.</summary>
+    internal const int MaxLineSegments = 64;
+
+    private const int InputBlock = 65536;
+    private const int WaveMax = 16384;
+    private const int Up = 8;
+    /// <summary>A sample component this close to full scale counts as clipped (the top code of a 16-bit capture is 0.99997).</summary>
+    private const double FullScaleCode = 0.9999;
+
+    private sealed record Setup(PassPlan P, double[] LpTaps, long Expected, int Settle, int DemodFft, double AmpRange, int Chunks, int WarmUp,
+                                long FirstSegment, long SegmentCandidates, (double Intercept, double Slope)? Fit, double[]? Offsets)
+    {
+        public int Hop => DemodFft / 2;
+        public long ChunkStart(int c) => (long)c * ChunkOutputs;
+        public long ChunkEnd(int c) => c == Chunks - 1 ? Expected : (long)(c + 1) * ChunkOutputs;
+        /// <summary>First sample counted in the statistics.</summary>
+        public long CountStart(int c) => c == 0 ? Settle : ChunkStart(c);
+        /// <summary>First sample fed to the interpolators (they need <see cref="BlockUpsampler.WarmUp"/> before their outputs count).</summary>
+        public long FeedStart(int c) => c == 0 ? Settle : ChunkStart(c) - BlockUpsampler.WarmUp;
+        public bool Selected(long s)
+        {
+            long k = s - FirstSegment;
+            if (k < 0 || k >= SegmentCandidates) return false;
+            if (SegmentCandidates <= MaxLineSegments) return true;
+            return k * MaxLineSegments / SegmentCandidates != (k - 1) * MaxLineSegments / SegmentCandidates || k == 0;
+        }
+    }
+
+    /// <summary>One chunk's sums, its unwrapped phase measured from its own start, and the phase where the next chunk starts.</summary>
+    private sealed class ChunkSums
+    {
+        public long Used, NearFullScale;
+        public double Sw, Swt, Swtt, Swp, Swtp, Swpp, Sa, Sd, Sdd;
+        public double PhaseAtNext;
+    }
+
+    /// <summary>Runs the pass; with <paramref name="fit"/> (intercept, slope of the phase, and the chunk offsets of an earlier pass) also the phase histogram about that line (for PM).</summary>
+    public static PassResult Run(PassPlan p, (double Intercept, double Slope)? fit, double[]? offsets, CancellationToken cancel)
+    {
+        double[] lpTaps = p.PostLowPassHz < 0.45 * p.Fsd
+            ? FirDesign.LowPass(p.PostLowPassHz, p.Fsd, Math.Max(0.1 * p.PostLowPassHz, 2 * p.Fsd / 4095), 70, 1023)
+            : [1.0];
+        long expected = p.Count / p.Decimation;
+        int lpDelay = (lpTaps.Length - 1) / 2;
+        int iir = (p.HighPassHz is null ? 0 : (int)Math.Min(expected / 4, 3 * p.Fsd / p.HighPassHz.Value))
+                + (p.DeEmphasisUs is null ? 0 : (int)Math.Min(expected / 4, 5 * p.DeEmphasisUs.Value * 1e-6 * p.Fsd));
+        int settle = (p.Taps.Length - 1) / 2 / p.Decimation + 2 + lpDelay * 2 + iir;
+        settle = (int)Math.Min(settle, expected / 4);
+        int demodFft = 256;
+        while (demodFft < 65536 && p.Fsd / demodFft > 1.0 && 4L * demodFft * 2 <= expected) demodFft *= 2;
+        int chunks = expected <= ChunkOutputs * 3L / 2 ? 1 : (int)((expected + ChunkOutputs - 1) / ChunkOutputs);
+        // Decimated samples run before a chunk so that every filter holds only real input: the
+        // channel filter, the 3-tap compensator, the low-pass, the interpolators and the one-pole filters.
+        int warm = (p.Taps.Length + p.Decimation - 1) / p.Decimation + lpTaps.Length + 3 + BlockUpsampler.WarmUp + iir + 8;
+        int hop = demodFft / 2;
+        long firstSeg = (settle + hop - 1) / hop;
+        long lastSeg = (expected - demodFft) / hop;
+        var s = new Setup(p, lpTaps, expected, settle, demodFft, p.Complex ? 1.5 : 0.75, chunks, warm, firstSeg, Math.Max(0, lastSeg - firstSeg + 1), fit, offsets);
+
+        var sums = new ChunkSums[chunks];
+        int threads = Math.Max(1, Math.Min(p.Threads, chunks));
+        var workers = new Worker[threads];
+        var merged = NewLines(s);
+        var pending = new Dictionary<int, LineSet>();
+        var pool = new Stack<LineSet>();
+        int nextMerge = 0, nextChunk = -1;
+        object gate = new();
+        double[] waveA = [], waveF = [];
+        Parallel.For(0, threads, new ParallelOptions { MaxDegreeOfParallelism = threads, CancellationToken = cancel }, w =>
+        {
+            var worker = workers[w] = new Worker(s);
+            int c;
+            while ((c = Interlocked.Increment(ref nextChunk)) < chunks)
+            {
+                cancel.ThrowIfCancellationRequested();
+                LineSet lines;
+                lock (gate) lines = pool.Count > 0 ? pool.Pop() : NewLines(s);
+                sums[c] = worker.RunChunk(c, lines, cancel);
+                if (c == 0) (waveA, waveF) = (worker.WaveA.ToArray(), worker.WaveF.ToArray());
+                // Line spectra are combined strictly in chunk order (sums of doubles depend on order).
+                lock (gate)
+                {
+                    pending[c] = lines;
+                    while (pending.Remove(nextMerge, out LineSet? ready))
+                    {
+                        merged.Env.Take(ready.Env); merged.Tone.Take(ready.Tone); merged.Trans.Take(ready.Trans);
+                        pool.Push(ready);
+                        nextMerge++;
+                    }
+                }
+            }
+        });
+
+        var r = new PassResult
+        {
+            Envelope = workers[0].Envelope,
+            Freq = workers[0].Freq,
+            Phase = workers[0].Phase,
+            EnvelopeSpectrum = merged.Env,
+            ToneSpectrum = merged.Tone,
+            TransitionSpectrum = merged.Trans,
+            WaveEnvelope = waveA,
+            WaveFreq = waveF,
+            ChunkPhaseOffsets = new double[chunks],
+        };
+        for (int w = 1; w < threads; w++)
+        {
+            r.Envelope.Add(workers[w].Envelope);
+            r.Freq.Add(workers[w].Freq);
+            if (r.Phase is not null) r.Phase.Add(workers[w].Phase!);
+        }
+        // Chunk sums in order, each chunk's phase moved to the capture's unwrapped phase.
+        double sw = 0, swt = 0, swtt = 0, swp = 0, swtp = 0, swpp = 0, sa = 0, sd = 0, sdd = 0, off = 0;
+        long used = 0;
+        for (int c = 0; c < chunks; c++)
+        {
+            ChunkSums k = sums[c];
+            r.ChunkPhaseOffsets[c] = off;
+            sw += k.Sw; swt += k.Swt; swtt += k.Swtt;
+            swp += k.Swp + off * k.Sw;
+            swtp += k.Swtp + off * k.Swt;
+            swpp += k.Swpp + 2 * off * k.Swp + off * off * k.Sw;
+            sa += k.Sa; sd += k.Sd; sdd += k.Sdd;
+            used += k.Used;
+            r.NearFullScale += k.NearFullScale;
+            off += k.PhaseAtNext;
+        }
+        r.Samples = used;
+        if (used > 0 && sw > 0)
+        {
+            double mt = swt / sw, mp = swp / sw;
+            double stt = swtt / sw - mt * mt, stp = swtp / sw - mt * mp, spp = swpp / sw - mp * mp;
+            r.Slope = stt > 0 ? stp / stt : 0;
+            r.Intercept = mp - r.Slope * mt;
+            r.PhaseResidualVariance = Math.Max(0, spp - r.Slope * stp);
+            // Standard error of a weighted slope with the residual variance as the noise variance.
+            r.SlopeVariance = stt > 0 ? r.PhaseResidualVariance / (stt * used) : 0;
+            r.EnvelopeMean = sa / used;
+            r.FreqMean = sd / used;
+            r.FreqRms = Math.Sqrt(Math.Max(0, sdd / used - r.FreqMean * r.FreqMean));
+        }
+        return r;
+    }
+
+    private sealed record LineSet(LineSpectrum Env, LineSpectrum Tone, LineSpectrum Trans);
+
+    private static LineSet NewLines(Setup s) =>
+        new(new LineSpectrum(s.DemodFft, s.P.Fsd), new LineSpectrum(s.DemodFft, s.P.Fsd), new LineSpectrum(s.DemodFft, s.P.Fsd));
+
+    /// <summary>One thread's buffers and histograms; runs chunks one after another.</summary>
+    private sealed class Worker
+    {
+        private readonly Setup _s;
+        private readonly double[] _input, _re, _im, _a, _x, _y, _dphi, _dev, _df, _pv, _ubuf, _ringA, _ringF, _ringT, _segment;
+        private readonly LineSpectrum.Workspace _ws;
+        public readonly Histogram Envelope, Freq;
+        public readonly Histogram? Phase;
+        public readonly List<double> WaveA = [], WaveF = [];
+
+        public Worker(Setup s)
+        {
+            _s = s;
+            PassPlan p = s.P;
+            int vps = p.Complex ? 2 : 1;
+            int maxOut = InputBlock / p.Decimation + 2;
+            _input = new double[InputBlock * vps];
+            _re = new double[maxOut + 1];
+            _im = new double[maxOut + 1];
+            _a = new double[maxOut];
+            _x = new double[maxOut];
+            _y = new double[maxOut];
+            _dphi = new double[maxOut];
+            _dev = new double[maxOut];
+            _df = new double[maxOut];
+            _pv = new double[maxOut];
+            _ubuf = new double[Up * maxOut];
+            _ringA = new double[s.DemodFft];
+            _ringF = new double[s.DemodFft];
+            _ringT = new double[s.DemodFft];
+            _segment = new double[s.DemodFft];
+            _ws = new LineSpectrum.Workspace(s.DemodFft);
+            Envelope = new Histogram(0, s.AmpRange, 1 << 16);
+            Freq = new Histogram(-p.Fsd / 2, p.Fsd / 2, 1 << 18);
+            Phase = s.Fit is null ? null : new Histogram(-64, 64, 1 << 20);
+        }
+
+        public ChunkSums RunChunk(int c, LineSet lines, CancellationToken cancel)
+        {
+            Setup s = _s;
+            PassPlan p = s.P;
+            int d = p.Decimation;
+            long begin = c == 0 ? 0 : Math.Max(0, s.ChunkStart(c) - s.WarmUp);
+            long end = s.ChunkEnd(c);
+            long inFirst = begin * d, inEnd = c == s.Chunks - 1 ? p.Count : end * d;
+            long ownIn = c == 0 ? 0 : s.ChunkStart(c) * d;
+            long countStart = s.CountStart(c), feedStart = s.FeedStart(c), histStart = feedStart + BlockUpsampler.WarmUp;
+            long nextFeed = c + 1 < s.Chunks ? s.FeedStart(c + 1) - 1 : -1;
+            double offset = s.Offsets is { } o ? o[c] : 0;
+
+            var dec = new ChannelDecimator(p.Taps, d, p.ShiftHz, p.Fs, p.Complex);
+            var comp = new BlockFir([-1.0 / 24, 1 + 1.0 / 12, -1.0 / 24]);
+            var lp = new BlockFir(s.LpTaps);
+            OnePole? hp = p.HighPassHz is { } hz ? OnePole.HighPass(hz, p.Fsd) : null;
+            OnePole? de = p.DeEmphasisUs is { } us ? OnePole.DeEmphasis(us * 1e-6, p.Fsd) : null;
+            var upA = new BlockUpsampler(Up);
+            var upF = new BlockUpsampler(Up);
+            var upP = s.Fit is null ? null : new BlockUpsampler(Up);
+            if (c == 0) { WaveA.Clear(); WaveF.Clear(); }
+
+            var k = new ChunkSums();
+            double tMid = s.Expected / 2.0;
+            double phase = 0, prevD = 0;
+            double toHz = p.Fsd / (2 * Math.PI);
+            long n = begin;
+            int mask = s.DemodFft - 1, hop = s.Hop;
+            using CaptureReader reader = p.Source.OpenReader(p.First + inFirst, inEnd - inFirst);
+            int vps = reader.ValuesPerSample;
+            long inPos = inFirst;
+            int got;
+            _re[0] = _im[0] = 0;
+            while ((got = reader.Read(_input)) > 0)
+            {
+                cancel.ThrowIfCancellationRequested();
+                long skip = Math.Max(0, ownIn - inPos);
+                if (skip < got) k.NearFullScale += CountFullScale(_input.AsSpan((int)skip * vps, (got - (int)skip) * vps));
+                inPos += got;
+                int m = dec.Process(_input.AsSpan(0, got * vps), _re.AsSpan(1), _im.AsSpan(1));
+                if (m == 0) continue;
+                // Envelope and phase step of every output; _re[0], _im[0] hold the previous sample.
+                Span<double> re = _re.AsSpan(0, m + 1), im = _im.AsSpan(0, m + 1);
+                VectorMath.Magnitude(re[1..], im[1..], _a.AsSpan(0, m));
+                CrossAndDot(re, im, _y.AsSpan(0, m), _x.AsSpan(0, m));
+                VectorMath.Atan2(_y.AsSpan(0, m), _x.AsSpan(0, m), _dphi.AsSpan(0, m));
+                if (n == 0) _dphi[0] = 0;
+                _re[0] = _re[m]; _im[0] = _im[m];
+                // Instantaneous frequency: the phase step in Hz, the sin(x)/x compensator, the optional
+                // one-pole filters, the post-detection low-pass.
+                Span<double> dev = _dev.AsSpan(0, m);
+                for (int i = 0; i < m; i++) dev[i] = _dphi[i] * toHz;
+                comp.Process(dev, dev);
+                if (hp is not null) for (int i = 0; i < m; i++) dev[i] = hp.Next(dev[i]);
+                if (de is not null) for (int i = 0; i < m; i++) dev[i] = de.Next(dev[i]);
+                lp.Process(dev, _df.AsSpan(0, m));
+
+                for (int i = 0; i < m; i++, n++)
+                {
+                    double a = _a[i], df = _df[i];
+                    phase += _dphi[i];
+                    if (n >= feedStart && upP is not null) _pv[i] = phase + offset - (s.Fit!.Value.Intercept + s.Fit.Value.Slope * (n - tMid));
+                    if (n == nextFeed) k.PhaseAtNext = phase;
+                    if (c > 0 && n == feedStart - 1) phase = 0;
+                    if (n < countStart) { prevD = df; continue; }
+                    double t = n - tMid, w = a * a;
+                    k.Sw += w; k.Swt += w * t; k.Swtt += w * t * t; k.Swp += w * phase; k.Swtp += w * t * phase; k.Swpp += w * phase * phase;
+                    k.Sa += a; k.Sd += df; k.Sdd += df * df;
+                    int ri = (int)(n & mask);
+                    _ringA[ri] = a; _ringF[ri] = df; _ringT[ri] = Math.Abs(df - prevD);
+                    prevD = df;
+                    if (c == 0 && WaveA.Count < WaveMax) { WaveA.Add(a); WaveF.Add(df); }
+                    k.Used++;
+                    // A line-spectrum segment [seg hop, seg hop + N) ends here.
+                    if ((n + 1) % hop == 0 && (n + 1) / hop - 2 is long seg && seg >= 0 && seg * hop >= countStart && s.Selected(seg))
+                    {
+                        AddSegment(lines.Env, _ringA, seg * hop);
+                        AddSegment(lines.Tone, _ringF, seg * hop);
+                        AddSegment(lines.Trans, _ringT, seg * hop);
+                    }
+                }
+                // Interpolated peak statistics over the samples fed so far in this block.
+                long n0 = n - m;
+                int f0 = (int)Math.Clamp(feedStart - n0, 0, m);
+                if (f0 < m)
+                {
+                    int h0 = (int)Math.Clamp(histStart - n0 - f0, 0, m - f0);
+                    Interpolate(upA, _a.AsSpan(f0, m - f0), h0, Envelope);
+                    Interpolate(upF, _df.AsSpan(f0, m - f0), h0, Freq);
+                    if (upP is not null) Interpolate(upP, _pv.AsSpan(f0, m - f0), h0, Phase!);
+                }
+            }
+            return k;
+        }
+
+        /// <summary>Feeds a block to an interpolator; the outputs of inputs from <paramref name="from"/> on go to the histogram.</summary>
+        private void Interpolate(BlockUpsampler up, ReadOnlySpan<double> x, int from, Histogram h)
+        {
+            int len = x.Length;
+            up.Process(x, _ubuf.AsSpan(0, Up * len));
+            if (from >= len) return;
+            for (int j = 0; j < Up; j++) h.Add(_ubuf.AsSpan(j * len + from, len - from));
+        }
+
+        private void AddSegment(LineSpectrum spectrum, double[] ring, long start)
+        {
+            int nfft = ring.Length, s0 = (int)(start & (nfft - 1));
+            ring.AsSpan(s0).CopyTo(_segment);
+            ring.AsSpan(0, s0).CopyTo(_segment.AsSpan(nfft - s0));
+            spectrum.AddSegment(_segment, _ws);
+        }
+    }
+
+    /// <summary>y[i] = Im(z[i+1] conj z[i]), x[i] = Re(z[i+1] conj z[i]) over consecutive samples.</summary>
+    private static void CrossAndDot(ReadOnlySpan<double> re, ReadOnlySpan<double> im, Span<double> y, Span<double> x)
+    {
+        int m = y.Length, w = Vector<double>.Count, i = 0;
+        ref double r = ref MemoryMarshal.GetReference(re);
+        ref double q = ref MemoryMarshal.GetReference(im);
+        ref double yo = ref MemoryMarshal.GetReference(y);
+        ref double xo = ref MemoryMarshal.GetReference(x);
+        for (; i + w <= m; i += w)
+        {
+            Vector<double> pr = VectorMath.Load(ref r, i), pi = VectorMath.Load(ref q, i);
+            Vector<double> zr = VectorMath.Load(ref r, i + 1), zi = VectorMath.Load(ref q, i + 1);
+            VectorMath.Store(zi * pr - zr * pi, ref yo, i);
+            VectorMath.Store(zr * pr + zi * pi, ref xo, i);
+        }
+        for (; i < m; i++)
+        {
+            y[i] = im[i + 1] * re[i] - re[i + 1] * im[i];
+            x[i] = re[i + 1] * re[i] + im[i + 1] * im[i];
+        }
+    }
+
+    /// <summary>Sample components at full scale (|v| at or above the top code), NaN not counted.</summary>
+    private static long CountFullScale(ReadOnlySpan<double> v)
+    {
+        int w = Vector<double>.Count, i = 0;
+        var limit = new Vector<double>(FullScaleCode);
+        Vector<long> acc = Vector<long>.Zero;
+        ReadOnlySpan<Vector<double>> vv = MemoryMarshal.Cast<double, Vector<double>>(v);
+        foreach (Vector<double> x in vv) acc -= Vector.GreaterThanOrEqual(Vector.Abs(x), limit);
+        long count = Vector.Sum(acc);
+        for (i = vv.Length * w; i < v.Length; i++) if (Math.Abs(v[i]) >= FullScaleCode) count++;
+        return count;
+    }
+}

@@ -1,0 +1,20 @@
+using System.Diagnostics;
+
+namespace SignalInspect.Measure;
+
+/// <summary>
+/// Stage timings for profiling by hand: with the environment variable SI_PROFILE=1 each stage's
+/// wall time goes to standard error. Off by default; costs nothing then.
+/// </summary>
+internal static class Profile
+{
+    private static readonly bool On = Environment.GetEnvironmentVariable("SI_PROFILE") == "1";
+
+    /// <summary>Writes the time since the last stage and restarts the clock.</summary>
+    public static void Stage(string name, Stopwatch clock)
+    {
+        if (!On) return;
+        Console.Error.WriteLine($"profile: {name,-20} {clock.Elapsed.TotalSeconds,8:0.000} s");
+        clock.Restart();
+    }
+}
