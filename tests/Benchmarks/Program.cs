@@ -11,6 +11,7 @@ using SignalInspect.Synthesis;
 // ratios within one run, since the machine is shared and absolute times wander.
 //   fft                      in-house FftPlan against MathNet.Numerics' FFT
 //   welch [CAPTURE] [--smoke] Welch stage throughput on a 60 s, 2.4 MS/s cf32 capture (made if absent)
+//   kernels [--smoke]        the demodulation pass's kernels, ns per input or decimated sample
 CultureInfo.DefaultThreadCurrentCulture = CultureInfo.InvariantCulture;
 string mode = args.Length > 0 ? args[0] : "fft";
 bool smoke = args.Contains("--smoke");
@@ -18,7 +19,8 @@ switch (mode)
 {
     case "fft": Fft(smoke); break;
     case "welch": Welch(args.Skip(1).FirstOrDefault(a => !a.StartsWith("--")), smoke); break;
-    default: Console.Error.WriteLine("usage: fft | welch [CAPTURE] [--smoke]"); return 2;
+    case "kernels": Kernels(smoke); break;
+    default: Console.Error.WriteLine("usage: fft | welch [CAPTURE] [--smoke] | kernels [--smoke]"); return 2;
 }
 return 0;
 
@@ -90,4 +92,45 @@ static void Welch(string? capture, bool smoke)
         double t = sw.Elapsed.TotalSeconds;
         Console.WriteLine($"| Welch FFT 4096 Hann 50 % | {threads} | {t:0.00} | {res.SamplesAnalysed / t / 1e6:0} |");
     }
+}
+
+static void Kernels(bool smoke)
+{
+    // The settings analyze picks for the 2.4 MS/s FM benchmark capture: 255-tap channel filter,
+    // decimation 6 to 400 kS/s, a 175-tap post-detection low-pass, 8x interpolation.
+    const double fs = 2.4e6;
+    const int d = 6;
+    int n = smoke ? 1 << 16 : 1 << 22;
+    var rng = new Random(5);
+    var iq = new double[2 * 65536];
+    for (int i = 0; i < iq.Length; i++) iq[i] = rng.NextDouble() - 0.5;
+    double[] taps = FirDesign.LowPass(118763, fs, 59000, 80, 4095);
+    var dec = new ChannelDecimator(taps, d, -12545.8, fs, true);
+    var re = new double[65536 / d + 2];
+    var im = new double[65536 / d + 2];
+    int blocks = n / 65536;
+    double tDec = Time(3, () => { for (int b = 0; b < blocks; b++) dec.Process(iq, re, im); });
+    Console.WriteLine($"| channel decimator ({taps.Length} taps, /{d}) | {tDec / (blocks * 65536.0) * 1e9:0.00} ns per input sample |");
+    var mixOnly = new ChannelDecimator(taps, 60000, -12545.8, fs, true);
+    double tMix = Time(3, () => { for (int b = 0; b < blocks; b++) mixOnly.Process(iq, re, im); });
+    Console.WriteLine($"| of which shifting (decimation 60000: no outputs to speak of) | {tMix / (blocks * 65536.0) * 1e9:0.00} ns per input sample |");
+    int m = 65536 / d;
+    var y = new double[m];
+    var x = new double[m];
+    var o = new double[m];
+    for (int i = 0; i < m; i++) { y[i] = rng.NextDouble() - 0.5; x[i] = rng.NextDouble() - 0.5; }
+    double tAtan = Time(3, () => { for (int b = 0; b < blocks; b++) VectorMath.Atan2(y, x, o); });
+    double tAtanScalar = Time(3, () => { for (int b = 0; b < blocks; b++) for (int i = 0; i < m; i++) o[i] = Math.Atan2(y[i], x[i]); });
+    Console.WriteLine($"| atan2, vector / Math.Atan2 | {tAtan / (blocks * m) * 1e9:0.00} / {tAtanScalar / (blocks * m) * 1e9:0.00} ns per decimated sample |");
+    double[] lpTaps = FirDesign.LowPass(106887, fs / d, 10689, 70, 1023);
+    var lp = new BlockFir(lpTaps);
+    double tLp = Time(3, () => { for (int b = 0; b < blocks; b++) lp.Process(y, o); });
+    Console.WriteLine($"| post-detection low-pass ({lpTaps.Length} taps) | {tLp / (blocks * m) * 1e9:0.00} ns per decimated sample |");
+    var up = new BlockUpsampler(8);
+    var ub = new double[8 * m];
+    double tUp = Time(3, () => { for (int b = 0; b < blocks; b++) up.Process(y, ub); });
+    Console.WriteLine($"| 8x interpolator | {tUp / (blocks * m) * 1e9:0.00} ns per decimated sample |");
+    var h = new SignalInspect.Measure.Histogram(-0.5, 0.5, 1 << 18);
+    double tHist = Time(3, () => { for (int b = 0; b < blocks; b++) h.Add(ub); });
+    Console.WriteLine($"| histogram of the 8 interpolated values | {tHist / (blocks * m) * 1e9:0.00} ns per decimated sample |");
 }

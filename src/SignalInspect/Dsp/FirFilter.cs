@@ -60,8 +60,9 @@ public static class FirDesign
 public sealed class ChannelDecimator
 {
     private const int Block = 1024;
-    private readonly float[] _taps2;          // reversed taps, each twice (I and Q lanes)
-    private readonly int _taps;
+    private readonly float[] _taps2;          // reversed taps, each twice (I and Q lanes), zero-padded in front to whole vectors
+    private readonly int _taps;               // taps of the padded filter (the zeros are the oldest)
+    private readonly int _delay;
     private readonly int _decimation;
     private readonly bool _complexInput;
     private readonly double _shiftCyclesPerSample;
@@ -81,9 +82,12 @@ public sealed class ChannelDecimator
     {
         ArgumentOutOfRangeException.ThrowIfLessThan(decimation, 1);
         ArgumentOutOfRangeException.ThrowIfZero(taps.Length);
-        _taps = taps.Length;
+        _delay = (taps.Length - 1) / 2;
+        int lanes = Vector<float>.Count / 2;
+        _taps = (taps.Length + lanes - 1) / lanes * lanes;
+        int pad = _taps - taps.Length;
         _taps2 = new float[2 * _taps];
-        for (int k = 0; k < _taps; k++) _taps2[2 * k] = _taps2[2 * k + 1] = (float)taps[_taps - 1 - k];
+        for (int k = 0; k < taps.Length; k++) _taps2[2 * (pad + k)] = _taps2[2 * (pad + k) + 1] = (float)taps[taps.Length - 1 - k];
         _decimation = decimation;
         _complexInput = complexInput;
         _shiftCyclesPerSample = shiftHz / sampleRateHz;
@@ -100,7 +104,7 @@ public sealed class ChannelDecimator
     }
 
     /// <summary>Group delay of the filter in input samples ((taps - 1) / 2).</summary>
-    public int DelaySamples => (_taps - 1) / 2;
+    public int DelaySamples => _delay;
 
     /// <summary>Output sample rate for a given input rate.</summary>
     public double OutputRateHz(double inputRateHz) => inputRateHz / _decimation;
@@ -123,11 +127,15 @@ public sealed class ChannelDecimator
             done += piece;
             _n += piece;
             _fill += piece;
-            while (_next < _fill)
+            while (_next + _decimation < _fill)
             {
-                var (re, im) = Dot(_next - _taps + 1);
-                outRe[produced] = re;
-                outIm[produced] = im;
+                Dot2(_next - _taps + 1, _next + _decimation - _taps + 1, out outRe[produced], out outIm[produced], out outRe[produced + 1], out outIm[produced + 1]);
+                produced += 2;
+                _next += 2 * _decimation;
+            }
+            if (_next < _fill)
+            {
+                Dot2(_next - _taps + 1, _next - _taps + 1, out outRe[produced], out outIm[produced], out _, out _);
                 produced++;
                 _next += _decimation;
             }
@@ -192,29 +200,45 @@ public sealed class ChannelDecimator
         return i;
     }
 
-    /// <summary>Filter output over the window of _taps samples starting at index <paramref name="start"/> of _z.</summary>
-    private (double Re, double Im) Dot(int start)
+    /// <summary>
+    /// Filter outputs over the windows of _taps samples starting at indices <paramref name="s0"/> and
+    /// <paramref name="s1"/> of _z: two outputs share each load of the taps.
+    /// </summary>
+    private void Dot2(int s0, int s1, out double re0, out double im0, out double re1, out double im1)
     {
         int len = 2 * _taps;
         ref float h = ref System.Runtime.InteropServices.MemoryMarshal.GetArrayDataReference(_taps2);
         ref float z = ref System.Runtime.InteropServices.MemoryMarshal.GetArrayDataReference(_z);
-        z = ref Unsafe.Add(ref z, 2 * start);
+        ref float z0 = ref Unsafe.Add(ref z, 2 * s0);
+        ref float z1 = ref Unsafe.Add(ref z, 2 * s1);
         int w = Vector<float>.Count, j = 0;
-        Vector<float> a0 = Vector<float>.Zero, a1 = Vector<float>.Zero;
+        Vector<float> a0 = default, a1 = default, b0 = default, b1 = default;
         for (; j + 2 * w <= len; j += 2 * w)
         {
-            a0 = Vector.FusedMultiplyAdd(LoadF(ref h, j), LoadF(ref z, j), a0);
-            a1 = Vector.FusedMultiplyAdd(LoadF(ref h, j + w), LoadF(ref z, j + w), a1);
+            Vector<float> h0 = LoadF(ref h, j), h1 = LoadF(ref h, j + w);
+            a0 = Vector.FusedMultiplyAdd(h0, LoadF(ref z0, j), a0);
+            b0 = Vector.FusedMultiplyAdd(h0, LoadF(ref z1, j), b0);
+            a1 = Vector.FusedMultiplyAdd(h1, LoadF(ref z0, j + w), a1);
+            b1 = Vector.FusedMultiplyAdd(h1, LoadF(ref z1, j + w), b1);
         }
-        for (; j + w <= len; j += w) a0 = Vector.FusedMultiplyAdd(LoadF(ref h, j), LoadF(ref z, j), a0);
-        Vector<float> acc = a0 + a1;
-        double re = 0, im = 0;
-        for (int l = 0; l < w; l += 2) { re += acc[l]; im += acc[l + 1]; }
-        for (; j < len; j += 2)
+        for (; j < len; j += w)
         {
-            re += Unsafe.Add(ref h, j) * Unsafe.Add(ref z, j);
-            im += Unsafe.Add(ref h, j + 1) * Unsafe.Add(ref z, j + 1);
+            Vector<float> h0 = LoadF(ref h, j);
+            a0 = Vector.FusedMultiplyAdd(h0, LoadF(ref z0, j), a0);
+            b0 = Vector.FusedMultiplyAdd(h0, LoadF(ref z1, j), b0);
         }
+        (re0, im0) = SumPairs(a0 + a1);
+        (re1, im1) = SumPairs(b0 + b1);
+    }
+
+    /// <summary>The sums of the even (I) and the odd (Q) lanes, in double.</summary>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    private static (double Re, double Im) SumPairs(Vector<float> v)
+    {
+        Vector.Widen(v, out Vector<double> lo, out Vector<double> hi);
+        Vector<double> s = lo + hi;
+        double re = 0, im = 0;
+        for (int l = 0; l < Vector<double>.Count; l += 2) { re += s[l]; im += s[l + 1]; }
         return (re, im);
     }
 
@@ -254,17 +278,33 @@ public sealed class BlockFir
         ref double h = ref System.Runtime.InteropServices.MemoryMarshal.GetArrayDataReference(_taps);
         ref double o = ref System.Runtime.InteropServices.MemoryMarshal.GetReference(y);
         int w = Vector<double>.Count, i = 0;
-        for (; i + 2 * w <= n; i += 2 * w)
+        // Eight vectors of outputs per sweep over the taps: independent sums keep the FMA units busy.
+        for (; i + 8 * w <= n; i += 8 * w)
         {
-            Vector<double> a0 = Vector<double>.Zero, a1 = Vector<double>.Zero;
+            Vector<double> a0 = default, a1 = default, a2 = default, a3 = default, a4 = default, a5 = default, a6 = default, a7 = default;
             for (int k = 0; k < t; k++)
             {
                 var hk = new Vector<double>(Unsafe.Add(ref h, k));
-                a0 = Vector.FusedMultiplyAdd(hk, VectorMath.Load(ref b, i + k), a0);
-                a1 = Vector.FusedMultiplyAdd(hk, VectorMath.Load(ref b, i + k + w), a1);
+                ref double bk = ref Unsafe.Add(ref b, i + k);
+                a0 = Vector.FusedMultiplyAdd(hk, VectorMath.Load(ref bk, 0), a0);
+                a1 = Vector.FusedMultiplyAdd(hk, VectorMath.Load(ref bk, w), a1);
+                a2 = Vector.FusedMultiplyAdd(hk, VectorMath.Load(ref bk, 2 * w), a2);
+                a3 = Vector.FusedMultiplyAdd(hk, VectorMath.Load(ref bk, 3 * w), a3);
+                a4 = Vector.FusedMultiplyAdd(hk, VectorMath.Load(ref bk, 4 * w), a4);
+                a5 = Vector.FusedMultiplyAdd(hk, VectorMath.Load(ref bk, 5 * w), a5);
+                a6 = Vector.FusedMultiplyAdd(hk, VectorMath.Load(ref bk, 6 * w), a6);
+                a7 = Vector.FusedMultiplyAdd(hk, VectorMath.Load(ref bk, 7 * w), a7);
             }
+            VectorMath.Store(a0, ref o, i); VectorMath.Store(a1, ref o, i + w);
+            VectorMath.Store(a2, ref o, i + 2 * w); VectorMath.Store(a3, ref o, i + 3 * w);
+            VectorMath.Store(a4, ref o, i + 4 * w); VectorMath.Store(a5, ref o, i + 5 * w);
+            VectorMath.Store(a6, ref o, i + 6 * w); VectorMath.Store(a7, ref o, i + 7 * w);
+        }
+        for (; i + w <= n; i += w)
+        {
+            Vector<double> a0 = default;
+            for (int k = 0; k < t; k++) a0 = Vector.FusedMultiplyAdd(new Vector<double>(Unsafe.Add(ref h, k)), VectorMath.Load(ref b, i + k), a0);
             VectorMath.Store(a0, ref o, i);
-            VectorMath.Store(a1, ref o, i + w);
         }
         for (; i < n; i++)
         {
@@ -327,6 +367,7 @@ public sealed class BlockUpsampler
 {
     private const int Taps = 17;
     private readonly double[][] _phases;   // per phase, reversed: window oldest first
+    private readonly double[] _coef;       // the same, tap-major: _coef[k * L + j] = _phases[j][k]
     private double[] _buf;                 // Taps - 1 history samples, then the block
 
     /// <summary>Creates an interpolator by <paramref name="factor"/> (2 to 64).</summary>
@@ -359,6 +400,8 @@ public sealed class BlockUpsampler
             Array.Reverse(p);
             _phases[j] = p;
         }
+        _coef = new double[Taps * factor];
+        for (int k = 0; k < Taps; k++) for (int j = 0; j < factor; j++) _coef[k * factor + j] = _phases[j][k];
         _buf = new double[Taps - 1 + 4096];
     }
 
@@ -378,24 +421,42 @@ public sealed class BlockUpsampler
         if (_buf.Length < hist + n) Array.Resize(ref _buf, hist + n);
         x.CopyTo(_buf.AsSpan(hist));
         ref double b = ref System.Runtime.InteropServices.MemoryMarshal.GetArrayDataReference(_buf);
-        int w = Vector<double>.Count;
+        ref double o = ref System.Runtime.InteropServices.MemoryMarshal.GetReference(output);
+        int w = Vector<double>.Count, i = 0;
+        if (Factor == 8)
+        {
+            // All eight phases of a vector of inputs at once: one load of the inputs per tap feeds eight sums.
+            ref double c = ref System.Runtime.InteropServices.MemoryMarshal.GetArrayDataReference(_coef);
+            for (; i + w <= n; i += w)
+            {
+                Vector<double> a0 = default, a1 = default, a2 = default, a3 = default, a4 = default, a5 = default, a6 = default, a7 = default;
+                for (int k = 0; k < Taps; k++)
+                {
+                    Vector<double> xk = VectorMath.Load(ref b, i + k);
+                    ref double ck = ref Unsafe.Add(ref c, 8 * k);
+                    a0 = Vector.FusedMultiplyAdd(new Vector<double>(ck), xk, a0);
+                    a1 = Vector.FusedMultiplyAdd(new Vector<double>(Unsafe.Add(ref ck, 1)), xk, a1);
+                    a2 = Vector.FusedMultiplyAdd(new Vector<double>(Unsafe.Add(ref ck, 2)), xk, a2);
+                    a3 = Vector.FusedMultiplyAdd(new Vector<double>(Unsafe.Add(ref ck, 3)), xk, a3);
+                    a4 = Vector.FusedMultiplyAdd(new Vector<double>(Unsafe.Add(ref ck, 4)), xk, a4);
+                    a5 = Vector.FusedMultiplyAdd(new Vector<double>(Unsafe.Add(ref ck, 5)), xk, a5);
+                    a6 = Vector.FusedMultiplyAdd(new Vector<double>(Unsafe.Add(ref ck, 6)), xk, a6);
+                    a7 = Vector.FusedMultiplyAdd(new Vector<double>(Unsafe.Add(ref ck, 7)), xk, a7);
+                }
+                VectorMath.Store(a0, ref o, i); VectorMath.Store(a1, ref o, n + i);
+                VectorMath.Store(a2, ref o, 2 * n + i); VectorMath.Store(a3, ref o, 3 * n + i);
+                VectorMath.Store(a4, ref o, 4 * n + i); VectorMath.Store(a5, ref o, 5 * n + i);
+                VectorMath.Store(a6, ref o, 6 * n + i); VectorMath.Store(a7, ref o, 7 * n + i);
+            }
+        }
         for (int j = 0; j < Factor; j++)
         {
             ref double h = ref System.Runtime.InteropServices.MemoryMarshal.GetArrayDataReference(_phases[j]);
-            Span<double> o = output.Slice(j * n, n);
-            ref double oj = ref System.Runtime.InteropServices.MemoryMarshal.GetReference(o);
-            int i = 0;
-            for (; i + w <= n; i += w)
-            {
-                Vector<double> a = Vector<double>.Zero;
-                for (int k = 0; k < Taps; k++) a = Vector.FusedMultiplyAdd(new Vector<double>(Unsafe.Add(ref h, k)), VectorMath.Load(ref b, i + k), a);
-                VectorMath.Store(a, ref oj, i);
-            }
-            for (; i < n; i++)
+            for (int ii = i; ii < n; ii++)
             {
                 double s = 0;
-                for (int k = 0; k < Taps; k++) s += Unsafe.Add(ref h, k) * Unsafe.Add(ref b, i + k);
-                o[i] = s;
+                for (int k = 0; k < Taps; k++) s += Unsafe.Add(ref h, k) * Unsafe.Add(ref b, ii + k);
+                output[j * n + ii] = s;
             }
         }
         _buf.AsSpan(n, hist).CopyTo(_buf);

@@ -46,10 +46,11 @@ public static class VectorMath
     {
         Vector<double> ax = Vector.Abs(x), ay = Vector.Abs(y);
         Vector<double> num = Vector.Min(ax, ay), den = Vector.Max(ax, ay);
-        // t in [0, 1]; 0/0 is taken as 0 (atan2(0, 0) = 0).
-        Vector<double> t = Vector.ConditionalSelect(Vector.Equals(den, Vector<double>.Zero), Vector<double>.Zero, num / den);
-        Vector<long> big = Vector.GreaterThan(t, new Vector<double>(0.66));
-        Vector<double> u = Vector.ConditionalSelect(big, (t - Vector<double>.One) / (t + Vector<double>.One), t);
+        // t = num/den in [0, 1]; above 0.66 the argument is (t - 1)/(t + 1) = (num - den)/(num + den).
+        // One division either way; 0/0 is taken as 0 (atan2(0, 0) = 0).
+        Vector<long> big = Vector.GreaterThan(num, new Vector<double>(0.66) * den);
+        Vector<double> top = Vector.ConditionalSelect(big, num - den, num), bottom = Vector.ConditionalSelect(big, num + den, den);
+        Vector<double> u = Vector.ConditionalSelect(Vector.Equals(den, Vector<double>.Zero), Vector<double>.Zero, top / bottom);
         Vector<double> z = u * u;
         Vector<double> p = (((new Vector<double>(P0) * z + new Vector<double>(P1)) * z + new Vector<double>(P2)) * z + new Vector<double>(P3)) * z + new Vector<double>(P4);
         Vector<double> q = ((((z + new Vector<double>(Q0)) * z + new Vector<double>(Q1)) * z + new Vector<double>(Q2)) * z + new Vector<double>(Q3)) * z + new Vector<double>(Q4);

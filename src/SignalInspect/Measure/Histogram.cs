@@ -1,4 +1,5 @@
 using System.Numerics;
+using System.Runtime.CompilerServices;
 using System.Runtime.InteropServices;
 
 namespace SignalInspect.Measure;
@@ -10,7 +11,8 @@ namespace SignalInspect.Measure;
 /// </summary>
 public sealed class Histogram
 {
-    private readonly long[] _counts;
+    private readonly long[] _counts;   // one slot more than the bins: NaN lands there and is not counted
+    private readonly int _bins;
     private readonly double _lo, _width;
 
     /// <summary>Creates a histogram of <paramref name="bins"/> bins over [<paramref name="lo"/>, <paramref name="hi"/>).</summary>
@@ -18,7 +20,8 @@ public sealed class Histogram
     {
         if (!(hi > lo)) throw new ArgumentOutOfRangeException(nameof(hi), hi, "must be above lo");
         ArgumentOutOfRangeException.ThrowIfLessThan(bins, 2);
-        _counts = new long[bins];
+        _counts = new long[bins + 1];
+        _bins = bins;
         _lo = lo;
         _width = (hi - lo) / bins;
     }
@@ -33,7 +36,7 @@ public sealed class Histogram
     public double BinWidth => _width;
 
     /// <summary>Number of bins.</summary>
-    public int Bins => _counts.Length;
+    public int Bins => _bins;
 
     /// <summary>Count of a bin.</summary>
     public long this[int bin] => _counts[bin];
@@ -45,46 +48,42 @@ public sealed class Histogram
     public void Add(double v)
     {
         if (double.IsNaN(v)) return;
-        int b = (int)Math.Clamp(Math.Floor((v - _lo) / _width), 0, _counts.Length - 1);
-        _counts[b]++;
+        _counts[(int)Math.Clamp(Math.Floor((v - _lo) / _width), 0, _bins - 1)]++;
         Count++;
     }
 
     /// <summary>Adds every value of a block (NaN is ignored); the same counts as <see cref="Add(double)"/> one by one.</summary>
     public void Add(ReadOnlySpan<double> values)
     {
-        int n = values.Length, w = Vector<double>.Count, i = 0, last = _counts.Length - 1;
-        long added = 0;
-        Span<long> bins = stackalloc long[Vector<long>.Count];
-        if (Vector.IsHardwareAccelerated)
+        int n = values.Length, w = Vector<double>.Count, i = 0, last = _bins - 1;
+        long nanBefore = _counts[_bins];
+        if (Vector.IsHardwareAccelerated && n >= w)
         {
             var lo = new Vector<double>(_lo);
             var inv = new Vector<double>(1 / _width);
             var top = new Vector<double>(last);
+            var nanSlot = new Vector<double>(_bins);
+            Span<long> bins = stackalloc long[w];
             ReadOnlySpan<Vector<double>> vv = MemoryMarshal.Cast<double, Vector<double>>(values);
-            for (int v = 0; v < vv.Length; v++, i += w)
+            ref long c = ref MemoryMarshal.GetArrayDataReference(_counts);
+            for (int v = 0; v < vv.Length; v++)
             {
                 Vector<double> x = vv[v];
-                // Bin in [0, last] as a double, then to integers; NaN lanes are skipped below.
+                // Bin in [0, last] as a double (NaN to the extra slot), then to integers.
                 Vector<double> f = Vector.Min(Vector.Max(Vector.Floor((x - lo) * inv), Vector<double>.Zero), top);
+                f = Vector.ConditionalSelect(Vector.Equals(x, x), f, nanSlot);
                 Vector.ConvertToInt64(f).CopyTo(bins);
-                for (int l = 0; l < w; l++)
-                {
-                    double xl = x[l];
-                    if (double.IsNaN(xl)) continue;
-                    _counts[bins[l]]++;
-                    added++;
-                }
+                for (int l = 0; l < bins.Length; l++) Unsafe.Add(ref c, (nint)bins[l])++;
             }
+            i = vv.Length * w;
         }
         for (; i < n; i++)
         {
             double v = values[i];
-            if (double.IsNaN(v)) continue;
-            _counts[(int)Math.Clamp(Math.Floor((v - _lo) / _width), 0, last)]++;
-            added++;
+            if (double.IsNaN(v)) _counts[_bins]++;
+            else _counts[(int)Math.Clamp(Math.Floor((v - _lo) / _width), 0, last)]++;
         }
-        Count += added;
+        Count += n - (_counts[_bins] - nanBefore);
     }
 
     /// <summary>Adds the counts of a histogram of the same range and bins.</summary>
@@ -93,7 +92,7 @@ public sealed class Histogram
     {
         if (other._counts.Length != _counts.Length || other._lo != _lo || other._width != _width)
             throw new ArgumentException("the histograms differ in range or bins");
-        for (int i = 0; i < _counts.Length; i++) _counts[i] += other._counts[i];
+        for (int i = 0; i < _bins; i++) _counts[i] += other._counts[i];
         Count += other.Count;
     }
 
@@ -103,7 +102,7 @@ public sealed class Histogram
         if (Count == 0) return double.NaN;
         double target = Math.Clamp(p, 0, 1) * Count;
         long cum = 0;
-        for (int b = 0; b < _counts.Length; b++)
+        for (int b = 0; b < _bins; b++)
         {
             if (cum + _counts[b] >= target && _counts[b] > 0)
             {
@@ -112,15 +111,15 @@ public sealed class Histogram
             }
             cum += _counts[b];
         }
-        return _lo + _counts.Length * _width;
+        return _lo + _bins * _width;
     }
 
     /// <summary>Fraction of the values within [<paramref name="a"/>, <paramref name="b"/>].</summary>
     public double FractionBetween(double a, double b)
     {
         if (Count == 0) return 0;
-        int i0 = (int)Math.Clamp(Math.Floor((a - _lo) / _width), 0, _counts.Length - 1);
-        int i1 = (int)Math.Clamp(Math.Floor((b - _lo) / _width), 0, _counts.Length - 1);
+        int i0 = (int)Math.Clamp(Math.Floor((a - _lo) / _width), 0, _bins - 1);
+        int i1 = (int)Math.Clamp(Math.Floor((b - _lo) / _width), 0, _bins - 1);
         long s = 0;
         for (int i = i0; i <= i1; i++) s += _counts[i];
         return (double)s / Count;
