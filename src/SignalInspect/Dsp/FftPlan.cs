@@ -1,6 +1,7 @@
 using System.Numerics;
 using System.Runtime.CompilerServices;
 using System.Runtime.InteropServices;
+using System.Runtime.Intrinsics;
 
 namespace SignalInspect.Dsp;
 
@@ -206,6 +207,163 @@ public sealed class FftPlan
             Unsafe.Add(ref r, g + 3) = r1 - i3; Unsafe.Add(ref q, g + 3) = i1 + r3;
         }
         LaterStages(re, im);
+        return check;
+    }
+
+    /// <summary>True when <see cref="ForwardWindowedScrambled"/> is available (powers of two from 4).</summary>
+    public bool CanScramble => _inner is null && _n >= 4;
+
+    /// <summary>
+    /// Where <see cref="ForwardWindowedScrambled"/> leaves bin <paramref name="bin"/>: the
+    /// bit-reversed index (the permutation is its own inverse).
+    /// </summary>
+    public int ScrambledIndex(int bin) => _bitReverse[bin];
+
+    /// <summary>
+    /// Forward transform of a windowed segment, X = DFT(w[n] x[n]), with the bins left in
+    /// bit-reversed order: bin k lands at <see cref="ScrambledIndex"/>(k). For sums of |X|^2
+    /// (Welch) the order does not matter until the end, so the permutation is skipped: the input
+    /// is read in natural order (decimation in frequency, Gentleman and Sande 1966), radix-2^2
+    /// passes with SIMD. Returns the sum of the windowed values (not finite when an input was NaN
+    /// or infinite). Powers of two from 4 only (<see cref="CanScramble"/>).
+    /// </summary>
+    /// <exception cref="InvalidOperationException">The size is not a power of two from 4.</exception>
+    public double ForwardWindowedScrambled(ReadOnlySpan<double> samples, bool complex, ReadOnlySpan<double> window, Span<double> re, Span<double> im)
+    {
+        int n = _n;
+        if (!CanScramble) throw new InvalidOperationException("the scrambled transform needs a power-of-two size from 4");
+        if (re.Length != n || im.Length != n || window.Length != n || samples.Length < (complex ? 2 * n : n))
+            throw new ArgumentException($"spans must hold {n} points");
+        double check = LoadWindowed(samples, complex, window, re, im);
+        int vw = Vector<double>.Count;
+        ref double reRef = ref MemoryMarshal.GetReference(re);
+        ref double imRef = ref MemoryMarshal.GetReference(im);
+        int h = n / 2;
+        // Radix-2^2 passes: stage of half-size 2q (twiddle W_4q^k, and -i W_4q^k for the second pair),
+        // then stage of half-size q (twiddle W_2q^k), on groups of 4q.
+        for (; h >= 2 * vw && h >= 2; h /= 4)
+        {
+            int q = h / 2;
+            ref double wAr = ref _twRe[_stageOffset[BitOperations.Log2((uint)h) + 1]];
+            ref double wAi = ref _twIm[_stageOffset[BitOperations.Log2((uint)h) + 1]];
+            ref double wBr = ref _twRe[_stageOffset[BitOperations.Log2((uint)q) + 1]];
+            ref double wBi = ref _twIm[_stageOffset[BitOperations.Log2((uint)q) + 1]];
+            for (int g = 0; g < n; g += 4 * q)
+            {
+                for (int k = 0; k < q; k += vw)
+                {
+                    int i0 = g + k, i1 = i0 + q, i2 = i1 + q, i3 = i2 + q;
+                    Vector<double> a0r = LoadV(ref reRef, i0), a0i = LoadV(ref imRef, i0);
+                    Vector<double> a1r = LoadV(ref reRef, i1), a1i = LoadV(ref imRef, i1);
+                    Vector<double> a2r = LoadV(ref reRef, i2), a2i = LoadV(ref imRef, i2);
+                    Vector<double> a3r = LoadV(ref reRef, i3), a3i = LoadV(ref imRef, i3);
+                    Vector<double> ar = LoadV(ref wAr, k), ai = LoadV(ref wAi, k);
+                    Vector<double> b0r = a0r + a2r, b0i = a0i + a2i, b1r = a1r + a3r, b1i = a1i + a3i;
+                    Vector<double> dr = a0r - a2r, di = a0i - a2i;
+                    // (a1 - a3)(-i) = (a1i - a3i) - i (a1r - a3r)
+                    Vector<double> er = a1i - a3i, ei = a3r - a1r;
+                    Vector<double> b2r = dr * ar - di * ai, b2i = dr * ai + di * ar;
+                    Vector<double> b3r = er * ar - ei * ai, b3i = er * ai + ei * ar;
+                    Vector<double> br = LoadV(ref wBr, k), bi = LoadV(ref wBi, k);
+                    Vector<double> fr = b0r - b1r, fi = b0i - b1i, gr = b2r - b3r, gi = b2i - b3i;
+                    StoreV(b0r + b1r, ref reRef, i0); StoreV(b0i + b1i, ref imRef, i0);
+                    StoreV(fr * br - fi * bi, ref reRef, i1); StoreV(fr * bi + fi * br, ref imRef, i1);
+                    StoreV(b2r + b3r, ref reRef, i2); StoreV(b2i + b3i, ref imRef, i2);
+                    StoreV(gr * br - gi * bi, ref reRef, i3); StoreV(gr * bi + gi * br, ref imRef, i3);
+                }
+            }
+        }
+        // What is left: radix-2 stages down to half-size 4, then a last radix-4 (half-sizes 2 and 1) or radix-2 (1).
+        for (; h > 2; h /= 2)
+        {
+            ref double wr0 = ref _twRe[_stageOffset[BitOperations.Log2((uint)h) + 1]];
+            ref double wi0 = ref _twIm[_stageOffset[BitOperations.Log2((uint)h) + 1]];
+            for (int g = 0; g < n; g += 2 * h)
+            {
+                for (int k = 0; k < h; k++)
+                {
+                    int a = g + k, b = a + h;
+                    double dr = Unsafe.Add(ref reRef, a) - Unsafe.Add(ref reRef, b), di = Unsafe.Add(ref imRef, a) - Unsafe.Add(ref imRef, b);
+                    Unsafe.Add(ref reRef, a) += Unsafe.Add(ref reRef, b);
+                    Unsafe.Add(ref imRef, a) += Unsafe.Add(ref imRef, b);
+                    double wr = Unsafe.Add(ref wr0, k), wi = Unsafe.Add(ref wi0, k);
+                    Unsafe.Add(ref reRef, b) = dr * wr - di * wi;
+                    Unsafe.Add(ref imRef, b) = dr * wi + di * wr;
+                }
+            }
+        }
+        if (h == 2)
+        {
+            for (int g = 0; g < n; g += 4)
+            {
+                double x0r = Unsafe.Add(ref reRef, g), x0i = Unsafe.Add(ref imRef, g), x1r = Unsafe.Add(ref reRef, g + 1), x1i = Unsafe.Add(ref imRef, g + 1);
+                double x2r = Unsafe.Add(ref reRef, g + 2), x2i = Unsafe.Add(ref imRef, g + 2), x3r = Unsafe.Add(ref reRef, g + 3), x3i = Unsafe.Add(ref imRef, g + 3);
+                double b0r = x0r + x2r, b0i = x0i + x2i, b2r = x0r - x2r, b2i = x0i - x2i;
+                double b1r = x1r + x3r, b1i = x1i + x3i, b3r = x1i - x3i, b3i = x3r - x1r;   // (x1 - x3)(-i)
+                Unsafe.Add(ref reRef, g) = b0r + b1r; Unsafe.Add(ref imRef, g) = b0i + b1i;
+                Unsafe.Add(ref reRef, g + 1) = b0r - b1r; Unsafe.Add(ref imRef, g + 1) = b0i - b1i;
+                Unsafe.Add(ref reRef, g + 2) = b2r + b3r; Unsafe.Add(ref imRef, g + 2) = b2i + b3i;
+                Unsafe.Add(ref reRef, g + 3) = b2r - b3r; Unsafe.Add(ref imRef, g + 3) = b2i - b3i;
+            }
+        }
+        else if (h == 1)
+        {
+            for (int g = 0; g < n; g += 2)
+            {
+                double ar = Unsafe.Add(ref reRef, g), ai = Unsafe.Add(ref imRef, g), br = Unsafe.Add(ref reRef, g + 1), bi = Unsafe.Add(ref imRef, g + 1);
+                Unsafe.Add(ref reRef, g) = ar + br; Unsafe.Add(ref imRef, g) = ai + bi;
+                Unsafe.Add(ref reRef, g + 1) = ar - br; Unsafe.Add(ref imRef, g + 1) = ai - bi;
+            }
+        }
+        return check;
+    }
+
+    /// <summary>re, im = window x samples in natural order (interleaved I/Q split, or real with im = 0); returns their sum.</summary>
+    private static double LoadWindowed(ReadOnlySpan<double> samples, bool complex, ReadOnlySpan<double> window, Span<double> re, Span<double> im)
+    {
+        int n = re.Length, i = 0;
+        ref double x = ref MemoryMarshal.GetReference(samples);
+        ref double w = ref MemoryMarshal.GetReference(window);
+        ref double r = ref MemoryMarshal.GetReference(re);
+        ref double q = ref MemoryMarshal.GetReference(im);
+        var acc = System.Runtime.Intrinsics.Vector256<double>.Zero;
+        if (complex && System.Runtime.Intrinsics.X86.Avx2.IsSupported)
+        {
+            for (; i + 4 <= n; i += 4)
+            {
+                var v0 = System.Runtime.Intrinsics.Vector256.LoadUnsafe(ref x, (nuint)(2 * i));
+                var v1 = System.Runtime.Intrinsics.Vector256.LoadUnsafe(ref x, (nuint)(2 * i + 4));
+                var wv = System.Runtime.Intrinsics.Vector256.LoadUnsafe(ref w, (nuint)i);
+                // [r0 i0 r1 i1], [r2 i2 r3 i3] -> [r0 r2 r1 r3], [i0 i2 i1 i3] -> natural order.
+                var lo = System.Runtime.Intrinsics.X86.Avx.UnpackLow(v0, v1);
+                var hi = System.Runtime.Intrinsics.X86.Avx.UnpackHigh(v0, v1);
+                var vr = System.Runtime.Intrinsics.X86.Avx2.Permute4x64(lo, 0b11_01_10_00) * wv;
+                var vi = System.Runtime.Intrinsics.X86.Avx2.Permute4x64(hi, 0b11_01_10_00) * wv;
+                vr.StoreUnsafe(ref r, (nuint)i);
+                vi.StoreUnsafe(ref q, (nuint)i);
+                acc += vr + vi;
+            }
+        }
+        else if (!complex && Vector<double>.Count == 4 && System.Runtime.Intrinsics.Vector256.IsHardwareAccelerated)
+        {
+            for (; i + 4 <= n; i += 4)
+            {
+                var vr = System.Runtime.Intrinsics.Vector256.LoadUnsafe(ref x, (nuint)i) * System.Runtime.Intrinsics.Vector256.LoadUnsafe(ref w, (nuint)i);
+                vr.StoreUnsafe(ref r, (nuint)i);
+                System.Runtime.Intrinsics.Vector256<double>.Zero.StoreUnsafe(ref q, (nuint)i);
+                acc += vr;
+            }
+        }
+        double check = System.Runtime.Intrinsics.Vector256.Sum(acc);
+        for (; i < n; i++)
+        {
+            double wi = Unsafe.Add(ref w, i);
+            double vr = (complex ? Unsafe.Add(ref x, 2 * i) : Unsafe.Add(ref x, i)) * wi;
+            double vi = complex ? Unsafe.Add(ref x, 2 * i + 1) * wi : 0;
+            Unsafe.Add(ref r, i) = vr;
+            Unsafe.Add(ref q, i) = vi;
+            check += vr + vi;
+        }
         return check;
     }
 

@@ -48,7 +48,11 @@ public static class WelchEstimator
         rows = (int)((segments + perRow - 1) / perRow);
         int q = (bins + settings.SpectrogramColumns - 1) / settings.SpectrogramColumns;
         int columns = (bins + q - 1) / q;
-        var layout = new Layout(n, step, complex, bins, info.SampleRateHz, window, perRow, segments, q, columns) { RowMax = settings.SpectrogramAveraging == SpectrumAveraging.MaxHold };
+        // Power-of-two sizes leave the bins of each transform in bit-reversed order (no permutation
+        // per segment); the sums are put back in order once, at the end.
+        var probe = new FftPlan(n);
+        int[]? slots = probe.CanScramble ? [.. Enumerable.Range(0, n).Select(probe.ScrambledIndex)] : null;
+        var layout = new Layout(n, step, complex, bins, info.SampleRateHz, window, perRow, segments, q, columns, slots) { RowMax = settings.SpectrogramAveraging == SpectrumAveraging.MaxHold };
 
         int threads = Math.Max(1, Math.Min(settings.Threads ?? Environment.ProcessorCount, rows));
         var workers = new Worker[threads];
@@ -118,7 +122,7 @@ public static class WelchEstimator
     }
 
     /// <summary>The fixed geometry of one estimate: bin order, scaling, rows.</summary>
-    private sealed class Layout(int n, int step, bool complex, int bins, double fs, Window window, long perRow, long segments, int q, int columns)
+    private sealed class Layout(int n, int step, bool complex, int bins, double fs, Window window, long perRow, long segments, int q, int columns, int[]? slots)
     {
         public int N => n;
         public int Step => step;
@@ -130,8 +134,15 @@ public static class WelchEstimator
 
         private readonly double _density = 1.0 / (fs * window.SumOfSquares);
 
-        /// <summary>FFT bin of output index i (ascending frequency).</summary>
-        public int BinOf(int i) => complex ? (i - n / 2 + n) % n : i;
+        /// <summary>Whether the transforms leave their bins in bit-reversed order.</summary>
+        public bool Scrambled => slots is not null;
+
+        /// <summary>Where the sums hold output index i (ascending frequency): its FFT bin, bit-reversed when the transforms leave it so.</summary>
+        public int BinOf(int i)
+        {
+            int bin = complex ? (i - n / 2 + n) % n : i;
+            return slots is null ? bin : slots[bin];
+        }
 
         public double[] Frequencies()
         {
@@ -175,12 +186,14 @@ public static class WelchEstimator
     {
         private readonly Layout _l;
         private readonly FftPlan _fft;
+        private readonly bool _scrambled;
         private readonly double[] _re, _im, _w, _row;
 
         public Worker(Layout layout)
         {
             _l = layout;
             _fft = new FftPlan(layout.N);
+            _scrambled = layout.Scrambled;
             _re = new double[layout.N];
             _im = new double[layout.N];
             _w = layout.Window.Coefficients.ToArray();
@@ -239,7 +252,7 @@ public static class WelchEstimator
 
         private void Periodogram(ReadOnlySpan<double> x, bool complex)
         {
-            double check = _fft.ForwardWindowed(x, complex, _w, _re, _im);
+            double check = Transform(x, complex);
             if (!double.IsFinite(check))
             {
                 // The segment held NaN or infinity: take those samples as 0.
@@ -247,10 +260,13 @@ public static class WelchEstimator
                 int n = _l.N;
                 var clean = new double[complex ? 2 * n : n];
                 for (int i = 0; i < clean.Length; i++) clean[i] = double.IsFinite(x[i]) ? x[i] : 0;
-                _fft.ForwardWindowed(clean, complex, _w, _re, _im);
+                Transform(clean, complex);
             }
             Accumulate();
         }
+
+        private double Transform(ReadOnlySpan<double> x, bool complex) =>
+            _scrambled ? _fft.ForwardWindowedScrambled(x, complex, _w, _re, _im) : _fft.ForwardWindowed(x, complex, _w, _re, _im);
 
         /// <summary>|X|^2 of the transformed segment into the sum, the max-hold and the current row, in one pass.</summary>
         private void Accumulate()

@@ -114,4 +114,42 @@ public class FftPlanTests
         Assert.Throws<ArgumentOutOfRangeException>(() => new FftPlan(0));
         Assert.Throws<ArgumentException>(() => new FftPlan(8).Forward(new double[4], new double[8]));
     }
+
+    [Theory]
+    [InlineData(4, true)] [InlineData(8, true)] [InlineData(16, false)] [InlineData(32, true)] [InlineData(64, true)] [InlineData(128, false)]
+    [InlineData(256, true)] [InlineData(2048, true)] [InlineData(4096, true)] [InlineData(4096, false)] [InlineData(16384, true)]
+    public void Windowed_transforms_match_the_direct_DFT_in_natural_and_scrambled_order(int n, bool complex)
+    {
+        var (a, b) = RandomSignal(n, 11 * n);
+        var samples = new double[complex ? 2 * n : n];
+        for (int i = 0; i < n; i++)
+        {
+            if (complex) { samples[2 * i] = a[i]; samples[2 * i + 1] = b[i]; }
+            else samples[i] = a[i];
+        }
+        double[] w = [.. Window.Create(WindowKind.Hann, n).Coefficients];
+        double[] xr = [.. Enumerable.Range(0, n).Select(i => a[i] * w[i])], xi = [.. Enumerable.Range(0, n).Select(i => complex ? b[i] * w[i] : 0)];
+        Complex[] want = n <= 4096 ? DirectDft(xr, xi) : Reference(xr, xi);
+        var plan = new FftPlan(n);
+        double[] re = new double[n], im = new double[n], sr = new double[n], si = new double[n];
+        double c1 = plan.ForwardWindowed(samples, complex, w, re, im);
+        double c2 = plan.ForwardWindowedScrambled(samples, complex, w, sr, si);
+        Assert.Equal(xr.Sum() + xi.Sum(), c1, 9);
+        Assert.Equal(c1, c2, 9);
+        double scale = Math.Sqrt(n);
+        for (int k = 0; k < n; k++)
+        {
+            int at = plan.ScrambledIndex(k);
+            Assert.True(Math.Abs(re[k] - want[k].Real) < 1e-12 * scale && Math.Abs(im[k] - want[k].Imaginary) < 1e-12 * scale, $"natural bin {k}");
+            Assert.True(Math.Abs(sr[at] - want[k].Real) < 1e-12 * scale && Math.Abs(si[at] - want[k].Imaginary) < 1e-12 * scale, $"scrambled bin {k}");
+        }
+    }
+
+    /// <summary>MathNet.Numerics' FFT (the reference library) where a direct DFT would be slow.</summary>
+    private static Complex[] Reference(double[] re, double[] im)
+    {
+        var c = re.Select((r, i) => new Complex(r, im[i])).ToArray();
+        Fourier.Forward(c, FourierOptions.Matlab);
+        return c;
+    }
 }
