@@ -370,10 +370,10 @@ public sealed class BlockUpsampler
     private readonly double[] _coef;       // the same, tap-major: _coef[k * L + j] = _phases[j][k]
     private double[] _buf;                 // Taps - 1 history samples, then the block
 
-    /// <summary>Creates an interpolator by <paramref name="factor"/> (2 to 64).</summary>
+    /// <summary>Creates an interpolator by <paramref name="factor"/> (1, a pure delay of 8 samples, to 64).</summary>
     public BlockUpsampler(int factor)
     {
-        ArgumentOutOfRangeException.ThrowIfLessThan(factor, 2);
+        ArgumentOutOfRangeException.ThrowIfLessThan(factor, 1);
         ArgumentOutOfRangeException.ThrowIfGreaterThan(factor, 64);
         Factor = factor;
         int total = (Taps - 1) * factor + 1;
@@ -448,6 +448,29 @@ public sealed class BlockUpsampler
                 VectorMath.Store(a4, ref o, 4 * n + i); VectorMath.Store(a5, ref o, 5 * n + i);
                 VectorMath.Store(a6, ref o, 6 * n + i); VectorMath.Store(a7, ref o, 7 * n + i);
             }
+        }
+        else
+        {
+            for (int j = 0; j < Factor; j++)
+            {
+                ref double h = ref System.Runtime.InteropServices.MemoryMarshal.GetArrayDataReference(_phases[j]);
+                for (int ii = 0; ii + 4 * w <= n; ii += 4 * w)
+                {
+                    Vector<double> a0 = default, a1 = default, a2 = default, a3 = default;
+                    for (int k = 0; k < Taps; k++)
+                    {
+                        var hk = new Vector<double>(Unsafe.Add(ref h, k));
+                        ref double bk = ref Unsafe.Add(ref b, ii + k);
+                        a0 = Vector.FusedMultiplyAdd(hk, VectorMath.Load(ref bk, 0), a0);
+                        a1 = Vector.FusedMultiplyAdd(hk, VectorMath.Load(ref bk, w), a1);
+                        a2 = Vector.FusedMultiplyAdd(hk, VectorMath.Load(ref bk, 2 * w), a2);
+                        a3 = Vector.FusedMultiplyAdd(hk, VectorMath.Load(ref bk, 3 * w), a3);
+                    }
+                    VectorMath.Store(a0, ref o, j * n + ii); VectorMath.Store(a1, ref o, j * n + ii + w);
+                    VectorMath.Store(a2, ref o, j * n + ii + 2 * w); VectorMath.Store(a3, ref o, j * n + ii + 3 * w);
+                }
+            }
+            i = n / (4 * w) * (4 * w);
         }
         for (int j = 0; j < Factor; j++)
         {

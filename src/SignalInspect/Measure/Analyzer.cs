@@ -244,7 +244,9 @@ public static class Analyzer
             PostLowPassHz = postLp,
             PostHighPassHz = options.PostHighPassHz,
             DeEmphasisUs = options.DeEmphasisUs,
-            PeakStatistic = "positive peak = 99.9th percentile, negative peak = 0.1th percentile of the post-detection signal, interpolated 8x between samples; " + peakNote,
+            PeakStatistic = "positive peak = 99.9th percentile, negative peak = 0.1th percentile of the post-detection signal, "
+                            + (b.Interpolation > 1 ? $"interpolated {b.Interpolation}x between samples (30 samples per period at the post-detection cutoff); " : "taken at the samples (30 or more per period at the post-detection cutoff); ")
+                            + peakNote,
             ObwNoise = options.ObwNoise,
         };
         string sha = hash.Result;

@@ -22,6 +22,8 @@ internal sealed class PassResult
     public double[] WaveEnvelope = [], WaveFreq = [];
     /// <summary>Unwrapped phase at the start of each chunk (see <see cref="DemodulationPass"/>), for a later pass over the same chunks.</summary>
     public double[] ChunkPhaseOffsets = [];
+    /// <summary>Interpolation factor of the peak statistics.</summary>
+    public int Interpolation;
 }
 
 /// <summary>
@@ -44,11 +46,23 @@ internal static class DemodulationPass
 
     private const int InputBlock = 65536;
     private const int WaveMax = 16384;
-    private const int Up = 8;
     /// <summary>A sample component this close to full scale counts as clipped (the top code of a 16-bit capture is 0.99997).</summary>
     private const double FullScaleCode = 0.9999;
 
-    private sealed record Setup(PassPlan P, double[] LpTaps, long Expected, int Settle, int DemodFft, double AmpRange, int Chunks, int WarmUp,
+    /// <summary>
+    /// Interpolation factor of the peak statistics: enough for 30 samples per period of the highest
+    /// frequency the post-detection low-pass passes (a sampled sine's peak then reads at most
+    /// 1 - cos(pi/30) = 0.55 % low, and typically far less), from 1 to 8.
+    /// </summary>
+    public static int InterpolationFactor(double postLowPassHz, double fsd)
+    {
+        double need = 30 * Math.Min(postLowPassHz, fsd / 2) / fsd;
+        int l = 1;
+        while (l < 8 && l < need) l *= 2;
+        return l;
+    }
+
+    private sealed record Setup(PassPlan P, double[] LpTaps, long Expected, int Settle, int DemodFft, double AmpRange, int Chunks, int WarmUp, int Up,
                                 long FirstSegment, long SegmentCandidates, (double Intercept, double Slope)? Fit, double[]? Offsets)
     {
         public int Hop => DemodFft / 2;
@@ -96,7 +110,7 @@ internal static class DemodulationPass
         int hop = demodFft / 2;
         long firstSeg = (settle + hop - 1) / hop;
         long lastSeg = (expected - demodFft) / hop;
-        var s = new Setup(p, lpTaps, expected, settle, demodFft, p.Complex ? 1.5 : 0.75, chunks, warm, firstSeg, Math.Max(0, lastSeg - firstSeg + 1), fit, offsets);
+        var s = new Setup(p, lpTaps, expected, settle, demodFft, p.Complex ? 1.5 : 0.75, chunks, warm, InterpolationFactor(p.PostLowPassHz, p.Fsd), firstSeg, Math.Max(0, lastSeg - firstSeg + 1), fit, offsets);
 
         var sums = new ChunkSums[chunks];
         int threads = Math.Max(1, Math.Min(p.Threads, chunks));
@@ -143,6 +157,7 @@ internal static class DemodulationPass
             WaveEnvelope = waveA,
             WaveFreq = waveF,
             ChunkPhaseOffsets = new double[chunks],
+            Interpolation = s.Up,
         };
         for (int w = 1; w < threads; w++)
         {
@@ -214,7 +229,7 @@ internal static class DemodulationPass
             _dev = new double[maxOut];
             _df = new double[maxOut];
             _pv = new double[maxOut];
-            _ubuf = new double[Up * maxOut];
+            _ubuf = new double[s.Up * maxOut];
             _ringA = new double[s.DemodFft];
             _ringF = new double[s.DemodFft];
             _ringT = new double[s.DemodFft];
@@ -243,9 +258,9 @@ internal static class DemodulationPass
             var lp = new BlockFir(s.LpTaps);
             OnePole? hp = p.HighPassHz is { } hz ? OnePole.HighPass(hz, p.Fsd) : null;
             OnePole? de = p.DeEmphasisUs is { } us ? OnePole.DeEmphasis(us * 1e-6, p.Fsd) : null;
-            var upA = new BlockUpsampler(Up);
-            var upF = new BlockUpsampler(Up);
-            var upP = s.Fit is null ? null : new BlockUpsampler(Up);
+            var upA = new BlockUpsampler(s.Up);
+            var upF = new BlockUpsampler(s.Up);
+            var upP = s.Fit is null ? null : new BlockUpsampler(s.Up);
             if (c == 0) { WaveA.Clear(); WaveF.Clear(); }
 
             var k = new ChunkSums();
@@ -324,10 +339,16 @@ internal static class DemodulationPass
         /// <summary>Feeds a block to an interpolator; the outputs of inputs from <paramref name="from"/> on go to the histogram.</summary>
         private void Interpolate(BlockUpsampler up, ReadOnlySpan<double> x, int from, Histogram h)
         {
-            int len = x.Length;
-            up.Process(x, _ubuf.AsSpan(0, Up * len));
+            int len = x.Length, factor = up.Factor;
+            if (factor == 1)
+            {
+                // No interpolation: the samples themselves (the interpolator would only delay them).
+                if (from < len) h.Add(x[from..]);
+                return;
+            }
+            up.Process(x, _ubuf.AsSpan(0, factor * len));
             if (from >= len) return;
-            for (int j = 0; j < Up; j++) h.Add(_ubuf.AsSpan(j * len + from, len - from));
+            for (int j = 0; j < factor; j++) h.Add(_ubuf.AsSpan(j * len + from, len - from));
         }
 
         private void AddSegment(LineSpectrum spectrum, double[] ring, long start)
