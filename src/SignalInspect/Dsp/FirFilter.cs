@@ -249,13 +249,20 @@ public sealed class ChannelDecimator
 
 /// <summary>
 /// A real FIR filter on a stream, a block at a time: y[n] = sum_k h[k] x[n - k], with zero
-/// history before the first sample (the post-detection filters). SIMD across outputs. A plan
-/// with state.
+/// history before the first sample (the post-detection filters). Short filters run directly, SIMD
+/// across outputs; from <see cref="FastFromTaps"/> taps on, by fast convolution (overlap-save,
+/// Oppenheim and Schafer), two real segments per complex transform: the same outputs to rounding,
+/// at a cost that hardly grows with the length. A plan with state.
 /// </summary>
 public sealed class BlockFir
 {
+    /// <summary>Taps from which the fast convolution is used.</summary>
+    public const int FastFromTaps = 64;
+
     private readonly double[] _taps;   // reversed: window oldest first
     private double[] _buf;             // taps - 1 history samples, then the block
+    private readonly FftPlan? _plan;
+    private readonly double[] _hRe = [], _hIm = [], _zr = [], _zi = [];
 
     /// <summary>Creates the filter from its taps.</summary>
     public BlockFir(double[] taps)
@@ -263,6 +270,19 @@ public sealed class BlockFir
         ArgumentOutOfRangeException.ThrowIfZero(taps.Length);
         _taps = [.. taps.Reverse()];
         _buf = new double[taps.Length - 1 + 4096];
+        if (taps.Length >= FastFromTaps)
+        {
+            int n = (int)System.Numerics.BitOperations.RoundUpToPowerOf2((uint)(4 * taps.Length));
+            _plan = new FftPlan(n);
+            _hRe = new double[n];
+            _hIm = new double[n];
+            taps.CopyTo(_hRe, 0);
+            _plan.Forward(_hRe, _hIm);
+            // The inverse transform's 1/N folded into the filter's spectrum.
+            for (int k = 0; k < n; k++) { _hRe[k] /= n; _hIm[k] /= n; }
+            _zr = new double[n];
+            _zi = new double[n];
+        }
     }
 
     /// <summary>Group delay in samples ((taps - 1) / 2).</summary>
@@ -271,6 +291,7 @@ public sealed class BlockFir
     /// <summary>Filters a block; <paramref name="y"/> may be <paramref name="x"/> itself.</summary>
     public void Process(ReadOnlySpan<double> x, Span<double> y)
     {
+        if (_plan is not null) { ProcessFast(x, y); return; }
         int t = _taps.Length, n = x.Length, hist = t - 1;
         if (_buf.Length < hist + n) Array.Resize(ref _buf, hist + n);
         x.CopyTo(_buf.AsSpan(hist));
@@ -313,6 +334,37 @@ public sealed class BlockFir
             y[i] = s;
         }
         _buf.AsSpan(n, hist).CopyTo(_buf);
+    }
+
+    /// <summary>
+    /// Overlap-save: the segment of N inputs from buffer index s yields the L = N - taps + 1 outputs
+    /// from s on (the first taps - 1 values of the circular convolution are discarded); segments s
+    /// and s + L share one complex transform as its real and imaginary parts (the filter is real).
+    /// </summary>
+    private void ProcessFast(ReadOnlySpan<double> x, Span<double> y)
+    {
+        int t = _taps.Length, m = x.Length, hist = t - 1, n = _zr.Length, l = n - t + 1;
+        if (_buf.Length < hist + m + 2 * n) Array.Resize(ref _buf, hist + m + 2 * n);
+        x.CopyTo(_buf.AsSpan(hist));
+        _buf.AsSpan(hist + m, 2 * n).Clear();
+        for (int start = 0; start < m; start += 2 * l)
+        {
+            _buf.AsSpan(start, n).CopyTo(_zr);
+            _buf.AsSpan(start + l, n).CopyTo(_zi);
+            _plan!.Forward(_zr, _zi);
+            for (int k = 0; k < n; k++)
+            {
+                double a = _zr[k], b = _zi[k], c = _hRe[k], d = _hIm[k];
+                // conj for the inverse by the forward transform: IDFT(Z) = conj(DFT(conj Z)) / N.
+                _zr[k] = a * c - b * d;
+                _zi[k] = -(a * d + b * c);
+            }
+            _plan.Forward(_zr, _zi);
+            int first = Math.Min(l, m - start), second = Math.Min(l, m - start - l);
+            for (int u = 0; u < first; u++) y[start + u] = _zr[hist + u];
+            for (int u = 0; u < second; u++) y[start + l + u] = -_zi[hist + u];
+        }
+        _buf.AsSpan(m, hist).CopyTo(_buf);
     }
 }
 
