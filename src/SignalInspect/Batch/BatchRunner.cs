@@ -148,17 +148,8 @@ public static class BatchRunner
     /// <summary>SHA-256 of a capture's content: the file, and for a SigMF pair its data file too.</summary>
     public static string ContentHash(string path)
     {
-        using var sha = IncrementalHash.CreateHash(HashAlgorithmName.SHA256);
-        void Feed(string p)
-        {
-            using FileStream fs = ByteSource.OpenReadOnly(p);
-            byte[] buf = new byte[1 << 20];
-            int n;
-            while ((n = fs.Read(buf)) > 0) sha.AppendData(buf, 0, n);
-        }
-        Feed(path);
-        if (path.EndsWith(".sigmf-meta", StringComparison.OrdinalIgnoreCase) && File.Exists(path[..^11] + ".sigmf-data")) Feed(path[..^11] + ".sigmf-data");
-        return Convert.ToHexStringLower(sha.GetHashAndReset());
+        string data = path.EndsWith(".sigmf-meta", StringComparison.OrdinalIgnoreCase) ? path[..^11] + ".sigmf-data" : "";
+        return data.Length > 0 && File.Exists(data) ? FileHash.Sha256(path, data) : FileHash.Sha256(path);
     }
 
     /// <summary>Runs the batch.</summary>

@@ -1,4 +1,5 @@
 using System.Buffers.Binary;
+using System.Numerics;
 using System.Runtime.InteropServices;
 
 namespace SignalInspect.Capture;
@@ -66,11 +67,7 @@ internal sealed class SampleDecoder
         switch (_format.Encoding)
         {
             case ComponentEncoding.Float32:
-                if (!swap)
-                {
-                    ReadOnlySpan<float> f = MemoryMarshal.Cast<byte, float>(src);
-                    for (int i = 0; i < n; i++) dst[i] = f[i];
-                }
+                if (!swap) WidenFloat(MemoryMarshal.Cast<byte, float>(src)[..n], dst);
                 else
                 {
                     for (int i = 0; i < n; i++) dst[i] = BinaryPrimitives.ReadSingleBigEndian(src[(4 * i)..]);
@@ -84,14 +81,10 @@ internal sealed class SampleDecoder
                 for (int i = 0; i < n; i++) dst[i] = (sbyte)src[i] * inv;
                 break;
             case ComponentEncoding.UInt8:
-                for (int i = 0; i < n; i++) dst[i] = (src[i] - off) / fullScale;
+                WidenUInt8(src[..n], off, fullScale, dst);
                 break;
             case ComponentEncoding.Int16:
-                if (!swap)
-                {
-                    ReadOnlySpan<short> s = MemoryMarshal.Cast<byte, short>(src);
-                    for (int i = 0; i < n; i++) dst[i] = s[i] * inv;
-                }
+                if (!swap) WidenInt16(MemoryMarshal.Cast<byte, short>(src)[..n], inv, dst);
                 else for (int i = 0; i < n; i++) dst[i] = BinaryPrimitives.ReadInt16BigEndian(src[(2 * i)..]) * inv;
                 break;
             case ComponentEncoding.UInt16:
@@ -126,5 +119,62 @@ internal sealed class SampleDecoder
                 }
                 break;
         }
+    }
+
+    // SIMD widening of the common formats (the same values as the scalar loops: conversions to
+    // double are exact, and the scaling is the same single multiply or division per value).
+
+    private static void WidenFloat(ReadOnlySpan<float> f, Span<double> dst)
+    {
+        int w = Vector<float>.Count, i = 0;
+        for (; i + w <= f.Length; i += w)
+        {
+            Vector.Widen(new Vector<float>(f.Slice(i, w)), out Vector<double> lo, out Vector<double> hi);
+            lo.CopyTo(dst[i..]);
+            hi.CopyTo(dst[(i + w / 2)..]);
+        }
+        for (; i < f.Length; i++) dst[i] = f[i];
+    }
+
+    private static void WidenInt16(ReadOnlySpan<short> s, double inv, Span<double> dst)
+    {
+        int w = Vector<short>.Count, i = 0, q = Vector<double>.Count;
+        var scale = new Vector<double>(inv);
+        for (; i + w <= s.Length; i += w)
+        {
+            Vector.Widen(new Vector<short>(s.Slice(i, w)), out Vector<int> a, out Vector<int> b);
+            Vector.Widen(a, out Vector<long> a0, out Vector<long> a1);
+            Vector.Widen(b, out Vector<long> b0, out Vector<long> b1);
+            (Vector.ConvertToDouble(a0) * scale).CopyTo(dst[i..]);
+            (Vector.ConvertToDouble(a1) * scale).CopyTo(dst[(i + q)..]);
+            (Vector.ConvertToDouble(b0) * scale).CopyTo(dst[(i + 2 * q)..]);
+            (Vector.ConvertToDouble(b1) * scale).CopyTo(dst[(i + 3 * q)..]);
+        }
+        for (; i < s.Length; i++) dst[i] = s[i] * inv;
+    }
+
+    private static void WidenUInt8(ReadOnlySpan<byte> s, double off, double fullScale, Span<double> dst)
+    {
+        int w = Vector<byte>.Count, i = 0, q = Vector<double>.Count;
+        var o = new Vector<double>(off);
+        var fs = new Vector<double>(fullScale);
+        for (; i + w <= s.Length; i += w)
+        {
+            Vector.Widen(new Vector<byte>(s.Slice(i, w)), out Vector<ushort> a, out Vector<ushort> b);
+            Span<Vector<ushort>> halves = [a, b];
+            for (int h = 0; h < 2; h++)
+            {
+                Vector.Widen(halves[h], out Vector<uint> c, out Vector<uint> d);
+                Span<Vector<uint>> quarters = [c, d];
+                for (int k = 0; k < 2; k++)
+                {
+                    Vector.Widen(quarters[k], out Vector<ulong> e, out Vector<ulong> f);
+                    int at = i + (2 * h + k) * 2 * q;
+                    ((Vector.ConvertToDouble(e) - o) / fs).CopyTo(dst[at..]);
+                    ((Vector.ConvertToDouble(f) - o) / fs).CopyTo(dst[(at + q)..]);
+                }
+            }
+        }
+        for (; i < s.Length; i++) dst[i] = (s[i] - off) / fullScale;
     }
 }

@@ -2,6 +2,7 @@ using System.Numerics;
 using System.Runtime.CompilerServices;
 using System.Runtime.InteropServices;
 using System.Runtime.Intrinsics;
+using System.Runtime.Intrinsics.X86;
 
 namespace SignalInspect.Dsp;
 
@@ -217,7 +218,16 @@ public sealed class FftPlan
     /// Where <see cref="ForwardWindowedScrambled"/> leaves bin <paramref name="bin"/>: the
     /// bit-reversed index (the permutation is its own inverse).
     /// </summary>
-    public int ScrambledIndex(int bin) => _bitReverse[bin];
+    public int ScrambledIndex(int bin)
+    {
+        int s = _bitReverse[bin];
+        if (!TransposedTail) return s;
+        // The last radix-4 pass leaves each block of 16 transposed (see ForwardWindowedScrambled).
+        return (s & ~15) | ((s & 3) << 2) | ((s >> 2) & 3);
+    }
+
+    /// <summary>Whether the scrambled transform's last pass runs on 4 x 4 transposed blocks (AVX, 16 points or more).</summary>
+    private bool TransposedTail => _n >= 16 && Avx.IsSupported;
 
     /// <summary>
     /// Forward transform of a windowed segment, X = DFT(w[n] x[n]), with the bins left in
@@ -292,7 +302,24 @@ public sealed class FftPlan
                 }
             }
         }
-        if (h == 2)
+        if (h == 2 && TransposedTail)
+        {
+            // Four groups of four at once: a 4 x 4 transpose puts element j of each group in vector j,
+            // the radix-4 butterflies run across the vectors, and the results stay transposed
+            // (ScrambledIndex accounts for it): for sums of |X|^2 the order is immaterial.
+            for (int g = 0; g < n; g += 16)
+            {
+                var (r0, r1, r2, r3) = Transpose(LoadV4(ref reRef, g), LoadV4(ref reRef, g + 4), LoadV4(ref reRef, g + 8), LoadV4(ref reRef, g + 12));
+                var (i0, i1, i2, i3) = Transpose(LoadV4(ref imRef, g), LoadV4(ref imRef, g + 4), LoadV4(ref imRef, g + 8), LoadV4(ref imRef, g + 12));
+                Vector256<double> b0r = r0 + r2, b0i = i0 + i2, b2r = r0 - r2, b2i = i0 - i2;
+                Vector256<double> b1r = r1 + r3, b1i = i1 + i3, b3r = i1 - i3, b3i = r3 - r1;   // (x1 - x3)(-i)
+                (b0r + b1r).StoreUnsafe(ref reRef, (nuint)g); (b0i + b1i).StoreUnsafe(ref imRef, (nuint)g);
+                (b0r - b1r).StoreUnsafe(ref reRef, (nuint)(g + 4)); (b0i - b1i).StoreUnsafe(ref imRef, (nuint)(g + 4));
+                (b2r + b3r).StoreUnsafe(ref reRef, (nuint)(g + 8)); (b2i + b3i).StoreUnsafe(ref imRef, (nuint)(g + 8));
+                (b2r - b3r).StoreUnsafe(ref reRef, (nuint)(g + 12)); (b2i - b3i).StoreUnsafe(ref imRef, (nuint)(g + 12));
+            }
+        }
+        else if (h == 2)
         {
             for (int g = 0; g < n; g += 4)
             {
@@ -316,6 +343,18 @@ public sealed class FftPlan
             }
         }
         return check;
+    }
+
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    private static Vector256<double> LoadV4(ref double origin, int index) => Vector256.LoadUnsafe(ref origin, (nuint)index);
+
+    /// <summary>4 x 4 transpose of rows a, b, c, d.</summary>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    private static (Vector256<double>, Vector256<double>, Vector256<double>, Vector256<double>) Transpose(Vector256<double> a, Vector256<double> b, Vector256<double> c, Vector256<double> d)
+    {
+        Vector256<double> ab0 = Avx.UnpackLow(a, b), ab1 = Avx.UnpackHigh(a, b);   // a0 b0 a2 b2 | a1 b1 a3 b3
+        Vector256<double> cd0 = Avx.UnpackLow(c, d), cd1 = Avx.UnpackHigh(c, d);
+        return (Avx.Permute2x128(ab0, cd0, 0x20), Avx.Permute2x128(ab1, cd1, 0x20), Avx.Permute2x128(ab0, cd0, 0x31), Avx.Permute2x128(ab1, cd1, 0x31));
     }
 
     /// <summary>re, im = window x samples in natural order (interleaved I/Q split, or real with im = 0); returns their sum.</summary>

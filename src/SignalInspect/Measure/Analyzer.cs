@@ -1,6 +1,5 @@
 using System.Diagnostics;
 using System.Globalization;
-using System.Security.Cryptography;
 using SignalInspect.Capture;
 using SignalInspect.Dsp;
 using SignalInspect.Spectrum;
@@ -30,7 +29,7 @@ public static class Analyzer
         if (info.SampleCount == 0) throw CaptureException.ForFile(info.Path, "holds no samples: there is nothing to measure");
         var (first, count) = source.WindowSamples(options.StartS, options.DurationS);
         var clock = Stopwatch.StartNew();
-        Task<string> hash = Task.Run(() => Sha256(info.DataPath ?? info.Path), cancel);
+        Task<string> hash = Task.Run(() => FileHash.Sha256(info.DataPath ?? info.Path), cancel);
         var warnings = new List<string>(info.Warnings);
 
         // Pass A: the spectrum, the bandwidths and a first carrier estimate.
@@ -526,9 +525,4 @@ public static class Analyzer
         return ([.. t], [.. v], [.. lows]);
     }
 
-    private static string Sha256(string path)
-    {
-        using FileStream fs = ByteSource.OpenReadOnly(path);
-        return Convert.ToHexStringLower(SHA256.HashData(fs));
-    }
 }
