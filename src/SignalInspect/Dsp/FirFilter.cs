@@ -106,6 +106,19 @@ public sealed class ChannelDecimator
     /// <summary>Group delay of the filter in input samples ((taps - 1) / 2).</summary>
     public int DelaySamples => _delay;
 
+    /// <summary>
+    /// Starts again with zero history, as if constructed, with the next input taken as sample
+    /// <paramref name="inputIndex"/> of the stream (the oscillator's phase follows it).
+    /// </summary>
+    public void Reset(long inputIndex = 0)
+    {
+        ArgumentOutOfRangeException.ThrowIfNegative(inputIndex);
+        Array.Clear(_z);
+        _fill = _taps - 1;
+        _next = _taps - 1 + _decimation - 1;
+        _n = inputIndex;
+    }
+
     /// <summary>Output sample rate for a given input rate.</summary>
     public double OutputRateHz(double inputRateHz) => inputRateHz / _decimation;
 
@@ -127,6 +140,12 @@ public sealed class ChannelDecimator
             done += piece;
             _n += piece;
             _fill += piece;
+            while (_next + 3 * _decimation < _fill)
+            {
+                Dot4(_next - _taps + 1, outRe.Slice(produced, 4), outIm.Slice(produced, 4));
+                produced += 4;
+                _next += 4 * _decimation;
+            }
             while (_next + _decimation < _fill)
             {
                 Dot2(_next - _taps + 1, _next + _decimation - _taps + 1, out outRe[produced], out outIm[produced], out outRe[produced + 1], out outIm[produced + 1]);
@@ -231,6 +250,45 @@ public sealed class ChannelDecimator
         (re1, im1) = SumPairs(b0 + b1);
     }
 
+    /// <summary>Four consecutive outputs, windows from <paramref name="s0"/> on, one decimation apart: four sums per load of the taps.</summary>
+    private void Dot4(int s0, Span<double> re, Span<double> im)
+    {
+        int len = 2 * _taps, step = 2 * _decimation;
+        ref float h = ref System.Runtime.InteropServices.MemoryMarshal.GetArrayDataReference(_taps2);
+        ref float z0 = ref Unsafe.Add(ref System.Runtime.InteropServices.MemoryMarshal.GetArrayDataReference(_z), 2 * s0);
+        ref float z1 = ref Unsafe.Add(ref z0, step);
+        ref float z2 = ref Unsafe.Add(ref z1, step);
+        ref float z3 = ref Unsafe.Add(ref z2, step);
+        int w = Vector<float>.Count;
+        // Two sums per output (eight independent chains) so that the FMA latency is hidden.
+        Vector<float> a0 = default, a1 = default, a2 = default, a3 = default, b0 = default, b1 = default, b2 = default, b3 = default;
+        int j = 0;
+        for (; j + 2 * w <= len; j += 2 * w)
+        {
+            Vector<float> hj = LoadF(ref h, j), hk = LoadF(ref h, j + w);
+            a0 = Vector.FusedMultiplyAdd(hj, LoadF(ref z0, j), a0);
+            a1 = Vector.FusedMultiplyAdd(hj, LoadF(ref z1, j), a1);
+            a2 = Vector.FusedMultiplyAdd(hj, LoadF(ref z2, j), a2);
+            a3 = Vector.FusedMultiplyAdd(hj, LoadF(ref z3, j), a3);
+            b0 = Vector.FusedMultiplyAdd(hk, LoadF(ref z0, j + w), b0);
+            b1 = Vector.FusedMultiplyAdd(hk, LoadF(ref z1, j + w), b1);
+            b2 = Vector.FusedMultiplyAdd(hk, LoadF(ref z2, j + w), b2);
+            b3 = Vector.FusedMultiplyAdd(hk, LoadF(ref z3, j + w), b3);
+        }
+        if (j < len)
+        {
+            Vector<float> hj = LoadF(ref h, j);
+            a0 = Vector.FusedMultiplyAdd(hj, LoadF(ref z0, j), a0);
+            a1 = Vector.FusedMultiplyAdd(hj, LoadF(ref z1, j), a1);
+            a2 = Vector.FusedMultiplyAdd(hj, LoadF(ref z2, j), a2);
+            a3 = Vector.FusedMultiplyAdd(hj, LoadF(ref z3, j), a3);
+        }
+        (re[0], im[0]) = SumPairs(a0 + b0);
+        (re[1], im[1]) = SumPairs(a1 + b1);
+        (re[2], im[2]) = SumPairs(a2 + b2);
+        (re[3], im[3]) = SumPairs(a3 + b3);
+    }
+
     /// <summary>The sums of the even (I) and the odd (Q) lanes, in double.</summary>
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
     private static (double Re, double Im) SumPairs(Vector<float> v)
@@ -287,6 +345,9 @@ public sealed class BlockFir
 
     /// <summary>Group delay in samples ((taps - 1) / 2).</summary>
     public int DelaySamples => (_taps.Length - 1) / 2;
+
+    /// <summary>Starts again with zero history, as if constructed.</summary>
+    public void Reset() => Array.Clear(_buf);
 
     /// <summary>Filters a block; <paramref name="y"/> may be <paramref name="x"/> itself.</summary>
     public void Process(ReadOnlySpan<double> x, Span<double> y)
@@ -462,6 +523,9 @@ public sealed class BlockUpsampler
 
     /// <summary>Inputs needed before the outputs are valid.</summary>
     public static int WarmUp => Taps;
+
+    /// <summary>Starts again with zero history, as if constructed.</summary>
+    public void Reset() => Array.Clear(_buf);
 
     /// <summary>
     /// Takes a block of inputs; output j of input i (j &lt; L) goes to out[j * x.Length + i], so
