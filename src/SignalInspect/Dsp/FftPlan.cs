@@ -249,46 +249,27 @@ public sealed class FftPlan
         ref double reRef = ref MemoryMarshal.GetReference(re);
         ref double imRef = ref MemoryMarshal.GetReference(im);
         int h = n / 2;
-        // Radix-2^2 passes: stage of half-size 2q (twiddle W_4q^k, and -i W_4q^k for the second pair),
-        // then stage of half-size q (twiddle W_2q^k), on groups of 4q.
-        for (; h >= 2 * vw && h >= 2; h /= 4)
-        {
-            int q = h / 2;
-            ref double wAr = ref _twRe[_stageOffset[BitOperations.Log2((uint)h) + 1]];
-            ref double wAi = ref _twIm[_stageOffset[BitOperations.Log2((uint)h) + 1]];
-            ref double wBr = ref _twRe[_stageOffset[BitOperations.Log2((uint)q) + 1]];
-            ref double wBi = ref _twIm[_stageOffset[BitOperations.Log2((uint)q) + 1]];
-            for (int g = 0; g < n; g += 4 * q)
-            {
-                for (int k = 0; k < q; k += vw)
-                {
-                    int i0 = g + k, i1 = i0 + q, i2 = i1 + q, i3 = i2 + q;
-                    Vector<double> a0r = LoadV(ref reRef, i0), a0i = LoadV(ref imRef, i0);
-                    Vector<double> a1r = LoadV(ref reRef, i1), a1i = LoadV(ref imRef, i1);
-                    Vector<double> a2r = LoadV(ref reRef, i2), a2i = LoadV(ref imRef, i2);
-                    Vector<double> a3r = LoadV(ref reRef, i3), a3i = LoadV(ref imRef, i3);
-                    Vector<double> ar = LoadV(ref wAr, k), ai = LoadV(ref wAi, k);
-                    Vector<double> b0r = a0r + a2r, b0i = a0i + a2i, b1r = a1r + a3r, b1i = a1i + a3i;
-                    Vector<double> dr = a0r - a2r, di = a0i - a2i;
-                    // (a1 - a3)(-i) = (a1i - a3i) - i (a1r - a3r)
-                    Vector<double> er = a1i - a3i, ei = a3r - a1r;
-                    Vector<double> b2r = dr * ar - di * ai, b2i = dr * ai + di * ar;
-                    Vector<double> b3r = er * ar - ei * ai, b3i = er * ai + ei * ar;
-                    Vector<double> br = LoadV(ref wBr, k), bi = LoadV(ref wBi, k);
-                    Vector<double> fr = b0r - b1r, fi = b0i - b1i, gr = b2r - b3r, gi = b2i - b3i;
-                    StoreV(b0r + b1r, ref reRef, i0); StoreV(b0i + b1i, ref imRef, i0);
-                    StoreV(fr * br - fi * bi, ref reRef, i1); StoreV(fr * bi + fi * br, ref imRef, i1);
-                    StoreV(b2r + b3r, ref reRef, i2); StoreV(b2i + b3i, ref imRef, i2);
-                    StoreV(gr * br - gi * bi, ref reRef, i3); StoreV(gr * bi + gi * br, ref imRef, i3);
-                }
-            }
-        }
+        // Passes whose groups span more than a block (16 KiB of re and im, which stays in the L1
+        // cache) run over the whole array; the rest run block by block, all passes on one block
+        // before the next.
+        const int block = 1024;
+        for (; 2 * h > block && h >= 2 * vw; h /= 4) Radix22Pass(ref reRef, ref imRef, 0, n, h);
+        int len = Math.Min(n, block);
+        for (int start = 0; start < n; start += len) ScrambledStages(ref reRef, ref imRef, start, len, h);
+        return check;
+    }
+
+    /// <summary>The passes of the scrambled transform from half-size <paramref name="h"/> down, on the groups within [start, start + len).</summary>
+    private void ScrambledStages(ref double reRef, ref double imRef, int start, int len, int h)
+    {
+        int vw = Vector<double>.Count, end = start + len;
+        for (; h >= 2 * vw && h >= 2; h /= 4) Radix22Pass(ref reRef, ref imRef, start, len, h);
         // What is left: radix-2 stages down to half-size 4, then a last radix-4 (half-sizes 2 and 1) or radix-2 (1).
         for (; h > 2; h /= 2)
         {
             ref double wr0 = ref _twRe[_stageOffset[BitOperations.Log2((uint)h) + 1]];
             ref double wi0 = ref _twIm[_stageOffset[BitOperations.Log2((uint)h) + 1]];
-            for (int g = 0; g < n; g += 2 * h)
+            for (int g = start; g < end; g += 2 * h)
             {
                 for (int k = 0; k < h; k++)
                 {
@@ -307,7 +288,7 @@ public sealed class FftPlan
             // Four groups of four at once: a 4 x 4 transpose puts element j of each group in vector j,
             // the radix-4 butterflies run across the vectors, and the results stay transposed
             // (ScrambledIndex accounts for it): for sums of |X|^2 the order is immaterial.
-            for (int g = 0; g < n; g += 16)
+            for (int g = start; g < end; g += 16)
             {
                 var (r0, r1, r2, r3) = Transpose(LoadV4(ref reRef, g), LoadV4(ref reRef, g + 4), LoadV4(ref reRef, g + 8), LoadV4(ref reRef, g + 12));
                 var (i0, i1, i2, i3) = Transpose(LoadV4(ref imRef, g), LoadV4(ref imRef, g + 4), LoadV4(ref imRef, g + 8), LoadV4(ref imRef, g + 12));
@@ -321,7 +302,7 @@ public sealed class FftPlan
         }
         else if (h == 2)
         {
-            for (int g = 0; g < n; g += 4)
+            for (int g = start; g < end; g += 4)
             {
                 double x0r = Unsafe.Add(ref reRef, g), x0i = Unsafe.Add(ref imRef, g), x1r = Unsafe.Add(ref reRef, g + 1), x1i = Unsafe.Add(ref imRef, g + 1);
                 double x2r = Unsafe.Add(ref reRef, g + 2), x2i = Unsafe.Add(ref imRef, g + 2), x3r = Unsafe.Add(ref reRef, g + 3), x3i = Unsafe.Add(ref imRef, g + 3);
@@ -335,14 +316,51 @@ public sealed class FftPlan
         }
         else if (h == 1)
         {
-            for (int g = 0; g < n; g += 2)
+            for (int g = start; g < end; g += 2)
             {
                 double ar = Unsafe.Add(ref reRef, g), ai = Unsafe.Add(ref imRef, g), br = Unsafe.Add(ref reRef, g + 1), bi = Unsafe.Add(ref imRef, g + 1);
                 Unsafe.Add(ref reRef, g) = ar + br; Unsafe.Add(ref imRef, g) = ai + bi;
                 Unsafe.Add(ref reRef, g + 1) = ar - br; Unsafe.Add(ref imRef, g + 1) = ai - bi;
             }
         }
-        return check;
+    }
+
+    /// <summary>
+    /// One radix-2^2 decimation-in-frequency pass on the groups of 2h points within [start, start + len):
+    /// stage of half-size h = 2q (twiddle W_4q^k, and -i W_4q^k for the second pair), then stage of
+    /// half-size q (twiddle W_2q^k).
+    /// </summary>
+    private void Radix22Pass(ref double reRef, ref double imRef, int start, int len, int h)
+    {
+        int vw = Vector<double>.Count, q = h / 2;
+        ref double wAr = ref _twRe[_stageOffset[BitOperations.Log2((uint)h) + 1]];
+        ref double wAi = ref _twIm[_stageOffset[BitOperations.Log2((uint)h) + 1]];
+        ref double wBr = ref _twRe[_stageOffset[BitOperations.Log2((uint)q) + 1]];
+        ref double wBi = ref _twIm[_stageOffset[BitOperations.Log2((uint)q) + 1]];
+        for (int g = start; g < start + len; g += 4 * q)
+        {
+            for (int k = 0; k < q; k += vw)
+            {
+                int i0 = g + k, i1 = i0 + q, i2 = i1 + q, i3 = i2 + q;
+                Vector<double> a0r = LoadV(ref reRef, i0), a0i = LoadV(ref imRef, i0);
+                Vector<double> a1r = LoadV(ref reRef, i1), a1i = LoadV(ref imRef, i1);
+                Vector<double> a2r = LoadV(ref reRef, i2), a2i = LoadV(ref imRef, i2);
+                Vector<double> a3r = LoadV(ref reRef, i3), a3i = LoadV(ref imRef, i3);
+                Vector<double> ar = LoadV(ref wAr, k), ai = LoadV(ref wAi, k);
+                Vector<double> b0r = a0r + a2r, b0i = a0i + a2i, b1r = a1r + a3r, b1i = a1i + a3i;
+                Vector<double> dr = a0r - a2r, di = a0i - a2i;
+                // (a1 - a3)(-i) = (a1i - a3i) - i (a1r - a3r)
+                Vector<double> er = a1i - a3i, ei = a3r - a1r;
+                Vector<double> b2r = dr * ar - di * ai, b2i = dr * ai + di * ar;
+                Vector<double> b3r = er * ar - ei * ai, b3i = er * ai + ei * ar;
+                Vector<double> br = LoadV(ref wBr, k), bi = LoadV(ref wBi, k);
+                Vector<double> fr = b0r - b1r, fi = b0i - b1i, gr = b2r - b3r, gi = b2i - b3i;
+                StoreV(b0r + b1r, ref reRef, i0); StoreV(b0i + b1i, ref imRef, i0);
+                StoreV(fr * br - fi * bi, ref reRef, i1); StoreV(fr * bi + fi * br, ref imRef, i1);
+                StoreV(b2r + b3r, ref reRef, i2); StoreV(b2i + b3i, ref imRef, i2);
+                StoreV(gr * br - gi * bi, ref reRef, i3); StoreV(gr * bi + gi * br, ref imRef, i3);
+            }
+        }
     }
 
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
