@@ -260,7 +260,7 @@ public sealed class FftPlan
     }
 
     /// <summary>The passes of the scrambled transform from half-size <paramref name="h"/> down, on the groups within [start, start + len).</summary>
-    private void ScrambledStages(ref double reRef, ref double imRef, int start, int len, int h)
+    private void ScrambledStages(ref double reRef, ref double imRef, int start, int len, int h, PowerSums sums = default)
     {
         int vw = Vector<double>.Count, end = start + len;
         for (; h >= 2 * vw && h >= 2; h /= 4) Radix22Pass(ref reRef, ref imRef, start, len, h);
@@ -294,6 +294,14 @@ public sealed class FftPlan
                 var (i0, i1, i2, i3) = Transpose(LoadV4(ref imRef, g), LoadV4(ref imRef, g + 4), LoadV4(ref imRef, g + 8), LoadV4(ref imRef, g + 12));
                 Vector256<double> b0r = r0 + r2, b0i = i0 + i2, b2r = r0 - r2, b2i = i0 - i2;
                 Vector256<double> b1r = r1 + r3, b1i = i1 + i3, b3r = i1 - i3, b3i = r3 - r1;   // (x1 - x3)(-i)
+                if (sums.Active)
+                {
+                    sums.Add(b0r + b1r, b0i + b1i, g);
+                    sums.Add(b0r - b1r, b0i - b1i, g + 4);
+                    sums.Add(b2r + b3r, b2i + b3i, g + 8);
+                    sums.Add(b2r - b3r, b2i - b3i, g + 12);
+                    continue;
+                }
                 (b0r + b1r).StoreUnsafe(ref reRef, (nuint)g); (b0i + b1i).StoreUnsafe(ref imRef, (nuint)g);
                 (b0r - b1r).StoreUnsafe(ref reRef, (nuint)(g + 4)); (b0i - b1i).StoreUnsafe(ref imRef, (nuint)(g + 4));
                 (b2r + b3r).StoreUnsafe(ref reRef, (nuint)(g + 8)); (b2i + b3i).StoreUnsafe(ref imRef, (nuint)(g + 8));
@@ -323,6 +331,8 @@ public sealed class FftPlan
                 Unsafe.Add(ref reRef, g + 1) = ar - br; Unsafe.Add(ref imRef, g + 1) = ai - bi;
             }
         }
+        if (sums.Active && !(h == 2 && TransposedTail))
+            for (int i = start; i < end; i++) sums.Add(Unsafe.Add(ref reRef, i), Unsafe.Add(ref imRef, i), i);
     }
 
     /// <summary>
@@ -360,6 +370,64 @@ public sealed class FftPlan
                 StoreV(b2r + b3r, ref reRef, i2); StoreV(b2i + b3i, ref imRef, i2);
                 StoreV(gr * br - gi * bi, ref reRef, i3); StoreV(gr * bi + gi * br, ref imRef, i3);
             }
+        }
+    }
+
+    /// <summary>
+    /// The Welch inner step: the scrambled transform of a windowed segment, its |X|^2 added to
+    /// <paramref name="sum"/>, folded into the per-bin <paramref name="max"/>, and added to (or, with
+    /// <paramref name="rowMax"/>, folded into) <paramref name="row"/>, all in scrambled order
+    /// (<see cref="ScrambledIndex"/>). The last pass adds its results straight into the sums.
+    /// Returns the sum of the windowed values; when that is not finite (NaN or infinite input),
+    /// nothing is added and the caller decides what to do.
+    /// </summary>
+    public double ForwardPowerScrambled(ReadOnlySpan<double> samples, bool complex, ReadOnlySpan<double> window, Span<double> re, Span<double> im,
+                                        Span<double> sum, Span<double> max, Span<double> row, bool rowMax)
+    {
+        int n = _n;
+        if (!CanScramble) throw new InvalidOperationException("the scrambled transform needs a power-of-two size from 4");
+        if (re.Length != n || im.Length != n || window.Length != n || sum.Length != n || max.Length != n || row.Length != n || samples.Length < (complex ? 2 * n : n))
+            throw new ArgumentException($"spans must hold {n} points");
+        double check = LoadWindowed(samples, complex, window, re, im);
+        if (!double.IsFinite(check)) return check;
+        ref double reRef = ref MemoryMarshal.GetReference(re);
+        ref double imRef = ref MemoryMarshal.GetReference(im);
+        int vw = Vector<double>.Count, h = n / 2;
+        const int block = 1024;
+        for (; 2 * h > block && h >= 2 * vw; h /= 4) Radix22Pass(ref reRef, ref imRef, 0, n, h);
+        int len = Math.Min(n, block);
+        var sums = new PowerSums(sum, max, row, rowMax);
+        for (int start = 0; start < n; start += len) ScrambledStages(ref reRef, ref imRef, start, len, h, sums);
+        return check;
+    }
+
+    /// <summary>Where the last pass of <see cref="ForwardPowerScrambled"/> adds |X|^2.</summary>
+    private readonly ref struct PowerSums(Span<double> sum, Span<double> max, Span<double> row, bool rowMax)
+    {
+        public readonly Span<double> Sum = sum, Max = max, Row = row;
+        public readonly bool RowMax = rowMax, Active = true;
+
+        /// <summary>Adds the powers of four bins at index i.</summary>
+        [MethodImpl(MethodImplOptions.AggressiveInlining)]
+        public void Add(Vector256<double> re, Vector256<double> im, int i)
+        {
+            Vector256<double> p = re * re + im * im;
+            ref double s = ref Unsafe.Add(ref MemoryMarshal.GetReference(Sum), i);
+            ref double m = ref Unsafe.Add(ref MemoryMarshal.GetReference(Max), i);
+            ref double r = ref Unsafe.Add(ref MemoryMarshal.GetReference(Row), i);
+            (Vector256.LoadUnsafe(ref s) + p).StoreUnsafe(ref s);
+            Vector256.Max(Vector256.LoadUnsafe(ref m), p).StoreUnsafe(ref m);
+            Vector256<double> rv = Vector256.LoadUnsafe(ref r);
+            (RowMax ? Vector256.Max(rv, p) : rv + p).StoreUnsafe(ref r);
+        }
+
+        /// <summary>Adds the power of one bin at index i.</summary>
+        public void Add(double re, double im, int i)
+        {
+            double p = re * re + im * im;
+            Sum[i] += p;
+            Max[i] = Math.Max(Max[i], p);
+            Row[i] = RowMax ? Math.Max(Row[i], p) : Row[i] + p;
         }
     }
 

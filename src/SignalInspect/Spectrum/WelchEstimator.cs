@@ -252,21 +252,29 @@ public static class WelchEstimator
 
         private void Periodogram(ReadOnlySpan<double> x, bool complex)
         {
-            double check = Transform(x, complex);
-            if (!double.IsFinite(check))
+            if (_scrambled)
             {
-                // The segment held NaN or infinity: take those samples as 0.
+                // Transform and sums in one go; a segment with NaN or infinity adds nothing and is redone with those samples as 0.
+                if (double.IsFinite(_fft.ForwardPowerScrambled(x, complex, _w, _re, _im, Sum, Max, _row, _l.RowMax))) return;
                 NonFiniteSegments++;
-                int n = _l.N;
-                var clean = new double[complex ? 2 * n : n];
-                for (int i = 0; i < clean.Length; i++) clean[i] = double.IsFinite(x[i]) ? x[i] : 0;
-                Transform(clean, complex);
+                _fft.ForwardPowerScrambled(Clean(x), complex, _w, _re, _im, Sum, Max, _row, _l.RowMax);
+                return;
+            }
+            if (!double.IsFinite(_fft.ForwardWindowed(x, complex, _w, _re, _im)))
+            {
+                NonFiniteSegments++;
+                _fft.ForwardWindowed(Clean(x), complex, _w, _re, _im);
             }
             Accumulate();
         }
 
-        private double Transform(ReadOnlySpan<double> x, bool complex) =>
-            _scrambled ? _fft.ForwardWindowedScrambled(x, complex, _w, _re, _im) : _fft.ForwardWindowed(x, complex, _w, _re, _im);
+        /// <summary>The segment with NaN and infinite samples taken as 0.</summary>
+        private static double[] Clean(ReadOnlySpan<double> x)
+        {
+            var clean = new double[x.Length];
+            for (int i = 0; i < clean.Length; i++) clean[i] = double.IsFinite(x[i]) ? x[i] : 0;
+            return clean;
+        }
 
         /// <summary>|X|^2 of the transformed segment into the sum, the max-hold and the current row, in one pass.</summary>
         private void Accumulate()

@@ -145,6 +145,45 @@ public class FftPlanTests
         }
     }
 
+    [Theory]
+    [InlineData(16, true, false)] [InlineData(64, false, true)] [InlineData(4096, true, true)] [InlineData(8192, true, false)]
+    public void Power_sums_in_scrambled_order_equal_the_squared_magnitudes_of_the_transform(int n, bool complex, bool rowMax)
+    {
+        var plan = new FftPlan(n);
+        double[] w = [.. Window.Create(WindowKind.Hann, n).Coefficients];
+        double[] sum = new double[n], max = new double[n], row = new double[n], re = new double[n], im = new double[n];
+        double[] wantSum = new double[n], wantMax = new double[n], wantRow = new double[n];
+        for (int seg = 0; seg < 3; seg++)
+        {
+            var (a, b) = RandomSignal(n, 100 * n + seg);
+            double[] samples = complex ? [.. a.Zip(b).SelectMany(p => new[] { p.First, p.Second })] : a;
+            double check = plan.ForwardPowerScrambled(samples, complex, w, re, im, sum, max, row, rowMax);
+            Assert.True(double.IsFinite(check));
+            var (xr, xi) = (new double[n], new double[n]);
+            plan.ForwardWindowed(samples, complex, w, xr, xi);
+            for (int k = 0; k < n; k++)
+            {
+                double p = xr[k] * xr[k] + xi[k] * xi[k];
+                wantSum[k] += p;
+                wantMax[k] = Math.Max(wantMax[k], p);
+                wantRow[k] = rowMax ? Math.Max(wantRow[k], p) : wantRow[k] + p;
+            }
+        }
+        for (int k = 0; k < n; k++)
+        {
+            int at = plan.ScrambledIndex(k);
+            Assert.Equal(wantSum[k], sum[at], 1e-9 * n);
+            Assert.Equal(wantMax[k], max[at], 1e-9 * n);
+            Assert.Equal(wantRow[k], row[at], 1e-9 * n);
+        }
+        // A segment with NaN adds nothing.
+        var bad = new double[complex ? 2 * n : n];
+        bad[3] = double.NaN;
+        double[] before = [.. sum];
+        Assert.False(double.IsFinite(plan.ForwardPowerScrambled(bad, complex, w, re, im, sum, max, row, rowMax)));
+        Assert.Equal(before, sum);
+    }
+
     /// <summary>MathNet.Numerics' FFT (the reference library) where a direct DFT would be slow.</summary>
     private static Complex[] Reference(double[] re, double[] im)
     {
