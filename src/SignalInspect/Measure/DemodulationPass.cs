@@ -207,7 +207,7 @@ internal static class DemodulationPass
     private sealed class Worker
     {
         private readonly Setup _s;
-        private readonly double[] _input, _re, _im, _a, _x, _y, _dphi, _dev, _df, _pv, _ubuf, _ringA, _ringF, _ringT, _segment;
+        private readonly double[] _input, _re, _im, _a, _x, _y, _dphi, _dev, _df, _pv, _ph, _ubuf, _ringA, _ringF, _ringT, _segment;
         private readonly LineSpectrum.Workspace _ws;
         private readonly ChannelDecimator _dec;
         private readonly BlockFir _comp, _lp;
@@ -233,6 +233,7 @@ internal static class DemodulationPass
             _dev = new double[maxOut];
             _df = new double[maxOut];
             _pv = new double[maxOut];
+            _ph = new double[maxOut];
             _ubuf = new double[s.Up * maxOut];
             _ringA = new double[s.DemodFft];
             _ringF = new double[s.DemodFft];
@@ -312,32 +313,54 @@ internal static class DemodulationPass
                 if (de is not null) for (int i = 0; i < m; i++) dev[i] = de.Next(dev[i]);
                 lp.Process(dev, _df.AsSpan(0, m));
 
+                // Unwrapped phase: a running sum (sequential), with the chunk's events at their samples.
+                long n0 = n;
                 for (int i = 0; i < m; i++, n++)
                 {
-                    double a = _a[i], df = _df[i];
                     phase += _dphi[i];
-                    if (n >= feedStart && upP is not null) _pv[i] = phase + offset - (s.Fit!.Value.Intercept + s.Fit.Value.Slope * (n - tMid));
+                    _ph[i] = phase;
                     if (n == nextFeed) k.PhaseAtNext = phase;
                     if (c > 0 && n == feedStart - 1) phase = 0;
-                    if (n < countStart) { prevD = df; continue; }
-                    double t = n - tMid, w = a * a;
-                    k.Sw += w; k.Swt += w * t; k.Swtt += w * t * t; k.Swp += w * phase; k.Swtp += w * t * phase; k.Swpp += w * phase * phase;
-                    k.Sa += a; k.Sd += df; k.Sdd += df * df;
-                    int ri = (int)(n & mask);
-                    _ringA[ri] = a; _ringF[ri] = df; _ringT[ri] = Math.Abs(df - prevD);
-                    prevD = df;
-                    if (c == 0 && WaveA.Count < WaveMax) { WaveA.Add(a); WaveF.Add(df); }
-                    k.Used++;
-                    // A line-spectrum segment [seg hop, seg hop + N) ends here.
-                    if ((n + 1) % hop == 0 && (n + 1) / hop - 2 is long seg && seg >= 0 && seg * hop >= countStart && s.Selected(seg))
+                }
+                if (upP is not null)
+                {
+                    var (icpt, slope) = s.Fit!.Value;
+                    for (int i = (int)Math.Clamp(feedStart - n0, 0, m); i < m; i++) _pv[i] = _ph[i] + offset - (icpt + slope * (n0 + i - tMid));
+                }
+                int i0 = (int)Math.Clamp(countStart - n0, 0, m);
+                if (i0 > 0) prevD = _df[i0 - 1];
+                if (i0 < m)
+                {
+                    Sums(k, _a.AsSpan(i0, m - i0), _df.AsSpan(i0, m - i0), _ph.AsSpan(i0, m - i0), n0 + i0 - tMid);
+                    // Transition stream |df[i] - df[i - 1]|.
+                    _x[i0] = Math.Abs(_df[i0] - prevD);
+                    for (int i = i0 + 1; i < m; i++) _x[i] = Math.Abs(_df[i] - _df[i - 1]);
+                    prevD = _df[m - 1];
+                    if (c == 0 && WaveA.Count < WaveMax)
                     {
-                        AddSegment(lines.Env, _ringA, seg * hop);
-                        AddSegment(lines.Tone, _ringF, seg * hop);
-                        AddSegment(lines.Trans, _ringT, seg * hop);
+                        int take = Math.Min(WaveMax - WaveA.Count, m - i0);
+                        for (int i = i0; i < i0 + take; i++) { WaveA.Add(_a[i]); WaveF.Add(_df[i]); }
+                    }
+                    k.Used += m - i0;
+                    // The rings, up to each end of a line-spectrum segment [seg hop, seg hop + N) in turn.
+                    for (int i = i0; i < m;)
+                    {
+                        long at = n0 + i;
+                        int upto = (int)Math.Min(m, (at / hop + 1) * hop - n0);   // just past the next hop boundary
+                        Ring(_ringA, _a.AsSpan(i, upto - i), at);
+                        Ring(_ringF, _df.AsSpan(i, upto - i), at);
+                        Ring(_ringT, _x.AsSpan(i, upto - i), at);
+                        long filled = n0 + upto;   // samples before this index are in the rings
+                        if (filled % hop == 0 && filled / hop - 2 is long seg && seg >= 0 && seg * hop >= countStart && s.Selected(seg))
+                        {
+                            AddSegment(lines.Env, _ringA, seg * hop);
+                            AddSegment(lines.Tone, _ringF, seg * hop);
+                            AddSegment(lines.Trans, _ringT, seg * hop);
+                        }
+                        i = upto;
                     }
                 }
                 // Interpolated peak statistics over the samples fed so far in this block.
-                long n0 = n - m;
                 int f0 = (int)Math.Clamp(feedStart - n0, 0, m);
                 if (f0 < m)
                 {
@@ -348,6 +371,53 @@ internal static class DemodulationPass
                 }
             }
             return k;
+        }
+
+        /// <summary>Copies a run of samples into a ring of the segment length at their sample indices.</summary>
+        private static void Ring(double[] ring, ReadOnlySpan<double> x, long first)
+        {
+            int len = ring.Length, at = (int)(first & (len - 1));
+            while (x.Length > 0)
+            {
+                int piece = Math.Min(x.Length, len - at);
+                x[..piece].CopyTo(ring.AsSpan(at));
+                x = x[piece..];
+                at = 0;
+            }
+        }
+
+        /// <summary>
+        /// The chunk's running sums over a run of counted samples: weights w = a^2 with the times
+        /// t (from <paramref name="t0"/> on, one per sample) and the phase, for the weighted
+        /// regression of the phase; the envelope and the deviation for their means and the rms.
+        /// </summary>
+        private static void Sums(ChunkSums k, ReadOnlySpan<double> a, ReadOnlySpan<double> df, ReadOnlySpan<double> ph, double t0)
+        {
+            int n = a.Length, w = Vector<double>.Count, i = 0;
+            Vector<double> sw = default, swt = default, swtt = default, swp = default, swtp = default, swpp = default, sa = default, sd = default, sdd = default;
+            Span<double> ramp = stackalloc double[w];
+            for (int l = 0; l < w; l++) ramp[l] = l;
+            var tv = new Vector<double>(t0) + new Vector<double>(ramp);
+            var step = new Vector<double>(w);
+            for (; i + w <= n; i += w, tv += step)
+            {
+                var av = new Vector<double>(a.Slice(i, w));
+                var dv = new Vector<double>(df.Slice(i, w));
+                var pv = new Vector<double>(ph.Slice(i, w));
+                Vector<double> wv = av * av, wt = wv * tv, wp = wv * pv;
+                sw += wv; swt += wt; swtt += wt * tv; swp += wp; swtp += wp * tv; swpp += wp * pv;
+                sa += av; sd += dv; sdd += dv * dv;
+            }
+            double Sw = Vector.Sum(sw), Swt = Vector.Sum(swt), Swtt = Vector.Sum(swtt), Swp = Vector.Sum(swp), Swtp = Vector.Sum(swtp), Swpp = Vector.Sum(swpp);
+            double Sa = Vector.Sum(sa), Sd = Vector.Sum(sd), Sdd = Vector.Sum(sdd);
+            for (; i < n; i++)
+            {
+                double t = t0 + i, wi = a[i] * a[i];
+                Sw += wi; Swt += wi * t; Swtt += wi * t * t; Swp += wi * ph[i]; Swtp += wi * t * ph[i]; Swpp += wi * ph[i] * ph[i];
+                Sa += a[i]; Sd += df[i]; Sdd += df[i] * df[i];
+            }
+            k.Sw += Sw; k.Swt += Swt; k.Swtt += Swtt; k.Swp += Swp; k.Swtp += Swtp; k.Swpp += Swpp;
+            k.Sa += Sa; k.Sd += Sd; k.Sdd += Sdd;
         }
 
         /// <summary>Feeds a block to an interpolator; the outputs of inputs from <paramref name="from"/> on go to the histogram.</summary>
