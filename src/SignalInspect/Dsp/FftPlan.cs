@@ -39,6 +39,8 @@ public sealed class FftPlan
     private readonly double[] _workRe = [];
     private readonly double[] _workIm = [];
 
+    private static readonly System.Collections.Concurrent.ConcurrentDictionary<int, (int[], int[], double[], double[])> Tables = new();
+
     /// <summary>Creates a plan for transforms of <paramref name="size"/> points.</summary>
     /// <exception cref="ArgumentOutOfRangeException">Size below 1 or above <see cref="MaxSize"/>.</exception>
     public FftPlan(int size)
@@ -49,6 +51,12 @@ public sealed class FftPlan
         if (BitOperations.IsPow2(size))
         {
             _log2 = BitOperations.Log2((uint)size);
+            // The tables of a size are immutable: built once per process and shared by its plans.
+            if (Tables.TryGetValue(size, out var t))
+            {
+                (_bitReverse, _stageOffset, _twRe, _twIm) = t;
+                return;
+            }
             _bitReverse = new int[size];
             for (int i = 0; i < size; i++) _bitReverse[i] = (int)(ReverseBits((uint)i) >> (32 - _log2)) & (size - 1);
             if (_log2 == 0) _bitReverse[0] = 0;
@@ -67,6 +75,7 @@ public sealed class FftPlan
                     _twIm[_stageOffset[s] + k] = Math.Sin(a);
                 }
             }
+            Tables.TryAdd(size, (_bitReverse, _stageOffset, _twRe, _twIm));
         }
         else
         {

@@ -60,6 +60,19 @@ public sealed class Window
         ArgumentOutOfRangeException.ThrowIfLessThan(size, 1);
         if (kind == WindowKind.Kaiser && (!double.IsFinite(kaiserBeta) || kaiserBeta < 0))
             throw new ArgumentOutOfRangeException(nameof(kaiserBeta), kaiserBeta, "must be 0 or more");
+        // Windows are immutable: the large ones are kept and shared (each analysis builds the same few).
+        if (size < 1024) return Build(kind, size, kaiserBeta);
+        var key = (kind, size, kind == WindowKind.Kaiser ? kaiserBeta : 0.0);
+        if (Cache.TryGetValue(key, out Window? hit)) return hit;
+        Window made = Build(kind, size, kaiserBeta);
+        if (Cache.Count >= 32) Cache.Clear();
+        return Cache.GetOrAdd(key, made);
+    }
+
+    private static readonly System.Collections.Concurrent.ConcurrentDictionary<(WindowKind, int, double), Window> Cache = new();
+
+    private static Window Build(WindowKind kind, int size, double kaiserBeta)
+    {
         var w = new double[size];
         int m = size; // periodic: denominators use N (the symmetric window of N + 1 points)
         for (int n = 0; n < size; n++)

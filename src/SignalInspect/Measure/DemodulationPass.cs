@@ -207,7 +207,7 @@ internal static class DemodulationPass
     private sealed class Worker
     {
         private readonly Setup _s;
-        private readonly double[] _input, _re, _im, _a, _x, _y, _dphi, _dev, _df, _pv, _ph, _ubuf, _ringA, _ringF, _ringT, _segment;
+        private readonly double[] _input, _re, _im, _a, _x, _y, _dphi, _dev, _df, _pv, _ph, _ubuf, _ringA, _ringF, _ringT, _segment, _segment2;
         private readonly LineSpectrum.Workspace _ws;
         private readonly ChannelDecimator _dec;
         private readonly BlockFir _comp, _lp;
@@ -239,6 +239,7 @@ internal static class DemodulationPass
             _ringF = new double[s.DemodFft];
             _ringT = new double[s.DemodFft];
             _segment = new double[s.DemodFft];
+            _segment2 = new double[s.DemodFft];
             _ws = new LineSpectrum.Workspace(s.DemodFft);
             _dec = new ChannelDecimator(p.Taps, p.Decimation, p.ShiftHz, p.Fs, p.Complex);
             // The phase difference of consecutive samples averages the frequency over one sample: a
@@ -353,8 +354,7 @@ internal static class DemodulationPass
                         long filled = n0 + upto;   // samples before this index are in the rings
                         if (filled % hop == 0 && filled / hop - 2 is long seg && seg >= 0 && seg * hop >= countStart && s.Selected(seg))
                         {
-                            AddSegment(lines.Env, _ringA, seg * hop);
-                            AddSegment(lines.Tone, _ringF, seg * hop);
+                            AddSegment(lines.Env, _ringA, lines.Tone, _ringF, seg * hop);
                             AddSegment(lines.Trans, _ringT, seg * hop);
                         }
                         i = upto;
@@ -437,10 +437,23 @@ internal static class DemodulationPass
 
         private void AddSegment(LineSpectrum spectrum, double[] ring, long start)
         {
-            int nfft = ring.Length, s0 = (int)(start & (nfft - 1));
-            ring.AsSpan(s0).CopyTo(_segment);
-            ring.AsSpan(0, s0).CopyTo(_segment.AsSpan(nfft - s0));
+            Unroll(ring, start, _segment);
             spectrum.AddSegment(_segment, _ws);
+        }
+
+        /// <summary>Two streams' segments in one transform (see <see cref="LineSpectrum.AddSegments"/>).</summary>
+        private void AddSegment(LineSpectrum a, double[] ringA, LineSpectrum b, double[] ringB, long start)
+        {
+            Unroll(ringA, start, _segment);
+            Unroll(ringB, start, _segment2);
+            LineSpectrum.AddSegments(a, _segment, b, _segment2, _ws);
+        }
+
+        private static void Unroll(double[] ring, long start, double[] into)
+        {
+            int nfft = ring.Length, s0 = (int)(start & (nfft - 1));
+            ring.AsSpan(s0).CopyTo(into);
+            ring.AsSpan(0, s0).CopyTo(into.AsSpan(nfft - s0));
         }
     }
 

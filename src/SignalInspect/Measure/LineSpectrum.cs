@@ -51,7 +51,32 @@ public sealed class LineSpectrum
     public sealed class Workspace(int fftSize)
     {
         internal readonly FftPlan Fft = new(fftSize);
-        internal readonly double[] Re = new double[fftSize], Im = new double[fftSize];
+        internal readonly double[] Re = new double[fftSize], Im = new double[fftSize], Pair = new double[2 * fftSize];
+    }
+
+    /// <summary>
+    /// Adds one segment to each of two accumulators of the same size with one complex transform:
+    /// z = a + i b, then A[k] = (Z[k] + conj Z[N-k]) / 2 and B[k] = (Z[k] - conj Z[N-k]) / 2i (both
+    /// streams are real). The same sums as two calls of <see cref="AddSegment"/>, to rounding.
+    /// </summary>
+    /// <exception cref="ArgumentException">The sizes differ.</exception>
+    public static void AddSegments(LineSpectrum a, ReadOnlySpan<double> sa, LineSpectrum b, ReadOnlySpan<double> sb, Workspace ws)
+    {
+        int n = a._n;
+        if (b._n != n || sa.Length != n || sb.Length != n || ws.Re.Length != n) throw new ArgumentException($"the segments and the workspace must hold {n} samples");
+        Span<double> z = ws.Pair;
+        for (int i = 0; i < n; i++) { z[2 * i] = sa[i]; z[2 * i + 1] = sb[i]; }
+        ws.Fft.ForwardWindowed(z, complex: true, a._window.Coefficients, ws.Re, ws.Im);
+        for (int k = 0; k < a._sum.Length; k++)
+        {
+            int m = k == 0 ? 0 : n - k;
+            double zr = ws.Re[k], zi = ws.Im[k], cr = ws.Re[m], ci = -ws.Im[m];
+            double ar = zr + cr, ai = zi + ci, br = zr - cr, bi = zi - ci;
+            a._sum[k] += 0.25 * (ar * ar + ai * ai);
+            b._sum[k] += 0.25 * (br * br + bi * bi);
+        }
+        a._segments++;
+        b._segments++;
     }
 
     /// <summary>Adds the periodogram of one segment of exactly <see cref="FftSize"/> samples.</summary>
