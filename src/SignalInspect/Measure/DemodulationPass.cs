@@ -41,6 +41,9 @@ internal static class DemodulationPass
     /// <summary>Decimated samples per chunk.</summary>
     internal const int ChunkOutputs = 1 << 20;
 
+    /// <summary>Tests only: a smaller chunk, so that short captures run through several chunks.</summary>
+    internal static int? ChunkOutputsForTests { get; set; }
+
     /// <summary>Line-spectrum segments per stream, at most; spread evenly over the capture.</summary>
     internal const int MaxLineSegments = 64;
 
@@ -62,12 +65,12 @@ internal static class DemodulationPass
         return l;
     }
 
-    private sealed record Setup(PassPlan P, double[] LpTaps, long Expected, int Settle, int DemodFft, double AmpRange, int Chunks, int WarmUp, int Up,
+    private sealed record Setup(PassPlan P, double[] LpTaps, long Expected, int Settle, int DemodFft, double AmpRange, int ChunkLength, int Chunks, int WarmUp, int Up,
                                 long FirstSegment, long SegmentCandidates, (double Intercept, double Slope)? Fit, double[]? Offsets)
     {
         public int Hop => DemodFft / 2;
-        public long ChunkStart(int c) => (long)c * ChunkOutputs;
-        public long ChunkEnd(int c) => c == Chunks - 1 ? Expected : (long)(c + 1) * ChunkOutputs;
+        public long ChunkStart(int c) => (long)c * ChunkLength;
+        public long ChunkEnd(int c) => c == Chunks - 1 ? Expected : (long)(c + 1) * ChunkLength;
         /// <summary>First sample counted in the statistics.</summary>
         public long CountStart(int c) => c == 0 ? Settle : ChunkStart(c);
         /// <summary>First sample fed to the interpolators (they need <see cref="BlockUpsampler.WarmUp"/> before their outputs count).</summary>
@@ -103,14 +106,15 @@ internal static class DemodulationPass
         settle = (int)Math.Min(settle, expected / 4);
         int demodFft = 256;
         while (demodFft < 65536 && p.Fsd / demodFft > 1.0 && 4L * demodFft * 2 <= expected) demodFft *= 2;
-        int chunks = expected <= ChunkOutputs * 3L / 2 ? 1 : (int)((expected + ChunkOutputs - 1) / ChunkOutputs);
+        int chunkLength = ChunkOutputsForTests ?? ChunkOutputs;
+        int chunks = expected <= chunkLength * 3L / 2 ? 1 : (int)((expected + chunkLength - 1) / chunkLength);
         // Decimated samples run before a chunk so that every filter holds only real input: the
         // channel filter, the 3-tap compensator, the low-pass, the interpolators and the one-pole filters.
         int warm = (p.Taps.Length + p.Decimation - 1) / p.Decimation + lpTaps.Length + 3 + BlockUpsampler.WarmUp + iir + 8;
         int hop = demodFft / 2;
         long firstSeg = (settle + hop - 1) / hop;
         long lastSeg = (expected - demodFft) / hop;
-        var s = new Setup(p, lpTaps, expected, settle, demodFft, p.Complex ? 1.5 : 0.75, chunks, warm, InterpolationFactor(p.PostLowPassHz, p.Fsd), firstSeg, Math.Max(0, lastSeg - firstSeg + 1), fit, offsets);
+        var s = new Setup(p, lpTaps, expected, settle, demodFft, p.Complex ? 1.5 : 0.75, chunkLength, chunks, warm, InterpolationFactor(p.PostLowPassHz, p.Fsd), firstSeg, Math.Max(0, lastSeg - firstSeg + 1), fit, offsets);
 
         var sums = new ChunkSums[chunks];
         int threads = Math.Max(1, Math.Min(p.Threads, chunks));

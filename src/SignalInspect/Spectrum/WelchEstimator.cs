@@ -57,23 +57,27 @@ public static class WelchEstimator
         int threads = Math.Max(1, Math.Min(settings.Threads ?? Environment.ProcessorCount, rows));
         var workers = new Worker[threads];
         var gram = new double[(long)rows * columns];
+        var total = new RowSums(n);
         long done = 0;
+        int nextRow = -1;
         Action<long>? report = progress is null ? null : delta => progress(Interlocked.Add(ref done, delta));
+        // The threads take rows in turn; each row's sum joins the total in row order, so that the
+        // result does not depend on the thread count (a sum of doubles depends on its order).
         Parallel.For(0, threads, new ParallelOptions { MaxDegreeOfParallelism = threads, CancellationToken = cancel }, w =>
         {
-            int r0 = (int)((long)rows * w / threads), r1 = (int)((long)rows * (w + 1) / threads);
-            var worker = new Worker(layout);
-            worker.Run(source, firstSample, r0, r1, gram, report, cancel);
-            workers[w] = worker;
+            var worker = workers[w] = new Worker(layout);
+            using CaptureReader reader = source.OpenReader(firstSample, (segments - 1) * step + n);
+            int r;
+            while ((r = Interlocked.Increment(ref nextRow)) < rows)
+                worker.RunRow(reader, r, gram, total, report, cancel);
         });
-
-        // Combine the workers' sums, then scale and order the bins (ascending frequency).
-        var sum = new double[n];
+        // The sums, then scaled and ordered by ascending frequency.
+        double[] sum = total.Sum;
         var max = new double[n];
         long nonFinite = 0;
         foreach (Worker wk in workers)
         {
-            for (int k = 0; k < n; k++) { sum[k] += wk.Sum[k]; max[k] = Math.Max(max[k], wk.Max[k]); }
+            for (int k = 0; k < n; k++) max[k] = Math.Max(max[k], wk.Max[k]);
             nonFinite += wk.NonFiniteSegments;
         }
         double[] freqs = layout.Frequencies();
@@ -125,6 +129,7 @@ public static class WelchEstimator
     private sealed class Layout(int n, int step, bool complex, int bins, double fs, Window window, long perRow, long segments, int q, int columns, int[]? slots)
     {
         public int N => n;
+        public bool Complex => complex;
         public int Step => step;
         public Window Window => window;
         public long PerRow => perRow;
@@ -181,13 +186,44 @@ public static class WelchEstimator
         }
     }
 
-    /// <summary>One thread's share: its reader, FFT plan and sums.</summary>
+    /// <summary>The mean's sum over the rows, added strictly in row order as rows finish (in any order).</summary>
+    private sealed class RowSums(int n)
+    {
+        private readonly Dictionary<int, double[]> _pending = [];
+        private readonly Stack<double[]> _free = new();
+        private int _next;
+
+        public double[] Sum { get; } = new double[n];
+
+        /// <summary>Takes row r's sum; hands back a cleared buffer for the next row.</summary>
+        public double[] Add(int r, double[] rowSum)
+        {
+            lock (_pending)
+            {
+                _pending[r] = rowSum;
+                while (_pending.Remove(_next, out double[]? ready))
+                {
+                    var vs = MemoryMarshal.Cast<double, Vector<double>>(Sum.AsSpan());
+                    var vr = MemoryMarshal.Cast<double, Vector<double>>(ready.AsSpan());
+                    for (int v = 0; v < vs.Length; v++) vs[v] += vr[v];
+                    for (int k = vs.Length * Vector<double>.Count; k < Sum.Length; k++) Sum[k] += ready[k];
+                    Array.Clear(ready);
+                    _free.Push(ready);
+                    _next++;
+                }
+                return _free.Count > 0 ? _free.Pop() : new double[Sum.Length];
+            }
+        }
+    }
+
+    /// <summary>One thread's FFT plan, buffers and max-hold; runs rows one after another.</summary>
     private sealed class Worker
     {
         private readonly Layout _l;
         private readonly FftPlan _fft;
         private readonly bool _scrambled;
-        private readonly double[] _re, _im, _w, _row;
+        private readonly double[] _re, _im, _w, _row, _staging;
+        private double[] _rowSum;
 
         public Worker(Layout layout)
         {
@@ -198,29 +234,24 @@ public static class WelchEstimator
             _im = new double[layout.N];
             _w = layout.Window.Coefficients.ToArray();
             _row = new double[layout.N];
-            Sum = new double[layout.N];
+            _rowSum = new double[layout.N];
             Max = new double[layout.N];
+            int vps = layout.Complex ? 2 : 1;
+            _staging = new double[(Math.Max(MinStagingSamples, 4 * layout.N) + layout.N) * vps];
         }
 
-        public double[] Sum { get; }
         public double[] Max { get; }
         public long NonFiniteSegments { get; private set; }
 
-        public void Run(CaptureSource source, long firstSample, int r0, int r1, double[] gram, Action<long>? report, CancellationToken cancel)
+        /// <summary>The segments of spectrogram row r: its row, its share of the max-hold, its sum into the total.</summary>
+        public void RunRow(CaptureReader reader, int r, double[] gram, RowSums total, Action<long>? report, CancellationToken cancel)
         {
-            if (r0 >= r1) return;
-            int n = _l.N, step = _l.Step;
-            long seg0 = r0 * _l.PerRow, seg1 = Math.Min(_l.Segments, r1 * _l.PerRow);
-            long samples = (seg1 - seg0 - 1) * step + n;
-            using CaptureReader reader = source.OpenReader(firstSample + seg0 * step, samples);
-            int vps = reader.ValuesPerSample;
-            int capacity = Math.Max(MinStagingSamples, 4 * n) + n;
-            var staging = new double[capacity * vps];
+            int n = _l.N, step = _l.Step, vps = reader.ValuesPerSample;
+            long seg0 = r * _l.PerRow, seg1 = Math.Min(_l.Segments, (r + 1) * _l.PerRow);
+            reader.Seek(seg0 * step);
+            long left = (seg1 - seg0 - 1) * step + n;   // samples this row needs
             int filled = 0, pos = 0;
             long segment = seg0;
-            int row = r0;
-            long rowStart = seg0;
-            bool mean = !_l.RowMax;
             Array.Clear(_row);
             while (segment < seg1)
             {
@@ -228,26 +259,23 @@ public static class WelchEstimator
                 if (pos + n > filled)
                 {
                     int keep = filled - pos;
-                    staging.AsSpan(pos * vps, keep * vps).CopyTo(staging);
+                    _staging.AsSpan(pos * vps, keep * vps).CopyTo(_staging);
                     filled = keep;
                     pos = 0;
-                    int got = reader.Read(staging.AsSpan(filled * vps));
+                    int want = (int)Math.Min(_staging.Length / vps - filled, left);
+                    int got = want > 0 ? reader.Read(_staging.AsSpan(filled * vps, want * vps)) : 0;
                     if (got == 0) break;
                     filled += got;
+                    left -= got;
                     report?.Invoke(got);
                     continue;
                 }
-                Periodogram(staging.AsSpan(pos * vps, n * vps), vps == 2);
+                Periodogram(_staging.AsSpan(pos * vps, n * vps), vps == 2);
                 segment++;
                 pos += step;
-                if (segment - rowStart == _l.PerRow || segment == seg1)
-                {
-                    _l.WriteRow(gram, row, _row, segment - rowStart, mean);
-                    Array.Clear(_row);
-                    row++;
-                    rowStart = segment;
-                }
             }
+            _l.WriteRow(gram, r, _row, segment - seg0, !_l.RowMax);
+            _rowSum = total.Add(r, _rowSum);
         }
 
         private void Periodogram(ReadOnlySpan<double> x, bool complex)
@@ -255,9 +283,9 @@ public static class WelchEstimator
             if (_scrambled)
             {
                 // Transform and sums in one go; a segment with NaN or infinity adds nothing and is redone with those samples as 0.
-                if (double.IsFinite(_fft.ForwardPowerScrambled(x, complex, _w, _re, _im, Sum, Max, _row, _l.RowMax))) return;
+                if (double.IsFinite(_fft.ForwardPowerScrambled(x, complex, _w, _re, _im, _rowSum, Max, _row, _l.RowMax))) return;
                 NonFiniteSegments++;
-                _fft.ForwardPowerScrambled(Clean(x), complex, _w, _re, _im, Sum, Max, _row, _l.RowMax);
+                _fft.ForwardPowerScrambled(Clean(x), complex, _w, _re, _im, _rowSum, Max, _row, _l.RowMax);
                 return;
             }
             if (!double.IsFinite(_fft.ForwardWindowed(x, complex, _w, _re, _im)))
@@ -282,7 +310,7 @@ public static class WelchEstimator
             int vw = Vector<double>.Count;
             ReadOnlySpan<Vector<double>> vre = MemoryMarshal.Cast<double, Vector<double>>(_re.AsSpan());
             ReadOnlySpan<Vector<double>> vim = MemoryMarshal.Cast<double, Vector<double>>(_im.AsSpan());
-            Span<Vector<double>> vsum = MemoryMarshal.Cast<double, Vector<double>>(Sum.AsSpan());
+            Span<Vector<double>> vsum = MemoryMarshal.Cast<double, Vector<double>>(_rowSum.AsSpan());
             Span<Vector<double>> vmax = MemoryMarshal.Cast<double, Vector<double>>(Max.AsSpan());
             Span<Vector<double>> vrow = MemoryMarshal.Cast<double, Vector<double>>(_row.AsSpan());
             bool rowMax = _l.RowMax;
@@ -296,7 +324,7 @@ public static class WelchEstimator
             for (int k = vre.Length * vw; k < _l.N; k++)
             {
                 double p = _re[k] * _re[k] + _im[k] * _im[k];
-                Sum[k] += p;
+                _rowSum[k] += p;
                 Max[k] = Math.Max(Max[k], p);
                 _row[k] = rowMax ? Math.Max(_row[k], p) : _row[k] + p;
             }
