@@ -76,7 +76,7 @@ public static class Analyzer
         // occupied bandwidth allows passes (a fixed 15 kHz would halve a 15 kHz broadcast tone).
         double postLp = options.PostLowPassHz ?? 0.9 * Math.Min(half, fsd / 2);
         postLp = Math.Min(postLp, 0.45 * fsd);
-        var plan = new PassPlan(source, first, count, taps, decimation, -coarse, fs, fsd, postLp, options.PostHighPassHz, options.DeEmphasisUs, info.IsComplex,
+        var plan = new PassPlan(source, first, count, taps, decimation, -coarse, fs, fsd, half, postLp, options.PostHighPassHz, options.DeEmphasisUs, info.IsComplex,
                                 Math.Max(1, options.Threads ?? Environment.ProcessorCount));
 
         // Pass B: demodulation.
@@ -243,9 +243,7 @@ public static class Analyzer
             PostLowPassHz = postLp,
             PostHighPassHz = options.PostHighPassHz,
             DeEmphasisUs = options.DeEmphasisUs,
-            PeakStatistic = "positive peak = 99.9th percentile, negative peak = 0.1th percentile of the post-detection signal, "
-                            + (b.Interpolation > 1 ? $"interpolated {b.Interpolation}x between samples (30 samples per period at the post-detection cutoff); " : "taken at the samples (30 or more per period at the post-detection cutoff); ")
-                            + peakNote,
+            PeakStatistic = PeakStatistic(kind, b) + peakNote,
             ObwNoise = options.ObwNoise,
         };
         string sha = hash.Result;
@@ -277,6 +275,15 @@ public static class Analyzer
             TrendLow = [.. longT.Zip(longLow)],
             WaveformLabel = waveLabel,
         };
+    }
+
+    private static string PeakStatistic(ModulationKind kind, PassResult b)
+    {
+        bool freq = kind is ModulationKind.Fm or ModulationKind.Fsk;
+        int l = freq ? b.InterpolationFrequency : b.InterpolationEnvelope;
+        string cutoff = freq ? "the post-detection cutoff" : "the channel filter's cutoff";
+        return "positive peak = 99.9th percentile, negative peak = 0.1th percentile of the post-detection signal, "
+               + (l > 1 ? $"interpolated {l}x between samples (30 samples per period at {cutoff}); " : $"taken at the samples (30 or more per period at {cutoff}); ");
     }
 
     /// <summary>A frequency on the capture's axis as reported: absolute RF when the centre is known (complex input).</summary>

@@ -7,7 +7,7 @@ namespace SignalInspect.Measure;
 
 /// <summary>What one demodulation pass does: the window, the channel filter, the rates and the post-detection filters.</summary>
 internal sealed record PassPlan(CaptureSource Source, long First, long Count, double[] Taps, int Decimation, double ShiftHz, double Fs, double Fsd,
-                                double PostLowPassHz, double? HighPassHz, double? DeEmphasisUs, bool Complex, int Threads);
+                                double ChannelHalfWidthHz, double PostLowPassHz, double? HighPassHz, double? DeEmphasisUs, bool Complex, int Threads);
 
 /// <summary>The running statistics of a demodulation pass.</summary>
 internal sealed class PassResult
@@ -22,8 +22,8 @@ internal sealed class PassResult
     public double[] WaveEnvelope = [], WaveFreq = [];
     /// <summary>Unwrapped phase at the start of each chunk (see <see cref="DemodulationPass"/>), for a later pass over the same chunks.</summary>
     public double[] ChunkPhaseOffsets = [];
-    /// <summary>Interpolation factor of the peak statistics.</summary>
-    public int Interpolation;
+    /// <summary>Interpolation factors of the peak statistics: envelope and phase (channel bandwidth), instantaneous frequency (post-detection bandwidth).</summary>
+    public int InterpolationEnvelope, InterpolationFrequency;
 }
 
 /// <summary>
@@ -54,8 +54,9 @@ internal static class DemodulationPass
 
     /// <summary>
     /// Interpolation factor of the peak statistics: enough for 30 samples per period of the highest
-    /// frequency the post-detection low-pass passes (a sampled sine's peak then reads at most
-    /// 1 - cos(pi/30) = 0.55 % low, and typically far less), from 1 to 8.
+    /// frequency the stream holds (the channel filter's width for the envelope and the phase, the
+    /// post-detection low-pass for the frequency): a sampled sine's peak then reads at most
+    /// 1 - cos(pi/30) = 0.55 % low, and typically far less. From 1 to 8.
     /// </summary>
     public static int InterpolationFactor(double postLowPassHz, double fsd)
     {
@@ -65,7 +66,7 @@ internal static class DemodulationPass
         return l;
     }
 
-    private sealed record Setup(PassPlan P, double[] LpTaps, long Expected, int Settle, int DemodFft, double AmpRange, int ChunkLength, int Chunks, int WarmUp, int Up,
+    private sealed record Setup(PassPlan P, double[] LpTaps, long Expected, int Settle, int DemodFft, double AmpRange, int ChunkLength, int Chunks, int WarmUp, int UpEnvelope, int UpFrequency,
                                 long FirstSegment, long SegmentCandidates, (double Intercept, double Slope)? Fit, double[]? Offsets)
     {
         public int Hop => DemodFft / 2;
@@ -114,7 +115,8 @@ internal static class DemodulationPass
         int hop = demodFft / 2;
         long firstSeg = (settle + hop - 1) / hop;
         long lastSeg = (expected - demodFft) / hop;
-        var s = new Setup(p, lpTaps, expected, settle, demodFft, p.Complex ? 1.5 : 0.75, chunkLength, chunks, warm, InterpolationFactor(p.PostLowPassHz, p.Fsd), firstSeg, Math.Max(0, lastSeg - firstSeg + 1), fit, offsets);
+        var s = new Setup(p, lpTaps, expected, settle, demodFft, p.Complex ? 1.5 : 0.75, chunkLength, chunks, warm,
+                          InterpolationFactor(p.ChannelHalfWidthHz, p.Fsd), InterpolationFactor(p.PostLowPassHz, p.Fsd), firstSeg, Math.Max(0, lastSeg - firstSeg + 1), fit, offsets);
 
         var sums = new ChunkSums[chunks];
         int threads = Math.Max(1, Math.Min(p.Threads, chunks));
@@ -161,7 +163,8 @@ internal static class DemodulationPass
             WaveEnvelope = waveA,
             WaveFreq = waveF,
             ChunkPhaseOffsets = new double[chunks],
-            Interpolation = s.Up,
+            InterpolationEnvelope = s.UpEnvelope,
+            InterpolationFrequency = s.UpFrequency,
         };
         for (int w = 1; w < threads; w++)
         {
@@ -238,7 +241,7 @@ internal static class DemodulationPass
             _df = new double[maxOut];
             _pv = new double[maxOut];
             _ph = new double[maxOut];
-            _ubuf = new double[s.Up * maxOut];
+            _ubuf = new double[Math.Max(s.UpEnvelope, s.UpFrequency) * maxOut];
             _ringA = new double[s.DemodFft];
             _ringF = new double[s.DemodFft];
             _ringT = new double[s.DemodFft];
@@ -251,9 +254,10 @@ internal static class DemodulationPass
             // (residual below 0.2 % up to fs/7.5; the decimation keeps the channel below that).
             _comp = new BlockFir([-1.0 / 24, 1 + 1.0 / 12, -1.0 / 24]);
             _lp = new BlockFir(s.LpTaps);
-            _upA = new BlockUpsampler(s.Up);
-            _upF = new BlockUpsampler(s.Up);
-            _upP = s.Fit is null ? null : new BlockUpsampler(s.Up);
+            // The envelope and the phase are as wide as the channel; the frequency passed the post-detection low-pass.
+            _upA = new BlockUpsampler(s.UpEnvelope);
+            _upF = new BlockUpsampler(s.UpFrequency);
+            _upP = s.Fit is null ? null : new BlockUpsampler(s.UpEnvelope);
             Envelope = new Histogram(0, s.AmpRange, 1 << 16);
             Freq = new Histogram(-p.Fsd / 2, p.Fsd / 2, 1 << 18);
             Phase = s.Fit is null ? null : new Histogram(-64, 64, 1 << 20);

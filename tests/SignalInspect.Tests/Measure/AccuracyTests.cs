@@ -45,6 +45,20 @@ public class AccuracyTests
     [InlineData(0.5, 1)] [InlineData(1.0, 2)] [InlineData(2.0, 3)] [InlineData(2.5, 4)] [InlineData(5.0, 6)] [InlineData(10.0, 12)]
     public void Bessel_sum_helper_matches_the_reference_table(double beta, int n) => Assert.Equal(2 * n * 1.0, BesselObw(beta, 1.0));
 
+    [Fact]
+    public void AM_envelope_peaks_are_interpolated_for_the_channel_width_whatever_the_post_detection_low_pass()
+    {
+        // A 3 kHz tone on a channel decimated to 16 kHz, about 5 samples a period: the envelope is
+        // as wide as the channel, so its peaks are interpolated for the channel's width; a narrow
+        // --post-lowpass (it filters only the instantaneous frequency) must not lower that factor.
+        using var tmp = new TempDir();
+        var spec = new SignalSpec { Kind = SignalKind.Am, SampleRateHz = 48000, DurationS = 1.5, Amplitude = 0.45, AmDepth = 0.8, ModulatingFrequencyHz = 3000, SnrDb = 40, Seed = 5 };
+        AnalysisResult r = Measuring.Analyze(tmp, spec, new AnalysisOptions { PostLowPassHz = 300 });
+        Assert.Equal(ModulationKind.Am, r.Classification.Kind);
+        Near.Equal(80, r.Am!.DepthPercent.Value, 1, "depth");
+        Assert.Contains("interpolated 8x", r.Method.PeakStatistic);
+    }
+
     [Theory]
     [InlineData(0.3, 1000)]
     [InlineData(0.6, 700)]
