@@ -470,56 +470,48 @@ public sealed class OnePole
 }
 
 /// <summary>
-/// Band-limited interpolation by an integer factor L (a polyphase Kaiser-windowed sinc, 16 taps per
-/// phase), a block at a time: used before peak statistics so that the peaks of a demodulated tone
-/// are not missed between samples (a tone sampled 6 times a period can read 13 % low when
-/// phase-locked). Each input sample yields L outputs; the first 17 inputs fill the history (their
-/// outputs are not valid). SIMD across inputs.
+/// Band-limited interpolation at one pseudo-random instant in each sample interval, for peak
+/// statistics: a 64-phase polyphase Kaiser-windowed sinc (16 taps per phase) evaluated, for input
+/// n, at the phase a hash of n picks. A tone locked to the sample rate (6 samples a period can read
+/// 13 % low) is then seen at instants spread uniformly over its period, so its percentiles are
+/// those of the continuous signal; stationary noise is unchanged. One value per input rather than
+/// L values per input of a fixed-factor interpolator: the same distribution at a fraction of the
+/// histogram work. The phase depends only on the sample's index, so the values do not depend on
+/// how the stream is cut into blocks or chunks. The first 17 inputs fill the history.
 /// </summary>
-public sealed class BlockUpsampler
+public sealed class JitteredSampler
 {
-    private const int Taps = 17;
-    private readonly double[][] _phases;   // per phase, reversed: window oldest first
-    private readonly double[] _coef;       // the same, tap-major: _coef[k * L + j] = _phases[j][k]
-    private double[] _buf;                 // Taps - 1 history samples, then the block
+    /// <summary>Phases of the polyphase bank (the time grid within a sample interval).</summary>
+    public const int Phases = 64;
 
-    /// <summary>Creates an interpolator by <paramref name="factor"/> (1, a pure delay of 8 samples, to 64).</summary>
-    public BlockUpsampler(int factor)
+    private const int Taps = 17;
+    private readonly double[] _coef;   // phase-major, each phase reversed (window oldest first)
+    private double[] _buf;             // Taps - 1 history samples, then the block
+
+    /// <summary>Creates the sampler.</summary>
+    public JitteredSampler()
     {
-        ArgumentOutOfRangeException.ThrowIfLessThan(factor, 1);
-        ArgumentOutOfRangeException.ThrowIfGreaterThan(factor, 64);
-        Factor = factor;
-        int total = (Taps - 1) * factor + 1;
+        int total = (Taps - 1) * Phases + 1;
         var h = new double[total];
         double beta = 0.1102 * (80 - 8.7);
         double i0b = MathNet.Numerics.SpecialFunctions.BesselI0(beta);
         int mid = (total - 1) / 2;
         for (int n = 0; n < total; n++)
         {
-            double k = (n - mid) / (double)factor;
+            double k = (n - mid) / (double)Phases;
             double sinc = k == 0 ? 1 : Math.Sin(Math.PI * k) / (Math.PI * k);
             double r = 2.0 * n / (total - 1) - 1;
             h[n] = sinc * MathNet.Numerics.SpecialFunctions.BesselI0(beta * Math.Sqrt(Math.Max(0, 1 - r * r))) / i0b;
         }
-        _phases = new double[factor][];
-        for (int j = 0; j < factor; j++)
-        {
-            var p = new double[Taps];
+        _coef = new double[Phases * Taps];
+        for (int j = 0; j < Phases; j++)
             for (int k = 0; k < Taps; k++)
             {
-                int idx = k * factor + j;
-                p[k] = idx < total ? h[idx] : 0;
+                int idx = k * Phases + j;
+                _coef[j * Taps + Taps - 1 - k] = idx < total ? h[idx] : 0;
             }
-            Array.Reverse(p);
-            _phases[j] = p;
-        }
-        _coef = new double[Taps * factor];
-        for (int k = 0; k < Taps; k++) for (int j = 0; j < factor; j++) _coef[k * factor + j] = _phases[j][k];
         _buf = new double[Taps - 1 + 4096];
     }
-
-    /// <summary>Interpolation factor L.</summary>
-    public int Factor { get; }
 
     /// <summary>Inputs needed before the outputs are valid.</summary>
     public static int WarmUp => Taps;
@@ -527,76 +519,43 @@ public sealed class BlockUpsampler
     /// <summary>Starts again with zero history, as if constructed.</summary>
     public void Reset() => Array.Clear(_buf);
 
+    /// <summary>The phase (0 to <see cref="Phases"/> - 1) used for input sample <paramref name="index"/>: SplitMix64's finaliser of the index.</summary>
+    public static int PhaseOf(long index)
+    {
+        ulong z = (ulong)index + 0x9E3779B97F4A7C15UL;
+        z = (z ^ (z >> 30)) * 0xBF58476D1CE4E5B9UL;
+        z = (z ^ (z >> 27)) * 0x94D049BB133111EBUL;
+        z ^= z >> 31;
+        return (int)(z >> 58);
+    }
+
     /// <summary>
-    /// Takes a block of inputs; output j of input i (j &lt; L) goes to out[j * x.Length + i], so
-    /// that <paramref name="output"/> must hold L x x.Length values.
+    /// Takes a block of inputs whose first is stream sample <paramref name="firstIndex"/>; output i
+    /// is the interpolated value at PhaseOf(firstIndex + i) / 64 of the interval that ends 8
+    /// samples before input i.
     /// </summary>
-    public void Process(ReadOnlySpan<double> x, Span<double> output)
+    public void Process(ReadOnlySpan<double> x, long firstIndex, Span<double> output)
     {
         int n = x.Length, hist = Taps - 1;
         if (_buf.Length < hist + n) Array.Resize(ref _buf, hist + n);
         x.CopyTo(_buf.AsSpan(hist));
         ref double b = ref System.Runtime.InteropServices.MemoryMarshal.GetArrayDataReference(_buf);
-        ref double o = ref System.Runtime.InteropServices.MemoryMarshal.GetReference(output);
-        int w = Vector<double>.Count, i = 0;
-        if (Factor == 8)
+        ref double c = ref System.Runtime.InteropServices.MemoryMarshal.GetArrayDataReference(_coef);
+        for (int i = 0; i < n; i++)
         {
-            // All eight phases of a vector of inputs at once: one load of the inputs per tap feeds eight sums.
-            ref double c = ref System.Runtime.InteropServices.MemoryMarshal.GetArrayDataReference(_coef);
-            for (; i + w <= n; i += w)
+            ref double h = ref Unsafe.Add(ref c, PhaseOf(firstIndex + i) * Taps);
+            ref double w = ref Unsafe.Add(ref b, i);
+            // 17 products in three independent sums.
+            double s0 = h * w, s1 = Unsafe.Add(ref h, 1) * Unsafe.Add(ref w, 1), s2 = Unsafe.Add(ref h, 2) * Unsafe.Add(ref w, 2);
+            for (int k = 3; k < Taps - 2; k += 3)
             {
-                Vector<double> a0 = default, a1 = default, a2 = default, a3 = default, a4 = default, a5 = default, a6 = default, a7 = default;
-                for (int k = 0; k < Taps; k++)
-                {
-                    Vector<double> xk = VectorMath.Load(ref b, i + k);
-                    ref double ck = ref Unsafe.Add(ref c, 8 * k);
-                    a0 = Vector.FusedMultiplyAdd(new Vector<double>(ck), xk, a0);
-                    a1 = Vector.FusedMultiplyAdd(new Vector<double>(Unsafe.Add(ref ck, 1)), xk, a1);
-                    a2 = Vector.FusedMultiplyAdd(new Vector<double>(Unsafe.Add(ref ck, 2)), xk, a2);
-                    a3 = Vector.FusedMultiplyAdd(new Vector<double>(Unsafe.Add(ref ck, 3)), xk, a3);
-                    a4 = Vector.FusedMultiplyAdd(new Vector<double>(Unsafe.Add(ref ck, 4)), xk, a4);
-                    a5 = Vector.FusedMultiplyAdd(new Vector<double>(Unsafe.Add(ref ck, 5)), xk, a5);
-                    a6 = Vector.FusedMultiplyAdd(new Vector<double>(Unsafe.Add(ref ck, 6)), xk, a6);
-                    a7 = Vector.FusedMultiplyAdd(new Vector<double>(Unsafe.Add(ref ck, 7)), xk, a7);
-                }
-                VectorMath.Store(a0, ref o, i); VectorMath.Store(a1, ref o, n + i);
-                VectorMath.Store(a2, ref o, 2 * n + i); VectorMath.Store(a3, ref o, 3 * n + i);
-                VectorMath.Store(a4, ref o, 4 * n + i); VectorMath.Store(a5, ref o, 5 * n + i);
-                VectorMath.Store(a6, ref o, 6 * n + i); VectorMath.Store(a7, ref o, 7 * n + i);
+                s0 += Unsafe.Add(ref h, k) * Unsafe.Add(ref w, k);
+                s1 += Unsafe.Add(ref h, k + 1) * Unsafe.Add(ref w, k + 1);
+                s2 += Unsafe.Add(ref h, k + 2) * Unsafe.Add(ref w, k + 2);
             }
-        }
-        else
-        {
-            for (int j = 0; j < Factor; j++)
-            {
-                ref double h = ref System.Runtime.InteropServices.MemoryMarshal.GetArrayDataReference(_phases[j]);
-                for (int ii = 0; ii + 4 * w <= n; ii += 4 * w)
-                {
-                    Vector<double> a0 = default, a1 = default, a2 = default, a3 = default;
-                    for (int k = 0; k < Taps; k++)
-                    {
-                        var hk = new Vector<double>(Unsafe.Add(ref h, k));
-                        ref double bk = ref Unsafe.Add(ref b, ii + k);
-                        a0 = Vector.FusedMultiplyAdd(hk, VectorMath.Load(ref bk, 0), a0);
-                        a1 = Vector.FusedMultiplyAdd(hk, VectorMath.Load(ref bk, w), a1);
-                        a2 = Vector.FusedMultiplyAdd(hk, VectorMath.Load(ref bk, 2 * w), a2);
-                        a3 = Vector.FusedMultiplyAdd(hk, VectorMath.Load(ref bk, 3 * w), a3);
-                    }
-                    VectorMath.Store(a0, ref o, j * n + ii); VectorMath.Store(a1, ref o, j * n + ii + w);
-                    VectorMath.Store(a2, ref o, j * n + ii + 2 * w); VectorMath.Store(a3, ref o, j * n + ii + 3 * w);
-                }
-            }
-            i = n / (4 * w) * (4 * w);
-        }
-        for (int j = 0; j < Factor; j++)
-        {
-            ref double h = ref System.Runtime.InteropServices.MemoryMarshal.GetArrayDataReference(_phases[j]);
-            for (int ii = i; ii < n; ii++)
-            {
-                double s = 0;
-                for (int k = 0; k < Taps; k++) s += Unsafe.Add(ref h, k) * Unsafe.Add(ref b, ii + k);
-                output[j * n + ii] = s;
-            }
+            s0 += Unsafe.Add(ref h, Taps - 2) * Unsafe.Add(ref w, Taps - 2);
+            s1 += Unsafe.Add(ref h, Taps - 1) * Unsafe.Add(ref w, Taps - 1);
+            output[i] = s0 + s1 + s2;
         }
         _buf.AsSpan(n, hist).CopyTo(_buf);
     }

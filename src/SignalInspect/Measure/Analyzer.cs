@@ -283,7 +283,8 @@ public static class Analyzer
         int l = freq ? b.InterpolationFrequency : b.InterpolationEnvelope;
         string cutoff = freq ? "the post-detection cutoff" : "the channel filter's cutoff";
         return "positive peak = 99.9th percentile, negative peak = 0.1th percentile of the post-detection signal, "
-               + (l > 1 ? $"interpolated {l}x between samples (30 samples per period at {cutoff}); " : $"taken at the samples (30 or more per period at {cutoff}); ");
+               + (l > 1 ? $"read at a pseudo-random instant in each sample interval (64-phase band-limited interpolation; fewer than 30 samples per period at {cutoff}); "
+                        : $"taken at the samples (30 or more per period at {cutoff}); ");
     }
 
     /// <summary>A frequency on the capture's axis as reported: absolute RF when the centre is known (complex input).</summary>

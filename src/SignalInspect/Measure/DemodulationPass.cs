@@ -41,8 +41,14 @@ internal static class DemodulationPass
     /// <summary>Decimated samples per chunk.</summary>
     internal const int ChunkOutputs = 1 << 20;
 
-    /// <summary>Tests only: a smaller chunk, so that short captures run through several chunks.</summary>
-    internal static int? ChunkOutputsForTests { get; set; }
+    /// <summary>Tests only: a smaller chunk, so that short captures run through several chunks (for the calling flow only, not for tests running beside it).</summary>
+    internal static int? ChunkOutputsForTests
+    {
+        get => ChunkOverride.Value;
+        set => ChunkOverride.Value = value;
+    }
+
+    private static readonly AsyncLocal<int?> ChunkOverride = new();
 
     /// <summary>Line-spectrum segments per stream, at most; spread evenly over the capture.</summary>
     internal const int MaxLineSegments = 64;
@@ -74,8 +80,8 @@ internal static class DemodulationPass
         public long ChunkEnd(int c) => c == Chunks - 1 ? Expected : (long)(c + 1) * ChunkLength;
         /// <summary>First sample counted in the statistics.</summary>
         public long CountStart(int c) => c == 0 ? Settle : ChunkStart(c);
-        /// <summary>First sample fed to the interpolators (they need <see cref="BlockUpsampler.WarmUp"/> before their outputs count).</summary>
-        public long FeedStart(int c) => c == 0 ? Settle : ChunkStart(c) - BlockUpsampler.WarmUp;
+        /// <summary>First sample fed to the interpolators (they need <see cref="JitteredSampler.WarmUp"/> before their outputs count).</summary>
+        public long FeedStart(int c) => c == 0 ? Settle : ChunkStart(c) - JitteredSampler.WarmUp;
         public bool Selected(long s)
         {
             long k = s - FirstSegment;
@@ -111,7 +117,7 @@ internal static class DemodulationPass
         int chunks = expected <= chunkLength * 3L / 2 ? 1 : (int)((expected + chunkLength - 1) / chunkLength);
         // Decimated samples run before a chunk so that every filter holds only real input: the
         // channel filter, the 3-tap compensator, the low-pass, the interpolators and the one-pole filters.
-        int warm = (p.Taps.Length + p.Decimation - 1) / p.Decimation + lpTaps.Length + 3 + BlockUpsampler.WarmUp + iir + 8;
+        int warm = (p.Taps.Length + p.Decimation - 1) / p.Decimation + lpTaps.Length + 3 + JitteredSampler.WarmUp + iir + 8;
         int hop = demodFft / 2;
         long firstSeg = (settle + hop - 1) / hop;
         long lastSeg = (expected - demodFft) / hop;
@@ -218,8 +224,7 @@ internal static class DemodulationPass
         private readonly LineSpectrum.Workspace _ws;
         private readonly ChannelDecimator _dec;
         private readonly BlockFir _comp, _lp;
-        private readonly BlockUpsampler _upA, _upF;
-        private readonly BlockUpsampler? _upP;
+        private readonly JitteredSampler? _upA, _upF, _upP;
         public readonly Histogram Envelope, Freq;
         public readonly Histogram? Phase;
         public readonly List<double> WaveA = [], WaveF = [];
@@ -241,7 +246,7 @@ internal static class DemodulationPass
             _df = new double[maxOut];
             _pv = new double[maxOut];
             _ph = new double[maxOut];
-            _ubuf = new double[Math.Max(s.UpEnvelope, s.UpFrequency) * maxOut];
+            _ubuf = new double[maxOut];
             _ringA = new double[s.DemodFft];
             _ringF = new double[s.DemodFft];
             _ringT = new double[s.DemodFft];
@@ -254,10 +259,11 @@ internal static class DemodulationPass
             // (residual below 0.2 % up to fs/7.5; the decimation keeps the channel below that).
             _comp = new BlockFir([-1.0 / 24, 1 + 1.0 / 12, -1.0 / 24]);
             _lp = new BlockFir(s.LpTaps);
-            // The envelope and the phase are as wide as the channel; the frequency passed the post-detection low-pass.
-            _upA = new BlockUpsampler(s.UpEnvelope);
-            _upF = new BlockUpsampler(s.UpFrequency);
-            _upP = s.Fit is null ? null : new BlockUpsampler(s.UpEnvelope);
+            // The envelope and the phase are as wide as the channel; the frequency passed the
+            // post-detection low-pass. A stream sampled 30 times a period at its cutoff is taken as it is.
+            _upA = s.UpEnvelope > 1 ? new JitteredSampler() : null;
+            _upF = s.UpFrequency > 1 ? new JitteredSampler() : null;
+            _upP = s.Fit is not null && s.UpEnvelope > 1 ? new JitteredSampler() : null;
             Envelope = new Histogram(0, s.AmpRange, 1 << 16);
             Freq = new Histogram(-p.Fsd / 2, p.Fsd / 2, 1 << 18);
             Phase = s.Fit is null ? null : new Histogram(-64, 64, 1 << 20);
@@ -272,7 +278,7 @@ internal static class DemodulationPass
             long end = s.ChunkEnd(c);
             long inFirst = begin * d, inEnd = c == s.Chunks - 1 ? p.Count : end * d;
             long ownIn = c == 0 ? 0 : s.ChunkStart(c) * d;
-            long countStart = s.CountStart(c), feedStart = s.FeedStart(c), histStart = feedStart + BlockUpsampler.WarmUp;
+            long countStart = s.CountStart(c), feedStart = s.FeedStart(c), histStart = feedStart + JitteredSampler.WarmUp;
             long nextFeed = c + 1 < s.Chunks ? s.FeedStart(c + 1) - 1 : -1;
             double offset = s.Offsets is { } o ? o[c] : 0;
 
@@ -282,9 +288,8 @@ internal static class DemodulationPass
             comp.Reset(); lp.Reset();
             OnePole? hp = p.HighPassHz is { } hz ? OnePole.HighPass(hz, p.Fsd) : null;
             OnePole? de = p.DeEmphasisUs is { } us ? OnePole.DeEmphasis(us * 1e-6, p.Fsd) : null;
-            BlockUpsampler upA = _upA, upF = _upF;
-            BlockUpsampler? upP = _upP;
-            upA.Reset(); upF.Reset(); upP?.Reset();
+            JitteredSampler? upA = _upA, upF = _upF, upP = _upP;
+            upA?.Reset(); upF?.Reset(); upP?.Reset();
             if (c == 0) { WaveA.Clear(); WaveF.Clear(); }
 
             var k = new ChunkSums();
@@ -331,9 +336,9 @@ internal static class DemodulationPass
                     if (n == nextFeed) k.PhaseAtNext = phase;
                     if (c > 0 && n == feedStart - 1) phase = 0;
                 }
-                if (upP is not null)
+                if (s.Fit is not null)
                 {
-                    var (icpt, slope) = s.Fit!.Value;
+                    var (icpt, slope) = s.Fit.Value;
                     for (int i = (int)Math.Clamp(feedStart - n0, 0, m); i < m; i++) _pv[i] = _ph[i] + offset - (icpt + slope * (n0 + i - tMid));
                 }
                 int i0 = (int)Math.Clamp(countStart - n0, 0, m);
@@ -373,9 +378,9 @@ internal static class DemodulationPass
                 if (f0 < m)
                 {
                     int h0 = (int)Math.Clamp(histStart - n0 - f0, 0, m - f0);
-                    Interpolate(upA, _a.AsSpan(f0, m - f0), h0, Envelope);
-                    Interpolate(upF, _df.AsSpan(f0, m - f0), h0, Freq);
-                    if (upP is not null) Interpolate(upP, _pv.AsSpan(f0, m - f0), h0, Phase!);
+                    Interpolate(upA, _a.AsSpan(f0, m - f0), n0 + f0, h0, Envelope);
+                    Interpolate(upF, _df.AsSpan(f0, m - f0), n0 + f0, h0, Freq);
+                    if (s.Fit is not null) Interpolate(upP, _pv.AsSpan(f0, m - f0), n0 + f0, h0, Phase!);
                 }
             }
             return k;
@@ -428,19 +433,21 @@ internal static class DemodulationPass
             k.Sa += Sa; k.Sd += Sd; k.Sdd += Sdd;
         }
 
-        /// <summary>Feeds a block to an interpolator; the outputs of inputs from <paramref name="from"/> on go to the histogram.</summary>
-        private void Interpolate(BlockUpsampler up, ReadOnlySpan<double> x, int from, Histogram h)
+        /// <summary>
+        /// Feeds a block (its first sample is stream sample <paramref name="first"/>) to a jittered
+        /// sampler, or takes the samples as they are without one; the values of inputs from
+        /// <paramref name="from"/> on go to the histogram.
+        /// </summary>
+        private void Interpolate(JitteredSampler? up, ReadOnlySpan<double> x, long first, int from, Histogram h)
         {
-            int len = x.Length, factor = up.Factor;
-            if (factor == 1)
+            int len = x.Length;
+            if (up is null)
             {
-                // No interpolation: the samples themselves (the interpolator would only delay them).
                 if (from < len) h.Add(x[from..]);
                 return;
             }
-            up.Process(x, _ubuf.AsSpan(0, factor * len));
-            if (from >= len) return;
-            for (int j = 0; j < factor; j++) h.Add(_ubuf.AsSpan(j * len + from, len - from));
+            up.Process(x, first, _ubuf.AsSpan(0, len));
+            if (from < len) h.Add(_ubuf.AsSpan(from, len - from));
         }
 
         private void AddSegment(LineSpectrum spectrum, double[] ring, long start)

@@ -116,30 +116,53 @@ public class FilterTests
         Assert.Equal(ai, bi);
     }
 
-    [Theory]
-    [InlineData(8)] [InlineData(4)] [InlineData(2)] [InlineData(1)]
-    public void Interpolator_outputs_are_the_polyphase_sums_and_pass_a_band_limited_tone(int factor)
+    [Fact]
+    public void Jittered_sampler_reads_a_band_limited_tone_at_the_instants_it_names()
     {
-        // A tone well inside the band, 20 samples a period: the interpolated stream is the tone at
-        // factor x the rate, delayed by the filter's centre (8 input samples).
-        var up = new BlockUpsampler(factor);
-        const int n = 3000;
+        // Output i is the signal at input i - 8 + PhaseOf(first + i) / 64 (the filter's centre).
+        var js = new JitteredSampler();
+        const int n = 5000;
+        const long first = 123_456_789;
         double[] x = [.. Enumerable.Range(0, n).Select(i => Math.Sin(2 * Math.PI * i / 20.0 + 0.3))];
-        var output = new double[factor * n];
-        up.Process(x.AsSpan(0, 1234), output.AsSpan(0, factor * 1234));
-        var rest = new double[factor * (n - 1234)];
-        up.Process(x.AsSpan(1234), rest);
+        var a = new double[n];
+        js.Process(x.AsSpan(0, 1234), first, a.AsSpan(0, 1234));
+        js.Process(x.AsSpan(1234), first + 1234, a.AsSpan(1234));
         double worst = 0;
         for (int i = 100; i < n; i++)
         {
-            for (int j = 0; j < factor; j++)
-            {
-                double v = i < 1234 ? output[j * 1234 + i] : rest[j * (n - 1234) + i - 1234];
-                double t = i - 8 + (double)j / factor;   // output j of input i sits j/L after input i - 8
-                worst = Math.Max(worst, Math.Abs(v - Math.Sin(2 * Math.PI * t / 20.0 + 0.3)));
-            }
+            double t = i - 8 + JitteredSampler.PhaseOf(first + i) / (double)JitteredSampler.Phases;
+            worst = Math.Max(worst, Math.Abs(a[i] - Math.Sin(2 * Math.PI * t / 20.0 + 0.3)));
         }
         // 16-tap Kaiser sinc: about 1e-3 in-band ripple at 0.1 of the input rate (Kaiser design formulas).
         Assert.True(worst < 2e-3, $"largest error {worst:e2}");
+        // The same values whatever the blocks.
+        var whole = new double[n];
+        new JitteredSampler().Process(x, first, whole);
+        Assert.Equal(whole, a);
+    }
+
+    [Fact]
+    public void Jittered_sampler_finds_the_peak_of_a_tone_locked_between_samples()
+    {
+        // Six samples a period, offset by half a sample: the samples never exceed cos(pi/6) = 0.866
+        // of the peak (the 13 % the fixed-grid reading loses); the jittered values reach the peak.
+        const int n = 60_000;
+        double[] x = [.. Enumerable.Range(0, n).Select(i => Math.Cos(2 * Math.PI * (i + 0.5) / 6.0))];
+        Assert.True(x.Max() < 0.867);
+        var y = new double[n];
+        new JitteredSampler().Process(x, 0, y);
+        double[] valid = [.. y.Skip(JitteredSampler.WarmUp).Order()];
+        double p999 = valid[(int)(0.999 * (valid.Length - 1))];
+        // A sine read at uniform instants: the 99.9th percentile is cos(pi 0.001) of the peak (the arcsine law).
+        Near.Equal(Math.Cos(Math.PI * 0.001), p999, 0.005, "99.9th percentile");
+    }
+
+    [Fact]
+    public void Jittered_sampler_phases_are_spread_evenly()
+    {
+        var counts = new int[JitteredSampler.Phases];
+        for (long i = 0; i < 640_000; i++) counts[JitteredSampler.PhaseOf(i)]++;
+        // 10 000 expected per phase; a uniform draw is within 5 % (5 standard deviations) of it.
+        Assert.All(counts, c => Assert.InRange(c, 9_500, 10_500));
     }
 }

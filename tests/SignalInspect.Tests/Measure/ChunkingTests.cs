@@ -13,7 +13,6 @@ namespace SignalInspect.Tests.Measure;
 /// one run reads, to the small differences of the line-spectrum segments that straddle chunk edges.
 /// The PM case checks that the unwrapped phase is carried across chunks.
 /// </summary>
-[Collection("chunk length")]
 public class ChunkingTests
 {
     private static AnalysisResult Run(string path, int? chunk, int threads, ModulationKind? expect = null)
