@@ -53,7 +53,7 @@ internal static class DemodulationPass
     /// <summary>Line-spectrum segments per stream, at most; spread evenly over the capture.</summary>
     internal const int MaxLineSegments = 64;
 
-    private const int InputBlock = 65536;
+    private const int InputBlock = 16384;
     private const int WaveMax = 16384;
     /// <summary>A sample component this close to full scale counts as clipped (the top code of a 16-bit capture is 0.99997).</summary>
     private const double FullScaleCode = 0.9999;

@@ -17,7 +17,7 @@ namespace SignalInspect.Spectrum;
 /// </summary>
 public static class WelchEstimator
 {
-    private const int MinStagingSamples = 1 << 16;
+    private const int MinStagingSamples = 1 << 14;
 
     /// <summary>Estimates the spectrum of a window of a capture.</summary>
     /// <param name="source">The capture.</param>
