@@ -397,17 +397,71 @@ public sealed class FftPlan
         if (!CanScramble) throw new InvalidOperationException("the scrambled transform needs a power-of-two size from 4");
         if (re.Length != n || im.Length != n || window.Length != n || sum.Length != n || max.Length != n || row.Length != n || samples.Length < (complex ? 2 * n : n))
             throw new ArgumentException($"spans must hold {n} points");
-        double check = LoadWindowed(samples, complex, window, re, im);
-        if (!double.IsFinite(check)) return check;
         ref double reRef = ref MemoryMarshal.GetReference(re);
         ref double imRef = ref MemoryMarshal.GetReference(im);
         int vw = Vector<double>.Count, h = n / 2;
+        double check;
+        if (complex && Avx2.IsSupported && vw == 4 && n >= 16)
+        {
+            // The window, the I/Q split and the first radix-2^2 pass in one sweep over the samples.
+            check = FirstPassWindowed(samples, window, ref reRef, ref imRef);
+            h /= 4;
+        }
+        else check = LoadWindowed(samples, complex, window, re, im);
+        if (!double.IsFinite(check)) return check;
         const int block = 1024;
         for (; 2 * h > block && h >= 2 * vw; h /= 4) Radix22Pass(ref reRef, ref imRef, 0, n, h);
         int len = Math.Min(n, block);
         var sums = new PowerSums(sum, max, row, rowMax);
         for (int start = 0; start < n; start += len) ScrambledStages(ref reRef, ref imRef, start, len, h, sums);
         return check;
+    }
+
+    /// <summary>
+    /// The first radix-2^2 pass (half-size n/2, one group) straight from interleaved I/Q samples:
+    /// each input is windowed and split as it is loaded. Returns the sum of the windowed values.
+    /// </summary>
+    private double FirstPassWindowed(ReadOnlySpan<double> samples, ReadOnlySpan<double> window, ref double reRef, ref double imRef)
+    {
+        int n = _n, h = n / 2, q = h / 2;
+        ref double x = ref MemoryMarshal.GetReference(samples);
+        ref double w = ref MemoryMarshal.GetReference(window);
+        ref double wAr = ref _twRe[_stageOffset[BitOperations.Log2((uint)h) + 1]];
+        ref double wAi = ref _twIm[_stageOffset[BitOperations.Log2((uint)h) + 1]];
+        ref double wBr = ref _twRe[_stageOffset[BitOperations.Log2((uint)q) + 1]];
+        ref double wBi = ref _twIm[_stageOffset[BitOperations.Log2((uint)q) + 1]];
+        Vector256<double> acc = Vector256<double>.Zero;
+        for (int k = 0; k < q; k += 4)
+        {
+            var (a0r, a0i) = LoadSplit(ref x, ref w, k);
+            var (a1r, a1i) = LoadSplit(ref x, ref w, k + q);
+            var (a2r, a2i) = LoadSplit(ref x, ref w, k + 2 * q);
+            var (a3r, a3i) = LoadSplit(ref x, ref w, k + 3 * q);
+            acc += (a0r + a0i) + (a1r + a1i) + (a2r + a2i) + (a3r + a3i);
+            Vector256<double> ar = LoadV4(ref wAr, k), ai = LoadV4(ref wAi, k);
+            Vector256<double> b0r = a0r + a2r, b0i = a0i + a2i, b1r = a1r + a3r, b1i = a1i + a3i;
+            Vector256<double> dr = a0r - a2r, di = a0i - a2i;
+            Vector256<double> er = a1i - a3i, ei = a3r - a1r;   // (a1 - a3)(-i)
+            Vector256<double> b2r = dr * ar - di * ai, b2i = dr * ai + di * ar;
+            Vector256<double> b3r = er * ar - ei * ai, b3i = er * ai + ei * ar;
+            Vector256<double> br = LoadV4(ref wBr, k), bi = LoadV4(ref wBi, k);
+            Vector256<double> fr = b0r - b1r, fi = b0i - b1i, gr = b2r - b3r, gi = b2i - b3i;
+            (b0r + b1r).StoreUnsafe(ref reRef, (nuint)k); (b0i + b1i).StoreUnsafe(ref imRef, (nuint)k);
+            (fr * br - fi * bi).StoreUnsafe(ref reRef, (nuint)(k + q)); (fr * bi + fi * br).StoreUnsafe(ref imRef, (nuint)(k + q));
+            (b2r + b3r).StoreUnsafe(ref reRef, (nuint)(k + 2 * q)); (b2i + b3i).StoreUnsafe(ref imRef, (nuint)(k + 2 * q));
+            (gr * br - gi * bi).StoreUnsafe(ref reRef, (nuint)(k + 3 * q)); (gr * bi + gi * br).StoreUnsafe(ref imRef, (nuint)(k + 3 * q));
+        }
+        return Vector256.Sum(acc);
+    }
+
+    /// <summary>Four windowed complex samples from index i of interleaved I/Q, split into (I, Q).</summary>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    private static (Vector256<double>, Vector256<double>) LoadSplit(ref double x, ref double w, int i)
+    {
+        var v0 = Vector256.LoadUnsafe(ref x, (nuint)(2 * i));
+        var v1 = Vector256.LoadUnsafe(ref x, (nuint)(2 * i + 4));
+        var wv = Vector256.LoadUnsafe(ref w, (nuint)i);
+        return (Avx2.Permute4x64(Avx.UnpackLow(v0, v1), 0b11_01_10_00) * wv, Avx2.Permute4x64(Avx.UnpackHigh(v0, v1), 0b11_01_10_00) * wv);
     }
 
     /// <summary>Where the last pass of <see cref="ForwardPowerScrambled"/> adds |X|^2.</summary>
