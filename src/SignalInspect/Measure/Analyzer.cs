@@ -104,7 +104,11 @@ public static class Analyzer
         double minTone = Math.Max(3 * b.ToneSpectrum.BinWidthHz, 2 * fs / Math.Max(count, 1));
         Measured? tone = null;
         LineSpectrum? toneSource = kind switch { ModulationKind.Am => b.EnvelopeSpectrum, ModulationKind.Fm or ModulationKind.Pm => b.ToneSpectrum, _ => null };
-        if (toneSource?.Peak(minTone, postLp) is { } tp)
+        // The envelope is not post-detection filtered (only the instantaneous frequency is): its
+        // lines are searched over the channel's width, so a narrow --post-lowpass cannot hide an AM tone.
+        double envelopeTop = Math.Min(half, 0.45 * fsd);
+        double toneTop = kind == ModulationKind.Am ? envelopeTop : postLp;
+        if (toneSource?.Peak(minTone, toneTop) is { } tp)
             tone = new Measured(tp.FrequencyHz, Math.Max(toneSource.BinWidthHz / 10, 1e-6 * tp.FrequencyHz));
         if (tone is { } t0 && count / fs < 10 / t0.Value)
             warnings.Add(string.Create(CultureInfo.InvariantCulture, $"the capture holds fewer than 10 periods of the {t0.Value:0.#} Hz modulating frequency"));
@@ -123,7 +127,7 @@ public static class Analyzer
             {
                 if (tone is { } tA)
                 {
-                    var (tv, nv) = b.EnvelopeSpectrum.Split(tA.Value, minTone, postLp);
+                    var (tv, nv) = b.EnvelopeSpectrum.Split(tA.Value, minTone, envelopeTop);
                     double sigma = Math.Sqrt(nv);
                     if (tv >= 0.8 * (tv + nv))
                     {

@@ -57,6 +57,9 @@ public class AccuracyTests
         Assert.Equal(ModulationKind.Am, r.Classification.Kind);
         Near.Equal(80, r.Am!.DepthPercent.Value, 1, "depth");
         Assert.Contains("pseudo-random instant", r.Method.PeakStatistic);
+        // The envelope is not post-detection filtered, so its tone is found above the 300 Hz cutoff.
+        Near.Equal(3000, r.ModulatingFrequencyHz!.Value.Value, 3, "modulating frequency");
+        Near.Equal(80, r.Am.SidebandDepthPercent!.Value, 1, "sideband cross-check");
     }
 
     [Theory]
