@@ -243,28 +243,50 @@ public sealed class FftPlan
     /// bit-reversed order: bin k lands at <see cref="ScrambledIndex"/>(k). For sums of |X|^2
     /// (Welch) the order does not matter until the end, so the permutation is skipped: the input
     /// is read in natural order (decimation in frequency, Gentleman and Sande 1966), radix-2^2
-    /// passes with SIMD. Returns the sum of the windowed values (not finite when an input was NaN
-    /// or infinite). Powers of two from 4 only (<see cref="CanScramble"/>).
+    /// passes with SIMD. Returns the sum of the windowed values; when that is not finite (NaN or
+    /// infinite input) the transform is not computed. Powers of two from 4 only (<see cref="CanScramble"/>).
     /// </summary>
     /// <exception cref="InvalidOperationException">The size is not a power of two from 4.</exception>
     public double ForwardWindowedScrambled(ReadOnlySpan<double> samples, bool complex, ReadOnlySpan<double> window, Span<double> re, Span<double> im)
+    {
+        Check(samples, complex, window, re, im);
+        return Scrambled(samples, complex, window, re, im, default);
+    }
+
+    private void Check(ReadOnlySpan<double> samples, bool complex, ReadOnlySpan<double> window, Span<double> re, Span<double> im)
     {
         int n = _n;
         if (!CanScramble) throw new InvalidOperationException("the scrambled transform needs a power-of-two size from 4");
         if (re.Length != n || im.Length != n || window.Length != n || samples.Length < (complex ? 2 * n : n))
             throw new ArgumentException($"spans must hold {n} points");
-        double check = LoadWindowed(samples, complex, window, re, im);
-        int vw = Vector<double>.Count;
+    }
+
+    /// <summary>
+    /// The scrambled transform; with active <paramref name="sums"/> the last pass adds |X|^2 into
+    /// them instead of storing X. Stops after loading when the windowed sum is not finite.
+    /// </summary>
+    private double Scrambled(ReadOnlySpan<double> samples, bool complex, ReadOnlySpan<double> window, Span<double> re, Span<double> im, PowerSums sums)
+    {
+        int n = _n;
         ref double reRef = ref MemoryMarshal.GetReference(re);
         ref double imRef = ref MemoryMarshal.GetReference(im);
-        int h = n / 2;
+        int vw = Vector<double>.Count, h = n / 2;
+        double check;
+        if (complex && Avx2.IsSupported && vw == 4 && n >= 16)
+        {
+            // The window, the I/Q split and the first radix-2^2 pass in one sweep over the samples.
+            check = FirstPassWindowed(samples, window, ref reRef, ref imRef);
+            h /= 4;
+        }
+        else check = LoadWindowed(samples, complex, window, re, im);
+        if (!double.IsFinite(check)) return check;
         // Passes whose groups span more than a block (16 KiB of re and im, which stays in the L1
         // cache) run over the whole array; the rest run block by block, all passes on one block
         // before the next.
         const int block = 1024;
         for (; 2 * h > block && h >= 2 * vw; h /= 4) Radix22Pass(ref reRef, ref imRef, 0, n, h);
         int len = Math.Min(n, block);
-        for (int start = 0; start < n; start += len) ScrambledStages(ref reRef, ref imRef, start, len, h);
+        for (int start = 0; start < n; start += len) ScrambledStages(ref reRef, ref imRef, start, len, h, sums);
         return check;
     }
 
@@ -361,23 +383,23 @@ public sealed class FftPlan
             for (int k = 0; k < q; k += vw)
             {
                 int i0 = g + k, i1 = i0 + q, i2 = i1 + q, i3 = i2 + q;
-                Vector<double> a0r = LoadV(ref reRef, i0), a0i = LoadV(ref imRef, i0);
-                Vector<double> a1r = LoadV(ref reRef, i1), a1i = LoadV(ref imRef, i1);
-                Vector<double> a2r = LoadV(ref reRef, i2), a2i = LoadV(ref imRef, i2);
-                Vector<double> a3r = LoadV(ref reRef, i3), a3i = LoadV(ref imRef, i3);
-                Vector<double> ar = LoadV(ref wAr, k), ai = LoadV(ref wAi, k);
+                Vector<double> a0r = VectorMath.Load(ref reRef, i0), a0i = VectorMath.Load(ref imRef, i0);
+                Vector<double> a1r = VectorMath.Load(ref reRef, i1), a1i = VectorMath.Load(ref imRef, i1);
+                Vector<double> a2r = VectorMath.Load(ref reRef, i2), a2i = VectorMath.Load(ref imRef, i2);
+                Vector<double> a3r = VectorMath.Load(ref reRef, i3), a3i = VectorMath.Load(ref imRef, i3);
+                Vector<double> ar = VectorMath.Load(ref wAr, k), ai = VectorMath.Load(ref wAi, k);
                 Vector<double> b0r = a0r + a2r, b0i = a0i + a2i, b1r = a1r + a3r, b1i = a1i + a3i;
                 Vector<double> dr = a0r - a2r, di = a0i - a2i;
                 // (a1 - a3)(-i) = (a1i - a3i) - i (a1r - a3r)
                 Vector<double> er = a1i - a3i, ei = a3r - a1r;
                 Vector<double> b2r = dr * ar - di * ai, b2i = dr * ai + di * ar;
                 Vector<double> b3r = er * ar - ei * ai, b3i = er * ai + ei * ar;
-                Vector<double> br = LoadV(ref wBr, k), bi = LoadV(ref wBi, k);
+                Vector<double> br = VectorMath.Load(ref wBr, k), bi = VectorMath.Load(ref wBi, k);
                 Vector<double> fr = b0r - b1r, fi = b0i - b1i, gr = b2r - b3r, gi = b2i - b3i;
-                StoreV(b0r + b1r, ref reRef, i0); StoreV(b0i + b1i, ref imRef, i0);
-                StoreV(fr * br - fi * bi, ref reRef, i1); StoreV(fr * bi + fi * br, ref imRef, i1);
-                StoreV(b2r + b3r, ref reRef, i2); StoreV(b2i + b3i, ref imRef, i2);
-                StoreV(gr * br - gi * bi, ref reRef, i3); StoreV(gr * bi + gi * br, ref imRef, i3);
+                VectorMath.Store(b0r + b1r, ref reRef, i0); VectorMath.Store(b0i + b1i, ref imRef, i0);
+                VectorMath.Store(fr * br - fi * bi, ref reRef, i1); VectorMath.Store(fr * bi + fi * br, ref imRef, i1);
+                VectorMath.Store(b2r + b3r, ref reRef, i2); VectorMath.Store(b2i + b3i, ref imRef, i2);
+                VectorMath.Store(gr * br - gi * bi, ref reRef, i3); VectorMath.Store(gr * bi + gi * br, ref imRef, i3);
             }
         }
     }
@@ -393,28 +415,9 @@ public sealed class FftPlan
     public double ForwardPowerScrambled(ReadOnlySpan<double> samples, bool complex, ReadOnlySpan<double> window, Span<double> re, Span<double> im,
                                         Span<double> sum, Span<double> max, Span<double> row, bool rowMax)
     {
-        int n = _n;
-        if (!CanScramble) throw new InvalidOperationException("the scrambled transform needs a power-of-two size from 4");
-        if (re.Length != n || im.Length != n || window.Length != n || sum.Length != n || max.Length != n || row.Length != n || samples.Length < (complex ? 2 * n : n))
-            throw new ArgumentException($"spans must hold {n} points");
-        ref double reRef = ref MemoryMarshal.GetReference(re);
-        ref double imRef = ref MemoryMarshal.GetReference(im);
-        int vw = Vector<double>.Count, h = n / 2;
-        double check;
-        if (complex && Avx2.IsSupported && vw == 4 && n >= 16)
-        {
-            // The window, the I/Q split and the first radix-2^2 pass in one sweep over the samples.
-            check = FirstPassWindowed(samples, window, ref reRef, ref imRef);
-            h /= 4;
-        }
-        else check = LoadWindowed(samples, complex, window, re, im);
-        if (!double.IsFinite(check)) return check;
-        const int block = 1024;
-        for (; 2 * h > block && h >= 2 * vw; h /= 4) Radix22Pass(ref reRef, ref imRef, 0, n, h);
-        int len = Math.Min(n, block);
-        var sums = new PowerSums(sum, max, row, rowMax);
-        for (int start = 0; start < n; start += len) ScrambledStages(ref reRef, ref imRef, start, len, h, sums);
-        return check;
+        Check(samples, complex, window, re, im);
+        if (sum.Length != _n || max.Length != _n || row.Length != _n) throw new ArgumentException($"spans must hold {_n} points");
+        return Scrambled(samples, complex, window, re, im, new PowerSums(sum, max, row, rowMax));
     }
 
     /// <summary>
@@ -623,23 +626,23 @@ public sealed class FftPlan
                 for (int k = 0; k < h; k += vw)
                 {
                     int i0 = g + k, i1 = i0 + h, i2 = i1 + h, i3 = i2 + h;
-                    Vector<double> ar = LoadV(ref w1r, k), ai = LoadV(ref w1i, k);
-                    Vector<double> a1r = LoadV(ref reRef, i1), a1i = LoadV(ref imRef, i1);
-                    Vector<double> a3r = LoadV(ref reRef, i3), a3i = LoadV(ref imRef, i3);
+                    Vector<double> ar = VectorMath.Load(ref w1r, k), ai = VectorMath.Load(ref w1i, k);
+                    Vector<double> a1r = VectorMath.Load(ref reRef, i1), a1i = VectorMath.Load(ref imRef, i1);
+                    Vector<double> a3r = VectorMath.Load(ref reRef, i3), a3i = VectorMath.Load(ref imRef, i3);
                     Vector<double> t1r = ar * a1r - ai * a1i, t1i = ar * a1i + ai * a1r;
                     Vector<double> t3r = ar * a3r - ai * a3i, t3i = ar * a3i + ai * a3r;
-                    Vector<double> a0r = LoadV(ref reRef, i0), a0i = LoadV(ref imRef, i0);
-                    Vector<double> a2r = LoadV(ref reRef, i2), a2i = LoadV(ref imRef, i2);
+                    Vector<double> a0r = VectorMath.Load(ref reRef, i0), a0i = VectorMath.Load(ref imRef, i0);
+                    Vector<double> a2r = VectorMath.Load(ref reRef, i2), a2i = VectorMath.Load(ref imRef, i2);
                     Vector<double> b0r = a0r + t1r, b0i = a0i + t1i, b1r = a0r - t1r, b1i = a0i - t1i;
                     Vector<double> b2r = a2r + t3r, b2i = a2i + t3i, b3r = a2r - t3r, b3i = a2i - t3i;
-                    Vector<double> cr = LoadV(ref w2r, k), ci = LoadV(ref w2i, k);
+                    Vector<double> cr = VectorMath.Load(ref w2r, k), ci = VectorMath.Load(ref w2i, k);
                     Vector<double> u2r = cr * b2r - ci * b2i, u2i = cr * b2i + ci * b2r;
                     // (-i w2) b3 = -i (w2 b3): (x + iy)(-i) = y - ix
                     Vector<double> v3r = cr * b3r - ci * b3i, v3i = cr * b3i + ci * b3r;
-                    StoreV(b0r + u2r, ref reRef, i0); StoreV(b0i + u2i, ref imRef, i0);
-                    StoreV(b0r - u2r, ref reRef, i2); StoreV(b0i - u2i, ref imRef, i2);
-                    StoreV(b1r + v3i, ref reRef, i1); StoreV(b1i - v3r, ref imRef, i1);
-                    StoreV(b1r - v3i, ref reRef, i3); StoreV(b1i + v3r, ref imRef, i3);
+                    VectorMath.Store(b0r + u2r, ref reRef, i0); VectorMath.Store(b0i + u2i, ref imRef, i0);
+                    VectorMath.Store(b0r - u2r, ref reRef, i2); VectorMath.Store(b0i - u2i, ref imRef, i2);
+                    VectorMath.Store(b1r + v3i, ref reRef, i1); VectorMath.Store(b1i - v3r, ref imRef, i1);
+                    VectorMath.Store(b1r - v3i, ref reRef, i3); VectorMath.Store(b1i + v3r, ref imRef, i3);
                 }
             }
         }
@@ -655,18 +658,18 @@ public sealed class FftPlan
                     for (int k = 0; k < h; k += vw)
                     {
                         int a = g + k, b = a + h;
-                        var wr = LoadV(ref twr, k);
-                        var wi = LoadV(ref twi, k);
-                        var br = LoadV(ref reRef, b);
-                        var bi = LoadV(ref imRef, b);
+                        var wr = VectorMath.Load(ref twr, k);
+                        var wi = VectorMath.Load(ref twi, k);
+                        var br = VectorMath.Load(ref reRef, b);
+                        var bi = VectorMath.Load(ref imRef, b);
                         var tr = wr * br - wi * bi;
                         var ti = wr * bi + wi * br;
-                        var ar = LoadV(ref reRef, a);
-                        var ai = LoadV(ref imRef, a);
-                        StoreV(ar + tr, ref reRef, a);
-                        StoreV(ai + ti, ref imRef, a);
-                        StoreV(ar - tr, ref reRef, b);
-                        StoreV(ai - ti, ref imRef, b);
+                        var ar = VectorMath.Load(ref reRef, a);
+                        var ai = VectorMath.Load(ref imRef, a);
+                        VectorMath.Store(ar + tr, ref reRef, a);
+                        VectorMath.Store(ai + ti, ref imRef, a);
+                        VectorMath.Store(ar - tr, ref reRef, b);
+                        VectorMath.Store(ai - ti, ref imRef, b);
                     }
                 }
             }
@@ -687,14 +690,6 @@ public sealed class FftPlan
             }
         }
     }
-
-    [MethodImpl(MethodImplOptions.AggressiveInlining)]
-    private static Vector<double> LoadV(ref double origin, int index) =>
-        Unsafe.ReadUnaligned<Vector<double>>(ref Unsafe.As<double, byte>(ref Unsafe.Add(ref origin, index)));
-
-    [MethodImpl(MethodImplOptions.AggressiveInlining)]
-    private static void StoreV(Vector<double> v, ref double origin, int index) =>
-        Unsafe.WriteUnaligned(ref Unsafe.As<double, byte>(ref Unsafe.Add(ref origin, index)), v);
 
     private static uint ReverseBits(uint v)
     {

@@ -62,7 +62,6 @@ public sealed class ChannelDecimator
     private const int Block = 1024;
     private readonly float[] _taps2;          // reversed taps, each twice (I and Q lanes), zero-padded in front to whole vectors
     private readonly int _taps;               // taps of the padded filter (the zeros are the oldest)
-    private readonly int _delay;
     private readonly int _decimation;
     private readonly bool _complexInput;
     private readonly double _shiftCyclesPerSample;
@@ -82,7 +81,6 @@ public sealed class ChannelDecimator
     {
         ArgumentOutOfRangeException.ThrowIfLessThan(decimation, 1);
         ArgumentOutOfRangeException.ThrowIfZero(taps.Length);
-        _delay = (taps.Length - 1) / 2;
         int lanes = Vector<float>.Count / 2;
         _taps = (taps.Length + lanes - 1) / lanes * lanes;
         int pad = _taps - taps.Length;
@@ -103,8 +101,6 @@ public sealed class ChannelDecimator
         _next = _taps - 1 + decimation - 1;
     }
 
-    /// <summary>Group delay of the filter in input samples ((taps - 1) / 2).</summary>
-    public int DelaySamples => _delay;
 
     /// <summary>
     /// Starts again with zero history, as if constructed, with the next input taken as sample
@@ -119,8 +115,6 @@ public sealed class ChannelDecimator
         _n = inputIndex;
     }
 
-    /// <summary>Output sample rate for a given input rate.</summary>
-    public double OutputRateHz(double inputRateHz) => inputRateHz / _decimation;
 
     /// <summary>
     /// Consumes input samples (interleaved I, Q for complex input); writes the filtered, decimated
@@ -343,8 +337,6 @@ public sealed class BlockFir
         }
     }
 
-    /// <summary>Group delay in samples ((taps - 1) / 2).</summary>
-    public int DelaySamples => (_taps.Length - 1) / 2;
 
     /// <summary>Starts again with zero history, as if constructed.</summary>
     public void Reset() => Array.Clear(_buf);

@@ -284,10 +284,10 @@ public static class Analyzer
     private static string PeakStatistic(ModulationKind kind, PassResult b)
     {
         bool freq = kind is ModulationKind.Fm or ModulationKind.Fsk;
-        int l = freq ? b.InterpolationFrequency : b.InterpolationEnvelope;
+        bool jitter = freq ? b.JitterFrequency : b.JitterEnvelope;
         string cutoff = freq ? "the post-detection cutoff" : "the channel filter's cutoff";
         return "positive peak = 99.9th percentile, negative peak = 0.1th percentile of the post-detection signal, "
-               + (l > 1 ? $"read at a pseudo-random instant in each sample interval (64-phase band-limited interpolation; fewer than 30 samples per period at {cutoff}); "
+               + (jitter ? $"read at a pseudo-random instant in each sample interval (64-phase band-limited interpolation; fewer than 30 samples per period at {cutoff}); "
                         : $"taken at the samples (30 or more per period at {cutoff}); ");
     }
 

@@ -22,8 +22,8 @@ internal sealed class PassResult
     public double[] WaveEnvelope = [], WaveFreq = [];
     /// <summary>Unwrapped phase at the start of each chunk (see <see cref="DemodulationPass"/>), for a later pass over the same chunks.</summary>
     public double[] ChunkPhaseOffsets = [];
-    /// <summary>Interpolation factors of the peak statistics: envelope and phase (channel bandwidth), instantaneous frequency (post-detection bandwidth).</summary>
-    public int InterpolationEnvelope, InterpolationFrequency;
+    /// <summary>Whether the peaks were read between samples: envelope and phase (channel bandwidth), instantaneous frequency (post-detection bandwidth).</summary>
+    public bool JitterEnvelope, JitterFrequency;
 }
 
 /// <summary>
@@ -59,20 +59,14 @@ internal static class DemodulationPass
     private const double FullScaleCode = 0.9999;
 
     /// <summary>
-    /// Interpolation factor of the peak statistics: enough for 30 samples per period of the highest
-    /// frequency the stream holds (the channel filter's width for the envelope and the phase, the
-    /// post-detection low-pass for the frequency): a sampled sine's peak then reads at most
-    /// 1 - cos(pi/30) = 0.55 % low, and typically far less. From 1 to 8.
+    /// Whether a stream needs its peaks read between samples (<see cref="JitteredSampler"/>): when it
+    /// has fewer than 30 samples per period of the highest frequency it holds (the channel filter's
+    /// width for the envelope and the phase, the post-detection low-pass for the frequency). At 30 a
+    /// sampled sine's peak reads at most 1 - cos(pi/30) = 0.55 % low, and typically far less.
     /// </summary>
-    public static int InterpolationFactor(double postLowPassHz, double fsd)
-    {
-        double need = 30 * Math.Min(postLowPassHz, fsd / 2) / fsd;
-        int l = 1;
-        while (l < 8 && l < need) l *= 2;
-        return l;
-    }
+    public static bool NeedsJitter(double cutoffHz, double fsd) => 30 * Math.Min(cutoffHz, fsd / 2) > fsd;
 
-    private sealed record Setup(PassPlan P, double[] LpTaps, long Expected, int Settle, int DemodFft, double AmpRange, int ChunkLength, int Chunks, int WarmUp, int UpEnvelope, int UpFrequency,
+    private sealed record Setup(PassPlan P, double[] LpTaps, long Expected, int Settle, int DemodFft, double AmpRange, int ChunkLength, int Chunks, int WarmUp, bool JitterEnvelope, bool JitterFrequency,
                                 long FirstSegment, long SegmentCandidates, (double Intercept, double Slope)? Fit, double[]? Offsets)
     {
         public int Hop => DemodFft / 2;
@@ -122,16 +116,15 @@ internal static class DemodulationPass
         long firstSeg = (settle + hop - 1) / hop;
         long lastSeg = (expected - demodFft) / hop;
         var s = new Setup(p, lpTaps, expected, settle, demodFft, p.Complex ? 1.5 : 0.75, chunkLength, chunks, warm,
-                          InterpolationFactor(p.ChannelHalfWidthHz, p.Fsd), InterpolationFactor(p.PostLowPassHz, p.Fsd), firstSeg, Math.Max(0, lastSeg - firstSeg + 1), fit, offsets);
+                          NeedsJitter(p.ChannelHalfWidthHz, p.Fsd), NeedsJitter(p.PostLowPassHz, p.Fsd), firstSeg, Math.Max(0, lastSeg - firstSeg + 1), fit, offsets);
 
         var sums = new ChunkSums[chunks];
         int threads = Math.Max(1, Math.Min(p.Threads, chunks));
         var workers = new Worker[threads];
         var merged = NewLines(s);
-        var pending = new Dictionary<int, LineSet>();
-        var pool = new Stack<LineSet>();
-        int nextMerge = 0, nextChunk = -1;
-        object gate = new();
+        // Line spectra are combined strictly in chunk order (sums of doubles depend on order).
+        var lineSets = new InOrder<LineSet>(() => NewLines(s), ready => { merged.Env.Take(ready.Env); merged.Tone.Take(ready.Tone); merged.Trans.Take(ready.Trans); });
+        int nextChunk = -1;
         double[] waveA = [], waveF = [];
         Parallel.For(0, threads, new ParallelOptions { MaxDegreeOfParallelism = threads, CancellationToken = cancel }, w =>
         {
@@ -140,21 +133,10 @@ internal static class DemodulationPass
             while ((c = Interlocked.Increment(ref nextChunk)) < chunks)
             {
                 cancel.ThrowIfCancellationRequested();
-                LineSet lines;
-                lock (gate) lines = pool.Count > 0 ? pool.Pop() : NewLines(s);
+                LineSet lines = lineSets.Rent();
                 sums[c] = worker.RunChunk(c, lines, cancel);
                 if (c == 0) (waveA, waveF) = (worker.WaveA.ToArray(), worker.WaveF.ToArray());
-                // Line spectra are combined strictly in chunk order (sums of doubles depend on order).
-                lock (gate)
-                {
-                    pending[c] = lines;
-                    while (pending.Remove(nextMerge, out LineSet? ready))
-                    {
-                        merged.Env.Take(ready.Env); merged.Tone.Take(ready.Tone); merged.Trans.Take(ready.Trans);
-                        pool.Push(ready);
-                        nextMerge++;
-                    }
-                }
+                lineSets.Complete(c, lines);
             }
         });
 
@@ -169,8 +151,8 @@ internal static class DemodulationPass
             WaveEnvelope = waveA,
             WaveFreq = waveF,
             ChunkPhaseOffsets = new double[chunks],
-            InterpolationEnvelope = s.UpEnvelope,
-            InterpolationFrequency = s.UpFrequency,
+            JitterEnvelope = s.JitterEnvelope,
+            JitterFrequency = s.JitterFrequency,
         };
         for (int w = 1; w < threads; w++)
         {
@@ -261,9 +243,9 @@ internal static class DemodulationPass
             _lp = new BlockFir(s.LpTaps);
             // The envelope and the phase are as wide as the channel; the frequency passed the
             // post-detection low-pass. A stream sampled 30 times a period at its cutoff is taken as it is.
-            _upA = s.UpEnvelope > 1 ? new JitteredSampler() : null;
-            _upF = s.UpFrequency > 1 ? new JitteredSampler() : null;
-            _upP = s.Fit is not null && s.UpEnvelope > 1 ? new JitteredSampler() : null;
+            _upA = s.JitterEnvelope ? new JitteredSampler() : null;
+            _upF = s.JitterFrequency ? new JitteredSampler() : null;
+            _upP = s.Fit is not null && s.JitterEnvelope ? new JitteredSampler() : null;
             Envelope = new Histogram(0, s.AmpRange, 1 << 16);
             Freq = new Histogram(-p.Fsd / 2, p.Fsd / 2, 1 << 18);
             Phase = s.Fit is null ? null : new Histogram(-64, 64, 1 << 20);
@@ -373,14 +355,14 @@ internal static class DemodulationPass
                         i = upto;
                     }
                 }
-                // Interpolated peak statistics over the samples fed so far in this block.
+                // Peak statistics over the samples fed so far in this block.
                 int f0 = (int)Math.Clamp(feedStart - n0, 0, m);
                 if (f0 < m)
                 {
                     int h0 = (int)Math.Clamp(histStart - n0 - f0, 0, m - f0);
-                    Interpolate(upA, _a.AsSpan(f0, m - f0), n0 + f0, h0, Envelope);
-                    Interpolate(upF, _df.AsSpan(f0, m - f0), n0 + f0, h0, Freq);
-                    if (s.Fit is not null) Interpolate(upP, _pv.AsSpan(f0, m - f0), n0 + f0, h0, Phase!);
+                    AddPeaks(upA, _a.AsSpan(f0, m - f0), n0 + f0, h0, Envelope);
+                    AddPeaks(upF, _df.AsSpan(f0, m - f0), n0 + f0, h0, Freq);
+                    if (s.Fit is not null) AddPeaks(upP, _pv.AsSpan(f0, m - f0), n0 + f0, h0, Phase!);
                 }
             }
             return k;
@@ -438,7 +420,7 @@ internal static class DemodulationPass
         /// sampler, or takes the samples as they are without one; the values of inputs from
         /// <paramref name="from"/> on go to the histogram.
         /// </summary>
-        private void Interpolate(JitteredSampler? up, ReadOnlySpan<double> x, long first, int from, Histogram h)
+        private void AddPeaks(JitteredSampler? up, ReadOnlySpan<double> x, long first, int from, Histogram h)
         {
             int len = x.Length;
             if (up is null)

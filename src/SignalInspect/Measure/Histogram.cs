@@ -77,13 +77,8 @@ public sealed class Histogram
             }
             i = vv.Length * w;
         }
-        for (; i < n; i++)
-        {
-            double v = values[i];
-            if (double.IsNaN(v)) _counts[_bins]++;
-            else _counts[(int)Math.Clamp(Math.Floor((v - _lo) / _width), 0, last)]++;
-        }
-        Count += n - (_counts[_bins] - nanBefore);
+        Count += i - (_counts[_bins] - nanBefore);
+        for (; i < n; i++) Add(values[i]);
     }
 
     /// <summary>Adds the counts of a histogram of the same range and bins.</summary>

@@ -41,8 +41,6 @@ public sealed class LineSpectrum
     /// <summary>Sum of the squared window coefficients.</summary>
     public double WindowSumOfSquares => _window.SumOfSquares;
 
-    /// <summary>The window (for <see cref="Workspace"/>).</summary>
-    public Window Window => _window;
 
     /// <summary>Segments accumulated.</summary>
     public long Segments => _segments;

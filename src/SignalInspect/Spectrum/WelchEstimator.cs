@@ -57,7 +57,15 @@ public static class WelchEstimator
         int threads = Math.Max(1, Math.Min(settings.Threads ?? Environment.ProcessorCount, rows));
         var workers = new Worker[threads];
         var gram = new double[(long)rows * columns];
-        var total = new RowSums(n);
+        var sum = new double[n];
+        var total = new InOrder<double[]>(() => new double[n], row =>
+        {
+            Span<Vector<double>> vs = MemoryMarshal.Cast<double, Vector<double>>(sum.AsSpan());
+            ReadOnlySpan<Vector<double>> vr = MemoryMarshal.Cast<double, Vector<double>>(row.AsSpan());
+            for (int v = 0; v < vs.Length; v++) vs[v] += vr[v];
+            for (int k = vs.Length * Vector<double>.Count; k < n; k++) sum[k] += row[k];
+            Array.Clear(row);
+        });
         long done = 0;
         int nextRow = -1;
         Action<long>? report = progress is null ? null : delta => progress(Interlocked.Add(ref done, delta));
@@ -72,7 +80,6 @@ public static class WelchEstimator
                 worker.RunRow(reader, r, gram, total, report, cancel);
         });
         // The sums, then scaled and ordered by ascending frequency.
-        double[] sum = total.Sum;
         var max = new double[n];
         long nonFinite = 0;
         foreach (Worker wk in workers)
@@ -186,36 +193,6 @@ public static class WelchEstimator
         }
     }
 
-    /// <summary>The mean's sum over the rows, added strictly in row order as rows finish (in any order).</summary>
-    private sealed class RowSums(int n)
-    {
-        private readonly Dictionary<int, double[]> _pending = [];
-        private readonly Stack<double[]> _free = new();
-        private int _next;
-
-        public double[] Sum { get; } = new double[n];
-
-        /// <summary>Takes row r's sum; hands back a cleared buffer for the next row.</summary>
-        public double[] Add(int r, double[] rowSum)
-        {
-            lock (_pending)
-            {
-                _pending[r] = rowSum;
-                while (_pending.Remove(_next, out double[]? ready))
-                {
-                    var vs = MemoryMarshal.Cast<double, Vector<double>>(Sum.AsSpan());
-                    var vr = MemoryMarshal.Cast<double, Vector<double>>(ready.AsSpan());
-                    for (int v = 0; v < vs.Length; v++) vs[v] += vr[v];
-                    for (int k = vs.Length * Vector<double>.Count; k < Sum.Length; k++) Sum[k] += ready[k];
-                    Array.Clear(ready);
-                    _free.Push(ready);
-                    _next++;
-                }
-                return _free.Count > 0 ? _free.Pop() : new double[Sum.Length];
-            }
-        }
-    }
-
     /// <summary>One thread's FFT plan, buffers and max-hold; runs rows one after another.</summary>
     private sealed class Worker
     {
@@ -223,7 +200,7 @@ public static class WelchEstimator
         private readonly FftPlan _fft;
         private readonly bool _scrambled;
         private readonly double[] _re, _im, _w, _row, _staging;
-        private double[] _rowSum;
+        private double[] _rowSum;   // the row's periodogram sum, handed to the total when the row ends
 
         public Worker(Layout layout)
         {
@@ -244,7 +221,7 @@ public static class WelchEstimator
         public long NonFiniteSegments { get; private set; }
 
         /// <summary>The segments of spectrogram row r: its row, its share of the max-hold, its sum into the total.</summary>
-        public void RunRow(CaptureReader reader, int r, double[] gram, RowSums total, Action<long>? report, CancellationToken cancel)
+        public void RunRow(CaptureReader reader, int r, double[] gram, InOrder<double[]> total, Action<long>? report, CancellationToken cancel)
         {
             int n = _l.N, step = _l.Step, vps = reader.ValuesPerSample;
             long seg0 = r * _l.PerRow, seg1 = Math.Min(_l.Segments, (r + 1) * _l.PerRow);
@@ -275,7 +252,8 @@ public static class WelchEstimator
                 pos += step;
             }
             _l.WriteRow(gram, r, _row, segment - seg0, !_l.RowMax);
-            _rowSum = total.Add(r, _rowSum);
+            total.Complete(r, _rowSum);
+            _rowSum = total.Rent();
         }
 
         private void Periodogram(ReadOnlySpan<double> x, bool complex)
