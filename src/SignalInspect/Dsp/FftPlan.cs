@@ -235,6 +235,22 @@ public sealed class FftPlan
         return (s & ~15) | ((s & 3) << 2) | ((s >> 2) & 3);
     }
 
+    /// <summary>The bit-reversed index of <paramref name="i"/> (powers of two only).</summary>
+    internal int BitReversed(int i) => _bitReverse[i];
+
+    /// <summary>
+    /// Forward transform of data already in bit-reversed order (decimation in time without the
+    /// input permutation), natural-order result. With <see cref="ForwardWindowedScrambled"/> it makes
+    /// a convolution with no permutation pass: scrambled spectrum, pointwise product, this.
+    /// </summary>
+    /// <exception cref="InvalidOperationException">The size is not a power of two.</exception>
+    internal void ForwardFromBitReversed(Span<double> re, Span<double> im)
+    {
+        if (_inner is not null) throw new InvalidOperationException("needs a power-of-two size");
+        if (re.Length != _n || im.Length != _n) throw new ArgumentException($"both spans must hold {_n} values");
+        if (_n > 1) Butterflies(re, im);
+    }
+
     /// <summary>Whether the scrambled transform's last pass runs on 4 x 4 transposed blocks (AVX, 16 points or more).</summary>
     private bool TransposedTail => _n >= 16 && Avx.IsSupported;
 

@@ -314,7 +314,11 @@ public sealed class BlockFir
     private readonly double[] _taps;   // reversed: window oldest first
     private double[] _buf;             // taps - 1 history samples, then the block
     private readonly FftPlan? _plan;
-    private readonly double[] _hRe = [], _hIm = [], _zr = [], _zi = [];
+    // Fast convolution: the filter's spectrum in bit-reversed order (scaled by 1/N), where the
+    // scrambled transform leaves each bit-reversed position's bin, the pair of input segments
+    // interleaved, a window of ones, and the transform buffers.
+    private readonly double[] _hRe = [], _hIm = [], _pair = [], _ones = [], _zr = [], _zi = [], _wr = [], _wi = [];
+    private readonly int[] _from = [];
 
     /// <summary>Creates the filter from its taps.</summary>
     public BlockFir(double[] taps)
@@ -326,14 +330,27 @@ public sealed class BlockFir
         {
             int n = (int)System.Numerics.BitOperations.RoundUpToPowerOf2((uint)(4 * taps.Length));
             _plan = new FftPlan(n);
+            double[] hr = new double[n], hi = new double[n];
+            taps.CopyTo(hr, 0);
+            _plan.Forward(hr, hi);
             _hRe = new double[n];
             _hIm = new double[n];
-            taps.CopyTo(_hRe, 0);
-            _plan.Forward(_hRe, _hIm);
-            // The inverse transform's 1/N folded into the filter's spectrum.
-            for (int k = 0; k < n; k++) { _hRe[k] /= n; _hIm[k] /= n; }
+            _from = new int[n];
+            for (int q = 0; q < n; q++)
+            {
+                int k = _plan.BitReversed(q);
+                // The inverse transform's 1/N folded into the filter's spectrum.
+                _hRe[q] = hr[k] / n;
+                _hIm[q] = hi[k] / n;
+                _from[q] = _plan.ScrambledIndex(k);
+            }
+            _pair = new double[2 * n];
+            _ones = new double[n];
+            Array.Fill(_ones, 1.0);
             _zr = new double[n];
             _zi = new double[n];
+            _wr = new double[n];
+            _wi = new double[n];
         }
     }
 
@@ -393,6 +410,10 @@ public sealed class BlockFir
     /// Overlap-save: the segment of N inputs from buffer index s yields the L = N - taps + 1 outputs
     /// from s on (the first taps - 1 values of the circular convolution are discarded); segments s
     /// and s + L share one complex transform as its real and imaginary parts (the filter is real).
+    /// The forward transform leaves its bins scrambled; the product with the filter's spectrum is
+    /// written in bit-reversed order, conjugated, and transformed back by decimation in time
+    /// (IDFT(Z) = conj(DFT(conj Z)) / N): no permutation pass. A segment pair holding a non-finite
+    /// value is computed by the convolution sum instead, so that the value spreads as it would there.
     /// </summary>
     private void ProcessFast(ReadOnlySpan<double> x, Span<double> y)
     {
@@ -400,24 +421,49 @@ public sealed class BlockFir
         if (_buf.Length < hist + m + 2 * n) Array.Resize(ref _buf, hist + m + 2 * n);
         x.CopyTo(_buf.AsSpan(hist));
         _buf.AsSpan(hist + m, 2 * n).Clear();
+        FftPlan plan = _plan!;
         for (int start = 0; start < m; start += 2 * l)
         {
-            _buf.AsSpan(start, n).CopyTo(_zr);
-            _buf.AsSpan(start + l, n).CopyTo(_zi);
-            _plan!.Forward(_zr, _zi);
-            for (int k = 0; k < n; k++)
+            ReadOnlySpan<double> a = _buf.AsSpan(start, n), b = _buf.AsSpan(start + l, n);
+            for (int i = 0; i < n; i++) { _pair[2 * i] = a[i]; _pair[2 * i + 1] = b[i]; }
+            if (double.IsFinite(plan.ForwardWindowedScrambled(_pair, complex: true, _ones, _zr, _zi)))
             {
-                double a = _zr[k], b = _zi[k], c = _hRe[k], d = _hIm[k];
-                // conj for the inverse by the forward transform: IDFT(Z) = conj(DFT(conj Z)) / N.
-                _zr[k] = a * c - b * d;
-                _zi[k] = -(a * d + b * c);
+                for (int q = 0; q < n; q++)
+                {
+                    int p = _from[q];
+                    double zr = _zr[p], zi = _zi[p], c = _hRe[q], d = _hIm[q];
+                    _wr[q] = zr * c - zi * d;
+                    _wi[q] = -(zr * d + zi * c);
+                }
+                plan.ForwardFromBitReversed(_wr, _wi);
             }
-            _plan.Forward(_zr, _zi);
+            else DirectSegments(start, l);
             int first = Math.Min(l, m - start), second = Math.Min(l, m - start - l);
-            for (int u = 0; u < first; u++) y[start + u] = _zr[hist + u];
-            for (int u = 0; u < second; u++) y[start + l + u] = -_zi[hist + u];
+            for (int u = 0; u < first; u++) y[start + u] = _wr[hist + u];
+            for (int u = 0; u < second; u++) y[start + l + u] = -_wi[hist + u];
         }
         _buf.AsSpan(m, hist).CopyTo(_buf);
+    }
+
+    /// <summary>
+    /// A segment pair with a non-finite value: its outputs by the convolution sum (a transform
+    /// would spread a NaN over the whole segment, and paired over its partner), into _wr and -_wi
+    /// where the transform would have left them.
+    /// </summary>
+    private void DirectSegments(int start, int l)
+    {
+        int t = _taps.Length, hist = t - 1;
+        for (int u = 0; u < l; u++)
+        {
+            double sa = 0, sb = 0;
+            for (int k = 0; k < t; k++)
+            {
+                sa += _taps[k] * _buf[start + u + k];
+                sb += _taps[k] * _buf[start + l + u + k];
+            }
+            _wr[hist + u] = sa;
+            _wi[hist + u] = -sb;
+        }
     }
 }
 

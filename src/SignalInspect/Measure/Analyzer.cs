@@ -485,12 +485,16 @@ public static class Analyzer
     {
         int i0 = Math.Max(0, (int)((guess - width - h.Low) / h.BinWidth)), i1 = Math.Min(h.Bins - 1, (int)((guess + width - h.Low) / h.BinWidth));
         int k = Math.Max(1, (int)(0.01 * width / h.BinWidth));
+        // Sums over bins [i - k, i + k] (clipped to the histogram), as a sliding window: counts are
+        // integers, so the running sum is exact.
         var sm = new double[i1 - i0 + 1];
+        long run = 0;
+        for (int j = Math.Max(0, i0 - k); j <= Math.Min(h.Bins - 1, i0 + k); j++) run += h[j];
         for (int i = i0; i <= i1; i++)
         {
-            double s = 0;
-            for (int j = Math.Max(0, i - k); j <= Math.Min(h.Bins - 1, i + k); j++) s += h[j];
-            sm[i - i0] = s;
+            sm[i - i0] = run;
+            if (i + k + 1 <= h.Bins - 1) run += h[i + k + 1];
+            if (i - k >= 0) run -= h[i - k];
         }
         int best = Array.IndexOf(sm, sm.Max());
         double delta = best > 0 && best < sm.Length - 1 ? PeakInterpolation.Parabolic(sm[best - 1], sm[best], sm[best + 1]) : 0;

@@ -29,7 +29,7 @@ internal sealed class PassResult
 /// <summary>
 /// One pass over the capture: shift, channel filter, decimate, then envelope, phase and
 /// instantaneous frequency, into running sums, histograms and line spectra. The decimated stream
-/// is cut into chunks of <see cref="ChunkOutputs"/> samples that the worker threads take in turn;
+/// is cut into chunks (<see cref="ChunkLength"/>) that the worker threads take in turn;
 /// each chunk starts its reader early enough that every filter has settled (a warm-up whose
 /// outputs are dropped), so a chunk's samples are those of one long run. The chunks' sums are
 /// combined in chunk order, and the unwrapped phase is carried from chunk to chunk through its
@@ -38,8 +38,22 @@ internal sealed class PassResult
 /// </summary>
 internal static class DemodulationPass
 {
-    /// <summary>Decimated samples per chunk.</summary>
-    internal const int ChunkOutputs = 1 << 20;
+    /// <summary>Decimated samples per chunk, at most and at least (see <see cref="ChunkLength"/>).</summary>
+    internal const int MaxChunk = 1 << 20, MinChunk = 1 << 16;
+
+    /// <summary>
+    /// Decimated samples per chunk for a stream of <paramref name="expected"/> samples whose chunks
+    /// each run <paramref name="warmUp"/> samples before their own: the power of two at or below a
+    /// sixteenth of the stream (so that two threads finish together: with five chunks one thread
+    /// would do three), from <see cref="MinChunk"/> to <see cref="MaxChunk"/>, and at least eight warm-ups long.
+    /// It depends on the stream only, never on the thread count.
+    /// </summary>
+    internal static int ChunkLength(long expected, int warmUp)
+    {
+        int len = MinChunk;
+        while (len < MaxChunk && (2L * len <= expected / 16 || len < 8L * warmUp)) len *= 2;
+        return len;
+    }
 
     /// <summary>Tests only: a smaller chunk, so that short captures run through several chunks (for the calling flow only, not for tests running beside it).</summary>
     internal static int? ChunkOutputsForTests
@@ -107,11 +121,11 @@ internal static class DemodulationPass
         settle = (int)Math.Min(settle, expected / 4);
         int demodFft = 256;
         while (demodFft < 65536 && p.Fsd / demodFft > 1.0 && 4L * demodFft * 2 <= expected) demodFft *= 2;
-        int chunkLength = ChunkOutputsForTests ?? ChunkOutputs;
-        int chunks = expected <= chunkLength * 3L / 2 ? 1 : (int)((expected + chunkLength - 1) / chunkLength);
         // Decimated samples run before a chunk so that every filter holds only real input: the
         // channel filter, the 3-tap compensator, the low-pass, the interpolators and the one-pole filters.
         int warm = (p.Taps.Length + p.Decimation - 1) / p.Decimation + lpTaps.Length + 3 + JitteredSampler.WarmUp + iir + 8;
+        int chunkLength = ChunkOutputsForTests ?? ChunkLength(expected, warm);
+        int chunks = expected <= chunkLength * 3L / 2 ? 1 : (int)((expected + chunkLength - 1) / chunkLength);
         int hop = demodFft / 2;
         long firstSeg = (settle + hop - 1) / hop;
         long lastSeg = (expected - demodFft) / hop;

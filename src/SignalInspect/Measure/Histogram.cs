@@ -63,6 +63,10 @@ public sealed class Histogram
             var inv = new Vector<double>(1 / _width);
             var top = new Vector<double>(last);
             var nanSlot = new Vector<double>(_bins);
+            // An integral double 0 <= f < 2^52 plus 2^52 holds f in its low mantissa bits: the
+            // conversion to integers without a double-to-int64 instruction (AVX-512DQ has one; AVX2 has not).
+            var magic = new Vector<double>(4503599627370496.0);
+            var magicBits = Vector.AsVectorInt64(magic);
             Span<long> bins = stackalloc long[w];
             ReadOnlySpan<Vector<double>> vv = MemoryMarshal.Cast<double, Vector<double>>(values);
             ref long c = ref MemoryMarshal.GetArrayDataReference(_counts);
@@ -72,7 +76,7 @@ public sealed class Histogram
                 // Bin in [0, last] as a double (NaN to the extra slot), then to integers.
                 Vector<double> f = Vector.Min(Vector.Max(Vector.Floor((x - lo) * inv), Vector<double>.Zero), top);
                 f = Vector.ConditionalSelect(Vector.Equals(x, x), f, nanSlot);
-                Vector.ConvertToInt64(f).CopyTo(bins);
+                (Vector.AsVectorInt64(f + magic) - magicBits).CopyTo(bins);
                 for (int l = 0; l < bins.Length; l++) Unsafe.Add(ref c, (nint)bins[l])++;
             }
             i = vv.Length * w;

@@ -46,16 +46,45 @@ public sealed class LineSpectrum
     public long Segments => _segments;
 
     /// <summary>FFT plan and buffers for <see cref="AddSegment"/>; one per thread.</summary>
-    public sealed class Workspace(int fftSize)
+    public sealed class Workspace
     {
-        internal readonly FftPlan Fft = new(fftSize);
-        internal readonly double[] Re = new double[fftSize], Im = new double[fftSize], Pair = new double[2 * fftSize];
+        internal readonly FftPlan Fft;
+        internal readonly double[] Re, Im, Pair;
+        /// <summary>Where the scrambled transform leaves bin k and bin N - k (k = 0 .. N/2); null when the size cannot be scrambled.</summary>
+        internal readonly int[]? At, Mirror;
+
+        /// <summary>Creates the plan and buffers for segments of <paramref name="fftSize"/> samples.</summary>
+        public Workspace(int fftSize)
+        {
+            Fft = new FftPlan(fftSize);
+            Re = new double[fftSize];
+            Im = new double[fftSize];
+            Pair = new double[2 * fftSize];
+            if (!Fft.CanScramble) return;
+            At = new int[fftSize / 2 + 1];
+            Mirror = new int[fftSize / 2 + 1];
+            for (int k = 0; k <= fftSize / 2; k++)
+            {
+                At[k] = Fft.ScrambledIndex(k);
+                Mirror[k] = Fft.ScrambledIndex((fftSize - k) & (fftSize - 1));
+            }
+        }
+
+        /// <summary>The windowed transform of a segment; bin k is at (<see cref="At"/>[k]) when scrambled. False when an input is not finite.</summary>
+        internal bool Transform(ReadOnlySpan<double> samples, bool complex, ReadOnlySpan<double> window) =>
+            double.IsFinite(At is null ? Fft.ForwardWindowed(samples, complex, window, Re, Im) : Fft.ForwardWindowedScrambled(samples, complex, window, Re, Im));
+
+        internal int Bin(int k) => At is null ? k : At[k];
+
+        internal int MirrorBin(int k) => Mirror is null ? (k == 0 ? 0 : Re.Length - k) : Mirror[k];
     }
 
     /// <summary>
     /// Adds one segment to each of two accumulators of the same size with one complex transform:
     /// z = a + i b, then A[k] = (Z[k] + conj Z[N-k]) / 2 and B[k] = (Z[k] - conj Z[N-k]) / 2i (both
     /// streams are real). The same sums as two calls of <see cref="AddSegment"/>, to rounding.
+    /// The transform leaves its bins bit-reversed (<see cref="FftPlan.ForwardWindowedScrambled"/>);
+    /// they are read through the workspace's index tables. A pair with a non-finite sample is left out.
     /// </summary>
     /// <exception cref="ArgumentException">The sizes differ.</exception>
     public static void AddSegments(LineSpectrum a, ReadOnlySpan<double> sa, LineSpectrum b, ReadOnlySpan<double> sb, Workspace ws)
@@ -64,11 +93,12 @@ public sealed class LineSpectrum
         if (b._n != n || sa.Length != n || sb.Length != n || ws.Re.Length != n) throw new ArgumentException($"the segments and the workspace must hold {n} samples");
         Span<double> z = ws.Pair;
         for (int i = 0; i < n; i++) { z[2 * i] = sa[i]; z[2 * i + 1] = sb[i]; }
-        ws.Fft.ForwardWindowed(z, complex: true, a._window.Coefficients, ws.Re, ws.Im);
+        if (!ws.Transform(z, complex: true, a._window.Coefficients)) return;
+        double[] re = ws.Re, im = ws.Im;
         for (int k = 0; k < a._sum.Length; k++)
         {
-            int m = k == 0 ? 0 : n - k;
-            double zr = ws.Re[k], zi = ws.Im[k], cr = ws.Re[m], ci = -ws.Im[m];
+            int p = ws.Bin(k), m = ws.MirrorBin(k);
+            double zr = re[p], zi = im[p], cr = re[m], ci = -im[m];
             double ar = zr + cr, ai = zi + ci, br = zr - cr, bi = zi - ci;
             a._sum[k] += 0.25 * (ar * ar + ai * ai);
             b._sum[k] += 0.25 * (br * br + bi * bi);
@@ -77,13 +107,18 @@ public sealed class LineSpectrum
         b._segments++;
     }
 
-    /// <summary>Adds the periodogram of one segment of exactly <see cref="FftSize"/> samples.</summary>
+    /// <summary>Adds the periodogram of one segment of exactly <see cref="FftSize"/> samples (a segment with a non-finite sample is left out).</summary>
     /// <exception cref="ArgumentException">The segment or the workspace has another size.</exception>
     public void AddSegment(ReadOnlySpan<double> segment, Workspace ws)
     {
         if (segment.Length != _n || ws.Re.Length != _n) throw new ArgumentException($"the segment and the workspace must hold {_n} samples");
-        ws.Fft.ForwardWindowed(segment, complex: false, _window.Coefficients, ws.Re, ws.Im);
-        for (int k = 0; k < _sum.Length; k++) _sum[k] += ws.Re[k] * ws.Re[k] + ws.Im[k] * ws.Im[k];
+        if (!ws.Transform(segment, complex: false, _window.Coefficients)) return;
+        double[] re = ws.Re, im = ws.Im;
+        for (int k = 0; k < _sum.Length; k++)
+        {
+            int p = ws.Bin(k);
+            _sum[k] += re[p] * re[p] + im[p] * im[p];
+        }
         _segments++;
     }
 

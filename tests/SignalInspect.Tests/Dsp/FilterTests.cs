@@ -45,6 +45,21 @@ public class FilterTests
     }
 
     [Fact]
+    public void Block_FIR_spreads_a_NaN_as_the_convolution_sum_does()
+    {
+        // NaN * h[k] is NaN: every output whose window holds the NaN is NaN, the ones before it are not.
+        var rng = new Random(5);
+        double[] h = [.. Enumerable.Range(0, 300).Select(_ => rng.NextDouble() - 0.5)];
+        double[] x = [.. Enumerable.Range(0, 6000).Select(_ => rng.NextDouble() - 0.5)];
+        x[2500] = double.NaN;
+        double[] want = Convolve(h, x);
+        var got = new double[x.Length];
+        new BlockFir(h).Process(x, got);
+        for (int i = 0; i < 2500; i++) Assert.True(Math.Abs(got[i] - want[i]) < 1e-12 * Math.Sqrt(300), $"sample {i}");
+        for (int i = 2500; i < 2800; i++) Assert.True(double.IsNaN(got[i]), $"sample {i} should be NaN");
+    }
+
+    [Fact]
     public void Block_FIR_filters_in_place()
     {
         var rng = new Random(2);

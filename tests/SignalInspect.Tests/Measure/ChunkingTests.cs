@@ -33,6 +33,18 @@ public class ChunkingTests
         return path;
     }
 
+    [Theory]
+    [InlineData(4_800_000L, 1200, 1 << 18)]    // 10 s at 480 kS/s: a sixteenth is 300 000, the power of two at or below it
+    [InlineData(28_800_000L, 1200, 1 << 20)]   // 60 s: capped
+    [InlineData(100_000L, 1200, 1 << 16)]      // short: the floor
+    [InlineData(4_800_000L, 60_000, 1 << 19)]  // a long high-pass settling: eight warm-ups
+    public void Chunk_length_follows_the_stream_not_the_threads(long expected, int warmUp, int want)
+    {
+        int len = DemodulationPass.ChunkLength(expected, warmUp);
+        Assert.Equal(want, len);
+        Assert.True(len >= DemodulationPass.MinChunk && len <= DemodulationPass.MaxChunk);
+    }
+
     [Fact]
     public void FM_through_five_chunks_is_the_same_on_one_thread_and_two_and_close_to_one_run()
     {
