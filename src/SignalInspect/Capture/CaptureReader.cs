@@ -1,4 +1,5 @@
 using System.Buffers;
+using System.Runtime.InteropServices;
 
 namespace SignalInspect.Capture;
 
@@ -64,6 +65,29 @@ public sealed class CaptureReader : IDisposable
         }
         _position += done;
         return done;
+    }
+
+    /// <summary>
+    /// Whether <see cref="Read(Span{float})"/> is available: the capture stores its samples as
+    /// little-endian float32 exactly as they are delivered (cf32_le, rf32_le, a float WAV), so they
+    /// can be read straight into a float buffer with no conversion.
+    /// </summary>
+    public bool DeliversFloat32 => _decoder.StoresOutputAsFloat32;
+
+    /// <summary>
+    /// Reads up to <paramref name="destination"/>.Length / <see cref="ValuesPerSample"/> samples as
+    /// stored, in single precision (only when <see cref="DeliversFloat32"/>); the file's bytes go
+    /// straight into the buffer. Returns the number of samples read; 0 at the end of the window.
+    /// </summary>
+    /// <exception cref="InvalidOperationException">The capture does not store float32 samples as delivered.</exception>
+    public int Read(Span<float> destination)
+    {
+        if (!DeliversFloat32) throw new InvalidOperationException("the capture does not store its samples as float32 as delivered");
+        int frameBytes = _decoder.FrameBytes;
+        int wanted = (int)Math.Min(destination.Length / ValuesPerSample, SampleCount - _position);
+        int got = ReadWholeFrames(MemoryMarshal.AsBytes(destination[..(wanted * ValuesPerSample)]), frameBytes);
+        _position += got;
+        return got;
     }
 
     /// <summary>Moves to a sample within the window (0 is its first sample).</summary>

@@ -31,6 +31,9 @@ internal sealed class SampleDecoder
     /// <summary>Bytes in one frame.</summary>
     public int FrameBytes => _frameComponents * _format.BytesPerComponent;
 
+    /// <summary>Whether the stored frames are exactly the output in single precision (little-endian float32, every component used, in order).</summary>
+    public bool StoresOutputAsFloat32 => _identity && _format.Encoding == ComponentEncoding.Float32 && _format.BigEndian != BitConverter.IsLittleEndian;
+
     /// <summary>Values written per output sample (2 complex, 1 real).</summary>
     public int OutputComponents => _pick.Length;
 

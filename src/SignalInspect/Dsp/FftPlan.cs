@@ -265,15 +265,15 @@ public sealed class FftPlan
     /// <exception cref="InvalidOperationException">The size is not a power of two from 4.</exception>
     public double ForwardWindowedScrambled(ReadOnlySpan<double> samples, bool complex, ReadOnlySpan<double> window, Span<double> re, Span<double> im)
     {
-        Check(samples, complex, window, re, im);
+        Check(samples.Length, complex, window, re, im);
         return Scrambled(samples, complex, window, re, im, default);
     }
 
-    private void Check(ReadOnlySpan<double> samples, bool complex, ReadOnlySpan<double> window, Span<double> re, Span<double> im)
+    private void Check(int samples, bool complex, ReadOnlySpan<double> window, Span<double> re, Span<double> im)
     {
         int n = _n;
         if (!CanScramble) throw new InvalidOperationException("the scrambled transform needs a power-of-two size from 4");
-        if (re.Length != n || im.Length != n || window.Length != n || samples.Length < (complex ? 2 * n : n))
+        if (re.Length != n || im.Length != n || window.Length != n || samples < (complex ? 2 * n : n))
             throw new ArgumentException($"spans must hold {n} points");
     }
 
@@ -281,7 +281,8 @@ public sealed class FftPlan
     /// The scrambled transform; with active <paramref name="sums"/> the last pass adds |X|^2 into
     /// them instead of storing X. Stops after loading when the windowed sum is not finite.
     /// </summary>
-    private double Scrambled(ReadOnlySpan<double> samples, bool complex, ReadOnlySpan<double> window, Span<double> re, Span<double> im, PowerSums sums)
+    private double Scrambled<T>(ReadOnlySpan<T> samples, bool complex, ReadOnlySpan<double> window, Span<double> re, Span<double> im, PowerSums sums)
+        where T : unmanaged
     {
         int n = _n;
         ref double reRef = ref MemoryMarshal.GetReference(re);
@@ -294,7 +295,7 @@ public sealed class FftPlan
             check = FirstPassWindowed(samples, window, ref reRef, ref imRef);
             h /= 4;
         }
-        else check = LoadWindowed(samples, complex, window, re, im);
+        else check = LoadWindowed(AsDoubles(samples), complex, window, re, im);
         if (!double.IsFinite(check)) return check;
         // Passes whose groups span more than a block (16 KiB of re and im, which stays in the L1
         // cache) run over the whole array; the rest run block by block, all passes on one block
@@ -431,7 +432,20 @@ public sealed class FftPlan
     public double ForwardPowerScrambled(ReadOnlySpan<double> samples, bool complex, ReadOnlySpan<double> window, Span<double> re, Span<double> im,
                                         Span<double> sum, Span<double> max, Span<double> row, bool rowMax)
     {
-        Check(samples, complex, window, re, im);
+        Check(samples.Length, complex, window, re, im);
+        if (sum.Length != _n || max.Length != _n || row.Length != _n) throw new ArgumentException($"spans must hold {_n} points");
+        return Scrambled(samples, complex, window, re, im, new PowerSums(sum, max, row, rowMax));
+    }
+
+    /// <summary>
+    /// <see cref="ForwardPowerScrambled(ReadOnlySpan{double}, bool, ReadOnlySpan{double}, Span{double}, Span{double}, Span{double}, Span{double}, Span{double}, bool)"/>
+    /// from single-precision samples (a cf32 capture as stored): each is widened to double as it is
+    /// loaded, so the result is that of the widened samples, bit for bit.
+    /// </summary>
+    public double ForwardPowerScrambled(ReadOnlySpan<float> samples, bool complex, ReadOnlySpan<double> window, Span<double> re, Span<double> im,
+                                        Span<double> sum, Span<double> max, Span<double> row, bool rowMax)
+    {
+        Check(samples.Length, complex, window, re, im);
         if (sum.Length != _n || max.Length != _n || row.Length != _n) throw new ArgumentException($"spans must hold {_n} points");
         return Scrambled(samples, complex, window, re, im, new PowerSums(sum, max, row, rowMax));
     }
@@ -440,10 +454,11 @@ public sealed class FftPlan
     /// The first radix-2^2 pass (half-size n/2, one group) straight from interleaved I/Q samples:
     /// each input is windowed and split as it is loaded. Returns the sum of the windowed values.
     /// </summary>
-    private double FirstPassWindowed(ReadOnlySpan<double> samples, ReadOnlySpan<double> window, ref double reRef, ref double imRef)
+    private double FirstPassWindowed<T>(ReadOnlySpan<T> samples, ReadOnlySpan<double> window, ref double reRef, ref double imRef)
+        where T : unmanaged
     {
         int n = _n, h = n / 2, q = h / 2;
-        ref double x = ref MemoryMarshal.GetReference(samples);
+        ref T x = ref MemoryMarshal.GetReference(samples);
         ref double w = ref MemoryMarshal.GetReference(window);
         ref double wAr = ref _twRe[_stageOffset[BitOperations.Log2((uint)h) + 1]];
         ref double wAi = ref _twIm[_stageOffset[BitOperations.Log2((uint)h) + 1]];
@@ -473,17 +488,28 @@ public sealed class FftPlan
         return Vector256.Sum(acc);
     }
 
-    /// <summary>Four windowed complex samples from index i of interleaved I/Q, split into (I, Q).</summary>
+    /// <summary>Four windowed complex samples from index i of interleaved I/Q (double, or float widened exactly), split into (I, Q).</summary>
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
-    private static (Vector256<double>, Vector256<double>) LoadSplit(ref double x, ref double w, int i)
+    private static (Vector256<double>, Vector256<double>) LoadSplit<T>(ref T x, ref double w, int i) where T : unmanaged
     {
-        var v0 = Vector256.LoadUnsafe(ref x, (nuint)(2 * i));
-        var v1 = Vector256.LoadUnsafe(ref x, (nuint)(2 * i + 4));
+        Vector256<double> v0, v1;
+        if (typeof(T) == typeof(float))
+        {
+            ref float f = ref Unsafe.As<T, float>(ref x);
+            v0 = Avx.ConvertToVector256Double(Vector128.LoadUnsafe(ref f, (nuint)(2 * i)));
+            v1 = Avx.ConvertToVector256Double(Vector128.LoadUnsafe(ref f, (nuint)(2 * i + 4)));
+        }
+        else
+        {
+            ref double d = ref Unsafe.As<T, double>(ref x);
+            v0 = Vector256.LoadUnsafe(ref d, (nuint)(2 * i));
+            v1 = Vector256.LoadUnsafe(ref d, (nuint)(2 * i + 4));
+        }
         var wv = Vector256.LoadUnsafe(ref w, (nuint)i);
         return (Avx2.Permute4x64(Avx.UnpackLow(v0, v1), 0b11_01_10_00) * wv, Avx2.Permute4x64(Avx.UnpackHigh(v0, v1), 0b11_01_10_00) * wv);
     }
 
-    /// <summary>Where the last pass of <see cref="ForwardPowerScrambled"/> adds |X|^2.</summary>
+    /// <summary>Where the last pass of the Welch inner step (<c>ForwardPowerScrambled</c>) adds |X|^2.</summary>
     private readonly ref struct PowerSums(Span<double> sum, Span<double> max, Span<double> row, bool rowMax)
     {
         public readonly Span<double> Sum = sum, Max = max, Row = row;
@@ -523,6 +549,18 @@ public sealed class FftPlan
         Vector256<double> ab0 = Avx.UnpackLow(a, b), ab1 = Avx.UnpackHigh(a, b);   // a0 b0 a2 b2 | a1 b1 a3 b3
         Vector256<double> cd0 = Avx.UnpackLow(c, d), cd1 = Avx.UnpackHigh(c, d);
         return (Avx.Permute2x128(ab0, cd0, 0x20), Avx.Permute2x128(ab1, cd1, 0x20), Avx.Permute2x128(ab0, cd0, 0x31), Avx.Permute2x128(ab1, cd1, 0x31));
+    }
+
+    private double[] _widened = [];
+
+    /// <summary>The samples as doubles: themselves, or single precision widened into the plan's scratch.</summary>
+    private ReadOnlySpan<double> AsDoubles<T>(ReadOnlySpan<T> samples) where T : unmanaged
+    {
+        if (typeof(T) == typeof(double)) return MemoryMarshal.Cast<T, double>(samples);
+        ReadOnlySpan<float> f = MemoryMarshal.Cast<T, float>(samples);
+        if (_widened.Length < f.Length) _widened = new double[f.Length];
+        for (int i = 0; i < f.Length; i++) _widened[i] = f[i];
+        return _widened.AsSpan(0, f.Length);
     }
 
     /// <summary>re, im = window x samples in natural order (interleaved I/Q split, or real with im = 0); returns their sum.</summary>

@@ -45,7 +45,7 @@ public static class FirDesign
 /// <summary>
 /// Shifts a complex (or real) stream in frequency, low-passes it with a linear-phase FIR and keeps
 /// every M-th output: the channel filter and decimator in front of the demodulators. A plan with
-/// state: construct once, call <see cref="Process"/> block by block; the result does not depend on
+/// state: construct once, call <see cref="Process(ReadOnlySpan{double}, Span{double}, Span{double})"/> (or its float overload) block by block; the result does not depend on
 /// the block size. Output m is the filter's output at input sample (m + 1) M - 1; the history
 /// before the first input is zero.
 /// </summary>
@@ -121,7 +121,16 @@ public sealed class ChannelDecimator
     /// complex output to <paramref name="outRe"/> and <paramref name="outIm"/>. Returns the number
     /// of outputs, at most ceil(input samples / decimation): the spans must hold that many.
     /// </summary>
-    public int Process(ReadOnlySpan<double> input, Span<double> outRe, Span<double> outIm)
+    public int Process(ReadOnlySpan<double> input, Span<double> outRe, Span<double> outIm) => Process<double>(input, outRe, outIm);
+
+    /// <summary>
+    /// <see cref="Process(ReadOnlySpan{double}, Span{double}, Span{double})"/> from single-precision
+    /// input (a float32 capture as stored): each value is widened to double before the shift, so the
+    /// outputs equal those of the widened input exactly.
+    /// </summary>
+    public int Process(ReadOnlySpan<float> input, Span<double> outRe, Span<double> outIm) => Process<float>(input, outRe, outIm);
+
+    private int Process<T>(ReadOnlySpan<T> input, Span<double> outRe, Span<double> outIm) where T : unmanaged
     {
         int count = _complexInput ? input.Length / 2 : input.Length;
         int produced = 0;
@@ -165,7 +174,7 @@ public sealed class ChannelDecimator
     }
 
     /// <summary>Shifts <paramref name="piece"/> samples (oscillator table index k0 onwards) into _z at _fill.</summary>
-    private void Mix(ReadOnlySpan<double> x, int k0, int piece)
+    private void Mix<T>(ReadOnlySpan<T> x, int k0, int piece) where T : unmanaged
     {
         double cyc = _shiftCyclesPerSample * (_n - k0);
         double anchor = 2 * Math.PI * (cyc - Math.Floor(cyc));
@@ -180,7 +189,7 @@ public sealed class ChannelDecimator
         for (; i < piece; i++)
         {
             double c = t[2 * i] * ar - t[2 * i + 1] * ai, s = t[2 * i] * ai + t[2 * i + 1] * ar;
-            double xr = _complexInput ? x[2 * i] : x[i], xi = _complexInput ? x[2 * i + 1] : 0;
+            double xr = _complexInput ? At(x, 2 * i) : At(x, i), xi = _complexInput ? At(x, 2 * i + 1) : 0;
             if (!double.IsFinite(xr)) xr = 0;
             if (!double.IsFinite(xi)) xi = 0;
             z[2 * i] = (float)(xr * c - xi * s);
@@ -188,12 +197,17 @@ public sealed class ChannelDecimator
         }
     }
 
+    /// <summary>Value i of a double or float span, as a double.</summary>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    private static double At<T>(ReadOnlySpan<T> x, int i) where T : unmanaged =>
+        typeof(T) == typeof(float) ? System.Runtime.InteropServices.MemoryMarshal.Cast<T, float>(x)[i] : System.Runtime.InteropServices.MemoryMarshal.Cast<T, double>(x)[i];
+
     /// <summary>Two complex samples per step: osc = anchor x table, y = x osc, both as interleaved complex products.</summary>
-    private static int MixAvx(ReadOnlySpan<double> x, ReadOnlySpan<double> t, Span<float> z, double ar, double ai, int piece)
+    private static int MixAvx<T>(ReadOnlySpan<T> x, ReadOnlySpan<double> t, Span<float> z, double ar, double ai, int piece) where T : unmanaged
     {
         var vr = System.Runtime.Intrinsics.Vector256.Create(ar);
         var vi = System.Runtime.Intrinsics.Vector256.Create(ai);
-        ref double xs = ref System.Runtime.InteropServices.MemoryMarshal.GetReference(x);
+        ref T xs = ref System.Runtime.InteropServices.MemoryMarshal.GetReference(x);
         ref double ts = ref System.Runtime.InteropServices.MemoryMarshal.GetReference(t);
         ref float zs = ref System.Runtime.InteropServices.MemoryMarshal.GetReference(z);
         int i = 0;
@@ -202,7 +216,9 @@ public sealed class ChannelDecimator
             var tv = System.Runtime.Intrinsics.Vector256.LoadUnsafe(ref ts, (nuint)(2 * i));
             // osc = t * a: [tr ar - ti ai, ti ar + tr ai] per complex lane.
             var osc = System.Runtime.Intrinsics.X86.Avx.AddSubtract(tv * vr, System.Runtime.Intrinsics.X86.Avx.Permute(tv, 0b0101) * vi);
-            var xv = System.Runtime.Intrinsics.Vector256.LoadUnsafe(ref xs, (nuint)(2 * i));
+            var xv = typeof(T) == typeof(float)
+                ? System.Runtime.Intrinsics.X86.Avx.ConvertToVector256Double(System.Runtime.Intrinsics.Vector128.LoadUnsafe(ref Unsafe.As<T, float>(ref xs), (nuint)(2 * i)))
+                : System.Runtime.Intrinsics.Vector256.LoadUnsafe(ref Unsafe.As<T, double>(ref xs), (nuint)(2 * i));
             // Non-finite components become 0 (x - x is 0 only for finite x).
             xv = System.Runtime.Intrinsics.Vector256.ConditionalSelect(System.Runtime.Intrinsics.Vector256.Equals(xv - xv, System.Runtime.Intrinsics.Vector256<double>.Zero), xv, System.Runtime.Intrinsics.Vector256<double>.Zero);
             var cre = System.Runtime.Intrinsics.X86.Avx.Permute(osc, 0b0000);

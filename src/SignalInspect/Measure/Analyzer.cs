@@ -131,8 +131,9 @@ public static class Analyzer
                     double sigma = Math.Sqrt(nv);
                     if (tv >= 0.8 * (tv + nv))
                     {
-                        aMax = aMean + SinePeak.FromPercentile(aMax - aMean, sigma);
-                        aMin = aMean - SinePeak.FromPercentile(aMean - aMin, sigma);
+                        var (dUp, dDown) = SinePeak.FromPercentiles(aMax - aMean, aMean - aMin, sigma);
+                        aMax = aMean + dUp;
+                        aMin = aMean - dDown;
                         mEnv = (aMax - aMin) / (aMax + aMin);
                         peakNote = "tone peaks corrected for the measured noise (sine-plus-Gaussian model)";
                     }
@@ -156,8 +157,7 @@ public static class Analyzer
                     if (tv >= 0.8 * (tv + nv))
                     {
                         double sigma = Math.Sqrt(nv);
-                        pPos = SinePeak.FromPercentile(pPos, sigma);
-                        pNeg = SinePeak.FromPercentile(pNeg, sigma);
+                        (pPos, pNeg) = SinePeak.FromPercentiles(pPos, pNeg, sigma);
                         peakNote = "tone peaks corrected for the measured noise (sine-plus-Gaussian model)";
                     }
                 }
@@ -184,8 +184,8 @@ public static class Analyzer
                     // Additive noise moves the phase by sigma_a / A (its quadrature part), read from the envelope's noise.
                     var (_, nv) = b.EnvelopeSpectrum.Split(0, minTone, 0.45 * fsd);
                     double sigmaPhi = Math.Sqrt(nv) / aMean;
-                    up = SinePeak.FromPercentile(up, sigmaPhi);
-                    lo = -SinePeak.FromPercentile(-lo, sigmaPhi);
+                    (up, double down) = SinePeak.FromPercentiles(up, -lo, sigmaPhi);
+                    lo = -down;
                     peakNote = "tone peaks corrected for the measured noise (sine-plus-Gaussian model)";
                 }
                 double p = (up - lo) / 2;

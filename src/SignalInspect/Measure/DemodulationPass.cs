@@ -216,6 +216,7 @@ internal static class DemodulationPass
     private sealed class Worker
     {
         private readonly Setup _s;
+        private float[]? _inputF;
         private readonly double[] _input, _re, _im, _a, _x, _y, _dphi, _dev, _df, _pv, _ph, _ubuf, _ringA, _ringF, _ringT, _segment, _segment2;
         private readonly LineSpectrum.Workspace _ws;
         private readonly ChannelDecimator _dec;
@@ -295,17 +296,12 @@ internal static class DemodulationPass
             long n = begin;
             int mask = s.DemodFft - 1, hop = s.Hop;
             using CaptureReader reader = p.Source.OpenReader(p.First + inFirst, inEnd - inFirst);
-            int vps = reader.ValuesPerSample;
             long inPos = inFirst;
-            int got;
+            int m;
             _re[0] = _im[0] = 0;
-            while ((got = reader.Read(_input)) > 0)
+            while ((m = NextBlock(reader, dec, ownIn, ref inPos, k)) >= 0)
             {
                 cancel.ThrowIfCancellationRequested();
-                long skip = Math.Max(0, ownIn - inPos);
-                if (skip < got) k.NearFullScale += CountFullScale(_input.AsSpan((int)skip * vps, (got - (int)skip) * vps));
-                inPos += got;
-                int m = dec.Process(_input.AsSpan(0, got * vps), _re.AsSpan(1), _im.AsSpan(1));
                 if (m == 0) continue;
                 // Envelope and phase step of every output; _re[0], _im[0] hold the previous sample.
                 Span<double> re = _re.AsSpan(0, m + 1), im = _im.AsSpan(0, m + 1);
@@ -380,6 +376,30 @@ internal static class DemodulationPass
                 }
             }
             return k;
+        }
+
+        /// <summary>
+        /// Reads the next block of input (float32 captures as stored, others decoded to double),
+        /// counts its full-scale components from the chunk's own first input
+        /// <paramref name="ownIn"/> on, and runs it through the channel filter: the outputs land in
+        /// _re, _im from index 1. Returns their number, or -1 at the end of the chunk's input.
+        /// </summary>
+        private int NextBlock(CaptureReader reader, ChannelDecimator dec, long ownIn, ref long inPos, ChunkSums k)
+        {
+            int vps = reader.ValuesPerSample, got;
+            int skip = (int)Math.Clamp(ownIn - inPos, 0, int.MaxValue);
+            if (reader.DeliversFloat32)
+            {
+                float[] f = _inputF ??= new float[_input.Length];
+                if ((got = reader.Read(f)) <= 0) return -1;
+                if (skip < got) k.NearFullScale += CountFullScale(f.AsSpan(skip * vps, (got - skip) * vps));
+                inPos += got;
+                return dec.Process(f.AsSpan(0, got * vps), _re.AsSpan(1), _im.AsSpan(1));
+            }
+            if ((got = reader.Read(_input)) <= 0) return -1;
+            if (skip < got) k.NearFullScale += CountFullScale(_input.AsSpan(skip * vps, (got - skip) * vps));
+            inPos += got;
+            return dec.Process(_input.AsSpan(0, got * vps), _re.AsSpan(1), _im.AsSpan(1));
         }
 
         /// <summary>Copies a run of samples into a ring of the segment length at their sample indices.</summary>
@@ -488,6 +508,23 @@ internal static class DemodulationPass
             y[i] = im[i + 1] * re[i] - re[i + 1] * im[i];
             x[i] = re[i + 1] * re[i] + im[i + 1] * im[i];
         }
+    }
+
+    /// <summary>The smallest float at or above <see cref="FullScaleCode"/>: |v| &gt;= it exactly when (double)|v| &gt;= the code.</summary>
+    private static readonly float FullScaleCodeF = (float)FullScaleCode >= FullScaleCode ? (float)FullScaleCode : MathF.BitIncrement((float)FullScaleCode);
+
+    /// <summary><see cref="CountFullScale(ReadOnlySpan{double})"/> of single-precision components (the same count as of them widened).</summary>
+    private static long CountFullScale(ReadOnlySpan<float> v)
+    {
+        int w = Vector<float>.Count, i;
+        var limit = new Vector<float>(FullScaleCodeF);
+        Vector<int> acc = Vector<int>.Zero;
+        ReadOnlySpan<Vector<float>> vv = MemoryMarshal.Cast<float, Vector<float>>(v);
+        // Counts per lane stay far below 2^31: a block is at most a few tens of thousands of values.
+        foreach (Vector<float> x in vv) acc -= Vector.GreaterThanOrEqual(Vector.Abs(x), limit);
+        long count = Vector.Sum(acc);
+        for (i = vv.Length * w; i < v.Length; i++) if (Math.Abs(v[i]) >= FullScaleCodeF) count++;
+        return count;
     }
 
     /// <summary>Sample components at full scale (|v| at or above the top code), NaN not counted.</summary>

@@ -199,7 +199,9 @@ public static class WelchEstimator
         private readonly Layout _l;
         private readonly FftPlan _fft;
         private readonly bool _scrambled;
-        private readonly double[] _re, _im, _w, _row, _staging;
+        private readonly double[] _re, _im, _w, _row;
+        private double[]? _staging;
+        private float[]? _stagingF;
         private double[] _rowSum;   // the row's periodogram sum, handed to the total when the row ends
 
         public Worker(Layout layout)
@@ -213,15 +215,24 @@ public static class WelchEstimator
             _row = new double[layout.N];
             _rowSum = new double[layout.N];
             Max = new double[layout.N];
-            int vps = layout.Complex ? 2 : 1;
-            _staging = new double[(Math.Max(MinStagingSamples, 4 * layout.N) + layout.N) * vps];
         }
+
+        /// <summary>Staging values for a row: read-ahead of several segments plus one.</summary>
+        private int StagingValues => (Math.Max(MinStagingSamples, 4 * _l.N) + _l.N) * (_l.Complex ? 2 : 1);
 
         public double[] Max { get; }
         public long NonFiniteSegments { get; private set; }
 
         /// <summary>The segments of spectrogram row r: its row, its share of the max-hold, its sum into the total.</summary>
         public void RunRow(CaptureReader reader, int r, double[] gram, InOrder<double[]> total, Action<long>? report, CancellationToken cancel)
+        {
+            // float32 captures are read as stored and widened as the scrambled transform loads them (the same values).
+            if (reader.DeliversFloat32 && _scrambled) RunRow(reader, _stagingF ??= new float[StagingValues], r, gram, total, report, cancel);
+            else RunRow(reader, _staging ??= new double[StagingValues], r, gram, total, report, cancel);
+        }
+
+        private void RunRow<T>(CaptureReader reader, T[] staging, int r, double[] gram, InOrder<double[]> total, Action<long>? report, CancellationToken cancel)
+            where T : unmanaged
         {
             int n = _l.N, step = _l.Step, vps = reader.ValuesPerSample;
             long seg0 = r * _l.PerRow, seg1 = Math.Min(_l.Segments, (r + 1) * _l.PerRow);
@@ -236,18 +247,20 @@ public static class WelchEstimator
                 if (pos + n > filled)
                 {
                     int keep = filled - pos;
-                    _staging.AsSpan(pos * vps, keep * vps).CopyTo(_staging);
+                    staging.AsSpan(pos * vps, keep * vps).CopyTo(staging);
                     filled = keep;
                     pos = 0;
-                    int want = (int)Math.Min(_staging.Length / vps - filled, left);
-                    int got = want > 0 ? reader.Read(_staging.AsSpan(filled * vps, want * vps)) : 0;
+                    int want = (int)Math.Min(staging.Length / vps - filled, left);
+                    Span<T> into = staging.AsSpan(filled * vps, want * vps);
+                    int got = want <= 0 ? 0
+                        : typeof(T) == typeof(float) ? reader.Read(MemoryMarshal.Cast<T, float>(into)) : reader.Read(MemoryMarshal.Cast<T, double>(into));
                     if (got == 0) break;
                     filled += got;
                     left -= got;
                     report?.Invoke(got);
                     continue;
                 }
-                Periodogram(_staging.AsSpan(pos * vps, n * vps), vps == 2);
+                Periodogram<T>(staging.AsSpan(pos * vps, n * vps), vps == 2);
                 segment++;
                 pos += step;
             }
@@ -256,16 +269,20 @@ public static class WelchEstimator
             _rowSum = total.Rent();
         }
 
-        private void Periodogram(ReadOnlySpan<double> x, bool complex)
+        private void Periodogram<T>(ReadOnlySpan<T> samples, bool complex) where T : unmanaged
         {
             if (_scrambled)
             {
                 // Transform and sums in one go; a segment with NaN or infinity adds nothing and is redone with those samples as 0.
-                if (double.IsFinite(_fft.ForwardPowerScrambled(x, complex, _w, _re, _im, _rowSum, Max, _row, _l.RowMax))) return;
+                double check = typeof(T) == typeof(float)
+                    ? _fft.ForwardPowerScrambled(MemoryMarshal.Cast<T, float>(samples), complex, _w, _re, _im, _rowSum, Max, _row, _l.RowMax)
+                    : _fft.ForwardPowerScrambled(MemoryMarshal.Cast<T, double>(samples), complex, _w, _re, _im, _rowSum, Max, _row, _l.RowMax);
+                if (double.IsFinite(check)) return;
                 NonFiniteSegments++;
-                _fft.ForwardPowerScrambled(Clean(x), complex, _w, _re, _im, _rowSum, Max, _row, _l.RowMax);
+                _fft.ForwardPowerScrambled(Clean(samples), complex, _w, _re, _im, _rowSum, Max, _row, _l.RowMax);
                 return;
             }
+            ReadOnlySpan<double> x = MemoryMarshal.Cast<T, double>(samples);   // float staging only with the scrambled transform
             if (!double.IsFinite(_fft.ForwardWindowed(x, complex, _w, _re, _im)))
             {
                 NonFiniteSegments++;
@@ -274,9 +291,17 @@ public static class WelchEstimator
             Accumulate();
         }
 
-        /// <summary>The segment with NaN and infinite samples taken as 0.</summary>
-        private static double[] Clean(ReadOnlySpan<double> x)
+        private static double[] Widen(ReadOnlySpan<float> x)
         {
+            var d = new double[x.Length];
+            for (int i = 0; i < d.Length; i++) d[i] = x[i];
+            return d;
+        }
+
+        /// <summary>The segment with NaN and infinite samples taken as 0.</summary>
+        private static double[] Clean<T>(ReadOnlySpan<T> samples) where T : unmanaged
+        {
+            ReadOnlySpan<double> x = typeof(T) == typeof(double) ? MemoryMarshal.Cast<T, double>(samples) : Widen(MemoryMarshal.Cast<T, float>(samples));
             var clean = new double[x.Length];
             for (int i = 0; i < clean.Length; i++) clean[i] = double.IsFinite(x[i]) ? x[i] : 0;
             return clean;
