@@ -8,6 +8,7 @@
 # bandwidth within 0.1 %, peak deviation within 0.5 %). Both sides use the same settings: Welch
 # Hann 4096 / 50 %, 99 % OBW with the noise kept, a 15 kHz post-detection low-pass.
 # SignalInspect's wall time is the best of two runs (its peak RSS the larger); the reference runs once.
+# Prints the `synth`-made captures' results for the native-AOT build (see below) and, once, the JIT build.
 # Also times analyze on a 0.1 s capture: the fixed start-up cost, shown beside the linearity ratio.
 # Installs Debian's python3-numpy and python3-scipy when missing (apt-get, needs root).
 # Captures go to ${TMPDIR:-/tmp} (1.15 GB + 0.19 GB); --keep reuses them from an earlier run.
@@ -22,11 +23,22 @@ if ! "$PY" -c "import numpy, scipy" >/dev/null 2>&1; then
   (apt-get update -q && DEBIAN_FRONTEND=noninteractive apt-get install -y -q python3-numpy python3-scipy) >/dev/null
 fi
 [[ -x /usr/bin/time ]] || (DEBIAN_FRONTEND=noninteractive apt-get install -y -q time >/dev/null)
-# Published as an installed tool would be: Release, ReadyToRun (start-up code precompiled; the
-# SIMD kernels are compiled for this CPU when first run).
+# Published as the README's installed tool: native AOT for this CPU (a single executable, no JIT
+# start-up; the SIMD kernels compiled ahead of time with every instruction set this CPU has). Also a
+# ReadyToRun build for the JIT column. When the native toolchain is missing (AOT needs clang or gcc),
+# the ReadyToRun build takes the first column and the table says so.
 pub="$tmp/si-bench-publish"
+aot="$tmp/si-bench-aot"
 dotnet publish src/SignalInspect.Cli/SignalInspect.Cli.csproj -c Release -r linux-x64 --self-contained false -p:PublishReadyToRun=true -o "$pub" >/dev/null
-SI=(dotnet "$pub/signalinspect.dll")
+JIT=(dotnet "$pub/signalinspect.dll")
+linker=()
+command -v clang >/dev/null || linker=(-p:CppCompilerAndLinker=gcc)
+if dotnet publish src/SignalInspect.Cli/SignalInspect.Cli.csproj -c Release -r linux-x64 -p:PublishAot=true -p:IlcInstructionSet=native "${linker[@]}" -o "$aot" >"$tmp/si-bench-aot.log" 2>&1; then
+  SI=("$aot/signalinspect"); BUILD="native AOT"
+else
+  echo "native AOT publish failed (see $tmp/si-bench-aot.log): measuring the ReadyToRun build" >&2
+  SI=("${JIT[@]}"); BUILD="ReadyToRun"
+fi
 FS=2400000
 LP=15000
 
@@ -61,6 +73,12 @@ for s in 60 10; do
     (( RSS_MB > rss[si-$s] )) && rss[si-$s]=$RSS_MB
   done
 done
+# The JIT build once on each, for comparison.
+for s in 60 10; do
+  f="$tmp/si-pipeline-${s}s.cf32"
+  measure "jit-$s" "${JIT[@]}" analyze "$f" --sample-rate $FS --obw-noise keep --post-lowpass $LP --json -
+  wall[jit-$s]=$WALL; rss[jit-$s]=$RSS_MB
+done
 # Start-up: the same command on a 0.1 s capture (best of three).
 "${SI[@]}" synth "$tmp/si-pipeline-0.1s.cf32" --kind fm --sample-rate $FS --duration 0.1 --deviation 75000 --tone 1000 --snr 40 --offset 12500 --force >/dev/null
 start=99
@@ -75,16 +93,19 @@ for s in 60 10; do
   wall[py-$s]=$WALL; rss[py-$s]=$RSS_MB
 done
 
-"$PY" - "$tmp" "$start" "${wall[si-60]}" "${rss[si-60]}" "${wall[py-60]}" "${rss[py-60]}" "${wall[si-10]}" "${rss[si-10]}" "${wall[py-10]}" "${rss[py-10]}" <<'EOF'
+"$PY" - "$tmp" "$start" "$BUILD" "${wall[si-60]}" "${rss[si-60]}" "${wall[py-60]}" "${rss[py-60]}" "${wall[si-10]}" "${rss[si-10]}" "${wall[py-10]}" "${rss[py-10]}" \
+  "${wall[jit-60]}" "${rss[jit-60]}" "${wall[jit-10]}" "${rss[jit-10]}" <<'EOF'
 import json, sys
 tmp = sys.argv[1]
 start = float(sys.argv[2])
-w = dict(zip(["si60", "si60r", "py60", "py60r", "si10", "si10r", "py10", "py10r"], map(float, sys.argv[3:])))
+build = sys.argv[3]
+w = dict(zip(["si60", "si60r", "py60", "py60r", "si10", "si10r", "py10", "py10r", "jit60", "jit60r", "jit10", "jit10r"], map(float, sys.argv[4:])))
 ok = True
 print("| capture | program | wall (s) | MS/s | peak RSS (MB) |")
 print("|---|---|---|---|---|")
 for s, n in ((60, 144e6), (10, 24e6)):
-    print(f"| {s} s | signalinspect analyze | {w[f'si{s}']:.2f} | {n / w[f'si{s}'] / 1e6:.1f} | {w[f'si{s}r']:.0f} |")
+    print(f"| {s} s | signalinspect analyze ({build}, best of two) | {w[f'si{s}']:.2f} | {n / w[f'si{s}'] / 1e6:.1f} | {w[f'si{s}r']:.0f} |")
+    print(f"| {s} s | signalinspect analyze (JIT, ReadyToRun, one run) | {w[f'jit{s}']:.2f} | {n / w[f'jit{s}'] / 1e6:.1f} | {w[f'jit{s}r']:.0f} |")
     print(f"| {s} s | numpy/scipy reference | {w[f'py{s}']:.2f} | {n / w[f'py{s}'] / 1e6:.1f} | {w[f'py{s}r']:.0f} |")
 for s in (60, 10):
     print(f"{s} s: reference / signalinspect wall time = {w[f'py{s}'] / w[f'si{s}']:.2f}")

@@ -29,7 +29,9 @@ public static class Analyzer
         if (info.SampleCount == 0) throw CaptureException.ForFile(info.Path, "holds no samples: there is nothing to measure");
         var (first, count) = source.WindowSamples(options.StartS, options.DurationS);
         var clock = Stopwatch.StartNew();
-        Task<string> hash = Task.Run(() => FileHash.Sha256(info.DataPath ?? info.Path), cancel);
+        var started = Stopwatch.StartNew();
+        double hashDoneS = 0;
+        Task<string> hash = Task.Run(() => { string h = FileHash.Sha256(info.DataPath ?? info.Path); hashDoneS = started.Elapsed.TotalSeconds; return h; }, cancel);
         var warnings = new List<string>(info.Warnings);
 
         // Pass A: the spectrum, the bandwidths and a first carrier estimate.
@@ -252,6 +254,7 @@ public static class Analyzer
         };
         string sha = hash.Result;
         Profile.Stage("hash wait", clock);
+        Profile.Note($"hash done at {hashDoneS:0.000} s, analysis at {started.Elapsed.TotalSeconds:0.000} s");
         var (waveT, waveV, waveLabel) = Waveform(b, kind, tone?.Value, fsd, meanDev);
         var (longT, longHigh, longLow) = Trend(b, kind, fsd, meanDev);
         return new AnalysisResult

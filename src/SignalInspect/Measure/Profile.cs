@@ -10,6 +10,12 @@ internal static class Profile
 {
     private static readonly bool On = Environment.GetEnvironmentVariable("SI_PROFILE") == "1";
 
+    /// <summary>Writes a line (built only when profiling is on, if the caller passes a lambda-free interpolation).</summary>
+    public static void Note(string text)
+    {
+        if (On) Console.Error.WriteLine($"profile: {text}");
+    }
+
     /// <summary>Writes the time since the last stage and restarts the clock.</summary>
     public static void Stage(string name, Stopwatch clock)
     {
