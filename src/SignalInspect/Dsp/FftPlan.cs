@@ -251,6 +251,50 @@ public sealed class FftPlan
         if (_n > 1) Butterflies(re, im);
     }
 
+    /// <summary>
+    /// For a fast convolution: out[q] = conj(Z(k) H[q]) for every bit-reversed position q, where
+    /// k = bitrev(q), Z is the output of <see cref="ForwardWindowedScrambled"/> (bin k at
+    /// <see cref="ScrambledIndex"/>(k)) and H is given in bit-reversed order. The result is ready
+    /// for <see cref="ForwardFromBitReversed"/>, which then yields N conj(IDFT(Z H)).
+    /// </summary>
+    internal void ConjugateProductToBitReversed(ReadOnlySpan<double> zr, ReadOnlySpan<double> zi, ReadOnlySpan<double> hr, ReadOnlySpan<double> hi, Span<double> outR, Span<double> outI)
+    {
+        int n = _n;
+        if (zr.Length != n || zi.Length != n || hr.Length != n || hi.Length != n || outR.Length != n || outI.Length != n)
+            throw new ArgumentException($"spans must hold {n} points");
+        ref double a = ref MemoryMarshal.GetReference(zr), b = ref MemoryMarshal.GetReference(zi);
+        ref double c = ref MemoryMarshal.GetReference(hr), d = ref MemoryMarshal.GetReference(hi);
+        ref double o = ref MemoryMarshal.GetReference(outR), p = ref MemoryMarshal.GetReference(outI);
+        if (TransposedTail)
+        {
+            // Each block of 16 holds its bins 4 x 4 transposed: transposing it back gives bit-reversed order.
+            for (int g = 0; g < n; g += 16)
+            {
+                var (r0, r1, r2, r3) = Transpose(LoadV4(ref a, g), LoadV4(ref a, g + 4), LoadV4(ref a, g + 8), LoadV4(ref a, g + 12));
+                var (i0, i1, i2, i3) = Transpose(LoadV4(ref b, g), LoadV4(ref b, g + 4), LoadV4(ref b, g + 8), LoadV4(ref b, g + 12));
+                ConjProduct(r0, i0, ref c, ref d, ref o, ref p, g);
+                ConjProduct(r1, i1, ref c, ref d, ref o, ref p, g + 4);
+                ConjProduct(r2, i2, ref c, ref d, ref o, ref p, g + 8);
+                ConjProduct(r3, i3, ref c, ref d, ref o, ref p, g + 12);
+            }
+            return;
+        }
+        for (int q = 0; q < n; q++)
+        {
+            double x = Unsafe.Add(ref a, q), y = Unsafe.Add(ref b, q), hc = Unsafe.Add(ref c, q), hd = Unsafe.Add(ref d, q);
+            Unsafe.Add(ref o, q) = x * hc - y * hd;
+            Unsafe.Add(ref p, q) = -(x * hd + y * hc);
+        }
+    }
+
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    private static void ConjProduct(Vector256<double> x, Vector256<double> y, ref double c, ref double d, ref double o, ref double p, int at)
+    {
+        Vector256<double> hc = LoadV4(ref c, at), hd = LoadV4(ref d, at);
+        (x * hc - y * hd).StoreUnsafe(ref o, (nuint)at);
+        (-(x * hd + y * hc)).StoreUnsafe(ref p, (nuint)at);
+    }
+
     /// <summary>Whether the scrambled transform's last pass runs on 4 x 4 transposed blocks (AVX, 16 points or more).</summary>
     private bool TransposedTail => _n >= 16 && Avx.IsSupported;
 

@@ -334,7 +334,6 @@ public sealed class BlockFir
     // scrambled transform leaves each bit-reversed position's bin, the pair of input segments
     // interleaved, a window of ones, and the transform buffers.
     private readonly double[] _hRe = [], _hIm = [], _pair = [], _ones = [], _zr = [], _zi = [], _wr = [], _wi = [];
-    private readonly int[] _from = [];
 
     /// <summary>Creates the filter from its taps.</summary>
     public BlockFir(double[] taps)
@@ -351,14 +350,12 @@ public sealed class BlockFir
             _plan.Forward(hr, hi);
             _hRe = new double[n];
             _hIm = new double[n];
-            _from = new int[n];
             for (int q = 0; q < n; q++)
             {
                 int k = _plan.BitReversed(q);
                 // The inverse transform's 1/N folded into the filter's spectrum.
                 _hRe[q] = hr[k] / n;
                 _hIm[q] = hi[k] / n;
-                _from[q] = _plan.ScrambledIndex(k);
             }
             _pair = new double[2 * n];
             _ones = new double[n];
@@ -440,23 +437,16 @@ public sealed class BlockFir
         FftPlan plan = _plan!;
         for (int start = 0; start < m; start += 2 * l)
         {
-            ReadOnlySpan<double> a = _buf.AsSpan(start, n), b = _buf.AsSpan(start + l, n);
-            for (int i = 0; i < n; i++) { _pair[2 * i] = a[i]; _pair[2 * i + 1] = b[i]; }
+            VectorMath.Interleave(_buf.AsSpan(start, n), _buf.AsSpan(start + l, n), _pair);
             if (double.IsFinite(plan.ForwardWindowedScrambled(_pair, complex: true, _ones, _zr, _zi)))
             {
-                for (int q = 0; q < n; q++)
-                {
-                    int p = _from[q];
-                    double zr = _zr[p], zi = _zi[p], c = _hRe[q], d = _hIm[q];
-                    _wr[q] = zr * c - zi * d;
-                    _wi[q] = -(zr * d + zi * c);
-                }
+                plan.ConjugateProductToBitReversed(_zr, _zi, _hRe, _hIm, _wr, _wi);
                 plan.ForwardFromBitReversed(_wr, _wi);
             }
             else DirectSegments(start, l);
-            int first = Math.Min(l, m - start), second = Math.Min(l, m - start - l);
-            for (int u = 0; u < first; u++) y[start + u] = _wr[hist + u];
-            for (int u = 0; u < second; u++) y[start + l + u] = -_wi[hist + u];
+            int first = Math.Min(l, m - start), second = Math.Max(0, Math.Min(l, m - start - l));
+            _wr.AsSpan(hist, first).CopyTo(y.Slice(start, first));
+            if (second > 0) VectorMath.Negate(_wi.AsSpan(hist, second), y.Slice(start + l, second));
         }
         _buf.AsSpan(m, hist).CopyTo(_buf);
     }

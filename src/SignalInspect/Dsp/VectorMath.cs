@@ -1,12 +1,14 @@
 using System.Numerics;
 using System.Runtime.CompilerServices;
 using System.Runtime.InteropServices;
+using System.Runtime.Intrinsics;
+using System.Runtime.Intrinsics.X86;
 
 namespace SignalInspect.Dsp;
 
 /// <summary>
 /// Element-wise functions on spans with SIMD (<see cref="Vector{T}"/>): the demodulators'
-/// arctangent and magnitude, a block at a time.
+/// arctangent and magnitude, scaling, differences, interleaving, a block at a time.
 /// </summary>
 public static class VectorMath
 {
@@ -62,6 +64,58 @@ public static class VectorMath
         a = Vector.ConditionalSelect(Vector.LessThan(y, Vector<double>.Zero), -a, a);
         // NaN in: the comparisons above are false, the division gives NaN; keep NaN out.
         return Vector.ConditionalSelect(Vector.Equals(x, x) & Vector.Equals(y, y), a, new Vector<double>(double.NaN));
+    }
+
+    /// <summary>into[2i] = a[i], into[2i + 1] = b[i] (two real streams as one interleaved complex one).</summary>
+    public static void Interleave(ReadOnlySpan<double> a, ReadOnlySpan<double> b, Span<double> into)
+    {
+        int n = a.Length, i = 0;
+        if (b.Length != n || into.Length < 2 * n) throw new ArgumentException("interleave needs two equal spans and room for both");
+        if (Avx.IsSupported)
+        {
+            ref double ra = ref MemoryMarshal.GetReference(a), rb = ref MemoryMarshal.GetReference(b), ro = ref MemoryMarshal.GetReference(into);
+            for (; i + 4 <= n; i += 4)
+            {
+                var va = Vector256.LoadUnsafe(ref ra, (nuint)i);
+                var vb = Vector256.LoadUnsafe(ref rb, (nuint)i);
+                var lo = Avx.UnpackLow(va, vb);    // a0 b0 a2 b2
+                var hi = Avx.UnpackHigh(va, vb);   // a1 b1 a3 b3
+                Avx.Permute2x128(lo, hi, 0x20).StoreUnsafe(ref ro, (nuint)(2 * i));
+                Avx.Permute2x128(lo, hi, 0x31).StoreUnsafe(ref ro, (nuint)(2 * i + 4));
+            }
+        }
+        for (; i < n; i++) { into[2 * i] = a[i]; into[2 * i + 1] = b[i]; }
+    }
+
+    /// <summary>result[i] = x[i] * factor (result may be x).</summary>
+    public static void Scale(ReadOnlySpan<double> x, double factor, Span<double> result)
+    {
+        int n = x.Length, w = Vector<double>.Count, i = 0;
+        if (result.Length < n) throw new ArgumentException("the result must hold every value");
+        ref double rx = ref MemoryMarshal.GetReference(x), ro = ref MemoryMarshal.GetReference(result);
+        var f = new Vector<double>(factor);
+        for (; i + w <= n; i += w) Store(Load(ref rx, i) * f, ref ro, i);
+        for (; i < n; i++) result[i] = x[i] * factor;
+    }
+
+    /// <summary>result[i] = |a[i] - b[i]|.</summary>
+    public static void AbsDifference(ReadOnlySpan<double> a, ReadOnlySpan<double> b, Span<double> result)
+    {
+        int n = a.Length, w = Vector<double>.Count, i = 0;
+        if (b.Length != n || result.Length < n) throw new ArgumentException("the spans must be as long as each other");
+        ref double ra = ref MemoryMarshal.GetReference(a), rb = ref MemoryMarshal.GetReference(b), ro = ref MemoryMarshal.GetReference(result);
+        for (; i + w <= n; i += w) Store(Vector.Abs(Load(ref ra, i) - Load(ref rb, i)), ref ro, i);
+        for (; i < n; i++) result[i] = Math.Abs(a[i] - b[i]);
+    }
+
+    /// <summary>result[i] = -x[i].</summary>
+    public static void Negate(ReadOnlySpan<double> x, Span<double> result)
+    {
+        int n = x.Length, w = Vector<double>.Count, i = 0;
+        ref double rx = ref MemoryMarshal.GetReference(x), ro = ref MemoryMarshal.GetReference(result);
+        if (result.Length < n) throw new ArgumentException("the result must hold every value");
+        for (; i + w <= n; i += w) Store(-Load(ref rx, i), ref ro, i);
+        for (; i < n; i++) result[i] = -x[i];
     }
 
     /// <summary>result[i] = sqrt(re[i]^2 + im[i]^2).</summary>

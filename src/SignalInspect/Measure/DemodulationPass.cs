@@ -313,7 +313,7 @@ internal static class DemodulationPass
                 // Instantaneous frequency: the phase step in Hz, the sin(x)/x compensator, the optional
                 // one-pole filters, the post-detection low-pass.
                 Span<double> dev = _dev.AsSpan(0, m);
-                for (int i = 0; i < m; i++) dev[i] = _dphi[i] * toHz;
+                VectorMath.Scale(_dphi.AsSpan(0, m), toHz, dev);
                 comp.Process(dev, dev);
                 if (hp is not null) for (int i = 0; i < m; i++) dev[i] = hp.Next(dev[i]);
                 if (de is not null) for (int i = 0; i < m; i++) dev[i] = de.Next(dev[i]);
@@ -340,7 +340,7 @@ internal static class DemodulationPass
                     Sums(k, _a.AsSpan(i0, m - i0), _df.AsSpan(i0, m - i0), _ph.AsSpan(i0, m - i0), n0 + i0 - tMid);
                     // Transition stream |df[i] - df[i - 1]|.
                     _x[i0] = Math.Abs(_df[i0] - prevD);
-                    for (int i = i0 + 1; i < m; i++) _x[i] = Math.Abs(_df[i] - _df[i - 1]);
+                    VectorMath.AbsDifference(_df.AsSpan(i0 + 1, m - i0 - 1), _df.AsSpan(i0, m - i0 - 1), _x.AsSpan(i0 + 1));
                     prevD = _df[m - 1];
                     if (c == 0 && WaveA.Count < WaveMax)
                     {

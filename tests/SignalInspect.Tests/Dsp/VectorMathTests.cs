@@ -59,4 +59,22 @@ public class VectorMathTests
         VectorMath.Magnitude(re, im, m);
         for (int i = 0; i < re.Length; i++) Assert.Equal(Math.Sqrt(re[i] * re[i] + im[i] * im[i]), m[i], 15);
     }
+
+    [Theory]
+    [InlineData(0)] [InlineData(3)] [InlineData(1001)]
+    public void Block_helpers_match_their_definitions(int n)
+    {
+        var rng = new Random(n);
+        double[] a = [.. Enumerable.Range(0, n).Select(_ => rng.NextDouble() - 0.5)], b = [.. Enumerable.Range(0, n).Select(_ => rng.NextDouble() - 0.5)];
+        var pair = new double[2 * n];
+        VectorMath.Interleave(a, b, pair);
+        for (int i = 0; i < n; i++) { Assert.Equal(a[i], pair[2 * i]); Assert.Equal(b[i], pair[2 * i + 1]); }
+        var r = new double[n];
+        VectorMath.Negate(a, r);
+        for (int i = 0; i < n; i++) Assert.Equal(-a[i], r[i]);
+        VectorMath.Scale(a, 3.7, r);
+        for (int i = 0; i < n; i++) Assert.Equal(a[i] * 3.7, r[i]);
+        VectorMath.AbsDifference(a, b, r);
+        for (int i = 0; i < n; i++) Assert.Equal(Math.Abs(a[i] - b[i]), r[i]);
+    }
 }
