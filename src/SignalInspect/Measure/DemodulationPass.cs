@@ -217,7 +217,8 @@ internal static class DemodulationPass
     {
         private readonly Setup _s;
         private float[]? _inputF;
-        private readonly double[] _input, _re, _im, _a, _x, _y, _dphi, _dev, _df, _pv, _ph, _ubuf, _ringA, _ringF, _ringT, _segment, _segment2;
+        private bool _pendingTransition;
+        private readonly double[] _input, _re, _im, _a, _x, _y, _dphi, _dev, _df, _pv, _ph, _ubuf, _ringA, _ringF, _ringT, _segment, _segment2, _pending;
         private readonly LineSpectrum.Workspace _ws;
         private readonly ChannelDecimator _dec;
         private readonly BlockFir _comp, _lp;
@@ -249,6 +250,7 @@ internal static class DemodulationPass
             _ringT = new double[s.DemodFft];
             _segment = new double[s.DemodFft];
             _segment2 = new double[s.DemodFft];
+            _pending = new double[s.DemodFft];
             _ws = new LineSpectrum.Workspace(s.DemodFft);
             _dec = new ChannelDecimator(p.Taps, p.Decimation, p.ShiftHz, p.Fs, p.Complex);
             // The phase difference of consecutive samples averages the frequency over one sample: a
@@ -290,6 +292,7 @@ internal static class DemodulationPass
             if (c == 0) { WaveA.Clear(); WaveF.Clear(); }
 
             var k = new ChunkSums();
+            _pendingTransition = false;
             double tMid = s.Expected / 2.0;
             double phase = 0, prevD = 0;
             double toHz = p.Fsd / (2 * Math.PI);
@@ -360,7 +363,7 @@ internal static class DemodulationPass
                         if (filled % hop == 0 && filled / hop - 2 is long seg && seg >= 0 && seg * hop >= countStart && s.Selected(seg))
                         {
                             AddSegment(lines.Env, _ringA, lines.Tone, _ringF, seg * hop);
-                            AddSegment(lines.Trans, _ringT, seg * hop);
+                            AddTransition(lines.Trans, seg * hop);
                         }
                         i = upto;
                     }
@@ -375,7 +378,29 @@ internal static class DemodulationPass
                     if (s.Fit is not null) AddPeaks(upP, _pv.AsSpan(f0, m - f0), n0 + f0, h0, Phase!);
                 }
             }
+            if (_pendingTransition)
+            {
+                lines.Trans.AddSegment(_pending, _ws);
+                _pendingTransition = false;
+            }
             return k;
+        }
+
+        /// <summary>
+        /// The transition stream's segments go in pairs through one complex transform: the first of a
+        /// pair waits in _pending; one left at the chunk's end is added alone (see RunChunk).
+        /// </summary>
+        private void AddTransition(LineSpectrum trans, long start)
+        {
+            if (!_pendingTransition)
+            {
+                Unroll(_ringT, start, _pending);
+                _pendingTransition = true;
+                return;
+            }
+            Unroll(_ringT, start, _segment);
+            LineSpectrum.AddSegments(trans, _pending, trans, _segment, _ws);
+            _pendingTransition = false;
         }
 
         /// <summary>
@@ -464,12 +489,6 @@ internal static class DemodulationPass
             }
             up.Process(x, first, _ubuf.AsSpan(0, len));
             if (from < len) h.Add(_ubuf.AsSpan(from, len - from));
-        }
-
-        private void AddSegment(LineSpectrum spectrum, double[] ring, long start)
-        {
-            Unroll(ring, start, _segment);
-            spectrum.AddSegment(_segment, _ws);
         }
 
         /// <summary>Two streams' segments in one transform (see <see cref="LineSpectrum.AddSegments"/>).</summary>

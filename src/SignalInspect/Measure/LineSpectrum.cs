@@ -82,7 +82,8 @@ public sealed class LineSpectrum
     /// <summary>
     /// Adds one segment to each of two accumulators of the same size with one complex transform:
     /// z = a + i b, then A[k] = (Z[k] + conj Z[N-k]) / 2 and B[k] = (Z[k] - conj Z[N-k]) / 2i (both
-    /// streams are real). The same sums as two calls of <see cref="AddSegment"/>, to rounding.
+    /// streams are real). The same sums as two calls of <see cref="AddSegment"/>, to rounding;
+    /// <paramref name="a"/> and <paramref name="b"/> may be one accumulator (two segments of one stream).
     /// The transform leaves its bins bit-reversed (<see cref="FftPlan.ForwardWindowedScrambled"/>);
     /// they are read through the workspace's index tables. A pair with a non-finite sample is left out.
     /// </summary>
@@ -92,7 +93,7 @@ public sealed class LineSpectrum
         int n = a._n;
         if (b._n != n || sa.Length != n || sb.Length != n || ws.Re.Length != n) throw new ArgumentException($"the segments and the workspace must hold {n} samples");
         Span<double> z = ws.Pair;
-        for (int i = 0; i < n; i++) { z[2 * i] = sa[i]; z[2 * i + 1] = sb[i]; }
+        VectorMath.Interleave(sa, sb, z);
         if (!ws.Transform(z, complex: true, a._window.Coefficients)) return;
         double[] re = ws.Re, im = ws.Im;
         for (int k = 0; k < a._sum.Length; k++)
@@ -127,6 +128,7 @@ public sealed class LineSpectrum
     public void Take(LineSpectrum other)
     {
         if (other._n != _n) throw new ArgumentException("the spectra differ in size");
+        if (other._segments == 0) return;   // nothing was added to it: its sums are all zero
         for (int k = 0; k < _sum.Length; k++) _sum[k] += other._sum[k];
         _segments += other._segments;
         Array.Clear(other._sum);

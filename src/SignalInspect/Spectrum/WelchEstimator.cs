@@ -171,6 +171,10 @@ public static class WelchEstimator
             return i == 0 || nyquist ? _density : 2 * _density;
         }
 
+        // BinOf and Scale of every output index, for the per-row spectrogram writes.
+        private int[]? _binOf;
+        private double[]? _scaleOf;
+
         public double[] Order(double[] raw, double factor)
         {
             var o = new double[bins];
@@ -181,13 +185,15 @@ public static class WelchEstimator
         /// <summary>Writes a finished row (raw sums over its segments) into the spectrogram.</summary>
         public void WriteRow(double[] gram, int row, double[] raw, long segmentsInRow, bool mean)
         {
+            int[] binOf = LazyInitializer.EnsureInitialized(ref _binOf, () => [.. Enumerable.Range(0, bins).Select(BinOf)]);
+            double[] scaleOf = LazyInitializer.EnsureInitialized(ref _scaleOf, () => [.. Enumerable.Range(0, bins).Select(Scale)]);
             double f = mean ? 1.0 / segmentsInRow : 1.0;
             Span<double> dst = gram.AsSpan(row * columns, columns);
             for (int c = 0; c < columns; c++)
             {
                 int a = c * q, b = Math.Min(bins, a + q);
                 double s = 0;
-                for (int i = a; i < b; i++) s += raw[BinOf(i)] * Scale(i);
+                for (int i = a; i < b; i++) s += raw[binOf[i]] * scaleOf[i];
                 dst[c] = s * f / (b - a);
             }
         }

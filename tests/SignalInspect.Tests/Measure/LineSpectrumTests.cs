@@ -69,6 +69,22 @@ public class LineSpectrumTests
     }
 
     [Fact]
+    public void Two_segments_of_one_stream_in_one_transform_equal_one_each()
+    {
+        const int n = 1024;
+        var rng = new Random(4);
+        double[] a = [.. Enumerable.Range(0, n).Select(i => Math.Abs(Math.Sin(0.01 * i)) + rng.NextDouble())];
+        double[] b = [.. Enumerable.Range(0, n).Select(i => Math.Abs(Math.Cos(0.02 * i)) + rng.NextDouble())];
+        var ws = new LineSpectrum.Workspace(n);
+        LineSpectrum one = new(n, 1000), paired = new(n, 1000);
+        one.AddSegment(a, ws);
+        one.AddSegment(b, ws);
+        LineSpectrum.AddSegments(paired, a, paired, b, ws);
+        Assert.Equal(2, paired.Segments);
+        for (int k = 0; k <= n / 2; k++) Assert.Equal(one.Power(k), paired.Power(k), 1e-9 * Math.Max(1, one.Power(k)));
+    }
+
+    [Fact]
     public void A_segment_with_a_non_finite_sample_is_left_out()
     {
         const int n = 256;
