@@ -72,7 +72,7 @@ internal static class SpectrumCommand
     public static Command Create(TextWriter stdout, TextWriter stderr)
     {
         var capture = new Argument<string>("capture") { Description = "The capture file (see 'info')." };
-        var csv = new Option<string?>("--csv") { Description = "Write the PSD as CSV: header frequencyHz,psdDbfsPerHz (psdDbmPerHz with --calibration), one row per bin in ascending frequency; frequency is the offset from the centre for IQ input, the audio frequency for real input.", HelpName = "OUT" };
+        var csv = new Option<string?>("--csv") { Description = "Write the PSD as CSV: header frequencyHz,psdDbfsPerHz (psdDbmPerHz with --calibration), one row per bin in ascending frequency; frequency is the offset from the centre for IQ input, the audio frequency for real input. '-' writes it to standard output (the summary then goes to standard error).", HelpName = "OUT" };
         var png = new Option<string?>("--png") { Description = "Write a plot of the spectrum as PNG.", HelpName = "OUT" };
         var average = new Option<string>("--average") { Description = "How segments are combined: mean (Welch, default) or max (max-hold).", DefaultValueFactory = _ => "mean", HelpName = "mean|max" };
         average.AcceptOnlyFromAmong("mean", "max");
@@ -92,17 +92,26 @@ internal static class SpectrumCommand
             var (first, count) = spectrum.AnalysedWindow(r, source);
             bool force_ = r.GetValue(force);
             string? csvPath = r.GetValue(csv), pngPath = r.GetValue(png);
-            if (csvPath is not null) AtomicFile.CheckWritable(csvPath, force_);
+            bool csvToStdout = csvPath == "-";
+            if (csvPath is not null && !csvToStdout) AtomicFile.CheckWritable(csvPath, force_);
             if (pngPath is not null) AtomicFile.CheckWritable(pngPath, force_);
             long total = count;
             var clock = Stopwatch.StartNew();
             SpectrumResult result = CliProgress.Run(stderr, "spectrum", total, report => WelchEstimator.Estimate(source, settings, first, count, report));
             clock.Stop();
             PowerSpectrum psd = r.GetValue(average) == "max" ? result.MaxHold : result.Mean;
-            WriteSummary(stdout, source.Info, psd, result, clock.Elapsed);
+            TextWriter summary = csvToStdout ? stderr : stdout;
+            WriteSummary(summary, source.Info, psd, result, clock.Elapsed);
             foreach (string w in source.Info.Warnings) stderr.WriteLine($"signalinspect: warning: {Path.GetFileName(source.Info.Path)}: {w}");
             if (result.NonFiniteSegments > 0) stderr.WriteLine($"signalinspect: warning: {result.NonFiniteSegments} segment(s) held NaN or infinite samples, taken as 0");
-            if (csvPath is not null)
+            if (csvToStdout)
+            {
+                var buffer = new MemoryStream();
+                WriteCsv(buffer, psd);
+                stdout.Write(System.Text.Encoding.UTF8.GetString(buffer.ToArray()));
+                stdout.Flush();
+            }
+            else if (csvPath is not null)
             {
                 AtomicFile.Write(csvPath, force_, s => WriteCsv(s, psd));
                 stdout.WriteLine($"wrote {csvPath}");
@@ -111,7 +120,7 @@ internal static class SpectrumCommand
             {
                 byte[] image = SpectrumPlot.RenderPng(psd, Path.GetFileName(source.Info.Path), absolute: true);
                 AtomicFile.Write(pngPath, force_, s => s.Write(image));
-                stdout.WriteLine($"wrote {pngPath}");
+                summary.WriteLine($"wrote {pngPath}");
             }
             return ExitCodes.Success;
         });

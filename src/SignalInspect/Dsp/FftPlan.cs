@@ -355,7 +355,16 @@ public sealed class FftPlan
     private void ScrambledStages(ref double reRef, ref double imRef, int start, int len, int h, PowerSums sums = default)
     {
         int vw = Vector<double>.Count, end = start + len;
-        for (; h >= 2 * vw && h >= 2; h /= 4) Radix22Pass(ref reRef, ref imRef, start, len, h);
+        for (; h >= 2 * vw && h >= 2; h /= 4)
+        {
+            if (h == 8 && vw == 4 && TransposedTail)
+            {
+                // The pass of half-size 8 and the last radix-4 both work on blocks of 16: done in registers together.
+                LastTwoPasses(ref reRef, ref imRef, start, end, sums);
+                return;
+            }
+            Radix22Pass(ref reRef, ref imRef, start, len, h);
+        }
         // What is left: radix-2 stages down to half-size 4, then a last radix-4 (half-sizes 2 and 1) or radix-2 (1).
         for (; h > 2; h /= 2)
         {
@@ -425,6 +434,49 @@ public sealed class FftPlan
         }
         if (sums.Active && !(h == 2 && TransposedTail))
             for (int i = start; i < end; i++) sums.Add(Unsafe.Add(ref reRef, i), Unsafe.Add(ref imRef, i), i);
+    }
+
+    /// <summary>
+    /// The radix-2^2 pass of half-size 8 followed by the transposed last radix-4 pass (see
+    /// <see cref="ScrambledStages"/>), block of 16 by block of 16 with the values kept in registers
+    /// between them: the same operations in the same order as the two passes one after the other,
+    /// so the same results bit for bit, without storing and reloading the array in between.
+    /// </summary>
+    private void LastTwoPasses(ref double reRef, ref double imRef, int start, int end, PowerSums sums)
+    {
+        Vector256<double> ar = LoadV4(ref _twRe[_stageOffset[4]], 0), ai = LoadV4(ref _twIm[_stageOffset[4]], 0);   // W_16^k, k < 4
+        Vector256<double> br = LoadV4(ref _twRe[_stageOffset[3]], 0), bi = LoadV4(ref _twIm[_stageOffset[3]], 0);   // W_8^k
+        for (int g = start; g < end; g += 16)
+        {
+            Vector256<double> a0r = LoadV4(ref reRef, g), a0i = LoadV4(ref imRef, g);
+            Vector256<double> a1r = LoadV4(ref reRef, g + 4), a1i = LoadV4(ref imRef, g + 4);
+            Vector256<double> a2r = LoadV4(ref reRef, g + 8), a2i = LoadV4(ref imRef, g + 8);
+            Vector256<double> a3r = LoadV4(ref reRef, g + 12), a3i = LoadV4(ref imRef, g + 12);
+            // Radix22Pass with h = 8, q = 4: one group, k = 0..3.
+            Vector256<double> b0r = a0r + a2r, b0i = a0i + a2i, b1r = a1r + a3r, b1i = a1i + a3i;
+            Vector256<double> dr = a0r - a2r, di = a0i - a2i;
+            Vector256<double> er = a1i - a3i, ei = a3r - a1r;
+            Vector256<double> b2r = dr * ar - di * ai, b2i = dr * ai + di * ar;
+            Vector256<double> b3r = er * ar - ei * ai, b3i = er * ai + ei * ar;
+            Vector256<double> fr = b0r - b1r, fi = b0i - b1i, gr = b2r - b3r, gi = b2i - b3i;
+            // The last radix-4 on the block (the values Radix22Pass would have stored at g, g + 4, g + 8, g + 12).
+            var (r0, r1, r2, r3) = Transpose(b0r + b1r, fr * br - fi * bi, b2r + b3r, gr * br - gi * bi);
+            var (i0, i1, i2, i3) = Transpose(b0i + b1i, fr * bi + fi * br, b2i + b3i, gr * bi + gi * br);
+            Vector256<double> c0r = r0 + r2, c0i = i0 + i2, c2r = r0 - r2, c2i = i0 - i2;
+            Vector256<double> c1r = r1 + r3, c1i = i1 + i3, c3r = i1 - i3, c3i = r3 - r1;   // (x1 - x3)(-i)
+            if (sums.Active)
+            {
+                sums.Add(c0r + c1r, c0i + c1i, g);
+                sums.Add(c0r - c1r, c0i - c1i, g + 4);
+                sums.Add(c2r + c3r, c2i + c3i, g + 8);
+                sums.Add(c2r - c3r, c2i - c3i, g + 12);
+                continue;
+            }
+            (c0r + c1r).StoreUnsafe(ref reRef, (nuint)g); (c0i + c1i).StoreUnsafe(ref imRef, (nuint)g);
+            (c0r - c1r).StoreUnsafe(ref reRef, (nuint)(g + 4)); (c0i - c1i).StoreUnsafe(ref imRef, (nuint)(g + 4));
+            (c2r + c3r).StoreUnsafe(ref reRef, (nuint)(g + 8)); (c2i + c3i).StoreUnsafe(ref imRef, (nuint)(g + 8));
+            (c2r - c3r).StoreUnsafe(ref reRef, (nuint)(g + 12)); (c2i - c3i).StoreUnsafe(ref imRef, (nuint)(g + 12));
+        }
     }
 
     /// <summary>

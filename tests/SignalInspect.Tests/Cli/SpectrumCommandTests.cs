@@ -38,6 +38,22 @@ public class SpectrumCommandTests
     }
 
     [Fact]
+    public void CSV_to_standard_output_with_dash_equals_the_file_and_the_summary_goes_to_stderr()
+    {
+        using var tmp = new TempDir();
+        string csv = tmp.File("psd.csv");
+        string capture = TestData.Path("sigmf", "cw-cf32.sigmf-meta");
+        var (code, _, stderr) = CliRunner.Run("spectrum", capture, "--csv", csv);
+        Assert.True(code == 0, stderr);
+        string stdout;
+        (code, stdout, stderr) = CliRunner.Run("spectrum", capture, "--csv", "-");
+        Assert.True(code == 0, stderr);
+        Assert.Equal(File.ReadAllText(csv), stdout);
+        Assert.Contains("RBW", stderr);
+        Assert.False(File.Exists("-"), "no file named '-'");
+    }
+
+    [Fact]
     public void PNG_is_written_and_existing_outputs_are_kept_without_force()
     {
         using var tmp = new TempDir();
