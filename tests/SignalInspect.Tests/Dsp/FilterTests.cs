@@ -72,10 +72,53 @@ public class FilterTests
     }
 
     [Theory]
-    [InlineData(true, 6, 207)]
-    [InlineData(true, 1, 31)]
-    [InlineData(false, 5, 101)]
-    public void Channel_decimator_equals_shift_filter_and_decimate_in_double(bool complex, int decimation, int taps)
+    [InlineData(true, 6, 207, false)]
+    [InlineData(true, 1, 31, false)]
+    [InlineData(false, 5, 101, false)]
+    [InlineData(true, 6, 207, true)]
+    [InlineData(true, 7, 1647, true)]
+    public void Channel_decimator_equals_shift_filter_and_decimate_in_double(bool complex, int decimation, int taps, bool narrow)
+    {
+        // narrow: the 256-bit filter sums even where 512-bit ones are available (both paths are checked here).
+        ChannelDecimator.NarrowForTests = narrow;
+        try { DecimatorAgainstDouble(complex, decimation, taps); }
+        finally { ChannelDecimator.NarrowForTests = false; }
+    }
+
+    [Theory]
+    [InlineData(false)]
+    [InlineData(true)]
+    public void Channel_decimator_outputs_do_not_depend_on_the_block_sizes(bool narrow)
+    {
+        // An output is the same sum whether it was computed four at a time or at a block's end.
+        ChannelDecimator.NarrowForTests = narrow;
+        try
+        {
+            var rng = new Random(11);
+            double[] h = FirDesign.LowPass(100e3, 2.4e6, 60e3, 80, 255);
+            double[] input = [.. Enumerable.Range(0, 2 * 30_000).Select(_ => rng.NextDouble() * 2 - 1)];
+            (double[] Re, double[] Im) Run(int[] sizes)
+            {
+                var dec = new ChannelDecimator(h, 6, -12_345.6, 2.4e6, true);
+                double[] re = new double[6000], im = new double[6000];
+                int produced = 0, at = 0;
+                foreach (int size in sizes)
+                {
+                    int len = Math.Min(size, 30_000 - at);
+                    produced += dec.Process(input.AsSpan(2 * at, 2 * len), re.AsSpan(produced), im.AsSpan(produced));
+                    at += len;
+                }
+                return (re[..produced], im[..produced]);
+            }
+            var whole = Run([30_000]);
+            var pieces = Run([7, 13, 1, 5000, 11, 24_968]);
+            Assert.Equal(whole.Re, pieces.Re);
+            Assert.Equal(whole.Im, pieces.Im);
+        }
+        finally { ChannelDecimator.NarrowForTests = false; }
+    }
+
+    private static void DecimatorAgainstDouble(bool complex, int decimation, int taps)
     {
         const double fs = 2.4e6, shift = -12_345.6;
         var rng = new Random(taps);
