@@ -83,7 +83,7 @@ public sealed class ChannelDecimator
         ArgumentOutOfRangeException.ThrowIfLessThan(decimation, 1);
         ArgumentOutOfRangeException.ThrowIfZero(taps.Length);
         // Taps padded to whole vectors of complex lanes: 512-bit ones where the CPU has them (Dot4).
-        _wide = Vector512.IsHardwareAccelerated && Vector<float>.Count == 8 && !NarrowForTests;
+        _wide = Simd.Wide;
         int lanes = _wide ? Vector512<float>.Count / 2 : Vector<float>.Count / 2;
         _taps = (taps.Length + lanes - 1) / lanes * lanes;
         int pad = _taps - taps.Length;
@@ -283,15 +283,6 @@ public sealed class ChannelDecimator
 
     /// <summary>Whether <see cref="Dot4"/> runs on 512-bit vectors (AVX-512): eight complex taps per load, half the instructions.</summary>
     private readonly bool _wide;
-
-    /// <summary>Tests only: decimators constructed by the calling flow use 256-bit vectors even where 512-bit ones are available.</summary>
-    internal static bool NarrowForTests
-    {
-        get => Narrow.Value;
-        set => Narrow.Value = value;
-    }
-
-    private static readonly AsyncLocal<bool> Narrow = new();
 
     /// <summary>Four consecutive outputs, windows from <paramref name="s0"/> on, one decimation apart: four sums per load of the taps.</summary>
     private void Dot4(int s0, Span<double> re, Span<double> im)

@@ -7,6 +7,26 @@ using System.Runtime.Intrinsics.X86;
 namespace SignalInspect.Dsp;
 
 /// <summary>
+/// Which vector width the kernels with a 512-bit variant use (the channel filter's sums, the FFT's
+/// radix-2^2 passes): 512 bits where the CPU has AVX-512, else <see cref="Vector{T}"/>. Read when a
+/// plan is built.
+/// </summary>
+internal static class Simd
+{
+    /// <summary>True when the 512-bit variants run.</summary>
+    public static bool Wide => Vector512.IsHardwareAccelerated && Vector<double>.Count == 4 && !NarrowForTests;
+
+    /// <summary>Tests only: plans built by the calling flow use the narrow kernels even where 512-bit ones are available.</summary>
+    public static bool NarrowForTests
+    {
+        get => Narrow.Value;
+        set => Narrow.Value = value;
+    }
+
+    private static readonly AsyncLocal<bool> Narrow = new();
+}
+
+/// <summary>
 /// Element-wise functions on spans with SIMD (<see cref="Vector{T}"/>): the demodulators'
 /// arctangent and magnitude, scaling, differences, interleaving, a block at a time.
 /// </summary>

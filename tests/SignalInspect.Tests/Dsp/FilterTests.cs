@@ -80,9 +80,9 @@ public class FilterTests
     public void Channel_decimator_equals_shift_filter_and_decimate_in_double(bool complex, int decimation, int taps, bool narrow)
     {
         // narrow: the 256-bit filter sums even where 512-bit ones are available (both paths are checked here).
-        ChannelDecimator.NarrowForTests = narrow;
+        Simd.NarrowForTests = narrow;
         try { DecimatorAgainstDouble(complex, decimation, taps); }
-        finally { ChannelDecimator.NarrowForTests = false; }
+        finally { Simd.NarrowForTests = false; }
     }
 
     [Theory]
@@ -91,7 +91,7 @@ public class FilterTests
     public void Channel_decimator_outputs_do_not_depend_on_the_block_sizes(bool narrow)
     {
         // An output is the same sum whether it was computed four at a time or at a block's end.
-        ChannelDecimator.NarrowForTests = narrow;
+        Simd.NarrowForTests = narrow;
         try
         {
             var rng = new Random(11);
@@ -115,7 +115,7 @@ public class FilterTests
             Assert.Equal(whole.Re, pieces.Re);
             Assert.Equal(whole.Im, pieces.Im);
         }
-        finally { ChannelDecimator.NarrowForTests = false; }
+        finally { Simd.NarrowForTests = false; }
     }
 
     private static void DecimatorAgainstDouble(bool complex, int decimation, int taps)
