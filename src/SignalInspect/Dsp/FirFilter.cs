@@ -185,9 +185,10 @@ public sealed class ChannelDecimator
         Span<float> z = _z.AsSpan(2 * _fill, 2 * piece);
         ReadOnlySpan<double> t = _table.AsSpan(2 * k0, 2 * piece);
         int i = 0;
+        if (_complexInput && _wide) i = MixWide(x, t, z, ar, ai, piece);
         if (_complexInput && System.Runtime.Intrinsics.X86.Avx.IsSupported)
         {
-            i = MixAvx(x, t, z, ar, ai, piece);
+            i += MixAvx(x[(2 * i)..], t[(2 * i)..], z[(2 * i)..], ar, ai, piece - i);
         }
         for (; i < piece; i++)
         {
@@ -204,6 +205,37 @@ public sealed class ChannelDecimator
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
     private static double At<T>(ReadOnlySpan<T> x, int i) where T : unmanaged =>
         typeof(T) == typeof(float) ? System.Runtime.InteropServices.MemoryMarshal.Cast<T, float>(x)[i] : System.Runtime.InteropServices.MemoryMarshal.Cast<T, double>(x)[i];
+
+    /// <summary>
+    /// <see cref="MixAvx"/> four complex samples per step on 512-bit vectors, with the same
+    /// operations per value (the alternating subtract and add as a multiply-add by +/-1, which is
+    /// exact), so the same results bit for bit. Returns the samples done.
+    /// </summary>
+    private static int MixWide<T>(ReadOnlySpan<T> x, ReadOnlySpan<double> t, Span<float> z, double ar, double ai, int piece) where T : unmanaged
+    {
+        var vr = Vector512.Create(ar);
+        var vi = Vector512.Create(ai);
+        var sign = Vector512.Create(-1.0, 1.0, -1.0, 1.0, -1.0, 1.0, -1.0, 1.0);
+        var swap = Vector512.Create(1L, 0, 3, 2, 5, 4, 7, 6);
+        var evens = Vector512.Create(0L, 0, 2, 2, 4, 4, 6, 6);
+        var odds = Vector512.Create(1L, 1, 3, 3, 5, 5, 7, 7);
+        ref T xs = ref System.Runtime.InteropServices.MemoryMarshal.GetReference(x);
+        ref double ts = ref System.Runtime.InteropServices.MemoryMarshal.GetReference(t);
+        ref float zs = ref System.Runtime.InteropServices.MemoryMarshal.GetReference(z);
+        int i = 0;
+        for (; i + 4 <= piece; i += 4)
+        {
+            var tv = Vector512.LoadUnsafe(ref ts, (nuint)(2 * i));
+            var osc = Vector512.FusedMultiplyAdd(Vector512.Shuffle(tv, swap) * vi, sign, tv * vr);
+            var xv = typeof(T) == typeof(float)
+                ? System.Runtime.Intrinsics.X86.Avx512F.ConvertToVector512Double(Vector256.LoadUnsafe(ref Unsafe.As<T, float>(ref xs), (nuint)(2 * i)))
+                : Vector512.LoadUnsafe(ref Unsafe.As<T, double>(ref xs), (nuint)(2 * i));
+            xv = Vector512.ConditionalSelect(Vector512.Equals(xv - xv, Vector512<double>.Zero), xv, Vector512<double>.Zero);
+            var y = Vector512.FusedMultiplyAdd(Vector512.Shuffle(xv, swap) * Vector512.Shuffle(osc, odds), sign, xv * Vector512.Shuffle(osc, evens));
+            System.Runtime.Intrinsics.X86.Avx512F.ConvertToVector256Single(y).StoreUnsafe(ref zs, (nuint)(2 * i));
+        }
+        return i;
+    }
 
     /// <summary>Two complex samples per step: osc = anchor x table, y = x osc, both as interleaved complex products.</summary>
     private static int MixAvx<T>(ReadOnlySpan<T> x, ReadOnlySpan<double> t, Span<float> z, double ar, double ai, int piece) where T : unmanaged
