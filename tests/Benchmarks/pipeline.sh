@@ -52,6 +52,16 @@ measure() {
   RSS_MB=$(( $(sed -n 's/.*Maximum resident set size (kbytes): //p' "$tmp/$name.time") / 1024 ))
 }
 
+# warm FILE: puts the file in the page cache in one known state before a program's runs: its
+# cached pages dropped (after a flush) and the file read once sequentially, as a first read from
+# disk leaves it. Measured here: a capture just written by `synth` (or refaulted page by page after
+# the kernel reclaimed some of it) was copied out of the cache at about half the speed, which added
+# 0.1-0.2 s of system time to a 60 s analyze and made the short runs wander.
+warm() {
+  "$PY" -c "import os, sys; fd = os.open(sys.argv[1], os.O_RDONLY); os.fsync(fd); os.posix_fadvise(fd, 0, 0, os.POSIX_FADV_DONTNEED); os.close(fd)" "$1"
+  cat "$1" >/dev/null
+}
+
 declare -A wall rss
 for s in 60 10; do
   f="$tmp/si-pipeline-${s}s.cf32"
@@ -60,12 +70,13 @@ for s in 60 10; do
   fi
 done
 # SignalInspect first, then the reference (whose 5.7 GB would otherwise churn memory just before
-# the short runs); each file read once beforehand so that both programs find it in the page cache.
+# the short runs); each file warmed (above) before each program's runs, so both find it in the page
+# cache in the same state.
 # Best of three runs: a 1.5 s run on this shared machine moves by 20 % with its neighbours' load (the
 # reference's runs, tens of seconds, average that out and run once).
 for s in 60 10; do
   f="$tmp/si-pipeline-${s}s.cf32"
-  cat "$f" >/dev/null
+  warm "$f"
   wall[si-$s]=99; rss[si-$s]=0
   for i in 1 2 3; do
     measure "si-$s" "${SI[@]}" analyze "$f" --sample-rate $FS --obw-noise keep --post-lowpass $LP --json -
@@ -81,6 +92,7 @@ for s in 60 10; do
 done
 # Start-up: the same command on a 0.1 s capture (best of three).
 "${SI[@]}" synth "$tmp/si-pipeline-0.1s.cf32" --kind fm --sample-rate $FS --duration 0.1 --deviation 75000 --tone 1000 --snr 40 --offset 12500 --force >/dev/null
+warm "$tmp/si-pipeline-0.1s.cf32"
 start=99
 for i in 1 2 3; do
   measure si-start "${SI[@]}" analyze "$tmp/si-pipeline-0.1s.cf32" --sample-rate $FS --obw-noise keep --post-lowpass $LP --json -
@@ -88,7 +100,7 @@ for i in 1 2 3; do
 done
 for s in 60 10; do
   f="$tmp/si-pipeline-${s}s.cf32"
-  cat "$f" >/dev/null
+  warm "$f"
   measure "py-$s" "$PY" tests/Benchmarks/reference_pipeline.py "$f" $FS $LP
   wall[py-$s]=$WALL; rss[py-$s]=$RSS_MB
 done
