@@ -564,14 +564,16 @@ public sealed class FftPlan
     /// <paramref name="sum"/>, folded into the per-bin <paramref name="max"/>, and added to (or, with
     /// <paramref name="rowMax"/>, folded into) <paramref name="row"/>, all in scrambled order
     /// (<see cref="ScrambledIndex"/>). The last pass adds its results straight into the sums.
-    /// Returns the sum of the windowed values; when that is not finite (NaN or infinite input),
-    /// nothing is added and the caller decides what to do.
+    /// An empty <paramref name="row"/> is left out (a caller whose row is a plain sum over the same
+    /// segments as <paramref name="sum"/> reads the row from the sum). Returns the sum of the
+    /// windowed values; when that is not finite (NaN or infinite input), nothing is added and the
+    /// caller decides what to do.
     /// </summary>
     public double ForwardPowerScrambled(ReadOnlySpan<double> samples, bool complex, ReadOnlySpan<double> window, Span<double> re, Span<double> im,
                                         Span<double> sum, Span<double> max, Span<double> row, bool rowMax)
     {
         Check(samples.Length, complex, window, re, im);
-        if (sum.Length != _n || max.Length != _n || row.Length != _n) throw new ArgumentException($"spans must hold {_n} points");
+        if (sum.Length != _n || max.Length != _n || (row.Length != _n && !row.IsEmpty)) throw new ArgumentException($"spans must hold {_n} points");
         return Scrambled(samples, complex, window, re, im, new PowerSums(sum, max, row, rowMax));
     }
 
@@ -584,7 +586,7 @@ public sealed class FftPlan
                                         Span<double> sum, Span<double> max, Span<double> row, bool rowMax)
     {
         Check(samples.Length, complex, window, re, im);
-        if (sum.Length != _n || max.Length != _n || row.Length != _n) throw new ArgumentException($"spans must hold {_n} points");
+        if (sum.Length != _n || max.Length != _n || (row.Length != _n && !row.IsEmpty)) throw new ArgumentException($"spans must hold {_n} points");
         return Scrambled(samples, complex, window, re, im, new PowerSums(sum, max, row, rowMax));
     }
 
@@ -651,7 +653,7 @@ public sealed class FftPlan
     private readonly ref struct PowerSums(Span<double> sum, Span<double> max, Span<double> row, bool rowMax)
     {
         public readonly Span<double> Sum = sum, Max = max, Row = row;
-        public readonly bool RowMax = rowMax, Active = true;
+        public readonly bool RowMax = rowMax, Active = true, HasRow = !row.IsEmpty;
 
         /// <summary>Adds the powers of four bins at index i.</summary>
         [MethodImpl(MethodImplOptions.AggressiveInlining)]
@@ -660,9 +662,10 @@ public sealed class FftPlan
             Vector256<double> p = re * re + im * im;
             ref double s = ref Unsafe.Add(ref MemoryMarshal.GetReference(Sum), i);
             ref double m = ref Unsafe.Add(ref MemoryMarshal.GetReference(Max), i);
-            ref double r = ref Unsafe.Add(ref MemoryMarshal.GetReference(Row), i);
             (Vector256.LoadUnsafe(ref s) + p).StoreUnsafe(ref s);
             Vector256.Max(Vector256.LoadUnsafe(ref m), p).StoreUnsafe(ref m);
+            if (!HasRow) return;
+            ref double r = ref Unsafe.Add(ref MemoryMarshal.GetReference(Row), i);
             Vector256<double> rv = Vector256.LoadUnsafe(ref r);
             (RowMax ? Vector256.Max(rv, p) : rv + p).StoreUnsafe(ref r);
         }
@@ -673,7 +676,7 @@ public sealed class FftPlan
             double p = re * re + im * im;
             Sum[i] += p;
             Max[i] = Math.Max(Max[i], p);
-            Row[i] = RowMax ? Math.Max(Row[i], p) : Row[i] + p;
+            if (HasRow) Row[i] = RowMax ? Math.Max(Row[i], p) : Row[i] + p;
         }
     }
 

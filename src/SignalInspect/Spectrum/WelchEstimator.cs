@@ -270,7 +270,7 @@ public static class WelchEstimator
                 segment++;
                 pos += step;
             }
-            _l.WriteRow(gram, r, _row, segment - seg0, !_l.RowMax);
+            _l.WriteRow(gram, r, _scrambled && !_l.RowMax ? _rowSum : _row, segment - seg0, !_l.RowMax);
             total.Complete(r, _rowSum);
             _rowSum = total.Rent();
         }
@@ -280,12 +280,14 @@ public static class WelchEstimator
             if (_scrambled)
             {
                 // Transform and sums in one go; a segment with NaN or infinity adds nothing and is redone with those samples as 0.
+                // A mean spectrogram row is the row's sum itself: no separate row is accumulated.
+                Span<double> row = _l.RowMax ? _row : default;
                 double check = typeof(T) == typeof(float)
-                    ? _fft.ForwardPowerScrambled(MemoryMarshal.Cast<T, float>(samples), complex, _w, _re, _im, _rowSum, Max, _row, _l.RowMax)
-                    : _fft.ForwardPowerScrambled(MemoryMarshal.Cast<T, double>(samples), complex, _w, _re, _im, _rowSum, Max, _row, _l.RowMax);
+                    ? _fft.ForwardPowerScrambled(MemoryMarshal.Cast<T, float>(samples), complex, _w, _re, _im, _rowSum, Max, row, _l.RowMax)
+                    : _fft.ForwardPowerScrambled(MemoryMarshal.Cast<T, double>(samples), complex, _w, _re, _im, _rowSum, Max, row, _l.RowMax);
                 if (double.IsFinite(check)) return;
                 NonFiniteSegments++;
-                _fft.ForwardPowerScrambled(Clean(samples), complex, _w, _re, _im, _rowSum, Max, _row, _l.RowMax);
+                _fft.ForwardPowerScrambled(Clean(samples), complex, _w, _re, _im, _rowSum, Max, row, _l.RowMax);
                 return;
             }
             ReadOnlySpan<double> x = MemoryMarshal.Cast<T, double>(samples);   // float staging only with the scrambled transform

@@ -146,12 +146,14 @@ public class WelchEstimatorTests
                 Assert.Equal(one.Spectrogram.Value(r, c), two.Spectrogram.Value(r, c));
     }
 
-    [Fact]
-    public void Spectrogram_rows_are_bounded_and_average_to_the_mean_spectrum()
+    [Theory]
+    [InlineData(480)]   // the plain transform
+    [InlineData(512)]   // the scrambled one, whose mean rows are read from the row sums
+    public void Spectrogram_rows_are_bounded_and_average_to_the_mean_spectrum(int fft)
     {
         using var tmp = new TempDir();
-        CaptureSource src = Synth(tmp, new SignalSpec { Kind = SignalKind.Fm, SampleRateHz = 48000, DurationS = 10, SnrDb = 20 });
-        var s = new SpectrumSettings { FftSize = 480, OverlapFraction = 0, SpectrogramRows = 100 };
+        CaptureSource src = Synth(tmp, new SignalSpec { Kind = SignalKind.Fm, SampleRateHz = 48000 * fft / 480.0, DurationS = 10, SnrDb = 20 });
+        var s = new SpectrumSettings { FftSize = fft, OverlapFraction = 0, SpectrogramRows = 100 };
         SpectrumResult r = WelchEstimator.Estimate(src, s);
         Assert.Equal(1000, r.Mean.Segments);
         Assert.Equal(100, r.Spectrogram.Rows);
