@@ -123,6 +123,8 @@ for s in (60, 10):
     print(f"{s} s: reference / signalinspect wall time = {w[f'py{s}'] / w[f'si{s}']:.2f}")
 print(f"linearity: signalinspect 60 s / 10 s = {w['si60'] / w['si10']:.2f} (target 6 +/- 1); "
       f"start-up (0.1 s capture) {start:.2f} s; without it {(w['si60'] - start) / (w['si10'] - start):.2f}")
+k = (w['si60'] - w['si10']) / 50
+print(f"as a line through the two: {w['si10'] - 10 * k:.3f} s + {1000 * k:.2f} ms per second of capture")
 for s in (60, 10):
     si = json.load(open(f"{tmp}/si-{s}.out"))
     py = json.loads(open(f"{tmp}/py-{s}.out").read())
