@@ -387,27 +387,12 @@ public sealed class FftPlan
         }
         if (h == 2 && TransposedTail)
         {
-            // Four groups of four at once: a 4 x 4 transpose puts element j of each group in vector j,
-            // the radix-4 butterflies run across the vectors, and the results stay transposed
-            // (ScrambledIndex accounts for it): for sums of |X|^2 the order is immaterial.
+            // Four groups of four at once, the results left transposed (for sums of |X|^2 the order is immaterial).
             for (int g = start; g < end; g += 16)
             {
-                var (r0, r1, r2, r3) = Transpose(LoadV4(ref reRef, g), LoadV4(ref reRef, g + 4), LoadV4(ref reRef, g + 8), LoadV4(ref reRef, g + 12));
-                var (i0, i1, i2, i3) = Transpose(LoadV4(ref imRef, g), LoadV4(ref imRef, g + 4), LoadV4(ref imRef, g + 8), LoadV4(ref imRef, g + 12));
-                Vector256<double> b0r = r0 + r2, b0i = i0 + i2, b2r = r0 - r2, b2i = i0 - i2;
-                Vector256<double> b1r = r1 + r3, b1i = i1 + i3, b3r = i1 - i3, b3i = r3 - r1;   // (x1 - x3)(-i)
-                if (sums.Active)
-                {
-                    sums.Add(b0r + b1r, b0i + b1i, g);
-                    sums.Add(b0r - b1r, b0i - b1i, g + 4);
-                    sums.Add(b2r + b3r, b2i + b3i, g + 8);
-                    sums.Add(b2r - b3r, b2i - b3i, g + 12);
-                    continue;
-                }
-                (b0r + b1r).StoreUnsafe(ref reRef, (nuint)g); (b0i + b1i).StoreUnsafe(ref imRef, (nuint)g);
-                (b0r - b1r).StoreUnsafe(ref reRef, (nuint)(g + 4)); (b0i - b1i).StoreUnsafe(ref imRef, (nuint)(g + 4));
-                (b2r + b3r).StoreUnsafe(ref reRef, (nuint)(g + 8)); (b2i + b3i).StoreUnsafe(ref imRef, (nuint)(g + 8));
-                (b2r - b3r).StoreUnsafe(ref reRef, (nuint)(g + 12)); (b2i - b3i).StoreUnsafe(ref imRef, (nuint)(g + 12));
+                TransposedRadix4(LoadV4(ref reRef, g), LoadV4(ref reRef, g + 4), LoadV4(ref reRef, g + 8), LoadV4(ref reRef, g + 12),
+                                 LoadV4(ref imRef, g), LoadV4(ref imRef, g + 4), LoadV4(ref imRef, g + 8), LoadV4(ref imRef, g + 12),
+                                 ref reRef, ref imRef, g, sums);
             }
         }
         else if (h == 2)
@@ -449,36 +434,68 @@ public sealed class FftPlan
         Vector256<double> br = LoadV4(ref _twRe[_stageOffset[3]], 0), bi = LoadV4(ref _twIm[_stageOffset[3]], 0);   // W_8^k
         for (int g = start; g < end; g += 16)
         {
-            Vector256<double> a0r = LoadV4(ref reRef, g), a0i = LoadV4(ref imRef, g);
-            Vector256<double> a1r = LoadV4(ref reRef, g + 4), a1i = LoadV4(ref imRef, g + 4);
-            Vector256<double> a2r = LoadV4(ref reRef, g + 8), a2i = LoadV4(ref imRef, g + 8);
-            Vector256<double> a3r = LoadV4(ref reRef, g + 12), a3i = LoadV4(ref imRef, g + 12);
-            // Radix22Pass with h = 8, q = 4: one group, k = 0..3.
-            Vector256<double> b0r = a0r + a2r, b0i = a0i + a2i, b1r = a1r + a3r, b1i = a1i + a3i;
-            Vector256<double> dr = a0r - a2r, di = a0i - a2i;
-            Vector256<double> er = a1i - a3i, ei = a3r - a1r;
-            Vector256<double> b2r = dr * ar - di * ai, b2i = dr * ai + di * ar;
-            Vector256<double> b3r = er * ar - ei * ai, b3i = er * ai + ei * ar;
-            Vector256<double> fr = b0r - b1r, fi = b0i - b1i, gr = b2r - b3r, gi = b2i - b3i;
-            // The last radix-4 on the block (the values Radix22Pass would have stored at g, g + 4, g + 8, g + 12).
-            var (r0, r1, r2, r3) = Transpose(b0r + b1r, fr * br - fi * bi, b2r + b3r, gr * br - gi * bi);
-            var (i0, i1, i2, i3) = Transpose(b0i + b1i, fr * bi + fi * br, b2i + b3i, gr * bi + gi * br);
-            Vector256<double> c0r = r0 + r2, c0i = i0 + i2, c2r = r0 - r2, c2i = i0 - i2;
-            Vector256<double> c1r = r1 + r3, c1i = i1 + i3, c3r = i1 - i3, c3i = r3 - r1;   // (x1 - x3)(-i)
-            if (sums.Active)
-            {
-                sums.Add(c0r + c1r, c0i + c1i, g);
-                sums.Add(c0r - c1r, c0i - c1i, g + 4);
-                sums.Add(c2r + c3r, c2i + c3i, g + 8);
-                sums.Add(c2r - c3r, c2i - c3i, g + 12);
-                continue;
-            }
-            (c0r + c1r).StoreUnsafe(ref reRef, (nuint)g); (c0i + c1i).StoreUnsafe(ref imRef, (nuint)g);
-            (c0r - c1r).StoreUnsafe(ref reRef, (nuint)(g + 4)); (c0i - c1i).StoreUnsafe(ref imRef, (nuint)(g + 4));
-            (c2r + c3r).StoreUnsafe(ref reRef, (nuint)(g + 8)); (c2i + c3i).StoreUnsafe(ref imRef, (nuint)(g + 8));
-            (c2r - c3r).StoreUnsafe(ref reRef, (nuint)(g + 12)); (c2i - c3i).StoreUnsafe(ref imRef, (nuint)(g + 12));
+            // Radix22Pass with h = 8, q = 4: one group, k = 0..3; then the last radix-4 on the block
+            // (on the values Radix22Pass would have stored at g, g + 4, g + 8, g + 12).
+            Butterfly22(LoadV4(ref reRef, g), LoadV4(ref imRef, g), LoadV4(ref reRef, g + 4), LoadV4(ref imRef, g + 4),
+                        LoadV4(ref reRef, g + 8), LoadV4(ref imRef, g + 8), LoadV4(ref reRef, g + 12), LoadV4(ref imRef, g + 12),
+                        ar, ai, br, bi, out var y0r, out var y0i, out var y1r, out var y1i, out var y2r, out var y2i, out var y3r, out var y3i);
+            TransposedRadix4(y0r, y1r, y2r, y3r, y0i, y1i, y2i, y3i, ref reRef, ref imRef, g, sums);
         }
     }
+
+    /// <summary>
+    /// One radix-2^2 decimation-in-frequency butterfly on four vectors of points a0..a3 (a quarter
+    /// apart): the stage of half-size 2q with twiddles a (W_4q^k, and -i W_4q^k for the second pair),
+    /// then the stage of half-size q with twiddles b (W_2q^k). y0..y3 are the values for a0..a3's places.
+    /// </summary>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    private static void Butterfly22(Vector256<double> a0r, Vector256<double> a0i, Vector256<double> a1r, Vector256<double> a1i,
+                                    Vector256<double> a2r, Vector256<double> a2i, Vector256<double> a3r, Vector256<double> a3i,
+                                    Vector256<double> ar, Vector256<double> ai, Vector256<double> br, Vector256<double> bi,
+                                    out Vector256<double> y0r, out Vector256<double> y0i, out Vector256<double> y1r, out Vector256<double> y1i,
+                                    out Vector256<double> y2r, out Vector256<double> y2i, out Vector256<double> y3r, out Vector256<double> y3i)
+    {
+        Vector256<double> b0r = a0r + a2r, b0i = a0i + a2i, b1r = a1r + a3r, b1i = a1i + a3i;
+        Vector256<double> dr = a0r - a2r, di = a0i - a2i;
+        Vector256<double> er = a1i - a3i, ei = a3r - a1r;   // (a1 - a3)(-i)
+        Vector256<double> b2r = dr * ar - di * ai, b2i = dr * ai + di * ar;
+        Vector256<double> b3r = er * ar - ei * ai, b3i = er * ai + ei * ar;
+        Vector256<double> fr = b0r - b1r, fi = b0i - b1i, gr = b2r - b3r, gi = b2i - b3i;
+        y0r = b0r + b1r; y0i = b0i + b1i;
+        y1r = fr * br - fi * bi; y1i = fr * bi + fi * br;
+        y2r = b2r + b3r; y2i = b2i + b3i;
+        y3r = gr * br - gi * bi; y3i = gr * bi + gi * br;
+    }
+
+    /// <summary>
+    /// The last radix-4 pass (half-sizes 2 and 1) on a block of 16 given as its four rows of four:
+    /// a 4 x 4 transpose puts element j of each group in vector j, the butterflies run across the
+    /// vectors, and the results stay transposed (ScrambledIndex accounts for it). They are added into
+    /// the power sums when those are active, else stored at g.
+    /// </summary>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    private static void TransposedRadix4(Vector256<double> x0r, Vector256<double> x1r, Vector256<double> x2r, Vector256<double> x3r,
+                                         Vector256<double> x0i, Vector256<double> x1i, Vector256<double> x2i, Vector256<double> x3i,
+                                         ref double reRef, ref double imRef, int g, PowerSums sums)
+    {
+        var (r0, r1, r2, r3) = Transpose(x0r, x1r, x2r, x3r);
+        var (i0, i1, i2, i3) = Transpose(x0i, x1i, x2i, x3i);
+        Vector256<double> c0r = r0 + r2, c0i = i0 + i2, c2r = r0 - r2, c2i = i0 - i2;
+        Vector256<double> c1r = r1 + r3, c1i = i1 + i3, c3r = i1 - i3, c3i = r3 - r1;   // (x1 - x3)(-i)
+        if (sums.Active)
+        {
+            sums.Add(c0r + c1r, c0i + c1i, g);
+            sums.Add(c0r - c1r, c0i - c1i, g + 4);
+            sums.Add(c2r + c3r, c2i + c3i, g + 8);
+            sums.Add(c2r - c3r, c2i - c3i, g + 12);
+            return;
+        }
+        (c0r + c1r).StoreUnsafe(ref reRef, (nuint)g); (c0i + c1i).StoreUnsafe(ref imRef, (nuint)g);
+        (c0r - c1r).StoreUnsafe(ref reRef, (nuint)(g + 4)); (c0i - c1i).StoreUnsafe(ref imRef, (nuint)(g + 4));
+        (c2r + c3r).StoreUnsafe(ref reRef, (nuint)(g + 8)); (c2i + c3i).StoreUnsafe(ref imRef, (nuint)(g + 8));
+        (c2r - c3r).StoreUnsafe(ref reRef, (nuint)(g + 12)); (c2i - c3i).StoreUnsafe(ref imRef, (nuint)(g + 12));
+    }
+
 
     /// <summary>
     /// One radix-2^2 decimation-in-frequency pass on the groups of 2h points within [start, start + len):
@@ -612,18 +629,12 @@ public sealed class FftPlan
             var (a2r, a2i) = LoadSplit(ref x, ref w, k + 2 * q);
             var (a3r, a3i) = LoadSplit(ref x, ref w, k + 3 * q);
             acc += (a0r + a0i) + (a1r + a1i) + (a2r + a2i) + (a3r + a3i);
-            Vector256<double> ar = LoadV4(ref wAr, k), ai = LoadV4(ref wAi, k);
-            Vector256<double> b0r = a0r + a2r, b0i = a0i + a2i, b1r = a1r + a3r, b1i = a1i + a3i;
-            Vector256<double> dr = a0r - a2r, di = a0i - a2i;
-            Vector256<double> er = a1i - a3i, ei = a3r - a1r;   // (a1 - a3)(-i)
-            Vector256<double> b2r = dr * ar - di * ai, b2i = dr * ai + di * ar;
-            Vector256<double> b3r = er * ar - ei * ai, b3i = er * ai + ei * ar;
-            Vector256<double> br = LoadV4(ref wBr, k), bi = LoadV4(ref wBi, k);
-            Vector256<double> fr = b0r - b1r, fi = b0i - b1i, gr = b2r - b3r, gi = b2i - b3i;
-            (b0r + b1r).StoreUnsafe(ref reRef, (nuint)k); (b0i + b1i).StoreUnsafe(ref imRef, (nuint)k);
-            (fr * br - fi * bi).StoreUnsafe(ref reRef, (nuint)(k + q)); (fr * bi + fi * br).StoreUnsafe(ref imRef, (nuint)(k + q));
-            (b2r + b3r).StoreUnsafe(ref reRef, (nuint)(k + 2 * q)); (b2i + b3i).StoreUnsafe(ref imRef, (nuint)(k + 2 * q));
-            (gr * br - gi * bi).StoreUnsafe(ref reRef, (nuint)(k + 3 * q)); (gr * bi + gi * br).StoreUnsafe(ref imRef, (nuint)(k + 3 * q));
+            Butterfly22(a0r, a0i, a1r, a1i, a2r, a2i, a3r, a3i, LoadV4(ref wAr, k), LoadV4(ref wAi, k), LoadV4(ref wBr, k), LoadV4(ref wBi, k),
+                        out var y0r, out var y0i, out var y1r, out var y1i, out var y2r, out var y2i, out var y3r, out var y3i);
+            y0r.StoreUnsafe(ref reRef, (nuint)k); y0i.StoreUnsafe(ref imRef, (nuint)k);
+            y1r.StoreUnsafe(ref reRef, (nuint)(k + q)); y1i.StoreUnsafe(ref imRef, (nuint)(k + q));
+            y2r.StoreUnsafe(ref reRef, (nuint)(k + 2 * q)); y2i.StoreUnsafe(ref imRef, (nuint)(k + 2 * q));
+            y3r.StoreUnsafe(ref reRef, (nuint)(k + 3 * q)); y3i.StoreUnsafe(ref imRef, (nuint)(k + 3 * q));
         }
         return Vector256.Sum(acc);
     }

@@ -253,7 +253,7 @@ public static class Analyzer
             ObwNoise = options.ObwNoise,
         };
         string sha = hash.Result;
-        Profile.Stage("hash wait", clock);
+        Profile.Stage("results, hash wait", clock);
         Profile.Note($"hash done at {hashDoneS:0.000} s, analysis at {started.Elapsed.TotalSeconds:0.000} s");
         var (waveT, waveV, waveLabel) = Waveform(b, kind, tone?.Value, fsd, meanDev);
         var (longT, longHigh, longLow) = Trend(b, kind, fsd, meanDev);

@@ -532,30 +532,24 @@ internal static class DemodulationPass
     /// <summary>The smallest float at or above <see cref="FullScaleCode"/>: |v| &gt;= it exactly when (double)|v| &gt;= the code.</summary>
     private static readonly float FullScaleCodeF = (float)FullScaleCode >= FullScaleCode ? (float)FullScaleCode : MathF.BitIncrement((float)FullScaleCode);
 
-    /// <summary><see cref="CountFullScale(ReadOnlySpan{double})"/> of single-precision components (the same count as of them widened).</summary>
-    private static long CountFullScale(ReadOnlySpan<float> v)
-    {
-        int w = Vector<float>.Count, i;
-        var limit = new Vector<float>(FullScaleCodeF);
-        Vector<int> acc = Vector<int>.Zero;
-        ReadOnlySpan<Vector<float>> vv = MemoryMarshal.Cast<float, Vector<float>>(v);
-        // Counts per lane stay far below 2^31: a block is at most a few tens of thousands of values.
-        foreach (Vector<float> x in vv) acc -= Vector.GreaterThanOrEqual(Vector.Abs(x), limit);
-        long count = Vector.Sum(acc);
-        for (i = vv.Length * w; i < v.Length; i++) if (Math.Abs(v[i]) >= FullScaleCodeF) count++;
-        return count;
-    }
-
     /// <summary>Sample components at full scale (|v| at or above the top code), NaN not counted.</summary>
-    private static long CountFullScale(ReadOnlySpan<double> v)
+    private static long CountFullScale(ReadOnlySpan<double> v) => CountAtOrAbove(v, FullScaleCode);
+
+    /// <summary>The same count of single-precision components (as of them widened).</summary>
+    private static long CountFullScale(ReadOnlySpan<float> v) => CountAtOrAbove(v, FullScaleCodeF);
+
+    /// <summary>
+    /// Components with |v| &gt;= <paramref name="limit"/>, NaN not counted. The per-lane counts are
+    /// kept in T: exact, as a block holds far fewer than 2^24 values.
+    /// </summary>
+    private static long CountAtOrAbove<T>(ReadOnlySpan<T> v, T limit) where T : unmanaged, INumber<T>
     {
-        int w = Vector<double>.Count, i = 0;
-        var limit = new Vector<double>(FullScaleCode);
-        Vector<long> acc = Vector<long>.Zero;
-        ReadOnlySpan<Vector<double>> vv = MemoryMarshal.Cast<double, Vector<double>>(v);
-        foreach (Vector<double> x in vv) acc -= Vector.GreaterThanOrEqual(Vector.Abs(x), limit);
-        long count = Vector.Sum(acc);
-        for (i = vv.Length * w; i < v.Length; i++) if (Math.Abs(v[i]) >= FullScaleCode) count++;
+        var lim = new Vector<T>(limit);
+        Vector<T> acc = Vector<T>.Zero;
+        ReadOnlySpan<Vector<T>> vv = MemoryMarshal.Cast<T, Vector<T>>(v);
+        foreach (Vector<T> x in vv) acc += Vector.ConditionalSelect(Vector.GreaterThanOrEqual(Vector.Abs(x), lim), Vector<T>.One, Vector<T>.Zero);
+        long count = long.CreateTruncating(Vector.Sum(acc));
+        for (int i = vv.Length * Vector<T>.Count; i < v.Length; i++) if (T.Abs(v[i]) >= limit) count++;
         return count;
     }
 }
