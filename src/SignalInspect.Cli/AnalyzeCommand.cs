@@ -78,6 +78,7 @@ internal static class AnalyzeCommand
                 StartS = r.GetValue(spec.Start) ?? 0,
                 DurationS = r.GetValue(spec.Duration),
                 Threads = r.GetValue(spec.Threads),
+                KeepSpectrogram = pdfOut is not null,
             };
             long total = source.Info.SampleCount;
             AnalysisResult result = CliProgress.Run(stderr, "analyze", total, report => Analyzer.Analyze(source, options, report));

@@ -209,7 +209,7 @@ public static class BatchRunner
         try
         {
             CaptureSource source = CaptureSource.Open(file, WithSidecar(file, input.Options));
-            AnalysisResult r = Analyzer.Analyze(source, o.Analysis with { Threads = 1, NominalHz = o.Analysis.NominalHz ?? o.Profile?.NominalFrequencyHz });
+            AnalysisResult r = Analyzer.Analyze(source, o.Analysis with { Threads = 1, KeepSpectrogram = o.Reports, NominalHz = o.Analysis.NominalHz ?? o.Profile?.NominalFrequencyHz });
             MeasurementReport model = MeasurementReport.Create(r, o.Profile, o.ProfilePath, "Measurement of " + Path.GetFileName(file)) with { CommandLine = "signalinspect batch" };
             Verdict? overall = model.Overall;
             string stem = (hash ?? r.Sha256)[..16];

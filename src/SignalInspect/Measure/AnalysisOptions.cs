@@ -31,6 +31,8 @@ public sealed record AnalysisOptions
     public double StartS { get; init; }
     /// <summary>Length of the analysed window, s; null to the end.</summary>
     public double? DurationS { get; init; }
+    /// <summary>Whether to keep the spectrogram, which only the PDF report draws (true by default; the command line turns it off when no report is written).</summary>
+    public bool KeepSpectrogram { get; init; } = true;
     /// <summary>Worker threads for the spectrum; null for one per core.</summary>
     public int? Threads { get; init; }
 

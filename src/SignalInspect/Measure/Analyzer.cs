@@ -28,6 +28,7 @@ public static class Analyzer
         double fs = info.SampleRateHz;
         if (info.SampleCount == 0) throw CaptureException.ForFile(info.Path, "holds no samples: there is nothing to measure");
         var (first, count) = source.WindowSamples(options.StartS, options.DurationS);
+        Profile.Note($"start: {Profile.Memory()}");
         var clock = Stopwatch.StartNew();
         var started = Stopwatch.StartNew();
         double hashDoneS = 0;
@@ -37,7 +38,7 @@ public static class Analyzer
         // Pass A: the spectrum, the bandwidths and a first carrier estimate.
         int fft = options.FftSize ?? 4096;
         if (options.FftSize is null) while (fft > 64 && count < 8L * fft) fft /= 2;
-        var spectrumSettings = new SpectrumSettings { FftSize = fft, Window = options.Window, SuppressDc = options.SuppressDc, Threads = options.Threads };
+        var spectrumSettings = new SpectrumSettings { FftSize = fft, Window = options.Window, SuppressDc = options.SuppressDc, Threads = options.Threads, KeepSpectrogram = options.KeepSpectrogram };
         SpectrumResult spectrum = WelchEstimator.Estimate(source, spectrumSettings, first, count, progress, cancel);
         Profile.Stage("spectrum pass", clock);
         PowerSpectrum psd = spectrum.Mean;

@@ -352,15 +352,19 @@ internal static class DemodulationPass
                     }
                     k.Used += m - i0;
                     // The rings, up to each end of a line-spectrum segment [seg hop, seg hop + N) in turn.
+                    // Segment seg covers the hops seg and seg + 1: only the hops of segments taken are copied.
                     for (int i = i0; i < m;)
                     {
                         long at = n0 + i;
                         int upto = (int)Math.Min(m, (at / hop + 1) * hop - n0);   // just past the next hop boundary
-                        Ring(_ringA, _a.AsSpan(i, upto - i), at);
-                        Ring(_ringF, _df.AsSpan(i, upto - i), at);
-                        Ring(_ringT, _x.AsSpan(i, upto - i), at);
+                        if (Taken(at / hop) || Taken(at / hop - 1))
+                        {
+                            Ring(_ringA, _a.AsSpan(i, upto - i), at);
+                            Ring(_ringF, _df.AsSpan(i, upto - i), at);
+                            Ring(_ringT, _x.AsSpan(i, upto - i), at);
+                        }
                         long filled = n0 + upto;   // samples before this index are in the rings
-                        if (filled % hop == 0 && filled / hop - 2 is long seg && seg >= 0 && seg * hop >= countStart && s.Selected(seg))
+                        if (filled % hop == 0 && Taken(filled / hop - 2) && filled / hop - 2 is long seg)
                         {
                             AddSegment(lines.Env, _ringA, lines.Tone, _ringF, seg * hop);
                             AddTransition(lines.Trans, seg * hop);
@@ -384,6 +388,9 @@ internal static class DemodulationPass
                 _pendingTransition = false;
             }
             return k;
+
+            // Whether line-spectrum segment seg (from sample seg hop) goes into this chunk's spectra.
+            bool Taken(long seg) => seg >= 0 && seg * hop >= countStart && s.Selected(seg);
         }
 
         /// <summary>

@@ -14,6 +14,9 @@ public sealed class Histogram
     private readonly long[] _counts;   // one slot more than the bins: NaN lands there and is not counted
     private readonly int _bins;
     private readonly double _lo, _width;
+    // The bins that can hold counts, [_first, _last] (empty while _last < _first): merging and
+    // percentiles visit only these, so the untouched part of a wide histogram is never paged in.
+    private int _first = int.MaxValue, _last = -1;
 
     /// <summary>Creates a histogram of <paramref name="bins"/> bins over [<paramref name="lo"/>, <paramref name="hi"/>).</summary>
     public Histogram(double lo, double hi, int bins)
@@ -48,8 +51,11 @@ public sealed class Histogram
     public void Add(double v)
     {
         if (double.IsNaN(v)) return;
-        _counts[(int)Math.Clamp(Math.Floor((v - _lo) / _width), 0, _bins - 1)]++;
+        int b = (int)Math.Clamp(Math.Floor((v - _lo) / _width), 0, _bins - 1);
+        _counts[b]++;
         Count++;
+        if (b < _first) _first = b;
+        if (b > _last) _last = b;
     }
 
     /// <summary>Adds every value of a block (NaN is ignored); the same counts as <see cref="Add(double)"/> one by one.</summary>
@@ -70,14 +76,23 @@ public sealed class Histogram
             Span<long> bins = stackalloc long[w];
             ReadOnlySpan<Vector<double>> vv = MemoryMarshal.Cast<double, Vector<double>>(values);
             ref long c = ref MemoryMarshal.GetArrayDataReference(_counts);
+            Vector<double> low = new(_bins), high = new(-1.0);   // the range of the bins counted (NaN lanes left out)
             for (int v = 0; v < vv.Length; v++)
             {
                 Vector<double> x = vv[v];
                 // Bin in [0, last] as a double (NaN to the extra slot), then to integers.
                 Vector<double> f = Vector.Min(Vector.Max(Vector.Floor((x - lo) * inv), Vector<double>.Zero), top);
-                f = Vector.ConditionalSelect(Vector.Equals(x, x), f, nanSlot);
+                Vector<long> real = Vector.Equals(x, x);
+                low = Vector.Min(low, Vector.ConditionalSelect(real, f, nanSlot));
+                high = Vector.Max(high, Vector.ConditionalSelect(real, f, -Vector<double>.One));
+                f = Vector.ConditionalSelect(real, f, nanSlot);
                 (Vector.AsVectorInt64(f + magic) - magicBits).CopyTo(bins);
                 for (int l = 0; l < bins.Length; l++) Unsafe.Add(ref c, (nint)bins[l])++;
+            }
+            for (int l = 0; l < w; l++)
+            {
+                if (low[l] < _first) _first = (int)low[l];
+                if (high[l] > _last) _last = (int)high[l];
             }
             i = vv.Length * w;
         }
@@ -91,8 +106,10 @@ public sealed class Histogram
     {
         if (other._counts.Length != _counts.Length || other._lo != _lo || other._width != _width)
             throw new ArgumentException("the histograms differ in range or bins");
-        for (int i = 0; i < _bins; i++) _counts[i] += other._counts[i];
+        for (int i = other._first; i <= other._last; i++) _counts[i] += other._counts[i];
         Count += other.Count;
+        _first = Math.Min(_first, other._first);
+        _last = Math.Max(_last, other._last);
     }
 
     /// <summary>The value below which a fraction <paramref name="p"/> (0 to 1) of the values lie.</summary>
@@ -101,7 +118,7 @@ public sealed class Histogram
         if (Count == 0) return double.NaN;
         double target = Math.Clamp(p, 0, 1) * Count;
         long cum = 0;
-        for (int b = 0; b < _bins; b++)
+        for (int b = _first; b <= _last; b++)
         {
             if (cum + _counts[b] >= target && _counts[b] > 0)
             {

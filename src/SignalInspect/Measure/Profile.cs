@@ -16,11 +16,14 @@ internal static class Profile
         if (On) Console.Error.WriteLine($"profile: {text}");
     }
 
+    /// <summary>Bytes allocated so far and the working set, for the profile lines.</summary>
+    public static string Memory() => $"allocated {GC.GetTotalAllocatedBytes() / 1e6,6:0.0} MB, working set {Environment.WorkingSet / 1e6,6:0.0} MB";
+
     /// <summary>Writes the time since the last stage and restarts the clock.</summary>
     public static void Stage(string name, Stopwatch clock)
     {
         if (!On) return;
-        Console.Error.WriteLine($"profile: {name,-20} {clock.Elapsed.TotalSeconds,8:0.000} s");
+        Console.Error.WriteLine($"profile: {name,-20} {clock.Elapsed.TotalSeconds,8:0.000} s   {Memory()}");
         clock.Restart();
     }
 }

@@ -186,7 +186,8 @@ public static class PdfReportWriter
         l.Image(spec, w, hSpec);
         l.Gap(6);
         double hGram = 165;
-        byte[] gram = TimePlots.SpectrogramPng(a.Spectrum.Spectrogram, a.Capture.IsComplex ? a.Capture.CenterFrequencyHz : null, $"Spectrogram ({a.Spectrum.Spectrogram.Rows} rows)", Px(w), Px(hGram), Dpi / 96);
+        Spectrum.Spectrogram map = a.Spectrum.Spectrogram ?? throw new ArgumentException("the analysis was made without its spectrogram (AnalysisOptions.KeepSpectrogram off): a report needs it");
+        byte[] gram = TimePlots.SpectrogramPng(map, a.Capture.IsComplex ? a.Capture.CenterFrequencyHz : null, $"Spectrogram ({map.Rows} rows)", Px(w), Px(hGram), Dpi / 96);
         l.Image(gram, w, hGram);
         l.Gap(6);
         if (a.Waveform.Count > 1)

@@ -26,6 +26,12 @@ public sealed record SpectrumSettings
     /// <summary>Offset in dB added to every dB value (e.g. to read dBm at a calibrated input); 0 for dBFS.</summary>
     public double CalibrationDb { get; init; }
 
+    /// <summary>
+    /// Whether to keep the spectrogram (true by default). Off when only the spectra are wanted: the
+    /// map, 256 x 4096 values by default (8 MB), is then neither filled nor allocated.
+    /// </summary>
+    public bool KeepSpectrogram { get; init; } = true;
+
     /// <summary>Most rows of the spectrogram (segments are grouped to fit), 1 to 4096.</summary>
     public int SpectrogramRows { get; init; } = 256;
 

@@ -56,7 +56,8 @@ public static class WelchEstimator
 
         int threads = Math.Max(1, Math.Min(settings.Threads ?? Environment.ProcessorCount, rows));
         var workers = new Worker[threads];
-        var gram = new double[(long)rows * columns];
+        // The rows are also the units of work shared between the threads, kept without a spectrogram.
+        double[]? gram = settings.KeepSpectrogram ? new double[(long)rows * columns] : null;
         var sum = new double[n];
         var total = new InOrder<double[]>(() => new double[n], row =>
         {
@@ -95,7 +96,7 @@ public static class WelchEstimator
         {
             dcBins = SuppressDc(mean, n / 2, window.MainLobeHalfWidthBins);
             SuppressDc(hold, n / 2, window.MainLobeHalfWidthBins);
-            if (q == 1) for (int r = 0; r < rows; r++) SuppressDc(gram.AsSpan(r * columns, columns), n / 2, window.MainLobeHalfWidthBins);
+            if (q == 1 && gram is not null) for (int r = 0; r < rows; r++) SuppressDc(gram.AsSpan(r * columns, columns), n / 2, window.MainLobeHalfWidthBins);
         }
         double? centre = complex ? info.CenterFrequencyHz : null;
         var rowTimes = new double[rows];
@@ -114,7 +115,7 @@ public static class WelchEstimator
         {
             Mean = new PowerSpectrum(freqs, mean, SpectrumScaling.DensityPerHz, SpectrumAveraging.Mean, settings, window, info.SampleRateHz, centre, !complex, segments),
             MaxHold = new PowerSpectrum(freqs, hold, SpectrumScaling.DensityPerHz, SpectrumAveraging.MaxHold, settings, window, info.SampleRateHz, centre, !complex, segments),
-            Spectrogram = new Spectrogram(rows, columns, gram, rowTimes, colFreqs, (int)perRow, settings.SpectrogramAveraging, settings.CalibrationDb),
+            Spectrogram = gram is null ? null : new Spectrogram(rows, columns, gram, rowTimes, colFreqs, (int)perRow, settings.SpectrogramAveraging, settings.CalibrationDb),
             FirstSample = firstSample,
             SamplesAnalysed = (segments - 1) * step + n,
             DcBinsSuppressed = dcBins,
@@ -230,14 +231,14 @@ public static class WelchEstimator
         public long NonFiniteSegments { get; private set; }
 
         /// <summary>The segments of spectrogram row r: its row, its share of the max-hold, its sum into the total.</summary>
-        public void RunRow(CaptureReader reader, int r, double[] gram, InOrder<double[]> total, Action<long>? report, CancellationToken cancel)
+        public void RunRow(CaptureReader reader, int r, double[]? gram, InOrder<double[]> total, Action<long>? report, CancellationToken cancel)
         {
             // float32 captures are read as stored and widened as the scrambled transform loads them (the same values).
             if (reader.DeliversFloat32 && _scrambled) RunRow(reader, _stagingF ??= new float[StagingValues], r, gram, total, report, cancel);
             else RunRow(reader, _staging ??= new double[StagingValues], r, gram, total, report, cancel);
         }
 
-        private void RunRow<T>(CaptureReader reader, T[] staging, int r, double[] gram, InOrder<double[]> total, Action<long>? report, CancellationToken cancel)
+        private void RunRow<T>(CaptureReader reader, T[] staging, int r, double[]? gram, InOrder<double[]> total, Action<long>? report, CancellationToken cancel)
             where T : unmanaged
         {
             int n = _l.N, step = _l.Step, vps = reader.ValuesPerSample;
@@ -270,7 +271,7 @@ public static class WelchEstimator
                 segment++;
                 pos += step;
             }
-            _l.WriteRow(gram, r, _scrambled && !_l.RowMax ? _rowSum : _row, segment - seg0, !_l.RowMax);
+            if (gram is not null) _l.WriteRow(gram, r, _scrambled && !_l.RowMax ? _rowSum : _row, segment - seg0, !_l.RowMax);
             total.Complete(r, _rowSum);
             _rowSum = total.Rent();
         }

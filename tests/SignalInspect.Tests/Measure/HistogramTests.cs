@@ -33,4 +33,37 @@ public class HistogramTests
         foreach (double p in new[] { 0.001, 0.5, 0.999 })
             Near.Equal(sorted[(int)(p * (sorted.Length - 1))], h.Percentile(p), 2 * h.BinWidth + 1e-4, $"percentile {p}");
     }
+
+    [Fact]
+    public void Merged_histograms_with_values_in_a_narrow_part_of_the_range_count_and_rank_like_one()
+    {
+        // The histogram visits only the bins it has counted in when merging and ranking; checked
+        // against one histogram fed every value and against the sorted values (the definition).
+        var rng = new Random(6);
+        double[] a = [.. Enumerable.Range(0, 5003).Select(i => i % 101 == 0 ? double.NaN : 0.30 + 0.01 * rng.NextDouble())];
+        double[] b = [.. Enumerable.Range(0, 4001).Select(_ => -0.52 - 0.02 * rng.NextDouble())];
+        var ha = new Histogram(-1, 1, 1 << 18);
+        var hb = new Histogram(-1, 1, 1 << 18);
+        var empty = new Histogram(-1, 1, 1 << 18);
+        var nanOnly = new Histogram(-1, 1, 1 << 18);
+        var all = new Histogram(-1, 1, 1 << 18);
+        ha.Add(a);
+        hb.Add(b.AsSpan(0, 3001));
+        foreach (double x in b.AsSpan(3001)) hb.Add(x);   // the one-value insert widens the range too
+        nanOnly.Add([double.NaN, double.NaN, double.NaN, double.NaN, double.NaN]);
+        all.Add(a);
+        all.Add(b);
+        ha.Add(hb);
+        ha.Add(empty);
+        ha.Add(nanOnly);
+        Assert.Equal(all.Count, ha.Count);
+        for (int k = 0; k < all.Bins; k++) Assert.Equal(all[k], ha[k]);
+        double[] sorted = [.. a.Concat(b).Where(x => !double.IsNaN(x)).Order()];
+        foreach (double p in new[] { 0.0, 0.001, 0.4, 0.5, 0.999, 1.0 })
+        {
+            Assert.Equal(all.Percentile(p), ha.Percentile(p));
+            Near.Equal(sorted[(int)(p * (sorted.Length - 1))], ha.Percentile(p), 2 * ha.BinWidth, $"percentile {p}");
+        }
+        Assert.True(double.IsNaN(empty.Percentile(0.5)));
+    }
 }

@@ -141,9 +141,29 @@ public class WelchEstimatorTests
         Assert.Equal(one.Mean.Values.ToArray(), two.Mean.Values.ToArray());
         Assert.Equal(one.Mean.Values.ToArray(), three.Mean.Values.ToArray());
         for (int i = 0; i < one.Mean.Count; i++) Assert.Equal(one.MaxHold.Values[i], two.MaxHold.Values[i]);
-        for (int r = 0; r < one.Spectrogram.Rows; r++)
+        for (int r = 0; r < one.Spectrogram!.Rows; r++)
             for (int c = 0; c < one.Spectrogram.Columns; c += 97)
-                Assert.Equal(one.Spectrogram.Value(r, c), two.Spectrogram.Value(r, c));
+                Assert.Equal(one.Spectrogram.Value(r, c), two.Spectrogram!.Value(r, c));
+    }
+
+    [Theory]
+    [InlineData(2048, 1)]
+    [InlineData(2048, 2)]
+    [InlineData(1000, 2)]   // the plain transform
+    public void Without_the_spectrogram_the_spectra_are_the_same_bits(int fft, int threads)
+    {
+        // Internal consistency (no outside reference): leaving the map out must not touch the
+        // spectra, since the rows stay the units of work and of the ordered sum.
+        using var tmp = new TempDir();
+        CaptureSource src = Synth(tmp, new SignalSpec { Kind = SignalKind.Fm, SampleRateHz = 96000, DurationS = 2, SnrDb = 30, Seed = 9 });
+        var s = new SpectrumSettings { FftSize = fft, SpectrogramRows = 40, Threads = threads };
+        SpectrumResult with = WelchEstimator.Estimate(src, s);
+        SpectrumResult without = WelchEstimator.Estimate(src, s with { KeepSpectrogram = false });
+        Assert.NotNull(with.Spectrogram);
+        Assert.Null(without.Spectrogram);
+        Assert.Equal(with.Mean.Values.ToArray(), without.Mean.Values.ToArray());
+        Assert.Equal(with.MaxHold.Values.ToArray(), without.MaxHold.Values.ToArray());
+        Assert.Equal(with.Mean.Segments, without.Mean.Segments);
     }
 
     [Theory]
@@ -156,7 +176,7 @@ public class WelchEstimatorTests
         var s = new SpectrumSettings { FftSize = fft, OverlapFraction = 0, SpectrogramRows = 100 };
         SpectrumResult r = WelchEstimator.Estimate(src, s);
         Assert.Equal(1000, r.Mean.Segments);
-        Assert.Equal(100, r.Spectrogram.Rows);
+        Assert.Equal(100, r.Spectrogram!.Rows);
         Assert.Equal(10, r.Spectrogram.SegmentsPerRow);
         Near.Equal(0.05, r.Spectrogram.RowTimesS[0], 1e-12, "first row centre");
         for (int c = 0; c < r.Spectrogram.Columns; c += 37)
