@@ -218,7 +218,7 @@ internal static class DemodulationPass
         private readonly Setup _s;
         private float[]? _inputF;
         private bool _pendingTransition;
-        private readonly double[] _input, _re, _im, _a, _x, _y, _dphi, _dev, _df, _pv, _ph, _ubuf, _ringA, _ringF, _ringT, _segment, _segment2, _pending;
+        private readonly double[] _input, _re, _im, _a, _x, _y, _dphi, _dev, _df, _pv, _ph, _ubuf, _ringA, _ringF, _ringT, _pending;
         private readonly LineSpectrum.Workspace _ws;
         private readonly ChannelDecimator _dec;
         private readonly BlockFir _comp, _lp;
@@ -248,8 +248,6 @@ internal static class DemodulationPass
             _ringA = new double[s.DemodFft];
             _ringF = new double[s.DemodFft];
             _ringT = new double[s.DemodFft];
-            _segment = new double[s.DemodFft];
-            _segment2 = new double[s.DemodFft];
             _pending = new double[s.DemodFft];
             _ws = new LineSpectrum.Workspace(s.DemodFft);
             _dec = new ChannelDecimator(p.Taps, p.Decimation, p.ShiftHz, p.Fs, p.Complex);
@@ -405,8 +403,8 @@ internal static class DemodulationPass
                 _pendingTransition = true;
                 return;
             }
-            Unroll(_ringT, start, _segment);
-            LineSpectrum.AddSegments(trans, _pending, trans, _segment, _ws);
+            int s0 = (int)(start & (_ringT.Length - 1)), tail = _ringT.Length - s0;
+            LineSpectrum.AddSegments(trans, _pending.AsSpan(0, tail), _pending.AsSpan(tail), trans, _ringT.AsSpan(s0), _ringT.AsSpan(0, s0), _ws);
             _pendingTransition = false;
         }
 
@@ -498,12 +496,11 @@ internal static class DemodulationPass
             if (from < len) h.Add(_ubuf.AsSpan(from, len - from));
         }
 
-        /// <summary>Two streams' segments in one transform (see <see cref="LineSpectrum.AddSegments"/>).</summary>
+        /// <summary>Two streams' segments from <paramref name="start"/> in one transform, read straight out of their rings.</summary>
         private void AddSegment(LineSpectrum a, double[] ringA, LineSpectrum b, double[] ringB, long start)
         {
-            Unroll(ringA, start, _segment);
-            Unroll(ringB, start, _segment2);
-            LineSpectrum.AddSegments(a, _segment, b, _segment2, _ws);
+            int s0 = (int)(start & (ringA.Length - 1));
+            LineSpectrum.AddSegments(a, ringA.AsSpan(s0), ringA.AsSpan(0, s0), b, ringB.AsSpan(s0), ringB.AsSpan(0, s0), _ws);
         }
 
         private static void Unroll(double[] ring, long start, double[] into)

@@ -1,3 +1,6 @@
+using System.Runtime.CompilerServices;
+using System.Runtime.InteropServices;
+using System.Runtime.Intrinsics;
 using SignalInspect.Dsp;
 
 namespace SignalInspect.Measure;
@@ -14,15 +17,18 @@ public sealed class LineSpectrum
 {
     private readonly int _n;
     private readonly double _fs;
-    private readonly double[] _sum;
+    private readonly double[] _sum;   // in the folded order of the transform (see Fold); _fold.SlotOf[k] is bin k's
+    private readonly Fold _fold;
     private readonly Window _window;
     private long _segments;
 
     /// <summary>Creates the accumulator.</summary>
     /// <param name="fftSize">Segment size, a power of two from 16.</param>
     /// <param name="sampleRateHz">Rate of the stream.</param>
+    /// <exception cref="ArgumentOutOfRangeException">The size is not a power of two from 16.</exception>
     public LineSpectrum(int fftSize, double sampleRateHz)
     {
+        _fold = Fold.For(fftSize);
         _n = fftSize;
         _fs = sampleRateHz;
         _sum = new double[fftSize / 2 + 1];
@@ -50,33 +56,70 @@ public sealed class LineSpectrum
     {
         internal readonly FftPlan Fft;
         internal readonly double[] Re, Im, Pair;
-        /// <summary>Where the scrambled transform leaves bin k and bin N - k (k = 0 .. N/2); null when the size cannot be scrambled.</summary>
-        internal readonly int[]? At, Mirror;
+        internal readonly Fold Fold;
 
         /// <summary>Creates the plan and buffers for segments of <paramref name="fftSize"/> samples.</summary>
+        /// <exception cref="ArgumentOutOfRangeException">The size is not a power of two from 16.</exception>
         public Workspace(int fftSize)
         {
+            Fold = Fold.For(fftSize);
             Fft = new FftPlan(fftSize);
             Re = new double[fftSize];
             Im = new double[fftSize];
             Pair = new double[2 * fftSize];
-            if (!Fft.CanScramble) return;
-            At = new int[fftSize / 2 + 1];
-            Mirror = new int[fftSize / 2 + 1];
-            for (int k = 0; k <= fftSize / 2; k++)
-            {
-                At[k] = Fft.ScrambledIndex(k);
-                Mirror[k] = Fft.ScrambledIndex((fftSize - k) & (fftSize - 1));
-            }
         }
 
-        /// <summary>The windowed transform of a segment; bin k is at (<see cref="At"/>[k]) when scrambled. False when an input is not finite.</summary>
+        /// <summary>The windowed transform of a segment, its bins left scrambled (<see cref="FftPlan.ScrambledIndex"/>). False when an input is not finite.</summary>
         internal bool Transform(ReadOnlySpan<double> samples, bool complex, ReadOnlySpan<double> window) =>
-            double.IsFinite(At is null ? Fft.ForwardWindowed(samples, complex, window, Re, Im) : Fft.ForwardWindowedScrambled(samples, complex, window, Re, Im));
+            double.IsFinite(Fft.ForwardWindowedScrambled(samples, complex, window, Re, Im));
+    }
 
-        internal int Bin(int k) => At is null ? k : At[k];
+    /// <summary>
+    /// Where the sums are kept: in the order the scrambled transform leaves its bins, folded, so that
+    /// adding a transform reads it front to back and writes the sums in order. The bins k = i N/16
+    /// (i = 0 .. 8) lie in the transform's first 16 places and are kept in slots 0 .. 7 and N/2. Every
+    /// later block of places [h, 2h) (h = 16, 32 .. N/2) holds pairs of bins k and N - k at places
+    /// h + r and 2h - 1 - r (r &lt; h/2; bit reversal maps N - k to the complement of k's place within
+    /// its block, and the transposed last pass only permutes the low four bits), kept in slot h/2 + r.
+    /// A place in those blocks holds a bin below N/2 when its bit <see cref="LowHalfBit"/> is clear.
+    /// </summary>
+    internal sealed class Fold
+    {
+        private static readonly System.Collections.Concurrent.ConcurrentDictionary<int, Fold> Made = new();
 
-        internal int MirrorBin(int k) => Mirror is null ? (k == 0 ? 0 : Re.Length - k) : Mirror[k];
+        /// <summary>Slot of bin k (0 .. N/2).</summary>
+        public readonly int[] SlotOf;
+        /// <summary>Places of the bins i N/16 and N - i N/16, i = 0 .. 8.</summary>
+        public readonly int[] HeadPlace = new int[9], HeadMirror = new int[9];
+        public readonly int LowHalfBit;
+
+        private Fold(int n)
+        {
+            var plan = new FftPlan(n);
+            var binAt = new int[n];
+            for (int k = 0; k < n; k++) binAt[plan.ScrambledIndex(k)] = k;
+            SlotOf = new int[n / 2 + 1];
+            for (int i = 0; i <= 8; i++)
+            {
+                int k = i * (n / 16);
+                HeadPlace[i] = plan.ScrambledIndex(k);
+                HeadMirror[i] = plan.ScrambledIndex((n - k) & (n - 1));
+                SlotOf[k] = i < 8 ? i : n / 2;
+            }
+            for (int h = 16; h < n; h *= 2)
+                for (int r = 0; r < h / 2; r++)
+                {
+                    int k = binAt[h + r];
+                    SlotOf[Math.Min(k, n - k)] = h / 2 + r;
+                }
+            LowHalfBit = plan.ScrambledIndex(n / 2);
+        }
+
+        public static Fold For(int n)
+        {
+            if (n < 16 || (n & (n - 1)) != 0) throw new ArgumentOutOfRangeException(nameof(n), n, "line spectra need a power-of-two size from 16");
+            return Made.GetOrAdd(n, static n => new Fold(n));
+        }
     }
 
     /// <summary>
@@ -85,27 +128,71 @@ public sealed class LineSpectrum
     /// streams are real). The same sums as two calls of <see cref="AddSegment"/>, to rounding;
     /// <paramref name="a"/> and <paramref name="b"/> may be one accumulator (two segments of one stream).
     /// The transform leaves its bins bit-reversed (<see cref="FftPlan.ForwardWindowedScrambled"/>);
-    /// they are read through the workspace's index tables. A pair with a non-finite sample is left out.
+    /// they are read in that order and summed in the folded order (see <see cref="Fold"/>). A pair with
+    /// a non-finite sample is left out.
     /// </summary>
     /// <exception cref="ArgumentException">The sizes differ.</exception>
-    public static void AddSegments(LineSpectrum a, ReadOnlySpan<double> sa, LineSpectrum b, ReadOnlySpan<double> sb, Workspace ws)
+    public static void AddSegments(LineSpectrum a, ReadOnlySpan<double> sa, LineSpectrum b, ReadOnlySpan<double> sb, Workspace ws) =>
+        AddSegments(a, sa, default, b, sb, default, ws);
+
+    /// <summary>
+    /// <see cref="AddSegments(LineSpectrum, ReadOnlySpan{double}, LineSpectrum, ReadOnlySpan{double}, Workspace)"/>
+    /// with each segment in two pieces, <paramref name="a1"/> then <paramref name="a2"/> and
+    /// <paramref name="b1"/> then <paramref name="b2"/> (a1 and b1 of one length): segments read
+    /// straight out of ring buffers.
+    /// </summary>
+    /// <exception cref="ArgumentException">The sizes differ.</exception>
+    public static void AddSegments(LineSpectrum a, ReadOnlySpan<double> a1, ReadOnlySpan<double> a2, LineSpectrum b, ReadOnlySpan<double> b1, ReadOnlySpan<double> b2, Workspace ws)
     {
         int n = a._n;
-        if (b._n != n || sa.Length != n || sb.Length != n || ws.Re.Length != n) throw new ArgumentException($"the segments and the workspace must hold {n} samples");
+        if (b._n != n || a1.Length + a2.Length != n || b1.Length != a1.Length || b2.Length != a2.Length || ws.Re.Length != n)
+            throw new ArgumentException($"the segments and the workspace must hold {n} samples");
         Span<double> z = ws.Pair;
-        VectorMath.Interleave(sa, sb, z);
+        VectorMath.Interleave(a1, b1, z);
+        VectorMath.Interleave(a2, b2, z[(2 * a1.Length)..]);
         if (!ws.Transform(z, complex: true, a._window.Coefficients)) return;
-        double[] re = ws.Re, im = ws.Im;
-        for (int k = 0; k < a._sum.Length; k++)
+        ref double re = ref MemoryMarshal.GetArrayDataReference(ws.Re), im = ref MemoryMarshal.GetArrayDataReference(ws.Im);
+        double[] sumA = a._sum, sumB = b._sum;
+        Fold f = ws.Fold;
+        for (int i = 0; i <= 8; i++)
         {
-            int p = ws.Bin(k), m = ws.MirrorBin(k);
-            double zr = re[p], zi = im[p], cr = re[m], ci = -im[m];
-            double ar = zr + cr, ai = zi + ci, br = zr - cr, bi = zi - ci;
-            a._sum[k] += 0.25 * (ar * ar + ai * ai);
-            b._sum[k] += 0.25 * (br * br + bi * bi);
+            int slot = i < 8 ? i : n / 2;
+            Pair(Unsafe.Add(ref re, f.HeadPlace[i]), Unsafe.Add(ref im, f.HeadPlace[i]), Unsafe.Add(ref re, f.HeadMirror[i]), Unsafe.Add(ref im, f.HeadMirror[i]),
+                 ref sumA[slot], ref sumB[slot]);
+        }
+        var quarter = Vector256.Create(0.25);
+        for (int h = 16; h < n; h *= 2)
+        {
+            int half = h / 2, r = 0;
+            ref double sa = ref sumA[half], sb = ref sumB[half];
+            if (Vector256.IsHardwareAccelerated)
+                for (; r + 4 <= half; r += 4)
+                {
+                    // Places h + r .. h + r + 3 and, reversed, their mirrors 2h - 1 - r .. 2h - 4 - r.
+                    Vector256<double> zr = Vector256.LoadUnsafe(ref re, (nuint)(h + r)), zi = Vector256.LoadUnsafe(ref im, (nuint)(h + r));
+                    Vector256<double> cr = Reverse(Vector256.LoadUnsafe(ref re, (nuint)(2 * h - 4 - r)));
+                    Vector256<double> ci = -Reverse(Vector256.LoadUnsafe(ref im, (nuint)(2 * h - 4 - r)));
+                    Vector256<double> ar = zr + cr, ai = zi + ci, br = zr - cr, bi = zi - ci;
+                    (Vector256.LoadUnsafe(ref sa, (nuint)r) + quarter * (ar * ar + ai * ai)).StoreUnsafe(ref sa, (nuint)r);
+                    (Vector256.LoadUnsafe(ref sb, (nuint)r) + quarter * (br * br + bi * bi)).StoreUnsafe(ref sb, (nuint)r);
+                }
+            for (; r < half; r++)
+                Pair(Unsafe.Add(ref re, h + r), Unsafe.Add(ref im, h + r), Unsafe.Add(ref re, 2 * h - 1 - r), Unsafe.Add(ref im, 2 * h - 1 - r),
+                     ref Unsafe.Add(ref sa, r), ref Unsafe.Add(ref sb, r));
         }
         a._segments++;
         b._segments++;
+
+        static Vector256<double> Reverse(Vector256<double> v) => Vector256.Shuffle(v, Vector256.Create(3L, 2, 1, 0));
+
+        // The two streams' powers at a bin from Z there (zr, zi) and at its mirror (mr, mi).
+        static void Pair(double zr, double zi, double mr, double mi, ref double sa, ref double sb)
+        {
+            double cr = mr, ci = -mi;
+            double ar = zr + cr, ai = zi + ci, br = zr - cr, bi = zi - ci;
+            sa += 0.25 * (ar * ar + ai * ai);
+            sb += 0.25 * (br * br + bi * bi);
+        }
     }
 
     /// <summary>Adds the periodogram of one segment of exactly <see cref="FftSize"/> samples (a segment with a non-finite sample is left out).</summary>
@@ -115,11 +202,20 @@ public sealed class LineSpectrum
         if (segment.Length != _n || ws.Re.Length != _n) throw new ArgumentException($"the segment and the workspace must hold {_n} samples");
         if (!ws.Transform(segment, complex: false, _window.Coefficients)) return;
         double[] re = ws.Re, im = ws.Im;
-        for (int k = 0; k < _sum.Length; k++)
+        Fold f = ws.Fold;
+        for (int i = 0; i <= 8; i++)
         {
-            int p = ws.Bin(k);
-            _sum[k] += re[p] * re[p] + im[p] * im[p];
+            int p = f.HeadPlace[i];
+            _sum[i < 8 ? i : _n / 2] += re[p] * re[p] + im[p] * im[p];
         }
+        // Of each pair of places, the one of the bin below N/2 (the sums are one-sided).
+        for (int h = 16; h < _n; h *= 2)
+            for (int r = 0; r < h / 2; r++)
+            {
+                int p = h + r;
+                if ((p & f.LowHalfBit) != 0) p = 2 * h - 1 - r;
+                _sum[h / 2 + r] += re[p] * re[p] + im[p] * im[p];
+            }
         _segments++;
     }
 
@@ -129,14 +225,25 @@ public sealed class LineSpectrum
     {
         if (other._n != _n) throw new ArgumentException("the spectra differ in size");
         if (other._segments == 0) return;   // nothing was added to it: its sums are all zero
-        for (int k = 0; k < _sum.Length; k++) _sum[k] += other._sum[k];
+        // Added and cleared in one sweep.
+        Span<double> into = _sum, from = other._sum;
+        int k = 0;
+        if (Vector256.IsHardwareAccelerated)
+            for (; k + 4 <= into.Length; k += 4)
+            {
+                (Vector256.Create<double>(into[k..]) + Vector256.Create<double>(from[k..])).CopyTo(into[k..]);
+                Vector256<double>.Zero.CopyTo(from[k..]);
+            }
+        for (; k < into.Length; k++) { into[k] += from[k]; from[k] = 0; }
         _segments += other._segments;
-        Array.Clear(other._sum);
         other._segments = 0;
     }
 
+    // The raw sum of bin k.
+    private double Raw(int k) => _sum[_fold.SlotOf[k]];
+
     /// <summary>Power of bin k (relative units).</summary>
-    public double Power(int k) => _segments == 0 ? 0 : _sum[k] / _segments;
+    public double Power(int k) => _segments == 0 ? 0 : Raw(k) / _segments;
 
     /// <summary>
     /// The strongest line between <paramref name="minHz"/> and <paramref name="maxHz"/>, its frequency
@@ -150,7 +257,7 @@ public sealed class LineSpectrum
         int k1 = Math.Min(_sum.Length - 2, (int)Math.Floor(maxHz / BinWidthHz));
         if (k1 < k0) return null;
         int best = k0;
-        for (int k = k0; k <= k1; k++) if (_sum[k] > _sum[best]) best = k;
+        for (int k = k0; k <= k1; k++) if (Raw(k) > Raw(best)) best = k;
         return (Refine(best) * BinWidthHz, Power(best));
     }
 
@@ -162,12 +269,12 @@ public sealed class LineSpectrum
         int k0 = Math.Max(MinBin, (int)Math.Ceiling(minHz / BinWidthHz));
         int k1 = Math.Min(_sum.Length - 2, (int)Math.Floor(maxHz / BinWidthHz));
         for (int k = k0; k <= k1; k++)
-            if (_sum[k] >= _sum[k - 1] && _sum[k] > _sum[k + 1] && Power(k) >= fraction * top.Power)
+            if (Raw(k) >= Raw(k - 1) && Raw(k) > Raw(k + 1) && Power(k) >= fraction * top.Power)
                 list.Add((Refine(k) * BinWidthHz, Power(k)));
         return list;
     }
 
-    private double Refine(int k) => k + Spectrum.PeakInterpolation.LogParabolic(_sum[k - 1], _sum[k], _sum[k + 1]);
+    private double Refine(int k) => k + Spectrum.PeakInterpolation.LogParabolic(Raw(k - 1), Raw(k), Raw(k + 1));
 }
 
 /// <summary>Variance estimates from a <see cref="LineSpectrum"/>: how much of a stream is a tone and how much is noise.</summary>

@@ -33,6 +33,8 @@ public class LineSpectrumTests
     }
 
     [Theory]
+    [InlineData(16)]
+    [InlineData(32)]
     [InlineData(256)]
     [InlineData(4096)]
     public void Bin_powers_equal_the_windowed_DFT_by_its_definition(int n)
@@ -47,7 +49,7 @@ public class LineSpectrumTests
         LineSpectrum one = new(n, 1000), pa = new(n, 1000), pb = new(n, 1000);
         one.AddSegment(a, ws);
         LineSpectrum.AddSegments(pa, a, pb, b, ws);
-        int step = n / 64;
+        int step = Math.Max(1, n / 64);
         for (int k = 0; k <= n / 2; k += k < 8 || k > n / 2 - 8 ? 1 : step)
         {
             double Direct(double[] x)
@@ -82,6 +84,38 @@ public class LineSpectrumTests
         LineSpectrum.AddSegments(paired, a, paired, b, ws);
         Assert.Equal(2, paired.Segments);
         for (int k = 0; k <= n / 2; k++) Assert.Equal(one.Power(k), paired.Power(k), 1e-9 * Math.Max(1, one.Power(k)));
+    }
+
+    [Theory]
+    [InlineData(0)]
+    [InlineData(1)]
+    [InlineData(700)]
+    [InlineData(1023)]
+    public void Segments_in_two_pieces_give_the_sums_of_the_whole_segments(int split)
+    {
+        // Internal consistency: a ring buffer's two pieces, read in place, are the segment itself.
+        const int n = 1024;
+        var rng = new Random(split);
+        double[] a = [.. Enumerable.Range(0, n).Select(_ => rng.NextDouble())], b = [.. Enumerable.Range(0, n).Select(_ => rng.NextDouble())];
+        var ws = new LineSpectrum.Workspace(n);
+        LineSpectrum wa = new(n, 1000), wb = new(n, 1000), pa = new(n, 1000), pb = new(n, 1000);
+        LineSpectrum.AddSegments(wa, a, wb, b, ws);
+        LineSpectrum.AddSegments(pa, a.AsSpan(0, split), a.AsSpan(split), pb, b.AsSpan(0, split), b.AsSpan(split), ws);
+        for (int k = 0; k <= n / 2; k++)
+        {
+            Assert.Equal(wa.Power(k), pa.Power(k));
+            Assert.Equal(wb.Power(k), pb.Power(k));
+        }
+        Assert.Throws<ArgumentException>(() => LineSpectrum.AddSegments(pa, a.AsSpan(0, split), a.AsSpan(split), pb, b.AsSpan(0, n - split), b.AsSpan(n - split), ws));
+    }
+
+    [Theory]
+    [InlineData(8)]
+    [InlineData(1000)]
+    public void Sizes_other_than_powers_of_two_from_16_are_refused(int n)
+    {
+        Assert.Throws<ArgumentOutOfRangeException>(() => new LineSpectrum(n, 1000));
+        Assert.Throws<ArgumentOutOfRangeException>(() => new LineSpectrum.Workspace(n));
     }
 
     [Fact]
