@@ -1,3 +1,4 @@
+using System.Diagnostics;
 using System.Numerics;
 using System.Runtime.InteropServices;
 using SignalInspect.Capture;
@@ -174,6 +175,7 @@ internal static class DemodulationPass
             r.Freq.Add(workers[w].Freq);
             if (r.Phase is not null) r.Phase.Add(workers[w].Phase!);
         }
+        Profile.Note($"line spectra: {workers.Sum(w => w.LineTicks) * 1e3 / Stopwatch.Frequency:0.0} ms over {threads} threads, {merged.Env.Segments} segments of {s.DemodFft}, {chunks} chunks");
         // Chunk sums in order, each chunk's phase moved to the capture's unwrapped phase.
         double sw = 0, swt = 0, swtt = 0, swp = 0, swtp = 0, swpp = 0, sa = 0, sd = 0, sdd = 0, off = 0;
         long used = 0;
@@ -226,6 +228,8 @@ internal static class DemodulationPass
         public readonly Histogram Envelope, Freq;
         public readonly Histogram? Phase;
         public readonly List<double> WaveA = [], WaveF = [];
+        /// <summary>Time spent on line-spectrum segments (Stopwatch ticks), for the profile.</summary>
+        public long LineTicks;
 
         public Worker(Setup s)
         {
@@ -364,8 +368,10 @@ internal static class DemodulationPass
                         long filled = n0 + upto;   // samples before this index are in the rings
                         if (filled % hop == 0 && Taken(filled / hop - 2) && filled / hop - 2 is long seg)
                         {
+                            long t0 = Stopwatch.GetTimestamp();
                             AddSegment(lines.Env, _ringA, lines.Tone, _ringF, seg * hop);
                             AddTransition(lines.Trans, seg * hop);
+                            LineTicks += Stopwatch.GetTimestamp() - t0;
                         }
                         i = upto;
                     }
