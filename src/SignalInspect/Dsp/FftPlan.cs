@@ -67,14 +67,23 @@ public sealed class FftPlan
             for (int s = 1, h = 1; s <= _log2; s++, h <<= 1) { _stageOffset[s] = total; total += h; }
             _twRe = new double[Math.Max(total, 1)];
             _twIm = new double[Math.Max(total, 1)];
-            for (int s = 1, h = 1; s <= _log2; s++, h <<= 1)
+            // The last stage's factors are computed; every earlier stage's are every (N/2)/h-th of them.
+            // Exactly the values computed directly: -pi k m / (h m) rounds as -pi k / h for m a power of two.
+            if (_log2 > 0)
             {
-                for (int k = 0; k < h; k++)
+                int top = _stageOffset[_log2], half = size / 2;
+                for (int k = 0; k < half; k++)
                 {
-                    double a = -Math.PI * k / h;
-                    _twRe[_stageOffset[s] + k] = Math.Cos(a);
-                    _twIm[_stageOffset[s] + k] = Math.Sin(a);
+                    double a = -Math.PI * k / half;
+                    _twRe[top + k] = Math.Cos(a);
+                    _twIm[top + k] = Math.Sin(a);
                 }
+                for (int s = 1, h = 1; s < _log2; s++, h <<= 1)
+                    for (int k = 0, step = half / h; k < h; k++)
+                    {
+                        _twRe[_stageOffset[s] + k] = _twRe[top + k * step];
+                        _twIm[_stageOffset[s] + k] = _twIm[top + k * step];
+                    }
             }
             Tables.TryAdd(size, (_bitReverse, _stageOffset, _twRe, _twIm));
         }
