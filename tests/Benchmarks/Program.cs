@@ -41,26 +41,24 @@ static void Fft(bool smoke)
     }
     // The Welch inner step: windowed, fused-permutation transform of an interleaved IQ segment.
     const int m = 4096;
-    var seg = new double[2 * m];
-    new Random(2).NextBytes(new byte[1]);
-    for (int i = 0; i < seg.Length; i++) seg[i] = Math.Sin(i * 0.37);
-    var win = Window.Create(WindowKind.Hann, m).Coefficients.ToArray();
-    double[] wr = new double[m], wi = new double[m];
-    var p4096 = new FftPlan(m);
+    var (seg, win, wr, wi, p4096) = Segment(m, WindowKind.Hann, 0.37);
     double tw = Time(smoke ? 50 : 5000, () => p4096.ForwardWindowed(seg, true, win, wr, wi));
     Console.WriteLine($"ForwardWindowed 4096 complex: {tw * 1e6:0.00} us ({tw / m * 2e9:0.00} ns per input sample at 50 % overlap)");
     double[] ps = new double[m], pm = new double[m], pr = new double[m];
     double tp = Time(smoke ? 50 : 5000, () => p4096.ForwardPowerScrambled(seg, true, win, wr, wi, ps, pm, pr, false));
     Console.WriteLine($"ForwardPowerScrambled 4096 complex (the Welch inner step with its sums): {tp * 1e6:0.00} us ({tp / m * 2e9:0.00} ns per input sample at 50 % overlap)");
     // The line-spectrum step: a pair of real 65 536-point segments in one windowed, scrambled transform.
-    const int big = 65536;
-    var pair = new double[2 * big];
-    for (int i = 0; i < pair.Length; i++) pair[i] = Math.Sin(i * 0.011);
-    var bh = Window.Create(WindowKind.BlackmanHarris, big).Coefficients.ToArray();
-    double[] br = new double[big], bi = new double[big];
-    var p65536 = new FftPlan(big);
+    var (pair, bh, br, bi, p65536) = Segment(65536, WindowKind.BlackmanHarris, 0.011);
     double tb = Time(smoke ? 5 : 400, () => p65536.ForwardWindowedScrambled(pair, true, bh, br, bi));
     Console.WriteLine($"ForwardWindowedScrambled 65536 complex (the line-spectrum step): {tb * 1e6:0.00} us");
+}
+
+// An interleaved segment of n complex points (a sine of step w radians), its window, output buffers and plan.
+static (double[] Segment, double[] Window, double[] Re, double[] Im, FftPlan Plan) Segment(int n, WindowKind kind, double w)
+{
+    var seg = new double[2 * n];
+    for (int i = 0; i < seg.Length; i++) seg[i] = Math.Sin(i * w);
+    return (seg, Window.Create(kind, n).Coefficients.ToArray(), new double[n], new double[n], new FftPlan(n));
 }
 
 static double Time(int reps, Action a)

@@ -164,9 +164,18 @@ public sealed class Window
     public double EnbwHz(double sampleRateHz) => EnbwBins * sampleRateHz / Size;
 
     /// <summary>Worst-case scalloping loss in dB: the response to a tone half a bin off centre (Harris 1978, Table 1).</summary>
-    public double ScallopingLossDb => _scallopingLossDb ??= ScallopingLoss();
+    public double ScallopingLossDb
+    {
+        get
+        {
+            // Windows are shared between threads: a double is written whole, so a reader sees NaN or the value.
+            double v = _scallopingLossDb;
+            if (double.IsNaN(v)) _scallopingLossDb = v = ScallopingLoss();
+            return v;
+        }
+    }
 
-    private double? _scallopingLossDb;
+    private double _scallopingLossDb = double.NaN;
 
     /// <summary>Half-width of the main lobe in bins (to its first null), for blanking a spectral line.</summary>
     public int MainLobeHalfWidthBins => Kind switch
