@@ -17,6 +17,9 @@ internal abstract class ByteSource : IDisposable
     /// <inheritdoc />
     public abstract void Dispose();
 
+    /// <summary>The sample data through a memory map (see <see cref="MappedExtent"/>), or null where it cannot be mapped: then only <see cref="Read"/>.</summary>
+    public virtual MappedExtent? Mapped => null;
+
     /// <summary>Opens a file for reading only, shared with other readers, for sequential access.</summary>
     public static FileStream OpenReadOnly(string path) =>
         new(path, new FileStreamOptions
@@ -39,6 +42,8 @@ internal sealed class FileExtentSource : ByteSource
     private readonly FileExtent[] _extents;
     private readonly long _length;
     private long _position;
+    private MappedExtent? _mapped;
+    private bool _mapTried;
 
     public FileExtentSource(string path, IReadOnlyList<FileExtent> extents)
     {
@@ -48,6 +53,20 @@ internal sealed class FileExtentSource : ByteSource
     }
 
     public override long Length => _length;
+
+    /// <summary>Mapped when the data is one range of the file (a raw file, a SigMF data file or archive member).</summary>
+    public override MappedExtent? Mapped
+    {
+        get
+        {
+            if (!_mapTried)
+            {
+                _mapTried = true;
+                if (_extents.Length == 1) _mapped = MappedExtent.TryOpen(_stream, _extents[0].Offset, _extents[0].Length);
+            }
+            return _mapped;
+        }
+    }
 
     public override void Seek(long offset) => _position = Math.Clamp(offset, 0, _length);
 
@@ -74,7 +93,11 @@ internal sealed class FileExtentSource : ByteSource
         return total;
     }
 
-    public override void Dispose() => _stream.Dispose();
+    public override void Dispose()
+    {
+        _mapped?.Dispose();
+        _stream.Dispose();
+    }
 }
 
 /// <summary>The data chunk of a WAV/RF64 file, read through NAudio's reader (whole blocks only).</summary>

@@ -6,7 +6,9 @@ namespace SignalInspect.Capture;
 /// <summary>
 /// Reads consecutive blocks of samples from one window of a capture with a bounded buffer.
 /// Complex samples are written interleaved (I, Q, I, Q ...), real samples one value each, in
-/// full-scale units. Memory use does not depend on the capture's length.
+/// full-scale units. Memory use does not depend on the capture's length. Where the samples are
+/// one range of a file, they are taken through a memory map (<see cref="MappedExtent"/>, a bounded
+/// window at a time) instead of being copied out of the page cache by reads.
 /// </summary>
 public sealed class CaptureReader : IDisposable
 {
@@ -17,7 +19,11 @@ public sealed class CaptureReader : IDisposable
     private readonly SampleDecoder _decoder;
     private readonly long _firstSample;
     private readonly byte[] _bytes;
-    private long _position;
+    private readonly MappedExtent? _mapped;
+    private long _position, _sourceAt;
+    // Read path of Float32View: the samples held, from _heldFirst.
+    private float[]? _held;
+    private long _heldFirst, _heldCount;
 
     internal CaptureReader(CaptureInfo info, ByteSource source, SampleDecoder decoder, long firstSample, long sampleCount)
     {
@@ -26,7 +32,8 @@ public sealed class CaptureReader : IDisposable
         _decoder = decoder;
         _firstSample = firstSample;
         SampleCount = sampleCount;
-        _bytes = ArrayPool<byte>.Shared.Rent(Math.Max(decoder.FrameBytes, BufferBytes / decoder.FrameBytes * decoder.FrameBytes));
+        _mapped = source.Mapped;
+        _bytes = _mapped is null ? ArrayPool<byte>.Shared.Rent(Math.Max(decoder.FrameBytes, BufferBytes / decoder.FrameBytes * decoder.FrameBytes)) : [];
         _source.Seek(firstSample * decoder.FrameBytes);
     }
 
@@ -55,6 +62,22 @@ public sealed class CaptureReader : IDisposable
         long left = SampleCount - _position;
         int wanted = (int)Math.Min(destination.Length / ValuesPerSample, left);
         int done = 0;
+        if (_mapped is { } map)
+        {
+            // Decoded straight from the page cache, a window at a time.
+            while (done < wanted)
+            {
+                int frames = Math.Min(wanted - done, Math.Max(1, map.Window / frameBytes));
+                ReadOnlySpan<byte> bytes = map.Get((_firstSample + _position + done) * frameBytes, frames * frameBytes);
+                int got = bytes.Length / frameBytes;
+                if (got == 0) break;
+                _decoder.Decode(bytes[..(got * frameBytes)], destination[(done * ValuesPerSample)..]);
+                done += got;
+            }
+            _position += done;
+            return done;
+        }
+        SyncSource();
         while (done < wanted)
         {
             int frames = Math.Min(wanted - done, _bytes.Length / frameBytes);
@@ -64,6 +87,7 @@ public sealed class CaptureReader : IDisposable
             done += got;
         }
         _position += done;
+        _sourceAt = _position;
         return done;
     }
 
@@ -85,10 +109,71 @@ public sealed class CaptureReader : IDisposable
         if (!DeliversFloat32) throw new InvalidOperationException("the capture does not store its samples as float32 as delivered");
         int frameBytes = _decoder.FrameBytes;
         int wanted = (int)Math.Min(destination.Length / ValuesPerSample, SampleCount - _position);
+        if (_mapped is not null)
+        {
+            ReadOnlySpan<float> view = Float32View(_position, wanted);
+            view.CopyTo(destination);
+            return view.Length / ValuesPerSample;
+        }
+        SyncSource();
         int got = ReadWholeFrames(MemoryMarshal.AsBytes(destination[..(wanted * ValuesPerSample)]), frameBytes);
         _position += got;
+        _sourceAt = _position;
         return got;
     }
+
+    /// <summary>
+    /// Samples <paramref name="sample"/> to <paramref name="sample"/> + <paramref name="samples"/> - 1 of
+    /// the window as stored, in single precision (only when <see cref="DeliversFloat32"/>), clipped
+    /// to the window's end, without a copy where the file can be mapped (see <see cref="Mapped"/>);
+    /// otherwise read into a buffer of the reader's, re-reading nothing that the previous view
+    /// already held. Valid until the next read or view; <see cref="Position"/> moves to its end.
+    /// </summary>
+    /// <exception cref="InvalidOperationException">The capture does not store float32 samples as delivered.</exception>
+    /// <exception cref="ArgumentOutOfRangeException">The sample is outside the window, or the count is negative.</exception>
+    public ReadOnlySpan<float> Float32View(long sample, int samples)
+    {
+        if (!DeliversFloat32) throw new InvalidOperationException("the capture does not store its samples as float32 as delivered");
+        ArgumentOutOfRangeException.ThrowIfNegative(sample);
+        ArgumentOutOfRangeException.ThrowIfGreaterThan(sample, SampleCount);
+        ArgumentOutOfRangeException.ThrowIfNegative(samples);
+        int frameBytes = _decoder.FrameBytes, vps = ValuesPerSample;
+        int count = (int)Math.Min(samples, SampleCount - sample);
+        _position = sample + count;
+        if (count == 0) return default;
+        if (_mapped is { } map)
+        {
+            ReadOnlySpan<byte> bytes = map.Get((_firstSample + sample) * frameBytes, count * frameBytes);
+            int frames = bytes.Length / frameBytes;
+            _position = sample + frames;
+            return MemoryMarshal.Cast<byte, float>(bytes)[..(frames * vps)];
+        }
+        // Read path: keep what the buffer already holds from the sample on, read the rest.
+        long end = sample + count;
+        if (sample < _heldFirst || end > _heldFirst + _heldCount)
+        {
+            int capacity = Math.Max(count, (MappedExtent.WindowBytesForTests.Value ?? BufferBytes) / frameBytes);
+            if (_held is null || _held.Length < capacity * vps) Array.Resize(ref _held, capacity * vps);
+            int keep = 0;
+            if (sample >= _heldFirst && sample < _heldFirst + _heldCount)
+            {
+                keep = (int)(_heldFirst + _heldCount - sample);
+                _held.AsSpan((int)(sample - _heldFirst) * vps, keep * vps).CopyTo(_held);
+            }
+            _source.Seek((_firstSample + sample + keep) * frameBytes);
+            int want = (int)Math.Min(_held.Length / vps - keep, SampleCount - sample - keep);
+            int got = ReadWholeFrames(MemoryMarshal.AsBytes(_held.AsSpan(keep * vps, want * vps)), frameBytes);
+            _heldFirst = sample;
+            _heldCount = keep + got;
+            _sourceAt = sample + keep + got;
+            count = (int)Math.Min(count, _heldCount);
+            _position = sample + count;
+        }
+        return _held.AsSpan((int)(sample - _heldFirst) * vps, count * vps);
+    }
+
+    /// <summary>Whether the reader sees the file through a memory map (no copies; see <see cref="MappedExtent"/>).</summary>
+    public bool Mapped => _mapped is not null;
 
     /// <summary>Moves to a sample within the window (0 is its first sample).</summary>
     /// <exception cref="ArgumentOutOfRangeException">The sample is outside the window.</exception>
@@ -97,7 +182,14 @@ public sealed class CaptureReader : IDisposable
         ArgumentOutOfRangeException.ThrowIfNegative(sample);
         ArgumentOutOfRangeException.ThrowIfGreaterThan(sample, SampleCount);
         _position = sample;
-        _source.Seek((_firstSample + sample) * _decoder.FrameBytes);
+    }
+
+    /// <summary>Puts the byte source where the reads go on (a view may have moved it elsewhere).</summary>
+    private void SyncSource()
+    {
+        if (_sourceAt == _position) return;
+        _source.Seek((_firstSample + _position) * _decoder.FrameBytes);
+        _sourceAt = _position;
     }
 
     private int ReadWholeFrames(Span<byte> buffer, int frameBytes)
@@ -116,6 +208,6 @@ public sealed class CaptureReader : IDisposable
     public void Dispose()
     {
         _source.Dispose();
-        ArrayPool<byte>.Shared.Return(_bytes);
+        if (_mapped is null) ArrayPool<byte>.Shared.Return(_bytes);
     }
 }

@@ -218,7 +218,6 @@ internal static class DemodulationPass
     private sealed class Worker
     {
         private readonly Setup _s;
-        private float[]? _inputF;
         private bool _pendingTransition;
         private readonly double[] _input, _re, _im, _a, _x, _y, _dphi, _dev, _df, _pv, _ph, _ubuf, _ringA, _ringF, _ringT, _pending;
         private readonly LineSpectrum.Workspace _ws;
@@ -426,11 +425,12 @@ internal static class DemodulationPass
             int skip = (int)Math.Clamp(ownIn - inPos, 0, int.MaxValue);
             if (reader.DeliversFloat32)
             {
-                float[] f = _inputF ??= new float[_input.Length];
-                if ((got = reader.Read(f)) <= 0) return -1;
-                if (skip < got) k.NearFullScale += CountFullScale(f.AsSpan(skip * vps, (got - skip) * vps));
+                // As stored, a view of the file (no copy where it is mapped).
+                ReadOnlySpan<float> f = reader.Float32View(reader.Position, InputBlock);
+                if ((got = f.Length / vps) <= 0) return -1;
+                if (skip < got) k.NearFullScale += CountFullScale(f[(skip * vps)..]);
                 inPos += got;
-                return dec.Process(f.AsSpan(0, got * vps), _re.AsSpan(1), _im.AsSpan(1));
+                return dec.Process(f, _re.AsSpan(1), _im.AsSpan(1));
             }
             if ((got = reader.Read(_input)) <= 0) return -1;
             if (skip < got) k.NearFullScale += CountFullScale(_input.AsSpan(skip * vps, (got - skip) * vps));

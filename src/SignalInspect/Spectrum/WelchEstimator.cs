@@ -208,7 +208,6 @@ public static class WelchEstimator
         private readonly bool _scrambled;
         private readonly double[] _re, _im, _w, _row;
         private double[]? _staging;
-        private float[]? _stagingF;
         private double[] _rowSum;   // the row's periodogram sum, handed to the total when the row ends
 
         public Worker(Layout layout)
@@ -233,13 +232,37 @@ public static class WelchEstimator
         /// <summary>The segments of spectrogram row r: its row, its share of the max-hold, its sum into the total.</summary>
         public void RunRow(CaptureReader reader, int r, double[]? gram, InOrder<double[]> total, Action<long>? report, CancellationToken cancel)
         {
-            // float32 captures are read as stored and widened as the scrambled transform loads them (the same values).
-            if (reader.DeliversFloat32 && _scrambled) RunRow(reader, _stagingF ??= new float[StagingValues], r, gram, total, report, cancel);
+            // float32 captures are taken as stored, each segment a view of the file (no copy where it
+            // is mapped), and widened as the scrambled transform loads them (the same values).
+            if (reader.DeliversFloat32 && _scrambled) RunRowViews(reader, r, gram, total, report, cancel);
             else RunRow(reader, _staging ??= new double[StagingValues], r, gram, total, report, cancel);
         }
 
-        private void RunRow<T>(CaptureReader reader, T[] staging, int r, double[]? gram, InOrder<double[]> total, Action<long>? report, CancellationToken cancel)
-            where T : unmanaged
+        private void RunRowViews(CaptureReader reader, int r, double[]? gram, InOrder<double[]> total, Action<long>? report, CancellationToken cancel)
+        {
+            int n = _l.N, step = _l.Step, vps = reader.ValuesPerSample;
+            long seg0 = r * _l.PerRow, seg1 = Math.Min(_l.Segments, (r + 1) * _l.PerRow);
+            long segment = seg0;
+            Array.Clear(_row);
+            for (; segment < seg1; segment++)
+            {
+                cancel.ThrowIfCancellationRequested();
+                ReadOnlySpan<float> x = reader.Float32View(segment * step, n);
+                if (x.Length < n * vps) break;
+                report?.Invoke(segment == seg0 ? n : step);
+                Periodogram(x, vps == 2);
+            }
+            EndRow(r, segment - seg0, gram, total);
+        }
+
+        private void EndRow(int r, long segments, double[]? gram, InOrder<double[]> total)
+        {
+            if (gram is not null) _l.WriteRow(gram, r, _scrambled && !_l.RowMax ? _rowSum : _row, segments, !_l.RowMax);
+            total.Complete(r, _rowSum);
+            _rowSum = total.Rent();
+        }
+
+        private void RunRow(CaptureReader reader, double[] staging, int r, double[]? gram, InOrder<double[]> total, Action<long>? report, CancellationToken cancel)
         {
             int n = _l.N, step = _l.Step, vps = reader.ValuesPerSample;
             long seg0 = r * _l.PerRow, seg1 = Math.Min(_l.Segments, (r + 1) * _l.PerRow);
@@ -258,22 +281,18 @@ public static class WelchEstimator
                     filled = keep;
                     pos = 0;
                     int want = (int)Math.Min(staging.Length / vps - filled, left);
-                    Span<T> into = staging.AsSpan(filled * vps, want * vps);
-                    int got = want <= 0 ? 0
-                        : typeof(T) == typeof(float) ? reader.Read(MemoryMarshal.Cast<T, float>(into)) : reader.Read(MemoryMarshal.Cast<T, double>(into));
+                    int got = want <= 0 ? 0 : reader.Read(staging.AsSpan(filled * vps, want * vps));
                     if (got == 0) break;
                     filled += got;
                     left -= got;
                     report?.Invoke(got);
                     continue;
                 }
-                Periodogram<T>(staging.AsSpan(pos * vps, n * vps), vps == 2);
+                Periodogram<double>(staging.AsSpan(pos * vps, n * vps), vps == 2);
                 segment++;
                 pos += step;
             }
-            if (gram is not null) _l.WriteRow(gram, r, _scrambled && !_l.RowMax ? _rowSum : _row, segment - seg0, !_l.RowMax);
-            total.Complete(r, _rowSum);
-            _rowSum = total.Rent();
+            EndRow(r, segment - seg0, gram, total);
         }
 
         private void Periodogram<T>(ReadOnlySpan<T> samples, bool complex) where T : unmanaged

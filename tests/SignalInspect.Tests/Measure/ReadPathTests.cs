@@ -11,7 +11,8 @@ namespace SignalInspect.Tests.Measure;
 /// float32 captures are read as stored and widened inside the transforms and the channel filter;
 /// other formats are decoded to double first. A property of the implementation, not of the
 /// measurement: the same samples stored as cf32 and as cf64 (each float widened, which is exact)
-/// must give the same results bit for bit, whichever path read them.
+/// must give the same results bit for bit, whichever path read them, and whether the file was
+/// taken through a memory map or read with copies.
 /// </summary>
 public class ReadPathTests
 {
@@ -44,5 +45,17 @@ public class ReadPathTests
         AnalysisResult a = Run(f32, "cf32_le"), b = Run(f64, "cf64_le");
         Assert.Equal(kind == SignalKind.Fm ? ModulationKind.Fm : ModulationKind.Am, a.Classification.Kind);
         Assert.Equal(Measurements(b), Measurements(a));
+        // Read with copies instead of through the memory map, and mapped in windows that the
+        // passes' blocks and segments cross: the same results, and the same file hash.
+        AnalysisResult With(bool map, int? window)
+        {
+            MappedExtent.EnabledForTests.Value = map;
+            MappedExtent.WindowBytesForTests.Value = window;
+            try { return Run(f32, "cf32_le"); }
+            finally { MappedExtent.EnabledForTests.Value = null; MappedExtent.WindowBytesForTests.Value = null; }
+        }
+        static string Json(AnalysisResult r) => System.Text.Encoding.UTF8.GetString(AnalysisJson.ToBytes(r));
+        Assert.Equal(Json(a), Json(With(false, null)));
+        Assert.Equal(Json(a), Json(With(true, (1 << 20) + 12)));
     }
 }
