@@ -106,15 +106,40 @@ internal sealed class WaveDataSource : ByteSource
     private readonly Stream _stream;
     private readonly WaveFileReader _reader;
     private readonly long _length;
+    private readonly FileStream? _file;
+    private readonly long _dataStart;
+    private MappedExtent? _mapped;
+    private bool _mapTried;
 
-    public WaveDataSource(Stream stream, WaveFileReader reader, long length)
+    /// <param name="stream">What NAudio reads.</param>
+    /// <param name="reader">NAudio's reader over it.</param>
+    /// <param name="length">Data bytes to deliver.</param>
+    /// <param name="file">The file under <paramref name="stream"/>, for mapping the data chunk; null: reads only.</param>
+    /// <param name="dataStart">The data chunk's first byte in <paramref name="file"/>.</param>
+    public WaveDataSource(Stream stream, WaveFileReader reader, long length, FileStream? file = null, long dataStart = 0)
     {
         _stream = stream;
         _reader = reader;
         _length = length;
+        _file = file;
+        _dataStart = dataStart;
     }
 
     public override long Length => _length;
+
+    /// <summary>The data chunk mapped (when it lies wholly within the file; a chunk cut short is read).</summary>
+    public override MappedExtent? Mapped
+    {
+        get
+        {
+            if (!_mapTried)
+            {
+                _mapTried = true;
+                if (_file is not null) _mapped = MappedExtent.TryOpen(_file, _dataStart, _length);
+            }
+            return _mapped;
+        }
+    }
 
     public override void Seek(long offset)
     {
@@ -141,6 +166,7 @@ internal sealed class WaveDataSource : ByteSource
 
     public override void Dispose()
     {
+        _mapped?.Dispose();
         _reader.Dispose();
         _stream.Dispose();
     }

@@ -87,11 +87,13 @@ internal static class WavReader
 
     private static ByteSource OpenData(string path, string magic, long length)
     {
-        Stream stream = OpenWaveStream(path, magic);
+        FileStream file = ByteSource.OpenReadOnly(path);
+        Stream stream = magic == "BW64" ? new MagicPatchStream(file, "RF64"u8.ToArray()) : file;
         try
         {
             var reader = new WaveFileReader(stream);
-            return new WaveDataSource(stream, reader, length);
+            // The reader leaves the stream at the data chunk's first byte.
+            return new WaveDataSource(stream, reader, length, file, stream.Position);
         }
         catch
         {

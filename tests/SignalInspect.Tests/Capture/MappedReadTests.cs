@@ -99,6 +99,31 @@ public class MappedReadTests
     }
 
     [Theory]
+    [InlineData("sox-stereo-f32.wav", true)]    // float32 I/Q: viewed in place
+    [InlineData("sox-stereo-f32.wav", false)]
+    [InlineData("sox-mono-s24.wav", true)]      // WAVE_FORMAT_EXTENSIBLE, 24-bit: decoded from the map
+    [InlineData("sox-stereo-s16.wav", true)]
+    [InlineData("py-rf64-s16.wav", true)]       // RF64 (Python-written), its data chunk after a ds64 chunk
+    [InlineData("py-bw64-s16.wav", true)]
+    public void A_WAV_data_chunk_is_mapped_at_its_place_in_the_file(string file, bool map)
+    {
+        // WavReaderTests compares the default (mapped) path with sox's own decoding; here the
+        // mapped data chunk must deliver what NAudio's reads deliver, so it starts where NAudio's does.
+        string path = TestData.Path("wav", file);
+        double[] copied = With(false, 5000, () => TestData.ReadAll(CaptureSource.Open(path)));
+        (double[] values, bool mapped, float[] view) = With(map, 5000, () =>
+        {
+            CaptureSource src = CaptureSource.Open(path);
+            using CaptureReader reader = src.OpenReader();
+            float[] v = reader.DeliversFloat32 ? reader.Float32View(0, (int)reader.SampleCount).ToArray() : [];
+            return (TestData.ReadAll(src), reader.Mapped, v);
+        });
+        Assert.Equal(map, mapped);
+        Assert.Equal(copied, values);
+        if (view.Length > 0) Assert.Equal(values, view.Select(x => (double)x).ToArray());
+    }
+
+    [Theory]
     [InlineData(true)]
     [InlineData(false)]
     public void File_hash_gives_the_FIPS_180_2_digests(bool map)
