@@ -95,6 +95,7 @@ public class InfoCommandTests
         Assert.Contains("info", stdout);
         Assert.Contains("synth", stdout);
         Assert.Contains("Exit codes", stdout);
+        Assert.Contains("SIGNALINSPECT_NO_MAP=1", stdout);
         (code, stdout, _) = CliRunner.Run("info", "--help");
         Assert.Equal(0, code);
         Assert.Contains("--sample-rate", stdout);
