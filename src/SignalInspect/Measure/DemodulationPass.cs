@@ -138,7 +138,8 @@ internal static class DemodulationPass
         var workers = new Worker[threads];
         var merged = NewLines(s);
         // Line spectra are combined strictly in chunk order (sums of doubles depend on order).
-        var lineSets = new InOrder<LineSet>(() => NewLines(s), ready => { merged.Env.Take(ready.Env); merged.Tone.Take(ready.Tone); merged.Trans.Take(ready.Trans); });
+        int setsMade = 0;
+        var lineSets = new InOrder<LineSet>(() => { Interlocked.Increment(ref setsMade); return NewLines(s); }, ready => { merged.Env.Take(ready.Env); merged.Tone.Take(ready.Tone); merged.Trans.Take(ready.Trans); });
         int nextChunk = -1;
         double[] waveA = [], waveF = [];
         Parallel.For(0, threads, new ParallelOptions { MaxDegreeOfParallelism = threads, CancellationToken = cancel }, w =>
@@ -175,7 +176,7 @@ internal static class DemodulationPass
             r.Freq.Add(workers[w].Freq);
             if (r.Phase is not null) r.Phase.Add(workers[w].Phase!);
         }
-        Profile.Note($"line spectra: {workers.Sum(w => w.LineTicks) * 1e3 / Stopwatch.Frequency:0.0} ms over {threads} threads, {merged.Env.Segments} segments of {s.DemodFft}, {chunks} chunks");
+        Profile.Note($"line spectra: {workers.Sum(w => w.LineTicks) * 1e3 / Stopwatch.Frequency:0.0} ms over {threads} threads, {merged.Env.Segments} segments of {s.DemodFft}, {chunks} chunks, {setsMade} partial sets");
         // Chunk sums in order, each chunk's phase moved to the capture's unwrapped phase.
         double sw = 0, swt = 0, swtt = 0, swp = 0, swtp = 0, swpp = 0, sa = 0, sd = 0, sdd = 0, off = 0;
         long used = 0;
