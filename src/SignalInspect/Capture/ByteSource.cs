@@ -17,8 +17,28 @@ internal abstract class ByteSource : IDisposable
     /// <inheritdoc />
     public abstract void Dispose();
 
-    /// <summary>The sample data through a memory map (see <see cref="MappedExtent"/>), or null where it cannot be mapped: then only <see cref="Read"/>.</summary>
-    public virtual MappedExtent? Mapped => null;
+    private MappedExtent? _mapped;
+    private bool _mapTried;
+
+    /// <summary>The sample data through a memory map (see <see cref="MappedExtent"/>), made on first use, or null where it cannot be mapped: then only <see cref="Read"/>.</summary>
+    public MappedExtent? Mapped
+    {
+        get
+        {
+            if (!_mapTried)
+            {
+                _mapTried = true;
+                _mapped = TryMap();
+            }
+            return _mapped;
+        }
+    }
+
+    /// <summary>Maps the sample data if this source can (<see cref="MappedExtent.TryOpen"/>); null otherwise.</summary>
+    protected virtual MappedExtent? TryMap() => null;
+
+    /// <summary>Releases the map, if one was made; each source's <see cref="Dispose"/> calls it before closing its file.</summary>
+    protected void DisposeMap() => _mapped?.Dispose();
 
     /// <summary>Opens a file for reading only, shared with other readers, for sequential access.</summary>
     public static FileStream OpenReadOnly(string path) =>
@@ -42,8 +62,6 @@ internal sealed class FileExtentSource : ByteSource
     private readonly FileExtent[] _extents;
     private readonly long _length;
     private long _position;
-    private MappedExtent? _mapped;
-    private bool _mapTried;
 
     public FileExtentSource(string path, IReadOnlyList<FileExtent> extents)
     {
@@ -55,18 +73,8 @@ internal sealed class FileExtentSource : ByteSource
     public override long Length => _length;
 
     /// <summary>Mapped when the data is one range of the file (a raw file, a SigMF data file or archive member).</summary>
-    public override MappedExtent? Mapped
-    {
-        get
-        {
-            if (!_mapTried)
-            {
-                _mapTried = true;
-                if (_extents.Length == 1) _mapped = MappedExtent.TryOpen(_stream, _extents[0].Offset, _extents[0].Length);
-            }
-            return _mapped;
-        }
-    }
+    protected override MappedExtent? TryMap() =>
+        _extents.Length == 1 ? MappedExtent.TryOpen(_stream, _extents[0].Offset, _extents[0].Length) : null;
 
     public override void Seek(long offset) => _position = Math.Clamp(offset, 0, _length);
 
@@ -95,7 +103,7 @@ internal sealed class FileExtentSource : ByteSource
 
     public override void Dispose()
     {
-        _mapped?.Dispose();
+        DisposeMap();
         _stream.Dispose();
     }
 }
@@ -108,8 +116,6 @@ internal sealed class WaveDataSource : ByteSource
     private readonly long _length;
     private readonly FileStream? _file;
     private readonly long _dataStart;
-    private MappedExtent? _mapped;
-    private bool _mapTried;
 
     /// <param name="stream">What NAudio reads.</param>
     /// <param name="reader">NAudio's reader over it.</param>
@@ -128,18 +134,7 @@ internal sealed class WaveDataSource : ByteSource
     public override long Length => _length;
 
     /// <summary>The data chunk mapped (when it lies wholly within the file; a chunk cut short is read).</summary>
-    public override MappedExtent? Mapped
-    {
-        get
-        {
-            if (!_mapTried)
-            {
-                _mapTried = true;
-                if (_file is not null) _mapped = MappedExtent.TryOpen(_file, _dataStart, _length);
-            }
-            return _mapped;
-        }
-    }
+    protected override MappedExtent? TryMap() => _file is null ? null : MappedExtent.TryOpen(_file, _dataStart, _length);
 
     public override void Seek(long offset)
     {
@@ -166,7 +161,7 @@ internal sealed class WaveDataSource : ByteSource
 
     public override void Dispose()
     {
-        _mapped?.Dispose();
+        DisposeMap();
         _reader.Dispose();
         _stream.Dispose();
     }
