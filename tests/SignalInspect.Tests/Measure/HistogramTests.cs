@@ -66,4 +66,40 @@ public class HistogramTests
         }
         Assert.True(double.IsNaN(empty.Percentile(0.5)));
     }
+
+    [Fact]
+    public void Counts_moved_out_of_the_32_bit_counters_stay_exact()
+    {
+        // The counters are 32-bit and move into 64-bit totals before they could overflow; with the
+        // limit lowered to a few values that happens many times here. Checked against histograms
+        // that never move (the default limit holds 4e9 values) and against plain counting by the
+        // definition, bin = floor((v - lo) / width) clamped, NaN ignored.
+        var rng = new Random(7);
+        double[] v = [.. Enumerable.Range(0, 20_011).Select(i => i % 53 == 0 ? double.NaN : i % 7 == 0 ? 0.25 : rng.NextDouble() * 2.2 - 1.1)];
+        foreach (int limit in new[] { 37, 1000 })
+        {
+            var moved = new Histogram(-1, 1, 512) { HoldLimit = limit };
+            var other = new Histogram(-1, 1, 512) { HoldLimit = limit };
+            var plain = new Histogram(-1, 1, 512);
+            for (int at = 0; at < 12_000; at += 100) moved.Add(v.AsSpan(at, 100));
+            foreach (double x in v.AsSpan(12_000, 3_000)) moved.Add(x);
+            other.Add(v.AsSpan(15_000));
+            moved.Add(other);
+            plain.Add(v);
+            var byDefinition = new long[512];
+            foreach (double x in v.Where(x => !double.IsNaN(x))) byDefinition[(int)Math.Clamp(Math.Floor((x + 1) / (2.0 / 512)), 0, 511)]++;
+            Assert.Equal(v.Count(x => !double.IsNaN(x)), moved.Count);
+            for (int b = 0; b < 512; b++)
+            {
+                Assert.Equal(byDefinition[b], moved[b]);
+                Assert.Equal(byDefinition[b], plain[b]);
+            }
+            foreach (double p in new[] { 0.0, 0.01, 0.5, 0.93, 1.0 }) Assert.Equal(plain.Percentile(p), moved.Percentile(p));
+            Assert.Equal(plain.FractionBetween(0.2, 0.3), moved.FractionBetween(0.2, 0.3));
+            // A histogram that never moved, merged with one that did.
+            var fresh = new Histogram(-1, 1, 512);
+            fresh.Add(moved);
+            for (int b = 0; b < 512; b++) Assert.Equal(byDefinition[b], fresh[b]);
+        }
+    }
 }
