@@ -186,6 +186,8 @@ public class FftPlanTests
 
     /// <summary>MathNet.Numerics' FFT (the reference library) where a direct DFT would be slow.</summary>
     [Theory]
+    [InlineData(16)]
+    [InlineData(32)]
     [InlineData(64)]
     [InlineData(4096)]
     [InlineData(65536)]
@@ -193,7 +195,7 @@ public class FftPlanTests
     {
         // Where the CPU has no AVX-512 both plans are narrow and this compares a path with itself.
         var rng = new Random(n);
-        double[] x = [.. Enumerable.Range(0, 2 * n).Select(_ => rng.NextDouble() - 0.5)];
+        double[] x = [.. Enumerable.Range(0, 3 * n).Select(_ => rng.NextDouble() - 0.5)];
         double[] w = [.. Enumerable.Range(0, n).Select(i => 0.5 - 0.5 * Math.Cos(2 * Math.PI * i / n))];
         (double[], double[]) Run(bool narrow)
         {
@@ -211,6 +213,26 @@ public class FftPlanTests
         var (nr, ni) = Run(true);
         Assert.Equal(nr, wr);
         Assert.Equal(ni, wi);
+        // The Welch inner step from single-precision samples (a cf32 capture as stored): its own
+        // loads and widening in the first pass, then the power sums.
+        float[] xf = [.. x.Select(v => (float)v)];
+        (double[], double[]) Powers(bool narrow)
+        {
+            Simd.NarrowForTests = narrow;
+            try
+            {
+                var plan = new FftPlan(n);
+                double[] re = new double[n], im = new double[n], sum = new double[n], max = new double[n];
+                plan.ForwardPowerScrambled(xf, complex: true, w, re, im, sum, max, default, rowMax: false);
+                plan.ForwardPowerScrambled(xf.AsSpan(n), complex: true, w, re, im, sum, max, default, rowMax: false);
+                return (sum, max);
+            }
+            finally { Simd.NarrowForTests = false; }
+        }
+        var (ws, wm) = Powers(false);
+        var (ns, nm) = Powers(true);
+        Assert.Equal(ns, ws);
+        Assert.Equal(nm, wm);
     }
 
     private static Complex[] Reference(double[] re, double[] im)
