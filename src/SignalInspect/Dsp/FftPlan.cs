@@ -458,18 +458,18 @@ public sealed class FftPlan
     /// then the stage of half-size q with twiddles b (W_2q^k). y0..y3 are the values for a0..a3's places.
     /// </summary>
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
-    private static void Butterfly22(Vector256<double> a0r, Vector256<double> a0i, Vector256<double> a1r, Vector256<double> a1i,
-                                    Vector256<double> a2r, Vector256<double> a2i, Vector256<double> a3r, Vector256<double> a3i,
-                                    Vector256<double> ar, Vector256<double> ai, Vector256<double> br, Vector256<double> bi,
-                                    out Vector256<double> y0r, out Vector256<double> y0i, out Vector256<double> y1r, out Vector256<double> y1i,
-                                    out Vector256<double> y2r, out Vector256<double> y2i, out Vector256<double> y3r, out Vector256<double> y3i)
+    private static void Butterfly22<T>(Vector256<T> a0r, Vector256<T> a0i, Vector256<T> a1r, Vector256<T> a1i,
+                                       Vector256<T> a2r, Vector256<T> a2i, Vector256<T> a3r, Vector256<T> a3i,
+                                       Vector256<T> ar, Vector256<T> ai, Vector256<T> br, Vector256<T> bi,
+                                       out Vector256<T> y0r, out Vector256<T> y0i, out Vector256<T> y1r, out Vector256<T> y1i,
+                                       out Vector256<T> y2r, out Vector256<T> y2i, out Vector256<T> y3r, out Vector256<T> y3i)
     {
-        Vector256<double> b0r = a0r + a2r, b0i = a0i + a2i, b1r = a1r + a3r, b1i = a1i + a3i;
-        Vector256<double> dr = a0r - a2r, di = a0i - a2i;
-        Vector256<double> er = a1i - a3i, ei = a3r - a1r;   // (a1 - a3)(-i)
-        Vector256<double> b2r = dr * ar - di * ai, b2i = dr * ai + di * ar;
-        Vector256<double> b3r = er * ar - ei * ai, b3i = er * ai + ei * ar;
-        Vector256<double> fr = b0r - b1r, fi = b0i - b1i, gr = b2r - b3r, gi = b2i - b3i;
+        Vector256<T> b0r = a0r + a2r, b0i = a0i + a2i, b1r = a1r + a3r, b1i = a1i + a3i;
+        Vector256<T> dr = a0r - a2r, di = a0i - a2i;
+        Vector256<T> er = a1i - a3i, ei = a3r - a1r;   // (a1 - a3)(-i)
+        Vector256<T> b2r = dr * ar - di * ai, b2i = dr * ai + di * ar;
+        Vector256<T> b3r = er * ar - ei * ai, b3i = er * ai + ei * ar;
+        Vector256<T> fr = b0r - b1r, fi = b0i - b1i, gr = b2r - b3r, gi = b2i - b3i;
         y0r = b0r + b1r; y0i = b0i + b1i;
         y1r = fr * br - fi * bi; y1i = fr * bi + fi * br;
         y2r = b2r + b3r; y2i = b2i + b3i;
@@ -515,7 +515,7 @@ public sealed class FftPlan
     {
         if (_wide && h >= 16)
         {
-            Radix22PassWide(ref reRef, ref imRef, start, len, h);
+            Radix22PassWide(ref reRef, ref imRef, start, len, h, _twRe, _twIm);
             return;
         }
         int vw = Vector<double>.Count, q = h / 2;
@@ -550,39 +550,82 @@ public sealed class FftPlan
     }
     /// <summary>
     /// <see cref="Radix22Pass"/> on 512-bit vectors (q of 8 or more): the same operations, eight lanes
-    /// at a time, so the same results bit for bit (tested). A copy per vector width: keep the two alike.
+    /// at a time, so the same results bit for bit (tested). Also the single-precision passes (T float,
+    /// sixteen lanes, twiddles <paramref name="twRe"/>, <paramref name="twIm"/> rounded to float).
     /// </summary>
-    private void Radix22PassWide(ref double reRef, ref double imRef, int start, int len, int h)
+    private void Radix22PassWide<T>(ref T reRef, ref T imRef, int start, int len, int h, T[] twRe, T[] twIm)
     {
-        int vw = Vector512<double>.Count, q = h / 2;
-        ref double wAr = ref _twRe[_stageOffset[BitOperations.Log2((uint)h) + 1]];
-        ref double wAi = ref _twIm[_stageOffset[BitOperations.Log2((uint)h) + 1]];
-        ref double wBr = ref _twRe[_stageOffset[BitOperations.Log2((uint)q) + 1]];
-        ref double wBi = ref _twIm[_stageOffset[BitOperations.Log2((uint)q) + 1]];
+        int vw = Vector512<T>.Count, q = h / 2;
+        ref T wAr = ref twRe[_stageOffset[BitOperations.Log2((uint)h) + 1]];
+        ref T wAi = ref twIm[_stageOffset[BitOperations.Log2((uint)h) + 1]];
+        ref T wBr = ref twRe[_stageOffset[BitOperations.Log2((uint)q) + 1]];
+        ref T wBi = ref twIm[_stageOffset[BitOperations.Log2((uint)q) + 1]];
         for (int g = start; g < start + len; g += 4 * q)
         {
             for (int k = 0; k < q; k += vw)
             {
                 int i0 = g + k, i1 = i0 + q, i2 = i1 + q, i3 = i2 + q;
-                Vector512<double> a0r = Vector512.LoadUnsafe(ref reRef, (nuint)i0), a0i = Vector512.LoadUnsafe(ref imRef, (nuint)i0);
-                Vector512<double> a1r = Vector512.LoadUnsafe(ref reRef, (nuint)i1), a1i = Vector512.LoadUnsafe(ref imRef, (nuint)i1);
-                Vector512<double> a2r = Vector512.LoadUnsafe(ref reRef, (nuint)i2), a2i = Vector512.LoadUnsafe(ref imRef, (nuint)i2);
-                Vector512<double> a3r = Vector512.LoadUnsafe(ref reRef, (nuint)i3), a3i = Vector512.LoadUnsafe(ref imRef, (nuint)i3);
-                Vector512<double> ar = Vector512.LoadUnsafe(ref wAr, (nuint)k), ai = Vector512.LoadUnsafe(ref wAi, (nuint)k);
-                Vector512<double> b0r = a0r + a2r, b0i = a0i + a2i, b1r = a1r + a3r, b1i = a1i + a3i;
-                Vector512<double> dr = a0r - a2r, di = a0i - a2i;
-                // (a1 - a3)(-i) = (a1i - a3i) - i (a1r - a3r)
-                Vector512<double> er = a1i - a3i, ei = a3r - a1r;
-                Vector512<double> b2r = dr * ar - di * ai, b2i = dr * ai + di * ar;
-                Vector512<double> b3r = er * ar - ei * ai, b3i = er * ai + ei * ar;
-                Vector512<double> br = Vector512.LoadUnsafe(ref wBr, (nuint)k), bi = Vector512.LoadUnsafe(ref wBi, (nuint)k);
-                Vector512<double> fr = b0r - b1r, fi = b0i - b1i, gr = b2r - b3r, gi = b2i - b3i;
-                (b0r + b1r).StoreUnsafe(ref reRef, (nuint)i0); (b0i + b1i).StoreUnsafe(ref imRef, (nuint)i0);
-                (fr * br - fi * bi).StoreUnsafe(ref reRef, (nuint)i1); (fr * bi + fi * br).StoreUnsafe(ref imRef, (nuint)i1);
-                (b2r + b3r).StoreUnsafe(ref reRef, (nuint)i2); (b2i + b3i).StoreUnsafe(ref imRef, (nuint)i2);
-                (gr * br - gi * bi).StoreUnsafe(ref reRef, (nuint)i3); (gr * bi + gi * br).StoreUnsafe(ref imRef, (nuint)i3);
+                Butterfly22Wide(Vector512.LoadUnsafe(ref reRef, (nuint)i0), Vector512.LoadUnsafe(ref imRef, (nuint)i0),
+                                Vector512.LoadUnsafe(ref reRef, (nuint)i1), Vector512.LoadUnsafe(ref imRef, (nuint)i1),
+                                Vector512.LoadUnsafe(ref reRef, (nuint)i2), Vector512.LoadUnsafe(ref imRef, (nuint)i2),
+                                Vector512.LoadUnsafe(ref reRef, (nuint)i3), Vector512.LoadUnsafe(ref imRef, (nuint)i3),
+                                Vector512.LoadUnsafe(ref wAr, (nuint)k), Vector512.LoadUnsafe(ref wAi, (nuint)k),
+                                Vector512.LoadUnsafe(ref wBr, (nuint)k), Vector512.LoadUnsafe(ref wBi, (nuint)k),
+                                out var y0r, out var y0i, out var y1r, out var y1i, out var y2r, out var y2i, out var y3r, out var y3i);
+                y0r.StoreUnsafe(ref reRef, (nuint)i0); y0i.StoreUnsafe(ref imRef, (nuint)i0);
+                y1r.StoreUnsafe(ref reRef, (nuint)i1); y1i.StoreUnsafe(ref imRef, (nuint)i1);
+                y2r.StoreUnsafe(ref reRef, (nuint)i2); y2i.StoreUnsafe(ref imRef, (nuint)i2);
+                y3r.StoreUnsafe(ref reRef, (nuint)i3); y3i.StoreUnsafe(ref imRef, (nuint)i3);
             }
         }
+    }
+
+    /// <summary>The single-precision radix-2^2 pass on 256-bit vectors (no AVX-512): the operations of <see cref="Radix22PassWide{T}"/>, eight lanes at a time.</summary>
+    private void Radix22Pass256(ref float reRef, ref float imRef, int start, int len, int h, float[] twRe, float[] twIm)
+    {
+        int q = h / 2;
+        ref float wAr = ref twRe[_stageOffset[BitOperations.Log2((uint)h) + 1]];
+        ref float wAi = ref twIm[_stageOffset[BitOperations.Log2((uint)h) + 1]];
+        ref float wBr = ref twRe[_stageOffset[BitOperations.Log2((uint)q) + 1]];
+        ref float wBi = ref twIm[_stageOffset[BitOperations.Log2((uint)q) + 1]];
+        for (int g = start; g < start + len; g += 4 * q)
+        {
+            for (int k = 0; k < q; k += 8)
+            {
+                int i0 = g + k, i1 = i0 + q, i2 = i1 + q, i3 = i2 + q;
+                Butterfly22(Vector256.LoadUnsafe(ref reRef, (nuint)i0), Vector256.LoadUnsafe(ref imRef, (nuint)i0),
+                            Vector256.LoadUnsafe(ref reRef, (nuint)i1), Vector256.LoadUnsafe(ref imRef, (nuint)i1),
+                            Vector256.LoadUnsafe(ref reRef, (nuint)i2), Vector256.LoadUnsafe(ref imRef, (nuint)i2),
+                            Vector256.LoadUnsafe(ref reRef, (nuint)i3), Vector256.LoadUnsafe(ref imRef, (nuint)i3),
+                            Vector256.LoadUnsafe(ref wAr, (nuint)k), Vector256.LoadUnsafe(ref wAi, (nuint)k),
+                            Vector256.LoadUnsafe(ref wBr, (nuint)k), Vector256.LoadUnsafe(ref wBi, (nuint)k),
+                            out var y0r, out var y0i, out var y1r, out var y1i, out var y2r, out var y2i, out var y3r, out var y3i);
+                y0r.StoreUnsafe(ref reRef, (nuint)i0); y0i.StoreUnsafe(ref imRef, (nuint)i0);
+                y1r.StoreUnsafe(ref reRef, (nuint)i1); y1i.StoreUnsafe(ref imRef, (nuint)i1);
+                y2r.StoreUnsafe(ref reRef, (nuint)i2); y2i.StoreUnsafe(ref imRef, (nuint)i2);
+                y3r.StoreUnsafe(ref reRef, (nuint)i3); y3i.StoreUnsafe(ref imRef, (nuint)i3);
+            }
+        }
+    }
+
+    /// <summary><see cref="Butterfly22{T}"/> on 512-bit vectors: the same operations. A copy per vector width: keep the two alike.</summary>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    private static void Butterfly22Wide<T>(Vector512<T> a0r, Vector512<T> a0i, Vector512<T> a1r, Vector512<T> a1i,
+                                           Vector512<T> a2r, Vector512<T> a2i, Vector512<T> a3r, Vector512<T> a3i,
+                                           Vector512<T> ar, Vector512<T> ai, Vector512<T> br, Vector512<T> bi,
+                                           out Vector512<T> y0r, out Vector512<T> y0i, out Vector512<T> y1r, out Vector512<T> y1i,
+                                           out Vector512<T> y2r, out Vector512<T> y2i, out Vector512<T> y3r, out Vector512<T> y3i)
+    {
+        Vector512<T> b0r = a0r + a2r, b0i = a0i + a2i, b1r = a1r + a3r, b1i = a1i + a3i;
+        Vector512<T> dr = a0r - a2r, di = a0i - a2i;
+        Vector512<T> er = a1i - a3i, ei = a3r - a1r;   // (a1 - a3)(-i)
+        Vector512<T> b2r = dr * ar - di * ai, b2i = dr * ai + di * ar;
+        Vector512<T> b3r = er * ar - ei * ai, b3i = er * ai + ei * ar;
+        Vector512<T> fr = b0r - b1r, fi = b0i - b1i, gr = b2r - b3r, gi = b2i - b3i;
+        y0r = b0r + b1r; y0i = b0i + b1i;
+        y1r = fr * br - fi * bi; y1i = fr * bi + fi * br;
+        y2r = b2r + b3r; y2i = b2i + b3i;
+        y3r = gr * br - gi * bi; y3i = gr * bi + gi * br;
     }
 
     /// <summary>
@@ -614,6 +657,164 @@ public sealed class FftPlan
         Check(samples.Length, complex, window, re, im);
         if (sum.Length != _n || max.Length != _n || (row.Length != _n && !row.IsEmpty)) throw new ArgumentException($"spans must hold {_n} points");
         return Scrambled(samples, complex, window, re, im, new PowerSums(sum, max, row, rowMax));
+    }
+
+    /// <summary>
+    /// Whether <see cref="ForwardPowerScrambledSingle"/> can run: a power of two from 64 points
+    /// on a CPU with AVX2.
+    /// </summary>
+    public bool CanSingle => CanScramble && _n >= 64 && Avx2.IsSupported;
+
+    private float[] _twReF = [], _twImF = [], _fRe = [], _fIm = [];
+    private static readonly System.Collections.Concurrent.ConcurrentDictionary<int, (float[], float[])> TablesSingle = new();
+
+    /// <summary>
+    /// The Welch inner step (<c>ForwardPowerScrambled</c>) for complex single-precision samples
+    /// in single-precision arithmetic: the window, the I/Q split and the radix-2^2 passes of
+    /// half-size 32 and more in float (twice the lanes per vector, half the memory), the last
+    /// passes and the powers in double, into the same sums at the same scrambled places. The
+    /// transform's rounding is then that of float arithmetic, relative error of the order of
+    /// 1e-7 times the square root of log2 N (tested against the double transform): the precision
+    /// the samples were stored in. Returns a finite value when every sample is finite and the
+    /// float transform cannot overflow; otherwise the segment is transformed in double
+    /// (<c>ForwardPowerScrambled</c>, with <paramref name="windowDouble"/>, the window in double) and its check returned. The same results with 512-bit
+    /// and with 256-bit vectors, bit for bit (tested).
+    /// </summary>
+    /// <exception cref="InvalidOperationException">Not <see cref="CanSingle"/>.</exception>
+    public double ForwardPowerScrambledSingle(ReadOnlySpan<float> samples, ReadOnlySpan<float> window, ReadOnlySpan<double> windowDouble, Span<double> re, Span<double> im,
+                                              Span<double> sum, Span<double> max, Span<double> row, bool rowMax)
+    {
+        int n = _n;
+        if (!CanSingle) throw new InvalidOperationException("the single-precision transform needs a power-of-two size from 64 and AVX2");
+        if (re.Length != n || im.Length != n || window.Length != n || windowDouble.Length != n || samples.Length < 2 * n) throw new ArgumentException($"spans must hold {n} points");
+        if (sum.Length != n || max.Length != n || (row.Length != n && !row.IsEmpty)) throw new ArgumentException($"spans must hold {n} points");
+        if (_fRe.Length != n)
+        {
+            (_twReF, _twImF) = TablesSingle.GetOrAdd(n, _ => ([.. _twRe.Select(v => (float)v)], [.. _twIm.Select(v => (float)v)]));
+            _fRe = new float[n];
+            _fIm = new float[n];
+        }
+        ref float fr = ref _fRe[0], fi = ref _fIm[0];
+        // |I| + |Q| of the windowed samples, summed in float: finite only if each is, and then a
+        // bound on every value of the transform (and of every partial sum a pass forms).
+        float bound = _wide ? FirstPassSingleWide(samples, window, ref fr, ref fi) : FirstPassSingle256(samples, window, ref fr, ref fi);
+        if (!float.IsFinite(bound) || bound > float.MaxValue / 4)
+            return ForwardPowerScrambled(samples, complex: true, windowDouble, re, im, sum, max, row, rowMax);
+        const int block = 1024;
+        int h = n / 8;
+        for (; 2 * h > block && h >= 32; h /= 4) PassSingle(ref fr, ref fi, 0, n, h);
+        var sums = new PowerSums(sum, max, row, rowMax);
+        ref double reRef = ref MemoryMarshal.GetReference(re), imRef = ref MemoryMarshal.GetReference(im);
+        int len = Math.Min(n, block);
+        for (int start = 0; start < n; start += len)
+        {
+            int hb = h;
+            for (; hb >= 32; hb /= 4) PassSingle(ref fr, ref fi, start, len, hb);
+            // The block widened to double for the last passes and the powers.
+            var from = MemoryMarshal.Cast<float, Vector<float>>(_fRe.AsSpan(start, len));
+            var fromIm = MemoryMarshal.Cast<float, Vector<float>>(_fIm.AsSpan(start, len));
+            var toRe = MemoryMarshal.Cast<double, Vector<double>>(re.Slice(start, len));
+            var toIm = MemoryMarshal.Cast<double, Vector<double>>(im.Slice(start, len));
+            for (int v = 0; v < from.Length; v++)
+            {
+                Vector.Widen(from[v], out toRe[2 * v], out toRe[2 * v + 1]);
+                Vector.Widen(fromIm[v], out toIm[2 * v], out toIm[2 * v + 1]);
+            }
+            ScrambledStages(ref reRef, ref imRef, start, len, hb, sums);
+        }
+        return bound;
+    }
+
+    private void PassSingle(ref float fr, ref float fi, int start, int len, int h)
+    {
+        if (_wide) Radix22PassWide(ref fr, ref fi, start, len, h, _twReF, _twImF);
+        else Radix22Pass256(ref fr, ref fi, start, len, h, _twReF, _twImF);
+    }
+
+    /// <summary>The first single-precision radix-2^2 pass from interleaved I/Q, sixteen points per vector; returns the bound (see <see cref="ForwardPowerScrambledSingle"/>).</summary>
+    private float FirstPassSingleWide(ReadOnlySpan<float> samples, ReadOnlySpan<float> window, ref float reRef, ref float imRef)
+    {
+        int n = _n, h = n / 2, q = h / 2;
+        ref float x = ref MemoryMarshal.GetReference(samples);
+        ref float w = ref MemoryMarshal.GetReference(window);
+        ref float wAr = ref _twReF[_stageOffset[BitOperations.Log2((uint)h) + 1]];
+        ref float wAi = ref _twImF[_stageOffset[BitOperations.Log2((uint)h) + 1]];
+        ref float wBr = ref _twReF[_stageOffset[BitOperations.Log2((uint)q) + 1]];
+        ref float wBi = ref _twImF[_stageOffset[BitOperations.Log2((uint)q) + 1]];
+        Vector512<float> acc = Vector512<float>.Zero;
+        Vector512<int> even = Vector512.Create(0, 2, 4, 6, 8, 10, 12, 14, 16, 18, 20, 22, 24, 26, 28, 30), odd = even + Vector512<int>.One;
+        for (int k = 0; k < q; k += 16)
+        {
+            var (a0r, a0i) = LoadSplitSingleWide(ref x, ref w, k, even, odd);
+            var (a1r, a1i) = LoadSplitSingleWide(ref x, ref w, k + q, even, odd);
+            var (a2r, a2i) = LoadSplitSingleWide(ref x, ref w, k + 2 * q, even, odd);
+            var (a3r, a3i) = LoadSplitSingleWide(ref x, ref w, k + 3 * q, even, odd);
+            acc += (Vector512.Abs(a0r) + Vector512.Abs(a0i)) + (Vector512.Abs(a1r) + Vector512.Abs(a1i))
+                 + (Vector512.Abs(a2r) + Vector512.Abs(a2i)) + (Vector512.Abs(a3r) + Vector512.Abs(a3i));
+            Butterfly22Wide(a0r, a0i, a1r, a1i, a2r, a2i, a3r, a3i,
+                            Vector512.LoadUnsafe(ref wAr, (nuint)k), Vector512.LoadUnsafe(ref wAi, (nuint)k), Vector512.LoadUnsafe(ref wBr, (nuint)k), Vector512.LoadUnsafe(ref wBi, (nuint)k),
+                            out var y0r, out var y0i, out var y1r, out var y1i, out var y2r, out var y2i, out var y3r, out var y3i);
+            y0r.StoreUnsafe(ref reRef, (nuint)k); y0i.StoreUnsafe(ref imRef, (nuint)k);
+            y1r.StoreUnsafe(ref reRef, (nuint)(k + q)); y1i.StoreUnsafe(ref imRef, (nuint)(k + q));
+            y2r.StoreUnsafe(ref reRef, (nuint)(k + 2 * q)); y2i.StoreUnsafe(ref imRef, (nuint)(k + 2 * q));
+            y3r.StoreUnsafe(ref reRef, (nuint)(k + 3 * q)); y3i.StoreUnsafe(ref imRef, (nuint)(k + 3 * q));
+        }
+        // The lanes summed in the order the 256-bit pass sums them (its two halves' lanes pairwise), so both give the same bound.
+        Vector256<float> folded = acc.GetLower() + acc.GetUpper();
+        return Vector256.Sum(folded);
+    }
+
+    /// <summary><see cref="FirstPassSingleWide"/> on 256-bit vectors, eight points at a time: the same operations on each value.</summary>
+    private float FirstPassSingle256(ReadOnlySpan<float> samples, ReadOnlySpan<float> window, ref float reRef, ref float imRef)
+    {
+        int n = _n, h = n / 2, q = h / 2;
+        ref float x = ref MemoryMarshal.GetReference(samples);
+        ref float w = ref MemoryMarshal.GetReference(window);
+        ref float wAr = ref _twReF[_stageOffset[BitOperations.Log2((uint)h) + 1]];
+        ref float wAi = ref _twImF[_stageOffset[BitOperations.Log2((uint)h) + 1]];
+        ref float wBr = ref _twReF[_stageOffset[BitOperations.Log2((uint)q) + 1]];
+        ref float wBi = ref _twImF[_stageOffset[BitOperations.Log2((uint)q) + 1]];
+        Vector256<float> acc0 = Vector256<float>.Zero, acc1 = Vector256<float>.Zero;
+        for (int k = 0; k < q; k += 8)
+        {
+            var (a0r, a0i) = LoadSplitSingle256(ref x, ref w, k);
+            var (a1r, a1i) = LoadSplitSingle256(ref x, ref w, k + q);
+            var (a2r, a2i) = LoadSplitSingle256(ref x, ref w, k + 2 * q);
+            var (a3r, a3i) = LoadSplitSingle256(ref x, ref w, k + 3 * q);
+            Vector256<float> part = (Vector256.Abs(a0r) + Vector256.Abs(a0i)) + (Vector256.Abs(a1r) + Vector256.Abs(a1i))
+                                  + (Vector256.Abs(a2r) + Vector256.Abs(a2i)) + (Vector256.Abs(a3r) + Vector256.Abs(a3i));
+            // Steps of eight alternate between the two accumulators, as the lower and upper halves of the 512-bit pass's.
+            if ((k & 8) == 0) acc0 += part; else acc1 += part;
+            Butterfly22(a0r, a0i, a1r, a1i, a2r, a2i, a3r, a3i,
+                        Vector256.LoadUnsafe(ref wAr, (nuint)k), Vector256.LoadUnsafe(ref wAi, (nuint)k), Vector256.LoadUnsafe(ref wBr, (nuint)k), Vector256.LoadUnsafe(ref wBi, (nuint)k),
+                        out var y0r, out var y0i, out var y1r, out var y1i, out var y2r, out var y2i, out var y3r, out var y3i);
+            y0r.StoreUnsafe(ref reRef, (nuint)k); y0i.StoreUnsafe(ref imRef, (nuint)k);
+            y1r.StoreUnsafe(ref reRef, (nuint)(k + q)); y1i.StoreUnsafe(ref imRef, (nuint)(k + q));
+            y2r.StoreUnsafe(ref reRef, (nuint)(k + 2 * q)); y2i.StoreUnsafe(ref imRef, (nuint)(k + 2 * q));
+            y3r.StoreUnsafe(ref reRef, (nuint)(k + 3 * q)); y3i.StoreUnsafe(ref imRef, (nuint)(k + 3 * q));
+        }
+        return Vector256.Sum(acc0 + acc1);
+    }
+
+    /// <summary>Sixteen windowed complex samples from index i of interleaved float I/Q, split into (I, Q).</summary>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    private static (Vector512<float>, Vector512<float>) LoadSplitSingleWide(ref float x, ref float w, int i, Vector512<int> even, Vector512<int> odd)
+    {
+        Vector512<float> v0 = Vector512.LoadUnsafe(ref x, (nuint)(2 * i)), v1 = Vector512.LoadUnsafe(ref x, (nuint)(2 * i + 16));
+        Vector512<float> wv = Vector512.LoadUnsafe(ref w, (nuint)i);
+        return (Avx512F.PermuteVar16x32x2(v0, even, v1) * wv, Avx512F.PermuteVar16x32x2(v0, odd, v1) * wv);
+    }
+
+    /// <summary>Eight windowed complex samples from index i of interleaved float I/Q, split into (I, Q).</summary>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    private static (Vector256<float>, Vector256<float>) LoadSplitSingle256(ref float x, ref float w, int i)
+    {
+        Vector256<float> v0 = Vector256.LoadUnsafe(ref x, (nuint)(2 * i)), v1 = Vector256.LoadUnsafe(ref x, (nuint)(2 * i + 8));
+        Vector256<float> wv = Vector256.LoadUnsafe(ref w, (nuint)i);
+        // I at even places, Q at odd: gathered per 128-bit lane, then the 64-bit pairs put in order.
+        Vector256<double> re = Avx2.Permute4x64(Avx.Shuffle(v0, v1, 0b10_00_10_00).AsDouble(), 0b11_01_10_00);
+        Vector256<double> im = Avx2.Permute4x64(Avx.Shuffle(v0, v1, 0b11_01_11_01).AsDouble(), 0b11_01_10_00);
+        return (re.AsSingle() * wv, im.AsSingle() * wv);
     }
 
     /// <summary>

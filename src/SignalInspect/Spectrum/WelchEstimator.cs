@@ -207,6 +207,7 @@ public static class WelchEstimator
         private readonly FftPlan _fft;
         private readonly bool _scrambled;
         private readonly double[] _re, _im, _w, _row;
+        private readonly float[]? _wSingle;   // the window in float, where float segments are transformed in float
         private double[]? _staging;
         private double[] _rowSum;   // the row's periodogram sum, handed to the total when the row ends
 
@@ -218,6 +219,7 @@ public static class WelchEstimator
             _re = new double[layout.N];
             _im = new double[layout.N];
             _w = layout.Window.Coefficients.ToArray();
+            if (_scrambled && layout.Complex && _fft.CanSingle) _wSingle = [.. _w.Select(v => (float)v)];
             _row = new double[layout.N];
             _rowSum = new double[layout.N];
             Max = new double[layout.N];
@@ -302,8 +304,11 @@ public static class WelchEstimator
                 // Transform and sums in one go; a segment with NaN or infinity adds nothing and is redone with those samples as 0.
                 // A mean spectrogram row is the row's sum itself: no separate row is accumulated.
                 Span<double> row = _l.RowMax ? _row : default;
+                // Complex float samples (cf32 as stored) are transformed in float: their own precision.
                 double check = typeof(T) == typeof(float)
-                    ? _fft.ForwardPowerScrambled(MemoryMarshal.Cast<T, float>(samples), complex, _w, _re, _im, _rowSum, Max, row, _l.RowMax)
+                    ? _wSingle is not null
+                        ? _fft.ForwardPowerScrambledSingle(MemoryMarshal.Cast<T, float>(samples), _wSingle, _w, _re, _im, _rowSum, Max, row, _l.RowMax)
+                        : _fft.ForwardPowerScrambled(MemoryMarshal.Cast<T, float>(samples), complex, _w, _re, _im, _rowSum, Max, row, _l.RowMax)
                     : _fft.ForwardPowerScrambled(MemoryMarshal.Cast<T, double>(samples), complex, _w, _re, _im, _rowSum, Max, row, _l.RowMax);
                 if (double.IsFinite(check)) return;
                 NonFiniteSegments++;
