@@ -710,7 +710,12 @@ public sealed class FftPlan
         {
             int hb = h;
             for (; hb >= 32; hb /= 4) PassSingle(ref fr, ref fi, start, len, hb);
-            // The block widened to double for the last passes and the powers.
+            if (hb == 8 && Avx.IsSupported)
+            {
+                LastTwoPassesSingle(ref Unsafe.Add(ref fr, start), ref Unsafe.Add(ref fi, start), len, sums, start);
+                continue;
+            }
+            // Odd powers of two: the block widened to double for the last passes and the powers.
             var from = MemoryMarshal.Cast<float, Vector<float>>(_fRe.AsSpan(start, len));
             var fromIm = MemoryMarshal.Cast<float, Vector<float>>(_fIm.AsSpan(start, len));
             var toRe = MemoryMarshal.Cast<double, Vector<double>>(re.Slice(start, len));
@@ -723,6 +728,54 @@ public sealed class FftPlan
             ScrambledStages(ref reRef, ref imRef, start, len, hb, sums);
         }
         return bound;
+    }
+
+    /// <summary>
+    /// <see cref="LastTwoPasses"/> in float on two blocks of 16 at once (block g in the lower
+    /// 128 bits, block g + 16 in the upper): the same operations on each value, the 4 x 4
+    /// transposes within each 128-bit lane, so the powers land where the double pass puts them;
+    /// each power widened to double and added into the sums at <paramref name="at"/> + its place.
+    /// </summary>
+    private void LastTwoPassesSingle(ref float reRef, ref float imRef, int len, PowerSums sums, int at)
+    {
+        static Vector256<float> Twice(Vector128<float> v) => Vector256.Create(v, v);
+        Vector256<float> ar = Twice(Vector128.LoadUnsafe(ref _twReF[_stageOffset[4]])), ai = Twice(Vector128.LoadUnsafe(ref _twImF[_stageOffset[4]]));   // W_16^k, k < 4
+        Vector256<float> br = Twice(Vector128.LoadUnsafe(ref _twReF[_stageOffset[3]])), bi = Twice(Vector128.LoadUnsafe(ref _twImF[_stageOffset[3]]));   // W_8^k
+        for (int g = 0; g < len; g += 32)
+        {
+            Butterfly22(Pair(ref reRef, g), Pair(ref imRef, g), Pair(ref reRef, g + 4), Pair(ref imRef, g + 4),
+                        Pair(ref reRef, g + 8), Pair(ref imRef, g + 8), Pair(ref reRef, g + 12), Pair(ref imRef, g + 12),
+                        ar, ai, br, bi, out var y0r, out var y0i, out var y1r, out var y1i, out var y2r, out var y2i, out var y3r, out var y3i);
+            var (r0, r1, r2, r3) = TransposeInLanes(y0r, y1r, y2r, y3r);
+            var (i0, i1, i2, i3) = TransposeInLanes(y0i, y1i, y2i, y3i);
+            Vector256<float> c0r = r0 + r2, c0i = i0 + i2, c2r = r0 - r2, c2i = i0 - i2;
+            Vector256<float> c1r = r1 + r3, c1i = i1 + i3, c3r = i1 - i3, c3i = r3 - r1;   // (x1 - x3)(-i)
+            AddPair(sums, c0r + c1r, c0i + c1i, at + g);
+            AddPair(sums, c0r - c1r, c0i - c1i, at + g + 4);
+            AddPair(sums, c2r + c3r, c2i + c3i, at + g + 8);
+            AddPair(sums, c2r - c3r, c2i - c3i, at + g + 12);
+        }
+    }
+
+    /// <summary>Four floats from index i (lower half) and four from i + 16 (upper half).</summary>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    private static Vector256<float> Pair(ref float x, int i) => Vector256.Create(Vector128.LoadUnsafe(ref x, (nuint)i), Vector128.LoadUnsafe(ref x, (nuint)(i + 16)));
+
+    /// <summary>The powers of the lower half's four bins added at index i, the upper half's at i + 16.</summary>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    private static void AddPair(PowerSums sums, Vector256<float> re, Vector256<float> im, int i)
+    {
+        sums.Add(Avx.ConvertToVector256Double(re.GetLower()), Avx.ConvertToVector256Double(im.GetLower()), i);
+        sums.Add(Avx.ConvertToVector256Double(re.GetUpper()), Avx.ConvertToVector256Double(im.GetUpper()), i + 16);
+    }
+
+    /// <summary>4 x 4 transpose of rows a, b, c, d within each 128-bit lane.</summary>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    private static (Vector256<float>, Vector256<float>, Vector256<float>, Vector256<float>) TransposeInLanes(Vector256<float> a, Vector256<float> b, Vector256<float> c, Vector256<float> d)
+    {
+        Vector256<float> t0 = Avx.UnpackLow(a, b), t1 = Avx.UnpackHigh(a, b);   // a0 b0 a1 b1 | a2 b2 a3 b3 (per lane)
+        Vector256<float> t2 = Avx.UnpackLow(c, d), t3 = Avx.UnpackHigh(c, d);
+        return (Avx.Shuffle(t0, t2, 0x44), Avx.Shuffle(t0, t2, 0xEE), Avx.Shuffle(t1, t3, 0x44), Avx.Shuffle(t1, t3, 0xEE));
     }
 
     private void PassSingle(ref float fr, ref float fi, int start, int len, int h)
