@@ -146,6 +146,12 @@ public sealed class ChannelDecimator
             done += piece;
             _n += piece;
             _fill += piece;
+            while (_wide && _next + 7 * _decimation < _fill)
+            {
+                Dot8Wide(_next - _taps + 1, outRe.Slice(produced, 8), outIm.Slice(produced, 8));
+                produced += 8;
+                _next += 8 * _decimation;
+            }
             while (_next + 3 * _decimation < _fill)
             {
                 Dot4(_next - _taps + 1, outRe.Slice(produced, 4), outIm.Slice(produced, 4));
@@ -383,6 +389,41 @@ public sealed class ChannelDecimator
         (re[1], im[1]) = SumPairs((a1.GetLower() + a1.GetUpper()).AsVector());
         (re[2], im[2]) = SumPairs((a2.GetLower() + a2.GetUpper()).AsVector());
         (re[3], im[3]) = SumPairs((a3.GetLower() + a3.GetUpper()).AsVector());
+    }
+
+    /// <summary>
+    /// Eight consecutive outputs per load of the taps (fewer loads per multiply-add than
+    /// <see cref="Dot4Wide"/>): each output's sum is formed exactly as there, so the same outputs.
+    /// </summary>
+    private void Dot8Wide(int s0, Span<double> re, Span<double> im)
+    {
+        int len = 2 * _taps, step = 2 * _decimation;
+        ref float h = ref System.Runtime.InteropServices.MemoryMarshal.GetArrayDataReference(_taps2);
+        ref float z0 = ref Unsafe.Add(ref System.Runtime.InteropServices.MemoryMarshal.GetArrayDataReference(_z), 2 * s0);
+        nuint d = (nuint)step;
+        int w = Vector512<float>.Count;
+        Vector512<float> a0 = default, a1 = default, a2 = default, a3 = default, a4 = default, a5 = default, a6 = default, a7 = default;
+        for (int j = 0; j < len; j += w)
+        {
+            Vector512<float> hj = Vector512.LoadUnsafe(ref h, (nuint)j);
+            ref float zj = ref Unsafe.Add(ref z0, j);
+            a0 = Vector512.FusedMultiplyAdd(hj, Vector512.LoadUnsafe(ref zj), a0);
+            a1 = Vector512.FusedMultiplyAdd(hj, Vector512.LoadUnsafe(ref zj, d), a1);
+            a2 = Vector512.FusedMultiplyAdd(hj, Vector512.LoadUnsafe(ref zj, 2 * d), a2);
+            a3 = Vector512.FusedMultiplyAdd(hj, Vector512.LoadUnsafe(ref zj, 3 * d), a3);
+            a4 = Vector512.FusedMultiplyAdd(hj, Vector512.LoadUnsafe(ref zj, 4 * d), a4);
+            a5 = Vector512.FusedMultiplyAdd(hj, Vector512.LoadUnsafe(ref zj, 5 * d), a5);
+            a6 = Vector512.FusedMultiplyAdd(hj, Vector512.LoadUnsafe(ref zj, 6 * d), a6);
+            a7 = Vector512.FusedMultiplyAdd(hj, Vector512.LoadUnsafe(ref zj, 7 * d), a7);
+        }
+        (re[0], im[0]) = SumPairs((a0.GetLower() + a0.GetUpper()).AsVector());
+        (re[1], im[1]) = SumPairs((a1.GetLower() + a1.GetUpper()).AsVector());
+        (re[2], im[2]) = SumPairs((a2.GetLower() + a2.GetUpper()).AsVector());
+        (re[3], im[3]) = SumPairs((a3.GetLower() + a3.GetUpper()).AsVector());
+        (re[4], im[4]) = SumPairs((a4.GetLower() + a4.GetUpper()).AsVector());
+        (re[5], im[5]) = SumPairs((a5.GetLower() + a5.GetUpper()).AsVector());
+        (re[6], im[6]) = SumPairs((a6.GetLower() + a6.GetUpper()).AsVector());
+        (re[7], im[7]) = SumPairs((a7.GetLower() + a7.GetUpper()).AsVector());
     }
 
     /// <summary>The sums of the even (I) and the odd (Q) lanes, in double.</summary>
