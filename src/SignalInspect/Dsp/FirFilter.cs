@@ -41,6 +41,57 @@ public static class FirDesign
         for (int n = 0; n < taps; n++) h[n] /= sum;
         return h;
     }
+
+    /// <summary>
+    /// A half-band low-pass for decimation by 2: flat to within the attenuation's ripple over
+    /// [0, <paramref name="passEdgeHz"/>], at least <paramref name="stopbandDb"/> down over
+    /// [fs/2 - passEdge, fs/2], the band that folds onto [0, passEdge] when every other output is
+    /// kept. A Kaiser-windowed sinc at fs/4 (length and shape by Kaiser's formulas, as
+    /// <see cref="LowPass"/>), 4M + 3 taps so that the outermost ones are not zero; every other tap
+    /// is exactly zero, the centre is exactly 1/2 and the DC gain 1 (the half-band property:
+    /// H(f) + H(fs/2 - f) = 1 up to the window's ripple). Kaiser's length formula is approximate
+    /// for filters this short: the response is checked on 256 frequencies of the stop band and
+    /// the filter made 4 taps longer until it meets the attenuation there.
+    /// </summary>
+    /// <exception cref="ArgumentOutOfRangeException">The pass edge is not below fs/4.</exception>
+    public static double[] HalfBand(double passEdgeHz, double sampleRateHz, double stopbandDb = 80)
+    {
+        double transition = sampleRateHz / 2 - 2 * passEdgeHz;
+        if (!(passEdgeHz > 0 && transition > 0)) throw new ArgumentOutOfRangeException(nameof(passEdgeHz), passEdgeHz, "must lie between 0 and a quarter of the sample rate");
+        double beta = stopbandDb > 50 ? 0.1102 * (stopbandDb - 8.7) : stopbandDb >= 21 ? 0.5842 * Math.Pow(stopbandDb - 21, 0.4) + 0.07886 * (stopbandDb - 21) : 0;
+        int taps = (int)Math.Ceiling((stopbandDb - 7.95) / (2.285 * 2 * Math.PI * transition / sampleRateHz)) + 1;
+        taps = Math.Max(3, taps + ((3 - taps % 4) + 4) % 4);   // up to the next 4M + 3
+        for (; ; taps += 4)
+        {
+            double[] h = HalfBandOf(taps, beta);
+            double worst = 0;
+            for (int i = 0; i <= 256; i++)
+            {
+                double f = (sampleRateHz / 2 - passEdgeHz + passEdgeHz * i / 256) / sampleRateHz, re = 0, im = 0;
+                for (int n = 0; n < taps; n++) { re += h[n] * Math.Cos(2 * Math.PI * f * n); im -= h[n] * Math.Sin(2 * Math.PI * f * n); }
+                worst = Math.Max(worst, Math.Sqrt(re * re + im * im));
+            }
+            if (20 * Math.Log10(worst) <= -stopbandDb || taps > 4095) return h;
+        }
+    }
+
+    private static double[] HalfBandOf(int taps, double beta)
+    {
+        int c = (taps - 1) / 2;
+        var h = new double[taps];
+        double i0b = SpecialFunctions.BesselI0(beta), odd = 0;
+        for (int n = 0; n < taps; n++)
+        {
+            int k = n - c;
+            if (k == 0 || k % 2 == 0) continue;
+            double r = (double)k / c;
+            h[n] = Math.Sin(Math.PI * k / 2) / (Math.PI * k) * SpecialFunctions.BesselI0(beta * Math.Sqrt(Math.Max(0, 1 - r * r))) / i0b;
+            odd += h[n];
+        }
+        for (int n = 0; n < taps; n++) h[n] *= 0.5 / odd;
+        h[c] = 0.5;
+        return h;
+    }
 }
 
 /// <summary>
@@ -48,7 +99,10 @@ public static class FirDesign
 /// every M-th output: the channel filter and decimator in front of the demodulators. A plan with
 /// state: construct once, call <see cref="Process(ReadOnlySpan{double}, Span{double}, Span{double})"/> (or its float overload) block by block; the result does not depend on
 /// the block size. Output m is the filter's output at input sample (m + 1) M - 1; the history
-/// before the first input is zero.
+/// before the first input is zero. With a half-band filter (<see cref="FirDesign.HalfBand"/>) the
+/// shifted samples are first filtered by it and every other one kept (the outputs at odd input
+/// samples), then the taps (designed for half the rate) filter and keep one in M / 2: the same
+/// output instants, far fewer multiply-adds per input sample than one filter at the full rate.
 /// </summary>
 /// <remarks>
 /// The oscillator is exp(2 pi i f n) from a table of one block of 1024 rotations times an anchor
@@ -78,10 +132,28 @@ public sealed class ChannelDecimator
     /// <param name="shiftHz">Frequency shift applied before filtering (e.g. minus the carrier), in Hz.</param>
     /// <param name="sampleRateHz">Input sample rate in Hz.</param>
     /// <param name="complexInput">True for interleaved I/Q input, false for real input.</param>
-    public ChannelDecimator(double[] taps, int decimation, double shiftHz, double sampleRateHz, bool complexInput)
+    /// <param name="halfBand">Half-band taps (from <see cref="FirDesign.HalfBand"/>, 4M + 3 of them) for a first stage that halves the rate, or null. With it the decimation must be even and <paramref name="taps"/> are for half the rate.</param>
+    /// <exception cref="ArgumentException">The half-band taps are not of that form, or the decimation is odd.</exception>
+    public ChannelDecimator(double[] taps, int decimation, double shiftHz, double sampleRateHz, bool complexInput, double[]? halfBand = null)
     {
         ArgumentOutOfRangeException.ThrowIfLessThan(decimation, 1);
         ArgumentOutOfRangeException.ThrowIfZero(taps.Length);
+        if (halfBand is not null)
+        {
+            int nh = halfBand.Length, c = (nh - 1) / 2;
+            if (nh < 3 || nh % 4 != 3 || halfBand[c] != 0.5 || Enumerable.Range(0, nh).Any(n => n != c && (n - c) % 2 == 0 && halfBand[n] != 0))
+                throw new ArgumentException("half-band taps must number 4M + 3, with 1/2 at the centre and zeros at every other place", nameof(halfBand));
+            if (decimation % 2 != 0) throw new ArgumentException("a half-band first stage needs an even decimation", nameof(decimation));
+            _hbM = (nh - 3) / 4;
+            _hb = new float[_hbM + 1];
+            for (int i = 0; i <= _hbM; i++) _hb[i] = (float)halfBand[2 * i];
+            _hbv = [.. _hb.Select(Vector512.Create)];
+            _mix = new float[2 * Block];
+            _e = new float[2 * (2 * _hbM + 1 + Block / 2 + 16)];
+            _o = new float[_e.Length];
+            HalfBandTaps = nh;
+            decimation /= 2;
+        }
         // Taps padded to whole vectors of complex lanes: 512-bit ones where the CPU has them (Dot4).
         _wide = Simd.Wide;
         int lanes = _wide ? Vector512<float>.Count / 2 : Vector<float>.Count / 2;
@@ -102,6 +174,35 @@ public sealed class ChannelDecimator
         _z = new float[2 * (_taps - 1 + Block) + 16];
         _fill = _taps - 1;
         _next = _taps - 1 + decimation - 1;
+        InputSpan = _hb is null ? taps.Length : HalfBandTaps + 2 * (taps.Length - 1);
+        ResetHalfBand();
+    }
+
+    // The half-band first stage (null without one): its distinct taps g_i = h[2i], i <= M, the
+    // shifted samples of a block, and the shifted samples at even and odd places since the start
+    // (E and O, 2M + 1 of history each, then the new ones): output m is
+    // 0.5 E[m + M + 1] + sum_i g_i (O[m + 2M + 1 - i] + O[m + i]).
+    private readonly float[]? _hb;
+    private readonly Vector512<float>[] _hbv = [];
+    private readonly int _hbM;
+    private readonly float[] _mix = [], _e = [], _o = [];
+    private int _eFill, _oFill, _hbNext;
+    private long _t;
+
+    /// <summary>Taps of the half-band first stage, 0 without one.</summary>
+    public int HalfBandTaps { get; }
+
+    /// <summary>Input samples that one output depends on: the whole filter's length at the input rate.</summary>
+    public int InputSpan { get; }
+
+    private void ResetHalfBand()
+    {
+        if (_hb is null) return;
+        Array.Clear(_e);
+        Array.Clear(_o);
+        _eFill = _oFill = 2 * _hbM + 1;
+        _hbNext = 0;
+        _t = 0;
     }
 
 
@@ -116,6 +217,7 @@ public sealed class ChannelDecimator
         _fill = _taps - 1;
         _next = _taps - 1 + _decimation - 1;
         _n = inputIndex;
+        ResetHalfBand();
     }
 
 
@@ -142,10 +244,20 @@ public sealed class ChannelDecimator
             // Up to the next oscillator block boundary, so that one anchor serves the piece.
             int k0 = (int)(_n % Block);
             int piece = Math.Min(count - done, Block - k0);
-            Mix(_complexInput ? input.Slice(2 * done, 2 * piece) : input.Slice(done, piece), k0, piece);
+            ReadOnlySpan<T> x = _complexInput ? input.Slice(2 * done, 2 * piece) : input.Slice(done, piece);
             done += piece;
-            _n += piece;
-            _fill += piece;
+            if (_hb is null)
+            {
+                Mix(x, k0, piece, _z.AsSpan(2 * _fill, 2 * piece));
+                _n += piece;
+                _fill += piece;
+            }
+            else
+            {
+                Mix(x, k0, piece, _mix.AsSpan(0, 2 * piece));
+                _n += piece;
+                _fill += HalfBandStage(piece);
+            }
             while (_wide && _next + 7 * _decimation < _fill)
             {
                 Dot8Wide(_next - _taps + 1, outRe.Slice(produced, 8), outIm.Slice(produced, 8));
@@ -182,13 +294,100 @@ public sealed class ChannelDecimator
         return produced;
     }
 
-    /// <summary>Shifts <paramref name="piece"/> samples (oscillator table index k0 onwards) into _z at _fill.</summary>
-    private void Mix<T>(ReadOnlySpan<T> x, int k0, int piece) where T : unmanaged
+    /// <summary>
+    /// The half-band stage on the <paramref name="piece"/> shifted samples in _mix: splits them into
+    /// E and O by the parity of their place, writes every output they complete into _z at _fill, and
+    /// drops what no later output needs. Returns the outputs written. Eight outputs per vector where
+    /// eight are ready, else one at a time with the same operations per component (single-rounding
+    /// multiply-adds both ways), so an output does not depend on the block sizes.
+    /// </summary>
+    private int HalfBandStage(int piece)
+    {
+        Span<ulong> mix = System.Runtime.InteropServices.MemoryMarshal.Cast<float, ulong>(_mix.AsSpan(0, 2 * piece));
+        Span<ulong> e = System.Runtime.InteropServices.MemoryMarshal.Cast<float, ulong>(_e.AsSpan());
+        Span<ulong> o = System.Runtime.InteropServices.MemoryMarshal.Cast<float, ulong>(_o.AsSpan());
+        int i = 0;
+        if ((_t & 1) == 1 && piece > 0) { o[_oFill++] = mix[0]; i = 1; }
+        if (System.Runtime.Intrinsics.X86.Avx512F.IsSupported)
+        {
+            // Sixteen samples (as 64-bit I/Q pairs) to eight of E and eight of O per step.
+            var evens = Vector512.Create(0UL, 2, 4, 6, 8, 10, 12, 14);
+            var odds = Vector512.Create(1UL, 3, 5, 7, 9, 11, 13, 15);
+            ref ulong mr = ref System.Runtime.InteropServices.MemoryMarshal.GetReference(mix);
+            ref ulong er = ref System.Runtime.InteropServices.MemoryMarshal.GetReference(e);
+            ref ulong or = ref System.Runtime.InteropServices.MemoryMarshal.GetReference(o);
+            for (; i + 16 <= piece; i += 16)
+            {
+                Vector512<ulong> a = Vector512.LoadUnsafe(ref mr, (nuint)i), b = Vector512.LoadUnsafe(ref mr, (nuint)(i + 8));
+                System.Runtime.Intrinsics.X86.Avx512F.PermuteVar8x64x2(a, evens, b).StoreUnsafe(ref er, (nuint)_eFill);
+                System.Runtime.Intrinsics.X86.Avx512F.PermuteVar8x64x2(a, odds, b).StoreUnsafe(ref or, (nuint)_oFill);
+                _eFill += 8;
+                _oFill += 8;
+            }
+        }
+        for (; i + 1 < piece; i += 2)
+        {
+            e[_eFill++] = mix[i];
+            o[_oFill++] = mix[i + 1];
+        }
+        if (i < piece) e[_eFill++] = mix[i];
+        _t += piece;
+
+        int m2 = 2 * _hbM + 1, made = 0;
+        ref float eRef = ref System.Runtime.InteropServices.MemoryMarshal.GetArrayDataReference(_e);
+        ref float oRef = ref System.Runtime.InteropServices.MemoryMarshal.GetArrayDataReference(_o);
+        ref float outRef = ref Unsafe.Add(ref System.Runtime.InteropServices.MemoryMarshal.GetArrayDataReference(_z), 2 * _fill);
+        float[] g = _hb!;
+        ReadOnlySpan<Vector512<float>> gv = _hbv;
+        var half = Vector512.Create(0.5f);
+        for (; !_wide && _hbNext + 3 + m2 < _oFill; _hbNext += 4, made += 4)
+        {
+            int m = _hbNext;
+            Vector256<float> acc = half.GetLower() * Vector256.LoadUnsafe(ref eRef, (nuint)(2 * (m + _hbM + 1)));
+            for (int k = 0; k <= _hbM; k++)
+                acc = Vector256.FusedMultiplyAdd(Vector256.Create(g[k]),
+                    Vector256.LoadUnsafe(ref oRef, (nuint)(2 * (m + m2 - k))) + Vector256.LoadUnsafe(ref oRef, (nuint)(2 * (m + k))), acc);
+            acc.StoreUnsafe(ref outRef, (nuint)(2 * made));
+        }
+        for (; _wide && _hbNext + 7 + m2 < _oFill; _hbNext += 8, made += 8)
+        {
+            int m = _hbNext;
+            Vector512<float> acc = half * Vector512.LoadUnsafe(ref eRef, (nuint)(2 * (m + _hbM + 1)));
+            for (int k = 0; k < gv.Length; k++)
+                acc = Vector512.FusedMultiplyAdd(gv[k],
+                    Vector512.LoadUnsafe(ref oRef, (nuint)(2 * (m + m2 - k))) + Vector512.LoadUnsafe(ref oRef, (nuint)(2 * (m + k))), acc);
+            acc.StoreUnsafe(ref outRef, (nuint)(2 * made));
+        }
+        for (; _hbNext + m2 < _oFill; _hbNext++, made++)
+        {
+            int m = _hbNext;
+            for (int part = 0; part < 2; part++)
+            {
+                float acc = 0.5f * _e[2 * (m + _hbM + 1) + part];
+                for (int k = 0; k <= _hbM; k++)
+                    acc = MathF.FusedMultiplyAdd(g[k], _o[2 * (m + m2 - k) + part] + _o[2 * (m + k) + part], acc);
+                Unsafe.Add(ref outRef, 2 * made + part) = acc;
+            }
+        }
+        // Outputs from _hbNext on need E and O from index _hbNext on: move those to the front.
+        int drop = _hbNext;
+        if (drop > 0)
+        {
+            e[drop.._eFill].CopyTo(e);
+            o[drop.._oFill].CopyTo(o);
+            _eFill -= drop;
+            _oFill -= drop;
+            _hbNext = 0;
+        }
+        return made;
+    }
+
+    /// <summary>Shifts <paramref name="piece"/> samples (oscillator table index k0 onwards) into <paramref name="z"/>.</summary>
+    private void Mix<T>(ReadOnlySpan<T> x, int k0, int piece, Span<float> z) where T : unmanaged
     {
         double cyc = _shiftCyclesPerSample * (_n - k0);
         double anchor = 2 * Math.PI * (cyc - Math.Floor(cyc));
         double ar = Math.Cos(anchor), ai = Math.Sin(anchor);
-        Span<float> z = _z.AsSpan(2 * _fill, 2 * piece);
         ReadOnlySpan<double> t = _table.AsSpan(2 * k0, 2 * piece);
         int i = 0;
         if (_complexInput && _wide) i = MixWide(x, t, z, ar, ai, piece);

@@ -70,17 +70,25 @@ public static class Analyzer
         double half = passEdge + transition / 2;
         int decimation = filter ? Math.Max(1, (int)Math.Floor(fs / (2.5 * (half + transition / 2)))) : 1;
         double fsd = fs / decimation;
-        double[] taps = filter ? FirDesign.LowPass(half, fs, transition, 80, 4095) : [1.0];
+        // An even decimation of 4 or more starts with a half-band stage (flat to the low-pass's stop
+        // edge, 80 dB down where the halved rate folds onto it): the same band kept, the long
+        // low-pass then runs at half the rate.
+        double stopEdge = passEdge + transition;
+        bool twoStage = filter && decimation % 2 == 0 && decimation >= 4 && stopEdge < fs / 4;
+        double[]? halfBand = twoStage ? FirDesign.HalfBand(stopEdge, fs, 80) : null;
+        double[] taps = filter ? FirDesign.LowPass(half, twoStage ? fs / 2 : fs, transition, 80, 4095) : [1.0];
         if (!filter) half = usable;
-        string channel = filter
-            ? string.Create(CultureInfo.InvariantCulture, $"shift {-coarse:0.###} Hz, Kaiser-windowed sinc low-pass {half:0.#} Hz ({taps.Length} taps, 80 dB), decimation {decimation} to {fsd:0.###} Hz")
-            : string.Create(CultureInfo.InvariantCulture, $"shift {-coarse:0.###} Hz, no channel filter (the signal fills the band)");
+        string channel = !filter
+            ? string.Create(CultureInfo.InvariantCulture, $"shift {-coarse:0.###} Hz, no channel filter (the signal fills the band)")
+            : twoStage
+            ? string.Create(CultureInfo.InvariantCulture, $"shift {-coarse:0.###} Hz, half-band to {fs / 2:0.###} Hz ({halfBand!.Length} taps, 80 dB from {fs / 2 - stopEdge:0.#} Hz), Kaiser-windowed sinc low-pass {half:0.#} Hz ({taps.Length} taps, 80 dB), decimation {decimation} to {fsd:0.###} Hz")
+            : string.Create(CultureInfo.InvariantCulture, $"shift {-coarse:0.###} Hz, Kaiser-windowed sinc low-pass {half:0.#} Hz ({taps.Length} taps, 80 dB), decimation {decimation} to {fsd:0.###} Hz");
         // Default post-detection bandwidth: the channel's, so that every modulating frequency the
         // occupied bandwidth allows passes (a fixed 15 kHz would halve a 15 kHz broadcast tone).
         double postLp = options.PostLowPassHz ?? 0.9 * Math.Min(half, fsd / 2);
         postLp = Math.Min(postLp, 0.45 * fsd);
         var plan = new PassPlan(source, first, count, taps, decimation, -coarse, fs, fsd, half, postLp, options.PostHighPassHz, options.DeEmphasisUs, info.IsComplex,
-                                Math.Max(1, options.Threads ?? Environment.ProcessorCount));
+                                Math.Max(1, options.Threads ?? Environment.ProcessorCount), halfBand);
 
         // Pass B: demodulation.
         PassResult b = DemodulationPass.Run(plan, fit: null, offsets: null, cancel);

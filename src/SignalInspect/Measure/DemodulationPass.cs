@@ -7,8 +7,14 @@ using SignalInspect.Dsp;
 namespace SignalInspect.Measure;
 
 /// <summary>What one demodulation pass does: the window, the channel filter, the rates and the post-detection filters.</summary>
+/// <remarks>With <see cref="HalfBand"/> the channel filter is two stages: the half-band at Fs, then <see cref="Taps"/> at Fs / 2.</remarks>
 internal sealed record PassPlan(CaptureSource Source, long First, long Count, double[] Taps, int Decimation, double ShiftHz, double Fs, double Fsd,
-                                double ChannelHalfWidthHz, double PostLowPassHz, double? HighPassHz, double? DeEmphasisUs, bool Complex, int Threads);
+                                double ChannelHalfWidthHz, double PostLowPassHz, double? HighPassHz, double? DeEmphasisUs, bool Complex, int Threads,
+                                double[]? HalfBand = null)
+{
+    /// <summary>Input samples one channel-filter output depends on (the filter's length at the input rate).</summary>
+    public int ChannelSpan => HalfBand is null ? Taps.Length : HalfBand.Length + 2 * (Taps.Length - 1);
+}
 
 /// <summary>The running statistics of a demodulation pass.</summary>
 internal sealed class PassResult
@@ -118,13 +124,13 @@ internal static class DemodulationPass
         int lpDelay = (lpTaps.Length - 1) / 2;
         int iir = (p.HighPassHz is null ? 0 : (int)Math.Min(expected / 4, 3 * p.Fsd / p.HighPassHz.Value))
                 + (p.DeEmphasisUs is null ? 0 : (int)Math.Min(expected / 4, 5 * p.DeEmphasisUs.Value * 1e-6 * p.Fsd));
-        int settle = (p.Taps.Length - 1) / 2 / p.Decimation + 2 + lpDelay * 2 + iir;
+        int settle = (p.ChannelSpan - 1) / 2 / p.Decimation + 2 + lpDelay * 2 + iir;
         settle = (int)Math.Min(settle, expected / 4);
         int demodFft = 256;
         while (demodFft < 65536 && p.Fsd / demodFft > 1.0 && 4L * demodFft * 2 <= expected) demodFft *= 2;
         // Decimated samples run before a chunk so that every filter holds only real input: the
         // channel filter, the 3-tap compensator, the low-pass, the interpolators and the one-pole filters.
-        int warm = (p.Taps.Length + p.Decimation - 1) / p.Decimation + lpTaps.Length + 3 + JitteredSampler.WarmUp + iir + 8;
+        int warm = (p.ChannelSpan + p.Decimation - 1) / p.Decimation + lpTaps.Length + 3 + JitteredSampler.WarmUp + iir + 8;
         int chunkLength = ChunkOutputsForTests ?? ChunkLength(expected, warm);
         int chunks = expected <= chunkLength * 3L / 2 ? 1 : (int)((expected + chunkLength - 1) / chunkLength);
         int hop = demodFft / 2;
@@ -254,7 +260,7 @@ internal static class DemodulationPass
             _ringT = new double[s.DemodFft];
             _pending = new double[s.DemodFft];
             _ws = new LineSpectrum.Workspace(s.DemodFft);
-            _dec = new ChannelDecimator(p.Taps, p.Decimation, p.ShiftHz, p.Fs, p.Complex);
+            _dec = new ChannelDecimator(p.Taps, p.Decimation, p.ShiftHz, p.Fs, p.Complex, p.HalfBand);
             // The phase difference of consecutive samples averages the frequency over one sample: a
             // response sin(pi f/fs)/(pi f/fs). This 3-tap filter, 1 + (wT)^2/24 for small wT, undoes it
             // (residual below 0.2 % up to fs/7.5; the decimation keeps the channel below that).

@@ -1,3 +1,4 @@
+using System.Numerics;
 using SignalInspect.Dsp;
 
 namespace SignalInspect.Tests.Dsp;
@@ -86,6 +87,98 @@ public class FilterTests
     }
 
     [Theory]
+    [InlineData(true, 6, 105, false)]
+    [InlineData(true, 6, 105, true)]
+    [InlineData(false, 4, 61, false)]
+    [InlineData(true, 2, 31, false)]
+    [InlineData(true, 10, 201, true)]
+    public void Two_stage_channel_decimator_equals_shift_half_band_filter_and_decimate_in_double(bool complex, int decimation, int taps, bool narrow)
+    {
+        // The reference does each step on its own in double: shift, the half-band convolution, every
+        // other output (those at odd input samples), the second convolution, one in M / 2.
+        Simd.NarrowForTests = narrow;
+        try { DecimatorAgainstDouble(complex, decimation, taps, halfBand: FirDesign.HalfBand(160e3, 2.4e6, 80)); }
+        finally { Simd.NarrowForTests = false; }
+    }
+
+    [Theory]
+    [InlineData(160e3, 2.4e6)]
+    [InlineData(142.5e3, 2.4e6)]
+    [InlineData(10e3, 48e3)]
+    [InlineData(0.2, 1.0)]
+    public void Half_band_filter_meets_its_specification(double edge, double fs)
+    {
+        // Half-band filters (e.g. Vaidyanathan, "Multirate Systems and Filter Banks", 1993, sec. 4.6.1;
+        // quoted from memory): every other tap zero, centre 1/2, so H(f) + H(fs/2 - f) = 1. The response
+        // by the DTFT (the definition): within 1e-4 (80 dB ripple, Kaiser's design) of 1 over
+        // [0, edge] and at least 80 dB down over [fs/2 - edge, fs/2]; DC gain 1.
+        double[] h = FirDesign.HalfBand(edge, fs, 80);
+        int n = h.Length, c = (n - 1) / 2;
+        Assert.Equal(3, n % 4);
+        Assert.Equal(0.5, h[c]);
+        for (int k = 0; k < n; k++)
+        {
+            Assert.Equal(h[k], h[n - 1 - k]);
+            if (k != c && (k - c) % 2 == 0) Assert.Equal(0.0, h[k]);
+        }
+        Assert.NotEqual(0.0, h[0]);
+        Near.Equal(1, h.Sum(), 1e-12, "DC gain");
+        double Gain(double f)
+        {
+            Complex sum = 0;
+            for (int k = 0; k < n; k++) sum += h[k] * Complex.Exp(new Complex(0, -2 * Math.PI * f / fs * (k - c)));
+            return sum.Magnitude;
+        }
+        for (int i = 0; i <= 200; i++)
+        {
+            double f = edge * i / 200;
+            Assert.True(Math.Abs(Gain(f) - 1) <= 1e-4, $"pass band at {f}: {Gain(f)}");
+            double g = fs / 2 - edge + edge * i / 200;
+            Assert.True(20 * Math.Log10(Gain(g)) <= -80, $"stop band at {g}: {20 * Math.Log10(Gain(g)):0.0} dB");
+        }
+    }
+
+    [Fact]
+    public void Two_stage_channel_decimator_outputs_do_not_depend_on_the_block_sizes_nor_the_vector_width()
+    {
+        // An output is the same sum whether eight, four or one were computed at a time, and a
+        // restart (Reset) gives the outputs of a fresh plan.
+        var rng = new Random(13);
+        double[] hb = FirDesign.HalfBand(142.5e3, 2.4e6, 80), h = FirDesign.LowPass(118e3, 1.2e6, 47e3, 80, 4095);
+        double[] input = [.. Enumerable.Range(0, 2 * 30_000).Select(_ => rng.NextDouble() * 2 - 1)];
+        (double[] Re, double[] Im) Run(int[] sizes, bool narrow, bool reset)
+        {
+            Simd.NarrowForTests = narrow;
+            try
+            {
+                var dec = new ChannelDecimator(h, 6, -12_345.6, 2.4e6, true, hb);
+                double[] re = new double[6000], im = new double[6000];
+                if (reset)
+                {
+                    dec.Process(input.AsSpan(0, 2 * 777), re, im);
+                    dec.Reset();
+                }
+                int produced = 0, at = 0;
+                foreach (int size in sizes)
+                {
+                    int len = Math.Min(size, 30_000 - at);
+                    produced += dec.Process(input.AsSpan(2 * at, 2 * len), re.AsSpan(produced), im.AsSpan(produced));
+                    at += len;
+                }
+                return (re[..produced], im[..produced]);
+            }
+            finally { Simd.NarrowForTests = false; }
+        }
+        var whole = Run([30_000], false, false);
+        Assert.Equal(5000, whole.Re.Length);
+        foreach (var other in new[] { Run([7, 13, 1, 5000, 11, 24_968], false, false), Run([3, 1024, 1, 2047, 26_925], true, false), Run([30_000], true, true) })
+        {
+            Assert.Equal(whole.Re, other.Re);
+            Assert.Equal(whole.Im, other.Im);
+        }
+    }
+
+    [Theory]
     [InlineData(false)]
     [InlineData(true)]
     public void Channel_decimator_outputs_do_not_depend_on_the_block_sizes(bool narrow)
@@ -148,12 +241,12 @@ public class FilterTests
         Assert.Equal(narrow.Item4, wide.Item4);
     }
 
-    private static void DecimatorAgainstDouble(bool complex, int decimation, int taps)
+    private static void DecimatorAgainstDouble(bool complex, int decimation, int taps, double[]? halfBand = null)
     {
         const double fs = 2.4e6, shift = -12_345.6;
         var rng = new Random(taps);
         int count = 70_001;
-        double[] h = FirDesign.LowPass(100e3, fs, 60e3, 80, taps);
+        double[] h = FirDesign.LowPass(100e3, halfBand is null ? fs : fs / 2, 60e3, 80, taps);
         var input = new double[complex ? 2 * count : count];
         for (int i = 0; i < input.Length; i++) input[i] = rng.NextDouble() * 2 - 1;
         // Reference: shift every sample, convolve I and Q, keep outputs at inputs (m + 1) M - 1.
@@ -165,8 +258,20 @@ public class FilterTests
             sr[n] = xr * Math.Cos(a) - xi * Math.Sin(a);
             si[n] = xr * Math.Sin(a) + xi * Math.Cos(a);
         }
-        double[] yr = Convolve(h, sr), yi = Convolve(h, si);
-        var dec = new ChannelDecimator(h, decimation, shift, fs, complex);
+        double[] yr, yi;
+        if (halfBand is null) (yr, yi) = (Convolve(h, sr), Convolve(h, si));
+        else
+        {
+            // Half-band outputs at odd input samples, then the second filter at half the rate; its
+            // output u lands at input 2u + 1, so output m ((m + 1) M / 2 - 1 at half rate) at (m + 1) M - 1.
+            double[] hr = Convolve(halfBand, sr), hi = Convolve(halfBand, si);
+            double[] ur = [.. Enumerable.Range(0, count / 2).Select(u => hr[2 * u + 1])], ui = [.. Enumerable.Range(0, count / 2).Select(u => hi[2 * u + 1])];
+            double[] vr = Convolve(h, ur), vi = Convolve(h, ui);
+            yr = new double[count];
+            yi = new double[count];
+            for (int u = 0; u < vr.Length; u++) { yr[2 * u + 1] = vr[u]; yi[2 * u + 1] = vi[u]; }
+        }
+        var dec = new ChannelDecimator(h, decimation, shift, fs, complex, halfBand);
         var outRe = new double[count / decimation + 4];
         var outIm = new double[count / decimation + 4];
         int produced = 0, at = 0, vps = complex ? 2 : 1;
