@@ -73,31 +73,23 @@ public class FilterTests
     }
 
     [Theory]
-    [InlineData(true, 6, 207, false)]
-    [InlineData(true, 1, 31, false)]
-    [InlineData(false, 5, 101, false)]
-    [InlineData(true, 6, 207, true)]
-    [InlineData(true, 7, 1647, true)]
-    public void Channel_decimator_equals_shift_filter_and_decimate_in_double(bool complex, int decimation, int taps, bool narrow)
+    [InlineData(true, 6, 207, false, false)]
+    [InlineData(true, 1, 31, false, false)]
+    [InlineData(false, 5, 101, false, false)]
+    [InlineData(true, 6, 207, true, false)]
+    [InlineData(true, 7, 1647, true, false)]
+    [InlineData(true, 6, 105, false, true)]
+    [InlineData(true, 6, 105, true, true)]
+    [InlineData(false, 4, 61, false, true)]
+    [InlineData(true, 2, 31, false, true)]
+    [InlineData(true, 10, 201, true, true)]
+    public void Channel_decimator_equals_shift_filter_and_decimate_in_double(bool complex, int decimation, int taps, bool narrow, bool twoStage)
     {
         // narrow: the 256-bit filter sums even where 512-bit ones are available (both paths are checked here).
+        // twoStage: the reference does each step on its own in double: shift, the half-band convolution,
+        // every other output (those at odd input samples), the second convolution, one in M / 2.
         Simd.NarrowForTests = narrow;
-        try { DecimatorAgainstDouble(complex, decimation, taps); }
-        finally { Simd.NarrowForTests = false; }
-    }
-
-    [Theory]
-    [InlineData(true, 6, 105, false)]
-    [InlineData(true, 6, 105, true)]
-    [InlineData(false, 4, 61, false)]
-    [InlineData(true, 2, 31, false)]
-    [InlineData(true, 10, 201, true)]
-    public void Two_stage_channel_decimator_equals_shift_half_band_filter_and_decimate_in_double(bool complex, int decimation, int taps, bool narrow)
-    {
-        // The reference does each step on its own in double: shift, the half-band convolution, every
-        // other output (those at odd input samples), the second convolution, one in M / 2.
-        Simd.NarrowForTests = narrow;
-        try { DecimatorAgainstDouble(complex, decimation, taps, halfBand: FirDesign.HalfBand(160e3, 2.4e6, 80)); }
+        try { DecimatorAgainstDouble(complex, decimation, taps, twoStage ? FirDesign.HalfBand(160e3, 2.4e6, 80) : null); }
         finally { Simd.NarrowForTests = false; }
     }
 
@@ -152,20 +144,12 @@ public class FilterTests
             try
             {
                 var dec = new ChannelDecimator(h, 6, -12_345.6, 2.4e6, true, hb);
-                double[] re = new double[6000], im = new double[6000];
                 if (reset)
                 {
-                    dec.Process(input.AsSpan(0, 2 * 777), re, im);
+                    dec.Process(input.AsSpan(0, 2 * 777), new double[200], new double[200]);
                     dec.Reset();
                 }
-                int produced = 0, at = 0;
-                foreach (int size in sizes)
-                {
-                    int len = Math.Min(size, 30_000 - at);
-                    produced += dec.Process(input.AsSpan(2 * at, 2 * len), re.AsSpan(produced), im.AsSpan(produced));
-                    at += len;
-                }
-                return (re[..produced], im[..produced]);
+                return InPieces(dec, input, sizes);
             }
             finally { Simd.NarrowForTests = false; }
         }
@@ -176,6 +160,21 @@ public class FilterTests
             Assert.Equal(whole.Re, other.Re);
             Assert.Equal(whole.Im, other.Im);
         }
+    }
+
+    /// <summary>The outputs of complex <paramref name="input"/> fed in pieces of the given sizes (the last runs to the end).</summary>
+    private static (double[] Re, double[] Im) InPieces(ChannelDecimator dec, double[] input, int[] sizes)
+    {
+        int count = input.Length / 2;
+        double[] re = new double[count], im = new double[count];
+        int produced = 0, at = 0;
+        foreach (int size in sizes)
+        {
+            int len = Math.Min(size, count - at);
+            produced += dec.Process(input.AsSpan(2 * at, 2 * len), re.AsSpan(produced), im.AsSpan(produced));
+            at += len;
+        }
+        return (re[..produced], im[..produced]);
     }
 
     [Theory]
@@ -190,19 +189,7 @@ public class FilterTests
             var rng = new Random(11);
             double[] h = FirDesign.LowPass(100e3, 2.4e6, 60e3, 80, 255);
             double[] input = [.. Enumerable.Range(0, 2 * 30_000).Select(_ => rng.NextDouble() * 2 - 1)];
-            (double[] Re, double[] Im) Run(int[] sizes)
-            {
-                var dec = new ChannelDecimator(h, 6, -12_345.6, 2.4e6, true);
-                double[] re = new double[6000], im = new double[6000];
-                int produced = 0, at = 0;
-                foreach (int size in sizes)
-                {
-                    int len = Math.Min(size, 30_000 - at);
-                    produced += dec.Process(input.AsSpan(2 * at, 2 * len), re.AsSpan(produced), im.AsSpan(produced));
-                    at += len;
-                }
-                return (re[..produced], im[..produced]);
-            }
+            (double[] Re, double[] Im) Run(int[] sizes) => InPieces(new ChannelDecimator(h, 6, -12_345.6, 2.4e6, true), input, sizes);
             var whole = Run([30_000]);
             var pieces = Run([7, 13, 1, 5000, 11, 24_968]);
             Assert.Equal(whole.Re, pieces.Re);
