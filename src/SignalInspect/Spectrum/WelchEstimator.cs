@@ -13,7 +13,10 @@ namespace SignalInspect.Spectrum;
 /// memory independent of the capture's length; the segments are shared out between threads, each
 /// with its own reader, FFT plan and sums.
 /// Scaling follows scipy.signal.welch exactly: density = |X|^2 / (fs sum w^2), one-sided spectra
-/// of real input double every bin but DC and Nyquist.
+/// of real input double every bin but DC and Nyquist. Complex float captures (cf32, read as
+/// stored) are transformed in single precision for power-of-two sizes from 64
+/// (<see cref="FftPlan.ForwardPowerScrambledSingle"/>: their own precision, the sums in double);
+/// every other input in double.
 /// </summary>
 public static class WelchEstimator
 {
