@@ -338,6 +338,29 @@ public class FilterTests
     }
 
     [Fact]
+    public void Jittered_sampler_gives_the_same_values_in_any_blocks()
+    {
+        // Four values (one phase) per vector on the stream's grid of four, one at a time at the
+        // blocks' ends: each value the same sum however the stream is cut.
+        var rng = new Random(21);
+        double[] x = [.. Enumerable.Range(0, 5000).Select(_ => rng.NextDouble() - 0.5)];
+        double[] Run(int[] blocks)
+        {
+            var js = new JitteredSampler();
+            var y = new double[x.Length];
+            int at = 0;
+            foreach (int len in blocks)
+            {
+                int m = Math.Min(len, x.Length - at);
+                js.Process(x.AsSpan(at, m), 1001 + at, y.AsSpan(at, m));
+                at += m;
+            }
+            return y;
+        }
+        Assert.Equal(Run([5000]), Run([3, 17, 1, 999, 4, 7, 3969]));
+    }
+
+    [Fact]
     public void Jittered_sampler_phases_are_spread_evenly()
     {
         var counts = new int[JitteredSampler.Phases];
