@@ -70,7 +70,7 @@ internal sealed class SampleDecoder
         switch (_format.Encoding)
         {
             case ComponentEncoding.Float32:
-                if (!swap) WidenFloat(MemoryMarshal.Cast<byte, float>(src)[..n], dst);
+                if (!swap) SignalInspect.Dsp.VectorMath.Widen(MemoryMarshal.Cast<byte, float>(src)[..n], dst);
                 else
                 {
                     for (int i = 0; i < n; i++) dst[i] = BinaryPrimitives.ReadSingleBigEndian(src[(4 * i)..]);
@@ -126,18 +126,6 @@ internal sealed class SampleDecoder
 
     // SIMD widening of the common formats (the same values as the scalar loops: conversions to
     // double are exact, and the scaling is the same single multiply or division per value).
-
-    private static void WidenFloat(ReadOnlySpan<float> f, Span<double> dst)
-    {
-        int w = Vector<float>.Count, i = 0;
-        for (; i + w <= f.Length; i += w)
-        {
-            Vector.Widen(new Vector<float>(f.Slice(i, w)), out Vector<double> lo, out Vector<double> hi);
-            lo.CopyTo(dst[i..]);
-            hi.CopyTo(dst[(i + w / 2)..]);
-        }
-        for (; i < f.Length; i++) dst[i] = f[i];
-    }
 
     private static void WidenInt16(ReadOnlySpan<short> s, double inv, Span<double> dst)
     {

@@ -716,15 +716,8 @@ public sealed class FftPlan
                 continue;
             }
             // Odd powers of two: the block widened to double for the last passes and the powers.
-            var from = MemoryMarshal.Cast<float, Vector<float>>(_fRe.AsSpan(start, len));
-            var fromIm = MemoryMarshal.Cast<float, Vector<float>>(_fIm.AsSpan(start, len));
-            var toRe = MemoryMarshal.Cast<double, Vector<double>>(re.Slice(start, len));
-            var toIm = MemoryMarshal.Cast<double, Vector<double>>(im.Slice(start, len));
-            for (int v = 0; v < from.Length; v++)
-            {
-                Vector.Widen(from[v], out toRe[2 * v], out toRe[2 * v + 1]);
-                Vector.Widen(fromIm[v], out toIm[2 * v], out toIm[2 * v + 1]);
-            }
+            VectorMath.Widen(_fRe.AsSpan(start, len), re.Slice(start, len));
+            VectorMath.Widen(_fIm.AsSpan(start, len), im.Slice(start, len));
             ScrambledStages(ref reRef, ref imRef, start, len, hb, sums);
         }
         return bound;
@@ -974,7 +967,7 @@ public sealed class FftPlan
         if (typeof(T) == typeof(double)) return MemoryMarshal.Cast<T, double>(samples);
         ReadOnlySpan<float> f = MemoryMarshal.Cast<T, float>(samples);
         if (_widened.Length < f.Length) _widened = new double[f.Length];
-        for (int i = 0; i < f.Length; i++) _widened[i] = f[i];
+        VectorMath.Widen(f, _widened);
         return _widened.AsSpan(0, f.Length);
     }
 

@@ -151,7 +151,6 @@ public sealed class ChannelDecimator
             _mix = new float[2 * Block];
             _e = new float[2 * (2 * _hbM + 1 + Block / 2 + 16)];
             _o = new float[_e.Length];
-            HalfBandTaps = nh;
             decimation /= 2;
         }
         // Taps padded to whole vectors of complex lanes: 512-bit ones where the CPU has them (Dot4).
@@ -174,7 +173,6 @@ public sealed class ChannelDecimator
         _z = new float[2 * (_taps - 1 + Block) + 16];
         _fill = _taps - 1;
         _next = _taps - 1 + decimation - 1;
-        InputSpan = _hb is null ? taps.Length : HalfBandTaps + 2 * (taps.Length - 1);
         ResetHalfBand();
     }
 
@@ -189,11 +187,8 @@ public sealed class ChannelDecimator
     private int _eFill, _oFill, _hbNext;
     private long _t;
 
-    /// <summary>Taps of the half-band first stage, 0 without one.</summary>
-    public int HalfBandTaps { get; }
-
-    /// <summary>Input samples that one output depends on: the whole filter's length at the input rate.</summary>
-    public int InputSpan { get; }
+    /// <summary>Input samples that one output depends on, for these <paramref name="taps"/> and half-band taps (or none): the whole filter's length at the input rate.</summary>
+    public static int InputSpan(double[] taps, double[]? halfBand) => halfBand is null ? taps.Length : halfBand.Length + 2 * (taps.Length - 1);
 
     private void ResetHalfBand()
     {

@@ -86,6 +86,19 @@ public static class VectorMath
         return Vector.ConditionalSelect(Vector.Equals(x, x) & Vector.Equals(y, y), a, new Vector<double>(double.NaN));
     }
 
+    /// <summary>destination[i] = source[i] widened to double (exact); the destination holds at least as many values.</summary>
+    public static void Widen(ReadOnlySpan<float> source, Span<double> destination)
+    {
+        int w = Vector<float>.Count, i = 0;
+        for (; i + w <= source.Length; i += w)
+        {
+            Vector.Widen(new Vector<float>(source.Slice(i, w)), out Vector<double> lo, out Vector<double> hi);
+            lo.CopyTo(destination[i..]);
+            hi.CopyTo(destination[(i + w / 2)..]);
+        }
+        for (; i < source.Length; i++) destination[i] = source[i];
+    }
+
     /// <summary>into[2i] = a[i], into[2i + 1] = b[i] (two real streams as one interleaved complex one).</summary>
     public static void Interleave(ReadOnlySpan<double> a, ReadOnlySpan<double> b, Span<double> into)
     {

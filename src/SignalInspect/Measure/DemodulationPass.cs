@@ -13,7 +13,7 @@ internal sealed record PassPlan(CaptureSource Source, long First, long Count, do
                                 double[]? HalfBand = null)
 {
     /// <summary>Input samples one channel-filter output depends on (the filter's length at the input rate).</summary>
-    public int ChannelSpan => HalfBand is null ? Taps.Length : HalfBand.Length + 2 * (Taps.Length - 1);
+    public int ChannelSpan => ChannelDecimator.InputSpan(Taps, HalfBand);
 }
 
 /// <summary>The running statistics of a demodulation pass.</summary>
