@@ -351,6 +351,85 @@ public sealed class FftPlan
         }
         else check = LoadWindowed(AsDoubles(samples), complex, window, re, im);
         if (!double.IsFinite(check)) return check;
+        LaterPasses(ref reRef, ref imRef, h, sums);
+        return check;
+    }
+
+    /// <summary>
+    /// <see cref="ForwardWindowedScrambled"/> of z = a + i b for two real segments read straight
+    /// out of rings of N values each (no interleaved copy): a's segment is <paramref name="a"/> from
+    /// <paramref name="aStart"/> on, then from 0 (the same for b), each start a multiple of N / 4.
+    /// The same values as interleaving the two segments and transforming them, bit for bit.
+    /// Returns the sum of the windowed values; when that is not finite the transform is not computed.
+    /// </summary>
+    /// <exception cref="ArgumentException">A ring is not N long or a start is not a multiple of N / 4 below N.</exception>
+    internal double ForwardWindowedScrambledPair(ReadOnlySpan<double> a, int aStart, ReadOnlySpan<double> b, int bStart, ReadOnlySpan<double> window, Span<double> re, Span<double> im)
+    {
+        int n = _n;
+        Check(2 * n, complex: true, window, re, im);
+        int q = n / 4;
+        if (a.Length != n || b.Length != n || q == 0 || aStart % q != 0 || bStart % q != 0 || (uint)aStart >= (uint)n || (uint)bStart >= (uint)n)
+            throw new ArgumentException($"rings must hold {n} values and segments start at multiples of {Math.Max(q, 1)}");
+        if (!(Avx2.IsSupported && Vector<double>.Count == 4 && n >= 16))
+        {
+            if (_pairScratch.Length != 2 * n) _pairScratch = new double[2 * n];
+            for (int i = 0; i < n; i++)
+            {
+                _pairScratch[2 * i] = a[(aStart + i) & (n - 1)];
+                _pairScratch[2 * i + 1] = b[(bStart + i) & (n - 1)];
+            }
+            return Scrambled<double>(_pairScratch, complex: true, window, re, im, default);
+        }
+        ref double reRef = ref MemoryMarshal.GetReference(re);
+        ref double imRef = ref MemoryMarshal.GetReference(im);
+        double check = FirstPassPair(a, aStart / q, b, bStart / q, window, ref reRef, ref imRef);
+        if (!double.IsFinite(check)) return check;
+        LaterPasses(ref reRef, ref imRef, n / 8, default);
+        return check;
+    }
+
+    private double[] _pairScratch = [];
+
+    /// <summary>
+    /// <see cref="FirstPassWindowed{T}"/> for z = a + i b read out of two rings: quarter j of a's
+    /// segment is quarter (j + <paramref name="aTurn"/>) mod 4 of its ring (the segment starts
+    /// <paramref name="aTurn"/> quarters in), so every load is a plain vector load. The same
+    /// products and sums as the interleaved pass.
+    /// </summary>
+    private double FirstPassPair(ReadOnlySpan<double> a, int aTurn, ReadOnlySpan<double> b, int bTurn, ReadOnlySpan<double> window, ref double reRef, ref double imRef)
+    {
+        int n = _n, h = n / 2, q = h / 2;
+        ref double ra = ref MemoryMarshal.GetReference(a), rb = ref MemoryMarshal.GetReference(b);
+        ref double w = ref MemoryMarshal.GetReference(window);
+        ref double wAr = ref _twRe[_stageOffset[BitOperations.Log2((uint)h) + 1]];
+        ref double wAi = ref _twIm[_stageOffset[BitOperations.Log2((uint)h) + 1]];
+        ref double wBr = ref _twRe[_stageOffset[BitOperations.Log2((uint)q) + 1]];
+        ref double wBi = ref _twIm[_stageOffset[BitOperations.Log2((uint)q) + 1]];
+        int a0 = (aTurn & 3) * q, a1 = ((aTurn + 1) & 3) * q, a2 = ((aTurn + 2) & 3) * q, a3 = ((aTurn + 3) & 3) * q;
+        int b0 = (bTurn & 3) * q, b1 = ((bTurn + 1) & 3) * q, b2 = ((bTurn + 2) & 3) * q, b3 = ((bTurn + 3) & 3) * q;
+        Vector256<double> acc = Vector256<double>.Zero;
+        for (int k = 0; k < q; k += 4)
+        {
+            Vector256<double> w0 = LoadV4(ref w, k), w1 = LoadV4(ref w, k + q), w2 = LoadV4(ref w, k + 2 * q), w3 = LoadV4(ref w, k + 3 * q);
+            Vector256<double> a0r = LoadV4(ref ra, a0 + k) * w0, a0i = LoadV4(ref rb, b0 + k) * w0;
+            Vector256<double> a1r = LoadV4(ref ra, a1 + k) * w1, a1i = LoadV4(ref rb, b1 + k) * w1;
+            Vector256<double> a2r = LoadV4(ref ra, a2 + k) * w2, a2i = LoadV4(ref rb, b2 + k) * w2;
+            Vector256<double> a3r = LoadV4(ref ra, a3 + k) * w3, a3i = LoadV4(ref rb, b3 + k) * w3;
+            acc += (a0r + a0i) + (a1r + a1i) + (a2r + a2i) + (a3r + a3i);
+            Butterfly22(a0r, a0i, a1r, a1i, a2r, a2i, a3r, a3i, LoadV4(ref wAr, k), LoadV4(ref wAi, k), LoadV4(ref wBr, k), LoadV4(ref wBi, k),
+                        out var y0r, out var y0i, out var y1r, out var y1i, out var y2r, out var y2i, out var y3r, out var y3i);
+            y0r.StoreUnsafe(ref reRef, (nuint)k); y0i.StoreUnsafe(ref imRef, (nuint)k);
+            y1r.StoreUnsafe(ref reRef, (nuint)(k + q)); y1i.StoreUnsafe(ref imRef, (nuint)(k + q));
+            y2r.StoreUnsafe(ref reRef, (nuint)(k + 2 * q)); y2i.StoreUnsafe(ref imRef, (nuint)(k + 2 * q));
+            y3r.StoreUnsafe(ref reRef, (nuint)(k + 3 * q)); y3i.StoreUnsafe(ref imRef, (nuint)(k + 3 * q));
+        }
+        return Vector256.Sum(acc);
+    }
+
+    /// <summary>The passes after the first, from half-size <paramref name="h"/> down (see <see cref="Scrambled{T}"/>).</summary>
+    private void LaterPasses(ref double reRef, ref double imRef, int h, PowerSums sums)
+    {
+        int n = _n, vw = Vector<double>.Count;
         // Passes whose groups span more than a block (16 KiB of re and im, which stays in the L1
         // cache) run over the whole array; the rest run block by block, all passes on one block
         // before the next.
@@ -358,7 +437,6 @@ public sealed class FftPlan
         for (; 2 * h > block && h >= 2 * vw; h /= 4) Radix22Pass(ref reRef, ref imRef, 0, n, h);
         int len = Math.Min(n, block);
         for (int start = 0; start < n; start += len) ScrambledStages(ref reRef, ref imRef, start, len, h, sums);
-        return check;
     }
 
     /// <summary>The passes of the scrambled transform from half-size <paramref name="h"/> down, on the groups within [start, start + len).</summary>

@@ -415,8 +415,7 @@ internal static class DemodulationPass
                 _pendingTransition = true;
                 return;
             }
-            int s0 = (int)(start & (_ringT.Length - 1)), tail = _ringT.Length - s0;
-            LineSpectrum.AddSegments(trans, _pending.AsSpan(0, tail), _pending.AsSpan(tail), trans, _ringT.AsSpan(s0), _ringT.AsSpan(0, s0), _ws);
+            LineSpectrum.AddRingSegments(trans, _pending, 0, trans, _ringT, (int)(start & (_ringT.Length - 1)), _ws);
             _pendingTransition = false;
         }
 
@@ -513,7 +512,7 @@ internal static class DemodulationPass
         private void AddSegment(LineSpectrum a, double[] ringA, LineSpectrum b, double[] ringB, long start)
         {
             int s0 = (int)(start & (ringA.Length - 1));
-            LineSpectrum.AddSegments(a, ringA.AsSpan(s0), ringA.AsSpan(0, s0), b, ringB.AsSpan(s0), ringB.AsSpan(0, s0), _ws);
+            LineSpectrum.AddRingSegments(a, ringA, s0, b, ringB, s0, _ws);
         }
 
         private static void Unroll(double[] ring, long start, double[] into)

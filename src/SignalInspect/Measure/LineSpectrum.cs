@@ -59,8 +59,12 @@ public sealed class LineSpectrum
     public sealed class Workspace
     {
         internal readonly FftPlan Fft;
-        internal readonly double[] Re, Im, Pair;
+        internal readonly double[] Re, Im;
         internal readonly Fold Fold;
+        private double[] _pair = [];
+
+        /// <summary>Room for two interleaved segments (made on first use: the demodulation pass transforms straight out of its rings).</summary>
+        internal double[] Pair => _pair.Length != 0 ? _pair : _pair = new double[2 * Re.Length];
 
         /// <summary>Creates the plan and buffers for segments of <paramref name="fftSize"/> samples.</summary>
         /// <exception cref="ArgumentOutOfRangeException">The size is not a power of two from 16.</exception>
@@ -70,7 +74,6 @@ public sealed class LineSpectrum
             Fft = new FftPlan(fftSize);
             Re = new double[fftSize];
             Im = new double[fftSize];
-            Pair = new double[2 * fftSize];
         }
 
         /// <summary>The windowed transform of a segment, its bins left scrambled (<see cref="FftPlan.ScrambledIndex"/>). False when an input is not finite.</summary>
@@ -155,6 +158,28 @@ public sealed class LineSpectrum
         VectorMath.Interleave(a1, b1, z);
         VectorMath.Interleave(a2, b2, z[(2 * a1.Length)..]);
         if (!ws.Transform(z, complex: true, a._window.Coefficients)) return;
+        FoldPair(a, b, ws);
+    }
+
+    /// <summary>
+    /// <see cref="AddSegments(LineSpectrum, ReadOnlySpan{double}, LineSpectrum, ReadOnlySpan{double}, Workspace)"/>
+    /// with each segment read straight out of a ring of N values (<see cref="FftPlan.ForwardWindowedScrambledPair"/>):
+    /// a's segment is <paramref name="ringA"/> from <paramref name="startA"/> on, then from 0, each
+    /// start a multiple of N / 4. The same sums as the segments copied out and added, bit for bit.
+    /// </summary>
+    /// <exception cref="ArgumentException">The sizes differ or a start is not a multiple of N / 4.</exception>
+    internal static void AddRingSegments(LineSpectrum a, double[] ringA, int startA, LineSpectrum b, double[] ringB, int startB, Workspace ws)
+    {
+        int n = a._n;
+        if (b._n != n || ws.Re.Length != n) throw new ArgumentException($"the spectra and the workspace must be of {n} points");
+        if (!double.IsFinite(ws.Fft.ForwardWindowedScrambledPair(ringA, startA, ringB, startB, a._window.Coefficients, ws.Re, ws.Im))) return;
+        FoldPair(a, b, ws);
+    }
+
+    /// <summary>Adds the two streams' powers from the pair's scrambled transform in the workspace (see <see cref="Fold"/>).</summary>
+    private static void FoldPair(LineSpectrum a, LineSpectrum b, Workspace ws)
+    {
+        int n = a._n;
         ref double re = ref MemoryMarshal.GetArrayDataReference(ws.Re), im = ref MemoryMarshal.GetArrayDataReference(ws.Im);
         double[] sumA = a._sum, sumB = b._sum;
         Fold f = ws.Fold;

@@ -16,8 +16,8 @@ internal static class Profile
         if (On) Console.Error.WriteLine($"profile: {text}");
     }
 
-    /// <summary>Bytes allocated so far and the working set, for the profile lines.</summary>
-    public static string Memory() => $"allocated {GC.GetTotalAllocatedBytes() / 1e6,6:0.0} MB, working set {Environment.WorkingSet / 1e6,6:0.0} MB";
+    /// <summary>Bytes allocated so far, the working set and the garbage collections (gen 0/1/2, total pause), for the profile lines.</summary>
+    public static string Memory() => $"allocated {GC.GetTotalAllocatedBytes() / 1e6,6:0.0} MB, working set {Environment.WorkingSet / 1e6,6:0.0} MB, collections {GC.CollectionCount(0)}/{GC.CollectionCount(1)}/{GC.CollectionCount(2)}, paused {GC.GetTotalPauseDuration().TotalMilliseconds:0.0} ms";
 
     /// <summary>Writes the time since the last stage and restarts the clock.</summary>
     public static void Stage(string name, Stopwatch clock)

@@ -110,6 +110,30 @@ public class LineSpectrumTests
     }
 
     [Theory]
+    [InlineData(0, 0)]
+    [InlineData(512, 512)]
+    [InlineData(0, 512)]
+    public void Segments_read_out_of_rings_give_the_sums_of_the_segments_copied_out(int startA, int startB)
+    {
+        // Internal consistency: the demodulation pass's rings (segments start at 0 or N / 2 of a
+        // ring of N) transformed in place give the sums of the same segments in two pieces, bit for bit.
+        const int n = 1024;
+        var rng = new Random(startA + 3 * startB);
+        double[] ra = [.. Enumerable.Range(0, n).Select(_ => rng.NextDouble())], rb = [.. Enumerable.Range(0, n).Select(_ => 5 * rng.NextDouble())];
+        var ws = new LineSpectrum.Workspace(n);
+        LineSpectrum pa = new(n, 1000), pb = new(n, 1000), qa = new(n, 1000), qb = new(n, 1000);
+        double[] segB = [.. rb.AsSpan(startB), .. rb.AsSpan(0, startB)];
+        LineSpectrum.AddSegments(pa, ra.AsSpan(startA), ra.AsSpan(0, startA), pb, segB.AsSpan(0, n - startA), segB.AsSpan(n - startA), ws);
+        LineSpectrum.AddRingSegments(qa, ra, startA, qb, rb, startB, ws);
+        for (int k = 0; k <= n / 2; k++)
+        {
+            Assert.Equal(pa.Power(k), qa.Power(k));
+            Assert.Equal(pb.Power(k), qb.Power(k));
+        }
+        Assert.Equal(1, qa.Segments);
+    }
+
+    [Theory]
     [InlineData(8)]
     [InlineData(1000)]
     public void Sizes_other_than_powers_of_two_from_16_are_refused(int n)
