@@ -354,13 +354,17 @@ public static class SinePeak
         if (!(level > 0)) return level;
         if (!(sigma > 0)) return level / Math.Cos(Math.PI * tail);
         // P = (1/pi) int_0^pi Q((level - d cos phi) / sigma) dphi, integrated only where the
-        // integrand is not negligible (d cos phi above level - 9 sigma), finely.
+        // integrand is not negligible (d cos phi above level - 9 sigma), by the midpoint rule. The
+        // integrand is even about phi = 0 and dies away at the upper end, so the rule converges
+        // far faster than its h^2 (Euler-Maclaurin): checked against scipy.integrate.quad for
+        // sigma / level from 1e-5 to 2 and d across the search's bracket, 512 steps were within
+        // 2e-11 relative (4000 before: the same to 1e-11, eight times the erfc calls).
         double Exceed(double d)
         {
             double c = (level - 9 * sigma) / d;
             double phiMax = c <= -1 ? Math.PI : c >= 1 ? 0 : Math.Acos(c);
             if (phiMax <= 0) return 0;
-            const int steps = 4000;
+            const int steps = 512;
             double s = 0, h = phiMax / steps;
             for (int i = 0; i < steps; i++) s += UpperTail((level - d * Math.Cos((i + 0.5) * h)) / sigma);
             return s * h / Math.PI;
