@@ -36,7 +36,7 @@ internal sealed class PassResult
 /// <summary>
 /// One pass over the capture: shift, channel filter, decimate, then envelope, phase and
 /// instantaneous frequency, into running sums, histograms and line spectra. The decimated stream
-/// is cut into chunks (<see cref="ChunkLength"/>) that the worker threads take in turn;
+/// is cut into chunks (<see cref="ChunkLength"/>, the last ones smaller: <see cref="ChunkBounds"/>) that the worker threads take in turn;
 /// each chunk starts its reader early enough that every filter has settled (a warm-up whose
 /// outputs are dropped), so a chunk's samples are those of one long run. The chunks' sums are
 /// combined in chunk order, and the unwrapped phase is carried from chunk to chunk through its
@@ -60,6 +60,27 @@ internal static class DemodulationPass
         int len = MinChunk;
         while (len < MaxChunk && (2L * len <= expected / 16 || len < 8L * warmUp)) len *= 2;
         return len;
+    }
+
+    /// <summary>
+    /// Where the chunks start, and the stream's end: <paramref name="length"/> samples per chunk
+    /// (<see cref="ChunkLength"/>), except over the last two to three chunk lengths, which are cut
+    /// into quarters (at least <see cref="MinChunk"/> and eight warm-ups long) so that the threads
+    /// finish close together: at the end one thread waits for at most a quarter chunk, not a whole
+    /// one (a 60 s capture's chunks take about 80 ms each on one thread). A stream of at most 1.5
+    /// lengths is one chunk. Like the length, it depends on the stream only, never on the thread count.
+    /// </summary>
+    internal static long[] ChunkBounds(long expected, int length, int warmUp)
+    {
+        if (expected <= length * 3L / 2) return [0, expected];
+        int quarter = Math.Max(Math.Max(length / 4, MinChunk), 8 * warmUp);
+        if (quarter >= length) quarter = length;
+        long tailStart = Math.Max(0, (expected - 2L * length) / length * length);
+        var bounds = new List<long>();
+        for (long at = 0; at < tailStart; at += length) bounds.Add(at);
+        for (long at = tailStart; at < expected; at += quarter) bounds.Add(at);
+        bounds.Add(expected);
+        return [.. bounds];
     }
 
     /// <summary>Tests only: a smaller chunk, so that short captures run through several chunks (for the calling flow only, not for tests running beside it).</summary>
@@ -87,12 +108,13 @@ internal static class DemodulationPass
     /// </summary>
     public static bool NeedsJitter(double cutoffHz, double fsd) => 30 * Math.Min(cutoffHz, fsd / 2) > fsd;
 
-    private sealed record Setup(PassPlan P, double[] LpTaps, long Expected, int Settle, int DemodFft, double AmpRange, int ChunkLength, int Chunks, int WarmUp, bool JitterEnvelope, bool JitterFrequency,
+    private sealed record Setup(PassPlan P, double[] LpTaps, long Expected, int Settle, int DemodFft, double AmpRange, long[] Bounds, int WarmUp, bool JitterEnvelope, bool JitterFrequency,
                                 long FirstSegment, long SegmentCandidates, (double Intercept, double Slope)? Fit, double[]? Offsets)
     {
         public int Hop => DemodFft / 2;
-        public long ChunkStart(int c) => (long)c * ChunkLength;
-        public long ChunkEnd(int c) => c == Chunks - 1 ? Expected : (long)(c + 1) * ChunkLength;
+        public int Chunks => Bounds.Length - 1;
+        public long ChunkStart(int c) => Bounds[c];
+        public long ChunkEnd(int c) => Bounds[c + 1];
         /// <summary>First sample counted in the statistics.</summary>
         public long CountStart(int c) => c == 0 ? Settle : ChunkStart(c);
         /// <summary>First sample fed to the interpolators (they need <see cref="JitteredSampler.WarmUp"/> before their outputs count).</summary>
@@ -131,12 +153,12 @@ internal static class DemodulationPass
         // Decimated samples run before a chunk so that every filter holds only real input: the
         // channel filter, the 3-tap compensator, the low-pass, the interpolators and the one-pole filters.
         int warm = (p.ChannelSpan + p.Decimation - 1) / p.Decimation + lpTaps.Length + 3 + JitteredSampler.WarmUp + iir + 8;
-        int chunkLength = ChunkOutputsForTests ?? ChunkLength(expected, warm);
-        int chunks = expected <= chunkLength * 3L / 2 ? 1 : (int)((expected + chunkLength - 1) / chunkLength);
+        long[] bounds = ChunkBounds(expected, ChunkOutputsForTests ?? ChunkLength(expected, warm), warm);
+        int chunks = bounds.Length - 1;
         int hop = demodFft / 2;
         long firstSeg = (settle + hop - 1) / hop;
         long lastSeg = (expected - demodFft) / hop;
-        var s = new Setup(p, lpTaps, expected, settle, demodFft, p.Complex ? 1.5 : 0.75, chunkLength, chunks, warm,
+        var s = new Setup(p, lpTaps, expected, settle, demodFft, p.Complex ? 1.5 : 0.75, bounds, warm,
                           NeedsJitter(p.ChannelHalfWidthHz, p.Fsd), NeedsJitter(p.PostLowPassHz, p.Fsd), firstSeg, Math.Max(0, lastSeg - firstSeg + 1), fit, offsets);
 
         var sums = new ChunkSums[chunks];

@@ -45,8 +45,34 @@ public class ChunkingTests
         Assert.True(len >= DemodulationPass.MinChunk && len <= DemodulationPass.MaxChunk);
     }
 
+    [Theory]
+    [InlineData(28_800_000L, 1 << 20, 1200, 35, 1 << 18)]   // 60 s at 480 kS/s: 25 whole chunks, the last 2.47 lengths in 10 quarters
+    [InlineData(4_800_000L, 1 << 18, 1200, 26, 1 << 16)]    // 10 s: 16 whole, 2.31 lengths in 10 quarters
+    [InlineData(4_800_000L, 1 << 16, 1200, 74, 1 << 16)]    // a quarter would fall below the floor: whole lengths throughout
+    [InlineData(4_800_000L, 1 << 19, 30_000, 12, 240_000)]  // pieces of eight warm-ups (above a quarter): 7 whole, 5 pieces
+    [InlineData(150_000L, 1 << 17, 1200, 1, 150_000)]       // at most 1.5 lengths: one chunk
+    public void Chunks_cover_the_stream_with_quarters_at_its_end(long expected, int length, int warmUp, int chunks, int tailPiece)
+    {
+        // Internal consistency of the layout: contiguous from 0 to the end, whole lengths first,
+        // then pieces no longer than the tail's (a quarter, at least MinChunk and eight warm-ups)
+        // over the last two to three lengths, so that two threads end within a piece of each other.
+        long[] b = DemodulationPass.ChunkBounds(expected, length, warmUp);
+        Assert.Equal(chunks, b.Length - 1);
+        Assert.Equal(0, b[0]);
+        Assert.Equal(expected, b[^1]);
+        int c = 0;
+        for (; c < b.Length - 1 && b[c + 1] - b[c] == length && expected - b[c + 1] >= 2L * length; c++) { }
+        long tail = expected - b[c];
+        if (chunks > 1) Assert.InRange(tail, 2L * length, 3L * length - 1);
+        for (; c < b.Length - 1; c++)
+        {
+            Assert.InRange(b[c + 1] - b[c], 1, tailPiece);
+            if (c < b.Length - 2) Assert.Equal(tailPiece, b[c + 1] - b[c]);
+        }
+    }
+
     [Fact]
-    public void FM_through_five_chunks_is_the_same_on_one_thread_and_two_and_close_to_one_run()
+    public void FM_through_several_chunks_is_the_same_on_one_thread_and_two_and_close_to_one_run()
     {
         using var tmp = new TempDir();
         string path = Capture(tmp, new SignalSpec { Kind = SignalKind.Fm, SampleRateHz = 2.4e6, DurationS = 1.5, PeakDeviationHz = 75e3, ModulatingFrequencyHz = 1e3, CarrierOffsetHz = 12.5e3, SnrDb = 40 });
