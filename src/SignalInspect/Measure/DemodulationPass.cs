@@ -1,6 +1,7 @@
 using System.Diagnostics;
 using System.Numerics;
 using System.Runtime.InteropServices;
+using System.Runtime.Intrinsics;
 using SignalInspect.Capture;
 using SignalInspect.Dsp;
 
@@ -580,8 +581,19 @@ internal static class DemodulationPass
     /// Components with |v| &gt;= <paramref name="limit"/>, NaN not counted. The per-lane counts are
     /// kept in T: exact, as a block holds far fewer than 2^24 values.
     /// </summary>
-    private static long CountAtOrAbove<T>(ReadOnlySpan<T> v, T limit) where T : unmanaged, INumber<T>
+    internal static long CountAtOrAbove<T>(ReadOnlySpan<T> v, T limit) where T : unmanaged, INumber<T>
     {
+        if (Simd.Wide)
+        {
+            // The same count on 512-bit vectors (the loop reads every component of the capture once more).
+            var wl = Vector512.Create(limit);
+            Vector512<T> wacc = Vector512<T>.Zero;
+            ReadOnlySpan<Vector512<T>> wv = MemoryMarshal.Cast<T, Vector512<T>>(v);
+            foreach (Vector512<T> x in wv) wacc += Vector512.ConditionalSelect(Vector512.GreaterThanOrEqual(Vector512.Abs(x), wl), Vector512<T>.One, Vector512<T>.Zero);
+            long wide = long.CreateTruncating(Vector512.Sum(wacc));
+            for (int i = wv.Length * Vector512<T>.Count; i < v.Length; i++) if (T.Abs(v[i]) >= limit) wide++;
+            return wide;
+        }
         var lim = new Vector<T>(limit);
         Vector<T> acc = Vector<T>.Zero;
         ReadOnlySpan<Vector<T>> vv = MemoryMarshal.Cast<T, Vector<T>>(v);
