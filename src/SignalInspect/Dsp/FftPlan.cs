@@ -401,10 +401,6 @@ public sealed class FftPlan
         int n = _n, h = n / 2, q = h / 2;
         ref double ra = ref MemoryMarshal.GetReference(a), rb = ref MemoryMarshal.GetReference(b);
         ref double w = ref MemoryMarshal.GetReference(window);
-        ref double wAr = ref _twRe[_stageOffset[BitOperations.Log2((uint)h) + 1]];
-        ref double wAi = ref _twIm[_stageOffset[BitOperations.Log2((uint)h) + 1]];
-        ref double wBr = ref _twRe[_stageOffset[BitOperations.Log2((uint)q) + 1]];
-        ref double wBi = ref _twIm[_stageOffset[BitOperations.Log2((uint)q) + 1]];
         int a0 = (aTurn & 3) * q, a1 = ((aTurn + 1) & 3) * q, a2 = ((aTurn + 2) & 3) * q, a3 = ((aTurn + 3) & 3) * q;
         int b0 = (bTurn & 3) * q, b1 = ((bTurn + 1) & 3) * q, b2 = ((bTurn + 2) & 3) * q, b3 = ((bTurn + 3) & 3) * q;
         Vector256<double> acc = Vector256<double>.Zero;
@@ -416,14 +412,30 @@ public sealed class FftPlan
             Vector256<double> a2r = LoadV4(ref ra, a2 + k) * w2, a2i = LoadV4(ref rb, b2 + k) * w2;
             Vector256<double> a3r = LoadV4(ref ra, a3 + k) * w3, a3i = LoadV4(ref rb, b3 + k) * w3;
             acc += (a0r + a0i) + (a1r + a1i) + (a2r + a2i) + (a3r + a3i);
-            Butterfly22(a0r, a0i, a1r, a1i, a2r, a2i, a3r, a3i, LoadV4(ref wAr, k), LoadV4(ref wAi, k), LoadV4(ref wBr, k), LoadV4(ref wBi, k),
-                        out var y0r, out var y0i, out var y1r, out var y1i, out var y2r, out var y2i, out var y3r, out var y3i);
-            y0r.StoreUnsafe(ref reRef, (nuint)k); y0i.StoreUnsafe(ref imRef, (nuint)k);
-            y1r.StoreUnsafe(ref reRef, (nuint)(k + q)); y1i.StoreUnsafe(ref imRef, (nuint)(k + q));
-            y2r.StoreUnsafe(ref reRef, (nuint)(k + 2 * q)); y2i.StoreUnsafe(ref imRef, (nuint)(k + 2 * q));
-            y3r.StoreUnsafe(ref reRef, (nuint)(k + 3 * q)); y3i.StoreUnsafe(ref imRef, (nuint)(k + 3 * q));
+            FirstButterfly(a0r, a0i, a1r, a1i, a2r, a2i, a3r, a3i, k, q, ref reRef, ref imRef);
         }
         return Vector256.Sum(acc);
+    }
+
+    /// <summary>
+    /// The butterfly of the first double pass (half-size N/2, one group) on the windowed points
+    /// a0..a3 at k, k + q, k + 2q, k + 3q, stored at those places.
+    /// </summary>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    private void FirstButterfly(Vector256<double> a0r, Vector256<double> a0i, Vector256<double> a1r, Vector256<double> a1i,
+                                Vector256<double> a2r, Vector256<double> a2i, Vector256<double> a3r, Vector256<double> a3i, int k, int q, ref double reRef, ref double imRef)
+    {
+        int h = 2 * q;
+        ref double wAr = ref _twRe[_stageOffset[BitOperations.Log2((uint)h) + 1]];
+        ref double wAi = ref _twIm[_stageOffset[BitOperations.Log2((uint)h) + 1]];
+        ref double wBr = ref _twRe[_stageOffset[BitOperations.Log2((uint)q) + 1]];
+        ref double wBi = ref _twIm[_stageOffset[BitOperations.Log2((uint)q) + 1]];
+        Butterfly22(a0r, a0i, a1r, a1i, a2r, a2i, a3r, a3i, LoadV4(ref wAr, k), LoadV4(ref wAi, k), LoadV4(ref wBr, k), LoadV4(ref wBi, k),
+                    out var y0r, out var y0i, out var y1r, out var y1i, out var y2r, out var y2i, out var y3r, out var y3i);
+        y0r.StoreUnsafe(ref reRef, (nuint)k); y0i.StoreUnsafe(ref imRef, (nuint)k);
+        y1r.StoreUnsafe(ref reRef, (nuint)(k + q)); y1i.StoreUnsafe(ref imRef, (nuint)(k + q));
+        y2r.StoreUnsafe(ref reRef, (nuint)(k + 2 * q)); y2i.StoreUnsafe(ref imRef, (nuint)(k + 2 * q));
+        y3r.StoreUnsafe(ref reRef, (nuint)(k + 3 * q)); y3i.StoreUnsafe(ref imRef, (nuint)(k + 3 * q));
     }
 
     /// <summary>The passes after the first, from half-size <paramref name="h"/> down (see <see cref="Scrambled{T}"/>).</summary>
@@ -951,10 +963,6 @@ public sealed class FftPlan
         int n = _n, h = n / 2, q = h / 2;
         ref T x = ref MemoryMarshal.GetReference(samples);
         ref double w = ref MemoryMarshal.GetReference(window);
-        ref double wAr = ref _twRe[_stageOffset[BitOperations.Log2((uint)h) + 1]];
-        ref double wAi = ref _twIm[_stageOffset[BitOperations.Log2((uint)h) + 1]];
-        ref double wBr = ref _twRe[_stageOffset[BitOperations.Log2((uint)q) + 1]];
-        ref double wBi = ref _twIm[_stageOffset[BitOperations.Log2((uint)q) + 1]];
         Vector256<double> acc = Vector256<double>.Zero;
         for (int k = 0; k < q; k += 4)
         {
@@ -963,12 +971,7 @@ public sealed class FftPlan
             var (a2r, a2i) = LoadSplit(ref x, ref w, k + 2 * q);
             var (a3r, a3i) = LoadSplit(ref x, ref w, k + 3 * q);
             acc += (a0r + a0i) + (a1r + a1i) + (a2r + a2i) + (a3r + a3i);
-            Butterfly22(a0r, a0i, a1r, a1i, a2r, a2i, a3r, a3i, LoadV4(ref wAr, k), LoadV4(ref wAi, k), LoadV4(ref wBr, k), LoadV4(ref wBi, k),
-                        out var y0r, out var y0i, out var y1r, out var y1i, out var y2r, out var y2i, out var y3r, out var y3i);
-            y0r.StoreUnsafe(ref reRef, (nuint)k); y0i.StoreUnsafe(ref imRef, (nuint)k);
-            y1r.StoreUnsafe(ref reRef, (nuint)(k + q)); y1i.StoreUnsafe(ref imRef, (nuint)(k + q));
-            y2r.StoreUnsafe(ref reRef, (nuint)(k + 2 * q)); y2i.StoreUnsafe(ref imRef, (nuint)(k + 2 * q));
-            y3r.StoreUnsafe(ref reRef, (nuint)(k + 3 * q)); y3i.StoreUnsafe(ref imRef, (nuint)(k + 3 * q));
+            FirstButterfly(a0r, a0i, a1r, a1i, a2r, a2i, a3r, a3i, k, q, ref reRef, ref imRef);
         }
         return Vector256.Sum(acc);
     }

@@ -583,22 +583,22 @@ internal static class DemodulationPass
     /// </summary>
     internal static long CountAtOrAbove<T>(ReadOnlySpan<T> v, T limit) where T : unmanaged, INumber<T>
     {
+        long count = 0;
         if (Simd.Wide)
         {
-            // The same count on 512-bit vectors (the loop reads every component of the capture once more).
+            // On 512-bit vectors as far as they go (the loop reads every component of the capture once more).
             var wl = Vector512.Create(limit);
             Vector512<T> wacc = Vector512<T>.Zero;
             ReadOnlySpan<Vector512<T>> wv = MemoryMarshal.Cast<T, Vector512<T>>(v);
             foreach (Vector512<T> x in wv) wacc += Vector512.ConditionalSelect(Vector512.GreaterThanOrEqual(Vector512.Abs(x), wl), Vector512<T>.One, Vector512<T>.Zero);
-            long wide = long.CreateTruncating(Vector512.Sum(wacc));
-            for (int i = wv.Length * Vector512<T>.Count; i < v.Length; i++) if (T.Abs(v[i]) >= limit) wide++;
-            return wide;
+            count = long.CreateTruncating(Vector512.Sum(wacc));
+            v = v[(wv.Length * Vector512<T>.Count)..];
         }
         var lim = new Vector<T>(limit);
         Vector<T> acc = Vector<T>.Zero;
         ReadOnlySpan<Vector<T>> vv = MemoryMarshal.Cast<T, Vector<T>>(v);
         foreach (Vector<T> x in vv) acc += Vector.ConditionalSelect(Vector.GreaterThanOrEqual(Vector.Abs(x), lim), Vector<T>.One, Vector<T>.Zero);
-        long count = long.CreateTruncating(Vector.Sum(acc));
+        count += long.CreateTruncating(Vector.Sum(acc));
         for (int i = vv.Length * Vector<T>.Count; i < v.Length; i++) if (T.Abs(v[i]) >= limit) count++;
         return count;
     }
