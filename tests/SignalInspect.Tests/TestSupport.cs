@@ -81,3 +81,16 @@ internal static class Near
             $"{what ?? "value"}: expected {expected:R} +/- {tolerance:R}, got {actual:R} (off by {Math.Abs(expected - actual):G3})");
     }
 }
+
+/// <summary>Runs code on the 256-bit kernels (<paramref name="narrow"/>) or on those the CPU has (512-bit where it can), for the calling flow only, then restores the default.</summary>
+internal static class VectorWidth
+{
+    public static T Run<T>(bool narrow, Func<T> run)
+    {
+        SignalInspect.Dsp.Simd.NarrowForTests = narrow;
+        try { return run(); }
+        finally { SignalInspect.Dsp.Simd.NarrowForTests = false; }
+    }
+
+    public static void Run(bool narrow, Action run) => Run(narrow, () => { run(); return 0; });
+}

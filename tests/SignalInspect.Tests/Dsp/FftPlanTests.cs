@@ -197,18 +197,13 @@ public class FftPlanTests
         var rng = new Random(n);
         double[] x = [.. Enumerable.Range(0, 3 * n).Select(_ => rng.NextDouble() - 0.5)];
         double[] w = [.. Enumerable.Range(0, n).Select(i => 0.5 - 0.5 * Math.Cos(2 * Math.PI * i / n))];
-        (double[], double[]) Run(bool narrow)
+        (double[], double[]) Run(bool narrow) => VectorWidth.Run(narrow, () =>
         {
-            Simd.NarrowForTests = narrow;
-            try
-            {
-                var plan = new FftPlan(n);
-                double[] re = new double[n], im = new double[n];
-                plan.ForwardWindowedScrambled(x, complex: true, w, re, im);
-                return (re, im);
-            }
-            finally { Simd.NarrowForTests = false; }
-        }
+            var plan = new FftPlan(n);
+            double[] re = new double[n], im = new double[n];
+            plan.ForwardWindowedScrambled(x, complex: true, w, re, im);
+            return (re, im);
+        });
         var (wr, wi) = Run(false);
         var (nr, ni) = Run(true);
         Assert.Equal(nr, wr);
@@ -216,19 +211,14 @@ public class FftPlanTests
         // The Welch inner step from single-precision samples (a cf32 capture as stored): its own
         // loads and widening in the first pass, then the power sums.
         float[] xf = [.. x.Select(v => (float)v)];
-        (double[], double[]) Powers(bool narrow)
+        (double[], double[]) Powers(bool narrow) => VectorWidth.Run(narrow, () =>
         {
-            Simd.NarrowForTests = narrow;
-            try
-            {
-                var plan = new FftPlan(n);
-                double[] re = new double[n], im = new double[n], sum = new double[n], max = new double[n];
-                plan.ForwardPowerScrambled(xf, complex: true, w, re, im, sum, max, default, rowMax: false);
-                plan.ForwardPowerScrambled(xf.AsSpan(n), complex: true, w, re, im, sum, max, default, rowMax: false);
-                return (sum, max);
-            }
-            finally { Simd.NarrowForTests = false; }
-        }
+            var plan = new FftPlan(n);
+            double[] re = new double[n], im = new double[n], sum = new double[n], max = new double[n];
+            plan.ForwardPowerScrambled(xf, complex: true, w, re, im, sum, max, default, rowMax: false);
+            plan.ForwardPowerScrambled(xf.AsSpan(n), complex: true, w, re, im, sum, max, default, rowMax: false);
+            return (sum, max);
+        });
         var (ws, wm) = Powers(false);
         var (ns, nm) = Powers(true);
         Assert.Equal(ns, ws);
@@ -372,16 +362,11 @@ public class FftPlanTests
         var rng = new Random(n + 2);
         float[] x = [.. Enumerable.Range(0, 2 * n).Select(_ => (float)(rng.NextDouble() - 0.5))];
         double[] w = HannOf(n);
-        (double[], double[], double) Run(bool narrow)
+        (double[], double[], double) Run(bool narrow) => VectorWidth.Run(narrow, () =>
         {
-            Simd.NarrowForTests = narrow;
-            try
-            {
-                var plan = new FftPlan(n);
-                return plan.CanSingle ? PowersOf(plan, x, w, single: true) : ([], [], 0);
-            }
-            finally { Simd.NarrowForTests = false; }
-        }
+            var plan = new FftPlan(n);
+            return plan.CanSingle ? PowersOf(plan, x, w, single: true) : ([], [], 0);
+        });
         var (ws, wm, wc) = Run(false);
         var (ns, nm, nc) = Run(true);
         Assert.Equal(ns, ws);

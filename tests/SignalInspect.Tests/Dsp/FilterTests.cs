@@ -88,9 +88,7 @@ public class FilterTests
         // narrow: the 256-bit filter sums even where 512-bit ones are available (both paths are checked here).
         // twoStage: the reference does each step on its own in double: shift, the half-band convolution,
         // every other output (those at odd input samples), the second convolution, one in M / 2.
-        Simd.NarrowForTests = narrow;
-        try { DecimatorAgainstDouble(complex, decimation, taps, twoStage ? FirDesign.HalfBand(160e3, 2.4e6, 80) : null); }
-        finally { Simd.NarrowForTests = false; }
+        VectorWidth.Run(narrow, () => DecimatorAgainstDouble(complex, decimation, taps, twoStage ? FirDesign.HalfBand(160e3, 2.4e6, 80) : null));
     }
 
     [Theory]
@@ -138,21 +136,16 @@ public class FilterTests
         var rng = new Random(13);
         double[] hb = FirDesign.HalfBand(142.5e3, 2.4e6, 80), h = FirDesign.LowPass(118e3, 1.2e6, 47e3, 80, 4095);
         double[] input = [.. Enumerable.Range(0, 2 * 30_000).Select(_ => rng.NextDouble() * 2 - 1)];
-        (double[] Re, double[] Im) Run(int[] sizes, bool narrow, bool reset)
+        (double[] Re, double[] Im) Run(int[] sizes, bool narrow, bool reset) => VectorWidth.Run(narrow, () =>
         {
-            Simd.NarrowForTests = narrow;
-            try
+            var dec = new ChannelDecimator(h, 6, -12_345.6, 2.4e6, true, hb);
+            if (reset)
             {
-                var dec = new ChannelDecimator(h, 6, -12_345.6, 2.4e6, true, hb);
-                if (reset)
-                {
-                    dec.Process(input.AsSpan(0, 2 * 777), new double[200], new double[200]);
-                    dec.Reset();
-                }
-                return InPieces(dec, input, sizes);
+                dec.Process(input.AsSpan(0, 2 * 777), new double[200], new double[200]);
+                dec.Reset();
             }
-            finally { Simd.NarrowForTests = false; }
-        }
+            return InPieces(dec, input, sizes);
+        });
         var whole = Run([30_000], false, false);
         Assert.Equal(5000, whole.Re.Length);
         foreach (var other in new[] { Run([7, 13, 1, 5000, 11, 24_968], false, false), Run([3, 1024, 1, 2047, 26_925], true, false), Run([30_000], true, true) })
@@ -183,8 +176,7 @@ public class FilterTests
     public void Channel_decimator_outputs_do_not_depend_on_the_block_sizes(bool narrow)
     {
         // An output is the same sum whether it was computed four at a time or at a block's end.
-        Simd.NarrowForTests = narrow;
-        try
+        VectorWidth.Run(narrow, () =>
         {
             var rng = new Random(11);
             double[] h = FirDesign.LowPass(100e3, 2.4e6, 60e3, 80, 255);
@@ -194,8 +186,7 @@ public class FilterTests
             var pieces = Run([7, 13, 1, 5000, 11, 24_968]);
             Assert.Equal(whole.Re, pieces.Re);
             Assert.Equal(whole.Im, pieces.Im);
-        }
-        finally { Simd.NarrowForTests = false; }
+        });
     }
 
     [Fact]
@@ -208,18 +199,13 @@ public class FilterTests
         double[] input = [.. Enumerable.Range(0, 2 * 20_000).Select(_ => rng.NextDouble() * 2 - 1)];
         input[777] = double.NaN;
         float[] inputF = [.. input.Select(v => (float)v)];
-        (double[], double[], double[], double[]) Run(bool narrow)
+        (double[], double[], double[], double[]) Run(bool narrow) => VectorWidth.Run(narrow, () =>
         {
-            Simd.NarrowForTests = narrow;
-            try
-            {
-                double[] re = new double[4000], im = new double[4000], reF = new double[4000], imF = new double[4000];
-                new ChannelDecimator(h, 6, -12_345.6, 2.4e6, true).Process(input, re, im);
-                new ChannelDecimator(h, 6, -12_345.6, 2.4e6, true).Process(inputF, reF, imF);
-                return (re, im, reF, imF);
-            }
-            finally { Simd.NarrowForTests = false; }
-        }
+            double[] re = new double[4000], im = new double[4000], reF = new double[4000], imF = new double[4000];
+            new ChannelDecimator(h, 6, -12_345.6, 2.4e6, true).Process(input, re, im);
+            new ChannelDecimator(h, 6, -12_345.6, 2.4e6, true).Process(inputF, reF, imF);
+            return (re, im, reF, imF);
+        });
         var wide = Run(false);
         var narrow = Run(true);
         Assert.Equal(narrow.Item1, wide.Item1);

@@ -1,4 +1,3 @@
-using SignalInspect.Dsp;
 using SignalInspect.Measure;
 
 namespace SignalInspect.Tests.Measure;
@@ -32,14 +31,10 @@ public class FullScaleCountTests
         long want = f.Count(v => Math.Abs(v) >= limitF);
         long wantD = d.Count(v => Math.Abs(v) >= 0.9999);
         foreach (bool narrow in new[] { false, true })
-        {
-            Simd.NarrowForTests = narrow;
-            try
+            VectorWidth.Run(narrow, () =>
             {
                 Assert.Equal(want, DemodulationPass.CountAtOrAbove<float>(f, limitF));
                 Assert.Equal(wantD, DemodulationPass.CountAtOrAbove<double>(d, 0.9999));
-            }
-            finally { Simd.NarrowForTests = false; }
-        }
+            });
     }
 }
