@@ -7,22 +7,63 @@ using SignalInspect.Measure;
 
 namespace SignalInspect.Cli;
 
-/// <summary><c>signalinspect batch</c>: triage of many recordings into one summary; <c>batch merge</c> joins shard outputs.</summary>
+/// <summary><c>signalinspect batch</c>: triage of many recordings into one summary; <c>batch merge</c> joins shard
+/// outputs.</summary>
 internal static class BatchCommand
 {
     public static Command Create(TextWriter stdout, TextWriter stderr)
     {
-        var inputs = new Argument<string[]>("inputs") { Description = "Folders (searched recursively), files or patterns (*.wav) of captures. Raw files need --datatype/--sample-rate, or a sidecar FILE.si.json.", Arity = ArgumentArity.OneOrMore };
-        var outDir = new Option<string>("--out") { Description = "Output folder: summary.csv, summary.jsonl, summary.pdf, thumbs/, reports/.", Required = true, HelpName = "DIR" };
-        var limits = new Option<string?>("--limits") { Description = "Limit profile (see profiles/README.md): a verdict per capture.", HelpName = "PROFILE" };
-        var jobs = new Option<int>("--jobs") { Description = "Captures analysed at once (default: one per core).", DefaultValueFactory = _ => Math.Max(1, Environment.ProcessorCount), HelpName = "N" };
-        var reports = new Option<bool>("--reports") { Description = "Also write a PDF report (and its JSON) per capture into DIR/reports/." };
-        var resume = new Option<bool>("--resume") { Description = "Keep the records already in DIR/summary.jsonl and skip those captures (matched by content hash)." };
-        var shard = new Option<string?>("--shard") { Description = "Analyse only shard I of N (1-based; inputs split by a hash of their path), for running shards under a scheduler; join them with 'batch merge'.", HelpName = "I/N" };
-        var reader = new ReaderOptionSet();
-        var cmd = new Command("batch", "Triage many captures: analyse each (in parallel, bounded memory), one bad file becomes an error row, and write one summary (CSV, JSON Lines, PDF with spectrum thumbnails). Exit code 2 when a capture could not be read, else 1 when one failed a limit, else 0.")
+        var inputs = new Argument<string[]>("inputs")
         {
-            inputs, outDir, limits, jobs, reports, resume, shard,
+            Description =
+                "Folders (searched recursively), files or patterns (*.wav) of captures. Raw files need --datatype/--sample-rate, or a sidecar FILE.si.json.",
+            Arity = ArgumentArity.OneOrMore,
+        };
+        var outDir = new Option<string>("--out")
+        {
+            Description = "Output folder: summary.csv, summary.jsonl, summary.pdf, thumbs/, reports/.",
+            Required = true,
+            HelpName = "DIR",
+        };
+        var limits = new Option<string?>("--limits")
+        {
+            Description = "Limit profile (see profiles/README.md): a verdict per capture.",
+            HelpName = "PROFILE",
+        };
+        var jobs = new Option<int>("--jobs")
+        {
+            Description = "Captures analysed at once (default: one per core).",
+            DefaultValueFactory = _ => Math.Max(1, Environment.ProcessorCount),
+            HelpName = "N",
+        };
+        var reports = new Option<bool>("--reports")
+        {
+            Description = "Also write a PDF report (and its JSON) per capture into DIR/reports/.",
+        };
+        var resume = new Option<bool>("--resume")
+        {
+            Description =
+                "Keep the records already in DIR/summary.jsonl and skip those captures (matched by content hash).",
+        };
+        var shard = new Option<string?>("--shard")
+        {
+            Description =
+                "Analyse only shard I of N (1-based; inputs split by a hash of their path), for running shards under a scheduler; join them with 'batch merge'.",
+            HelpName = "I/N",
+        };
+        var reader = new ReaderOptionSet();
+        var cmd = new Command(
+            "batch",
+            "Triage many captures: analyse each (in parallel, bounded memory), one bad file becomes an error row, and write one summary (CSV, JSON Lines, PDF with spectrum thumbnails). Exit code 2 when a capture could not be read, else 1 when one failed a limit, else 0."
+        )
+        {
+            inputs,
+            outDir,
+            limits,
+            jobs,
+            reports,
+            resume,
+            shard,
         };
         reader.AddTo(cmd);
         cmd.Add(MergeCommand(stdout, stderr));
@@ -32,7 +73,8 @@ internal static class BatchCommand
             string? profilePath = r.GetValue(limits);
             LimitProfile? profile = profilePath is null ? null : LimitProfile.Load(profilePath);
             int j = r.GetValue(jobs);
-            if (j < 1 || j > 256) throw new UsageException($"--jobs: {j} must be from 1 to 256");
+            if (j < 1 || j > 256)
+                throw new UsageException($"--jobs: {j} must be from 1 to 256");
             IReadOnlyList<BatchInput> found = BatchRunner.Discover(r.GetValue(inputs)!, reader.Read(r));
             var options = new BatchOptions
             {
@@ -48,13 +90,20 @@ internal static class BatchCommand
             };
             int mine = found.Count(f => BatchRunner.ShardOf(f.Key, count) == index - 1);
             long bytes = found.Where(f => BatchRunner.ShardOf(f.Key, count) == index - 1).Sum(f => f.Bytes);
-            stderr.WriteLine(string.Create(CultureInfo.InvariantCulture, $"batch: {found.Count} capture(s) found, {mine} in shard {index}/{count} ({bytes / 1e6:0.#} MB), {j} job(s)"));
+            stderr.WriteLine(
+                string.Create(
+                    CultureInfo.InvariantCulture,
+                    $"batch: {found.Count} capture(s) found, {mine} in shard {index}/{count} ({bytes / 1e6:0.#} MB), {j} job(s)"
+                )
+            );
             using var cts = new CancellationTokenSource();
             ConsoleCancelEventHandler onCancel = (_, e) =>
             {
                 e.Cancel = true;
                 cts.Cancel();
-                stderr.WriteLine("batch: stopping after the captures in progress; the summary keeps what is done (use --resume to go on)");
+                stderr.WriteLine(
+                    "batch: stopping after the captures in progress; the summary keeps what is done (use --resume to go on)"
+                );
             };
             Console.CancelKeyPress += onCancel;
             var clock = Stopwatch.StartNew();
@@ -63,22 +112,37 @@ internal static class BatchCommand
             BatchOutcome outcome;
             try
             {
-                outcome = BatchRunner.Run(found, options, (rec, input) =>
-                {
-                    doneFiles++;
-                    doneBytes += input.Bytes;
-                    double mbs = doneBytes / 1e6 / Math.Max(clock.Elapsed.TotalSeconds, 1e-3);
-                    double left = mbs > 0 ? (bytes - doneBytes) / 1e6 / mbs : 0;
-                    string what = rec.Status == "ok" ? $"{rec.Modulation}{(rec.Verdict is { } v ? " " + v : string.Empty)}" : "error: " + rec.Error;
-                    stderr.WriteLine(string.Create(CultureInfo.InvariantCulture, $"batch: [{doneFiles}/{mine}] {Path.GetFileName(rec.File)}: {what} ({mbs:0.#} MB/s, about {left:0} s left)"));
-                }, cts.Token);
+                outcome = BatchRunner.Run(
+                    found,
+                    options,
+                    (rec, input) =>
+                    {
+                        doneFiles++;
+                        doneBytes += input.Bytes;
+                        double mbs = doneBytes / 1e6 / Math.Max(clock.Elapsed.TotalSeconds, 1e-3);
+                        double left = mbs > 0 ? (bytes - doneBytes) / 1e6 / mbs : 0;
+                        string what =
+                            rec.Status == "ok"
+                                ? $"{rec.Modulation}{(rec.Verdict is { } v ? " " + v : string.Empty)}"
+                                : "error: " + rec.Error;
+                        stderr.WriteLine(
+                            string.Create(
+                                CultureInfo.InvariantCulture,
+                                $"batch: [{doneFiles}/{mine}] {Path.GetFileName(rec.File)}: {what} ({mbs:0.#} MB/s, about {left:0} s left)"
+                            )
+                        );
+                    },
+                    cts.Token
+                );
             }
             finally
             {
                 Console.CancelKeyPress -= onCancel;
             }
             WriteCounts(stdout, outcome.Records);
-            stdout.WriteLine($"analysed {outcome.Analysed}, skipped {outcome.Skipped} (already in the summary){(outcome.Cancelled ? ", stopped before the end" : string.Empty)}; wrote {Path.Combine(options.OutDir, "summary.csv")}, summary.jsonl, summary.pdf");
+            stdout.WriteLine(
+                $"analysed {outcome.Analysed}, skipped {outcome.Skipped} (already in the summary){(outcome.Cancelled ? ", stopped before the end" : string.Empty)}; wrote {Path.Combine(options.OutDir, "summary.csv")}, summary.jsonl, summary.pdf"
+            );
             return ExitCode(outcome.Records);
         });
         return cmd;
@@ -86,9 +150,22 @@ internal static class BatchCommand
 
     private static Command MergeCommand(TextWriter stdout, TextWriter stderr)
     {
-        var dirs = new Argument<string[]>("dirs") { Description = "Output folders of batch shards.", Arity = ArgumentArity.OneOrMore };
-        var outDir = new Option<string>("--out") { Description = "Folder for the joined summary.", Required = true, HelpName = "DIR" };
-        var cmd = new Command("merge", "Join the summaries of several batch output folders (e.g. shards) into one.") { dirs, outDir };
+        var dirs = new Argument<string[]>("dirs")
+        {
+            Description = "Output folders of batch shards.",
+            Arity = ArgumentArity.OneOrMore,
+        };
+        var outDir = new Option<string>("--out")
+        {
+            Description = "Folder for the joined summary.",
+            Required = true,
+            HelpName = "DIR",
+        };
+        var cmd = new Command("merge", "Join the summaries of several batch output folders (e.g. shards) into one.")
+        {
+            dirs,
+            outDir,
+        };
         cmd.SetAction(r =>
         {
             IReadOnlyList<BatchRecord> all = BatchRunner.Merge(r.GetValue(dirs)!, r.GetValue(outDir)!);
@@ -101,23 +178,57 @@ internal static class BatchCommand
 
     internal static (int Index, int Count) ParseShard(string? text)
     {
-        if (text is null) return (1, 1);
+        if (text is null)
+            return (1, 1);
         string[] p = text.Split('/');
-        if (p.Length == 2 && int.TryParse(p[0], NumberStyles.None, CultureInfo.InvariantCulture, out int i) && int.TryParse(p[1], NumberStyles.None, CultureInfo.InvariantCulture, out int n) && n >= 1 && i >= 1 && i <= n)
+        if (
+            p.Length == 2
+            && int.TryParse(p[0], NumberStyles.None, CultureInfo.InvariantCulture, out int i)
+            && int.TryParse(p[1], NumberStyles.None, CultureInfo.InvariantCulture, out int n)
+            && n >= 1
+            && i >= 1
+            && i <= n
+        )
             return (i, n);
         throw new UsageException($"--shard: '{text}' is not I/N with 1 <= I <= N (e.g. 2/8)");
     }
 
     private static int ExitCode(IReadOnlyList<BatchRecord> records) =>
-        records.Any(r => r.Status == "error") ? ExitCodes.BadInput : records.Any(r => r.Verdict == "FAIL") ? ExitCodes.LimitFailed : ExitCodes.Success;
+        records.Any(r => r.Status == "error") ? ExitCodes.BadInput
+        : records.Any(r => r.Verdict == "FAIL") ? ExitCodes.LimitFailed
+        : ExitCodes.Success;
 
     private static void WriteCounts(TextWriter o, IReadOnlyList<BatchRecord> records)
     {
-        o.WriteLine($"captures              {records.Count} ({records.Count(r => r.Status == "ok")} ok, {records.Count(r => r.Status == "error")} could not be read)");
-        o.WriteLine("by modulation         " + string.Join(", ", records.Where(r => r.Status == "ok").GroupBy(r => r.Modulation).OrderBy(g => g.Key, StringComparer.Ordinal).Select(g => $"{g.Key} {g.Count()}")));
+        o.WriteLine(
+            $"captures              {records.Count} ({records.Count(r => r.Status == "ok")} ok, {records.Count(r => r.Status == "error")} could not be read)"
+        );
+        o.WriteLine(
+            "by modulation         "
+                + string.Join(
+                    ", ",
+                    records
+                        .Where(r => r.Status == "ok")
+                        .GroupBy(r => r.Modulation)
+                        .OrderBy(g => g.Key, StringComparer.Ordinal)
+                        .Select(g => $"{g.Key} {g.Count()}")
+                )
+        );
         if (records.Any(r => r.Verdict is not null))
-            o.WriteLine("by verdict            " + string.Join(", ", records.Where(r => r.Verdict is not null).GroupBy(r => r.Verdict).OrderBy(g => g.Key, StringComparer.Ordinal).Select(g => $"{g.Key} {g.Count()}")));
-        foreach (BatchRecord r in records.Where(r => r.Status == "error")) o.WriteLine($"error                 {r.File}: {r.Error}");
-        foreach (BatchRecord r in records.Where(r => r.Verdict == "FAIL")) o.WriteLine($"FAIL                  {r.File}");
+            o.WriteLine(
+                "by verdict            "
+                    + string.Join(
+                        ", ",
+                        records
+                            .Where(r => r.Verdict is not null)
+                            .GroupBy(r => r.Verdict)
+                            .OrderBy(g => g.Key, StringComparer.Ordinal)
+                            .Select(g => $"{g.Key} {g.Count()}")
+                    )
+            );
+        foreach (BatchRecord r in records.Where(r => r.Status == "error"))
+            o.WriteLine($"error                 {r.File}: {r.Error}");
+        foreach (BatchRecord r in records.Where(r => r.Verdict == "FAIL"))
+            o.WriteLine($"FAIL                  {r.File}");
     }
 }

@@ -11,20 +11,29 @@ namespace SignalInspect.Cli;
 /// </summary>
 public static class Cli
 {
-    /// <summary>Runs the tool with <paramref name="args"/>, writing to the given streams; returns the exit code.</summary>
+    /// <summary>Runs the tool with <paramref name="args"/>, writing to the given streams; returns the exit
+    /// code.</summary>
     public static int Run(string[] args, TextWriter stdout, TextWriter stderr)
     {
         RootCommand root = Build(stdout, stderr);
         ParseResult parsed = root.Parse(args);
         if (parsed.Errors.Count > 0)
         {
-            foreach (var e in parsed.Errors) stderr.WriteLine($"signalinspect: error: {OneLine(e.Message)}");
+            foreach (var e in parsed.Errors)
+                stderr.WriteLine($"signalinspect: error: {OneLine(e.Message)}");
             stderr.WriteLine("signalinspect: try 'signalinspect --help' or 'signalinspect COMMAND --help'");
             return ExitCodes.BadInput;
         }
         try
         {
-            return parsed.Invoke(new InvocationConfiguration { EnableDefaultExceptionHandler = false, Output = stdout, Error = stderr });
+            return parsed.Invoke(
+                new InvocationConfiguration
+                {
+                    EnableDefaultExceptionHandler = false,
+                    Output = stdout,
+                    Error = stderr,
+                }
+            );
         }
         catch (Exception e) when (UserMessage(e) is { } message)
         {
@@ -34,29 +43,36 @@ public static class Cli
         catch (Exception e)
         {
             stderr.WriteLine($"signalinspect: internal error: {e.GetType().Name}: {OneLine(e.Message)}");
-            stderr.WriteLine("This is a bug in SignalInspect. Please report it with the command line and the details below.");
+            stderr.WriteLine(
+                "This is a bug in SignalInspect. Please report it with the command line and the details below."
+            );
             stderr.WriteLine(e.ToString());
             return ExitCodes.InternalError;
         }
     }
 
     /// <summary>The one-line message of a user error, or null when the exception is a bug.</summary>
-    internal static string? UserMessage(Exception e) => e switch
-    {
-        CaptureException c => OneLine(c.Message),
-        UsageException u => OneLine(u.Message),
-        ArgumentOutOfRangeException a when a.ParamName?.StartsWith("--", StringComparison.Ordinal) == true =>
-            $"{a.ParamName}: {OneLine(a.Message.Split(" (Parameter", 2)[0])} (got {a.ActualValue})",
-        _ => null,
-    };
+    internal static string? UserMessage(Exception e) =>
+        e switch
+        {
+            CaptureException c => OneLine(c.Message),
+            UsageException u => OneLine(u.Message),
+            ArgumentOutOfRangeException a when a.ParamName?.StartsWith("--", StringComparison.Ordinal) == true =>
+                $"{a.ParamName}: {OneLine(a.Message.Split(" (Parameter", 2)[0])} (got {a.ActualValue})",
+            _ => null,
+        };
 
     private static RootCommand Build(TextWriter stdout, TextWriter stderr)
     {
-        string version = typeof(Cli).Assembly.GetCustomAttribute<AssemblyInformationalVersionAttribute>()?.InformationalVersion.Split('+')[0] ?? "0";
+        string version = typeof(Cli)
+            .Assembly.GetCustomAttribute<AssemblyInformationalVersionAttribute>()
+            ?.InformationalVersion.Split('+')[0]
+            ?? "0";
         var root = new RootCommand(
-            $"SignalInspect {version}: offline measurements of radio signal recordings (WAV/RF64 audio or IQ, raw IQ, SigMF).\n" +
-            "Exit codes: 0 success, 1 a limit failed, 2 bad input or usage, 3 internal error.\n" +
-            "Captures are read through a memory map; SIGNALINSPECT_NO_MAP=1 reads them with copies (for files another program may truncate meanwhile).")
+            $"SignalInspect {version}: offline measurements of radio signal recordings (WAV/RF64 audio or IQ, raw IQ, SigMF).\n"
+                + "Exit codes: 0 success, 1 a limit failed, 2 bad input or usage, 3 internal error.\n"
+                + "Captures are read through a memory map; SIGNALINSPECT_NO_MAP=1 reads them with copies (for files another program may truncate meanwhile)."
+        )
         {
             InfoCommand.Create(stdout, stderr),
             SynthCommand.Create(stdout, stderr),

@@ -14,14 +14,23 @@ internal static class CliProgress
 
     public static T Run<T>(TextWriter stderr, string label, long total, Func<Action<long>, T> work)
     {
-        bool terminal = ReferenceEquals(stderr, Console.Error) && !Console.IsErrorRedirected && AnsiConsole.Profile.Capabilities.Interactive;
+        bool terminal =
+            ReferenceEquals(stderr, Console.Error)
+            && !Console.IsErrorRedirected
+            && AnsiConsole.Profile.Capabilities.Interactive;
         if (terminal)
         {
             T result = default!;
             var console = AnsiConsole.Create(new AnsiConsoleSettings { Out = new AnsiConsoleOutput(Console.Error) });
-            console.Progress()
+            console
+                .Progress()
                 .AutoClear(true)
-                .Columns(new TaskDescriptionColumn(), new ProgressBarColumn(), new PercentageColumn(), new RemainingTimeColumn())
+                .Columns(
+                    new TaskDescriptionColumn(),
+                    new ProgressBarColumn(),
+                    new PercentageColumn(),
+                    new RemainingTimeColumn()
+                )
                 .Start(ctx =>
                 {
                     ProgressTask task = ctx.AddTask(label, maxValue: Math.Max(total, 1));
@@ -35,13 +44,17 @@ internal static class CliProgress
         object gate = new();
         return work(done =>
         {
-            if (clock.Elapsed < next) return;
+            if (clock.Elapsed < next)
+                return;
             lock (gate)
             {
-                if (clock.Elapsed < next) return;
+                if (clock.Elapsed < next)
+                    return;
                 next = clock.Elapsed + PlainInterval;
                 double pct = total > 0 ? 100.0 * done / total : 0;
-                stderr.WriteLine(string.Create(CultureInfo.InvariantCulture, $"{label}: {pct:0}% ({clock.Elapsed.TotalSeconds:0} s)"));
+                stderr.WriteLine(
+                    string.Create(CultureInfo.InvariantCulture, $"{label}: {pct:0}% ({clock.Elapsed.TotalSeconds:0} s)")
+                );
             }
         });
     }

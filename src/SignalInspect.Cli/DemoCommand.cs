@@ -18,23 +18,73 @@ namespace SignalInspect.Cli;
 internal static class DemoCommand
 {
     /// <summary>The demo captures: file name, datatype, spec, profile, equipment.</summary>
-    internal static IReadOnlyList<(string File, string Datatype, SignalSpec Spec, string Profile, string Equipment)> Scenario { get; } =
+    internal static IReadOnlyList<(
+        string File,
+        string Datatype,
+        SignalSpec Spec,
+        string Profile,
+        string Equipment
+    )> Scenario
+    { get; } =
     [
-        ("hwa-handheld-ch7.sigmf", "cf32_le", new SignalSpec
-        {
-            Kind = SignalKind.Fm, SampleRateHz = 48_000, DurationS = 2, CenterFrequencyHz = 155_312_500,
-            CarrierOffsetHz = 180, Amplitude = 0.5, ModulatingFrequencyHz = 1000, PeakDeviationHz = 3100, SnrDb = 60, Seed = 7,
-        }, "land-mobile-12k5-vhf.json", "HWA handheld, fleet no. 7 (channel 7, 155.3125 MHz)"),
-        ("hwa-am-test-set.wav", "ci16_le", new SignalSpec
-        {
-            Kind = SignalKind.Am, SampleRateHz = 32_000, DurationS = 2, CenterFrequencyHz = 1_530_000,
-            CarrierOffsetHz = -40, Amplitude = 0.4, ModulatingFrequencyHz = 1000, AmDepth = 0.92, SnrDb = 45, Seed = 11,
-        }, "am-broadcast.json", "HWA information transmitter on the test bench (1530 kHz)"),
-        ("hwa-telemetry-burst.sigmf-meta", "ci16_le", new SignalSpec
-        {
-            Kind = SignalKind.Fsk, SampleRateHz = 96_000, DurationS = 1.5, CenterFrequencyHz = 457_987_500,
-            CarrierOffsetHz = 640, Amplitude = 0.5, FskShiftHz = 1000, SymbolRateBd = 1200, DriftHzPerS = 40, SnrDb = 40, Seed = 3,
-        }, "land-mobile-12k5-uhf.json", "HWA pump-station telemetry modem (457.9875 MHz)"),
+        (
+            "hwa-handheld-ch7.sigmf",
+            "cf32_le",
+            new SignalSpec
+            {
+                Kind = SignalKind.Fm,
+                SampleRateHz = 48_000,
+                DurationS = 2,
+                CenterFrequencyHz = 155_312_500,
+                CarrierOffsetHz = 180,
+                Amplitude = 0.5,
+                ModulatingFrequencyHz = 1000,
+                PeakDeviationHz = 3100,
+                SnrDb = 60,
+                Seed = 7,
+            },
+            "land-mobile-12k5-vhf.json",
+            "HWA handheld, fleet no. 7 (channel 7, 155.3125 MHz)"
+        ),
+        (
+            "hwa-am-test-set.wav",
+            "ci16_le",
+            new SignalSpec
+            {
+                Kind = SignalKind.Am,
+                SampleRateHz = 32_000,
+                DurationS = 2,
+                CenterFrequencyHz = 1_530_000,
+                CarrierOffsetHz = -40,
+                Amplitude = 0.4,
+                ModulatingFrequencyHz = 1000,
+                AmDepth = 0.92,
+                SnrDb = 45,
+                Seed = 11,
+            },
+            "am-broadcast.json",
+            "HWA information transmitter on the test bench (1530 kHz)"
+        ),
+        (
+            "hwa-telemetry-burst.sigmf-meta",
+            "ci16_le",
+            new SignalSpec
+            {
+                Kind = SignalKind.Fsk,
+                SampleRateHz = 96_000,
+                DurationS = 1.5,
+                CenterFrequencyHz = 457_987_500,
+                CarrierOffsetHz = 640,
+                Amplitude = 0.5,
+                FskShiftHz = 1000,
+                SymbolRateBd = 1200,
+                DriftHzPerS = 40,
+                SnrDb = 40,
+                Seed = 3,
+            },
+            "land-mobile-12k5-uhf.json",
+            "HWA pump-station telemetry modem (457.9875 MHz)"
+        ),
     ];
 
     /// <summary>Reads one of the example profiles shipped in profiles/ (embedded in the tool).</summary>
@@ -48,8 +98,20 @@ internal static class DemoCommand
 
     public static Command Create(TextWriter stdout, TextWriter stderr)
     {
-        var outDir = new Option<string>("--out") { Description = "Folder for the demo's outputs: its 'demo' subfolder is created and its files replaced on each run.", DefaultValueFactory = _ => "reports", HelpName = "DIR" };
-        var cmd = new Command("demo", "Run the built-in scenario: synthesise the Harbour Water Authority's three recordings, measure each against a limit profile and write a PDF report for each into DIR/demo/.") { outDir };
+        var outDir = new Option<string>("--out")
+        {
+            Description =
+                "Folder for the demo's outputs: its 'demo' subfolder is created and its files replaced on each run.",
+            DefaultValueFactory = _ => "reports",
+            HelpName = "DIR",
+        };
+        var cmd = new Command(
+            "demo",
+            "Run the built-in scenario: synthesise the Harbour Water Authority's three recordings, measure each against a limit profile and write a PDF report for each into DIR/demo/."
+        )
+        {
+            outDir,
+        };
         cmd.SetAction(r =>
         {
             string dir = Path.Combine(r.GetValue(outDir)!, "demo");
@@ -62,24 +124,62 @@ internal static class DemoCommand
                 stderr.WriteLine($"demo: {file}");
                 Synthesizer.Write(spec, path, SampleFormat.Parse(datatype), start, overwrite: true);
                 bool wav = file.EndsWith(".wav", StringComparison.Ordinal);
-                CaptureSource source = CaptureSource.Open(path, new ReaderOptions { CenterFrequencyHz = wav ? spec.CenterFrequencyHz : null });
+                CaptureSource source = CaptureSource.Open(
+                    path,
+                    new ReaderOptions { CenterFrequencyHz = wav ? spec.CenterFrequencyHz : null }
+                );
                 LimitProfile profile = EmbeddedProfile(profileName);
-                AnalysisResult result = Analyzer.Analyze(source, new AnalysisOptions { NominalHz = spec.CenterFrequencyHz });
-                MeasurementReport model = MeasurementReport.Create(result, profile, "profiles/" + profileName, "Harbour Water Authority radio shop: " + equipment) with
+                AnalysisResult result = Analyzer.Analyze(
+                    source,
+                    new AnalysisOptions { NominalHz = spec.CenterFrequencyHz }
+                );
+                MeasurementReport model = MeasurementReport.Create(
+                    result,
+                    profile,
+                    "profiles/" + profileName,
+                    "Harbour Water Authority radio shop: " + equipment
+                ) with
                 {
                     Operator = "demo (synthesised recording)",
                     Equipment = equipment,
-                    Notes = "Demonstration: the recording was synthesised by 'signalinspect demo' (" + Synthesizer.Describe(spec) + ").",
+                    Notes =
+                        "Demonstration: the recording was synthesised by 'signalinspect demo' ("
+                        + Synthesizer.Describe(spec)
+                        + ").",
                     CommandLine = "signalinspect demo",
                 };
                 Verdict overall = model.Overall!.Value;
-                string pdf = Path.Combine(dir, Path.GetFileNameWithoutExtension(file.Replace(".sigmf-meta", string.Empty)) + ".pdf");
+                string pdf = Path.Combine(
+                    dir,
+                    Path.GetFileNameWithoutExtension(file.Replace(".sigmf-meta", string.Empty)) + ".pdf"
+                );
                 AnalyzeCommand.WriteReport(model, pdf, overwrite: true);
-                rows.Add([file, result.Classification.Kind.Name(), KeyReading(result), overall.ToString().ToUpperInvariant(), pdf]);
+                rows.Add([
+                    file,
+                    result.Classification.Kind.Name(),
+                    KeyReading(result),
+                    overall.ToString().ToUpperInvariant(),
+                    pdf,
+                ]);
             }
-            int[] w = [.. Enumerable.Range(0, 4).Select(i => Math.Max(rows.Max(x => x[i].Length), new[] { "capture", "kind", "reading", "verdict" }[i].Length))];
-            stdout.WriteLine($"{"capture".PadRight(w[0])}  {"kind".PadRight(w[1])}  {"reading".PadRight(w[2])}  {"verdict".PadRight(w[3])}  report");
-            foreach (string[] row in rows) stdout.WriteLine($"{row[0].PadRight(w[0])}  {row[1].PadRight(w[1])}  {row[2].PadRight(w[2])}  {row[3].PadRight(w[3])}  {row[4]}");
+            int[] w =
+            [
+                .. Enumerable
+                    .Range(0, 4)
+                    .Select(i =>
+                        Math.Max(
+                            rows.Max(x => x[i].Length),
+                            new[] { "capture", "kind", "reading", "verdict" }[i].Length
+                        )
+                    ),
+            ];
+            stdout.WriteLine(
+                $"{"capture".PadRight(w[0])}  {"kind".PadRight(w[1])}  {"reading".PadRight(w[2])}  {"verdict".PadRight(w[3])}  report"
+            );
+            foreach (string[] row in rows)
+                stdout.WriteLine(
+                    $"{row[0].PadRight(w[0])}  {row[1].PadRight(w[1])}  {row[2].PadRight(w[2])}  {row[3].PadRight(w[3])}  {row[4]}"
+                );
             stdout.WriteLine($"reports and captures are in {dir}");
             return ExitCodes.Success;
         });
@@ -92,9 +192,18 @@ internal static class DemoCommand
         string offset = r.Carrier is { } car ? string.Create(c, $", offset {car.OffsetHz:+0.#;-0.#} Hz") : string.Empty;
         return r.Classification.Kind switch
         {
-            ModulationKind.Fm => string.Create(c, $"peak deviation {r.Fm!.PeakDeviationHz.Value:0} Hz, OBW {r.Bandwidth.OccupiedHz:0} Hz{offset}"),
-            ModulationKind.Am => string.Create(c, $"depth {r.Am!.DepthPercent.Value:0.0} % (+{r.Am.PositivePeakPercent:0.0} / -{r.Am.NegativePeakPercent:0.0} %){offset}"),
-            ModulationKind.Fsk => string.Create(c, $"shift {r.Fsk!.ShiftHz.Value:0} Hz at {r.Fsk.SymbolRateBd?.Value ?? 0:0} Bd{offset}"),
+            ModulationKind.Fm => string.Create(
+                c,
+                $"peak deviation {r.Fm!.PeakDeviationHz.Value:0} Hz, OBW {r.Bandwidth.OccupiedHz:0} Hz{offset}"
+            ),
+            ModulationKind.Am => string.Create(
+                c,
+                $"depth {r.Am!.DepthPercent.Value:0.0} % (+{r.Am.PositivePeakPercent:0.0} / -{r.Am.NegativePeakPercent:0.0} %){offset}"
+            ),
+            ModulationKind.Fsk => string.Create(
+                c,
+                $"shift {r.Fsk!.ShiftHz.Value:0} Hz at {r.Fsk.SymbolRateBd?.Value ?? 0:0} Bd{offset}"
+            ),
             _ => string.Create(c, $"OBW {r.Bandwidth.OccupiedHz:0} Hz{offset}"),
         };
     }

@@ -11,10 +11,20 @@ internal static class InfoCommand
 {
     public static Command Create(TextWriter stdout, TextWriter stderr)
     {
-        var capture = new Argument<string>("capture") { Description = "The capture file: WAV/RF64/BW64, SigMF (.sigmf-meta, .sigmf-data or .sigmf archive) or raw IQ." };
-        var json = new Option<bool>("--json") { Description = "Print the result as JSON (keys in SI units; null where unknown)." };
+        var capture = new Argument<string>("capture")
+        {
+            Description =
+                "The capture file: WAV/RF64/BW64, SigMF (.sigmf-meta, .sigmf-data or .sigmf archive) or raw IQ.",
+        };
+        var json = new Option<bool>("--json")
+        {
+            Description = "Print the result as JSON (keys in SI units; null where unknown).",
+        };
         var reader = new ReaderOptionSet();
-        var cmd = new Command("info", "Show what a capture holds: sample rate, centre frequency, real or complex, samples, duration, datatype, channels, segments, annotations.")
+        var cmd = new Command(
+            "info",
+            "Show what a capture holds: sample rate, centre frequency, real or complex, samples, duration, datatype, channels, segments, annotations."
+        )
         {
             capture,
             json,
@@ -27,14 +37,16 @@ internal static class InfoCommand
             if (r.GetValue(json))
             {
                 using var ms = new MemoryStream();
-                using (var w = new Utf8JsonWriter(ms, new JsonWriterOptions { Indented = true })) CaptureInfoJson.Write(w, info);
+                using (var w = new Utf8JsonWriter(ms, new JsonWriterOptions { Indented = true }))
+                    CaptureInfoJson.Write(w, info);
                 stdout.WriteLine(System.Text.Encoding.UTF8.GetString(ms.ToArray()));
             }
             else
             {
                 WriteText(stdout, info);
             }
-            foreach (string warning in info.Warnings) stderr.WriteLine($"signalinspect: warning: {Path.GetFileName(info.Path)}: {warning}");
+            foreach (string warning in info.Warnings)
+                stderr.WriteLine($"signalinspect: warning: {Path.GetFileName(info.Path)}: {warning}");
             return ExitCodes.Success;
         });
         return cmd;
@@ -55,25 +67,46 @@ internal static class InfoCommand
         Row("duration", info.DurationS.ToString("0.######", inv) + " s");
         Row("start time", info.StartTime?.UtcDateTime.ToString("yyyy-MM-dd HH:mm:ss.fff 'UTC'", inv) ?? "unknown");
         Row("file size", info.FileSizeBytes.ToString(inv) + " bytes");
-        if (info.Container.StartsWith("SigMF", StringComparison.Ordinal)) Row("sha512", info.ChecksumStatus);
-        if (info.Description is { } d) Row("description", d);
-        if (info.Hardware is { } hw) Row("hardware", hw);
+        if (info.Container.StartsWith("SigMF", StringComparison.Ordinal))
+            Row("sha512", info.ChecksumStatus);
+        if (info.Description is { } d)
+            Row("description", d);
+        if (info.Hardware is { } hw)
+            Row("hardware", hw);
         if (info.Segments.Count > 0)
         {
-            o.WriteLine($"segments ({info.Segments.Count})" + (info.SelectedSegment is { } s ? $", reading segment {s}" : string.Empty));
+            o.WriteLine(
+                $"segments ({info.Segments.Count})"
+                    + (info.SelectedSegment is { } s ? $", reading segment {s}" : string.Empty)
+            );
             foreach (CaptureSegment seg in info.Segments)
-                o.WriteLine($"  [{seg.Index}] start {seg.SampleStart}, {seg.SampleCount} samples, {Units.Hz(seg.FrequencyHz)}" +
-                            (seg.StartTime is { } t ? ", " + t.UtcDateTime.ToString("yyyy-MM-dd HH:mm:ss.fff 'UTC'", inv) : string.Empty) +
-                            (seg.HeaderBytes > 0 ? $", {seg.HeaderBytes} header bytes" : string.Empty));
+                o.WriteLine(
+                    $"  [{seg.Index}] start {seg.SampleStart}, {seg.SampleCount} samples, {Units.Hz(seg.FrequencyHz)}"
+                        + (
+                            seg.StartTime is { } t
+                                ? ", " + t.UtcDateTime.ToString("yyyy-MM-dd HH:mm:ss.fff 'UTC'", inv)
+                                : string.Empty
+                        )
+                        + (seg.HeaderBytes > 0 ? $", {seg.HeaderBytes} header bytes" : string.Empty)
+                );
         }
         if (info.Annotations.Count > 0)
         {
             o.WriteLine($"annotations ({info.Annotations.Count})");
             foreach (CaptureAnnotation a in info.Annotations)
-                o.WriteLine($"  start {a.SampleStart}" + (a.SampleCount is { } c ? $", {c} samples" : string.Empty) +
-                            (a.LowerEdgeHz is { } lo && a.UpperEdgeHz is { } hi ? $", {Units.Hz(lo)} to {Units.Hz(hi)}" : string.Empty) +
-                            (a.Label is { } l ? $", '{l}'" : string.Empty) + (a.Comment is { } cm ? $": {cm}" : string.Empty));
+                o.WriteLine(
+                    $"  start {a.SampleStart}"
+                        + (a.SampleCount is { } c ? $", {c} samples" : string.Empty)
+                        + (
+                            a.LowerEdgeHz is { } lo && a.UpperEdgeHz is { } hi
+                                ? $", {Units.Hz(lo)} to {Units.Hz(hi)}"
+                                : string.Empty
+                        )
+                        + (a.Label is { } l ? $", '{l}'" : string.Empty)
+                        + (a.Comment is { } cm ? $": {cm}" : string.Empty)
+                );
         }
-        foreach (string n in info.Notes) o.WriteLine($"note: {n}");
+        foreach (string n in info.Notes)
+            o.WriteLine($"note: {n}");
     }
 }

@@ -10,31 +10,109 @@ internal static class SynthCommand
 {
     public static Command Create(TextWriter stdout, TextWriter stderr)
     {
-        var output = new Argument<string>("output") { Description = "File to write. The ending picks the container: .wav (RF64 above 4 GiB), .sigmf (archive), .sigmf-meta/.sigmf-data (pair), anything else raw." };
-        var kind = new Option<string>("--kind") { Description = "Signal: cw (unmodulated carrier), am, fm, pm, fsk (binary, continuous phase) or noise.", DefaultValueFactory = _ => "cw", HelpName = "cw|am|fm|pm|fsk|noise" };
+        var output = new Argument<string>("output")
+        {
+            Description =
+                "File to write. The ending picks the container: .wav (RF64 above 4 GiB), .sigmf (archive), .sigmf-meta/.sigmf-data (pair), anything else raw.",
+        };
+        var kind = new Option<string>("--kind")
+        {
+            Description = "Signal: cw (unmodulated carrier), am, fm, pm, fsk (binary, continuous phase) or noise.",
+            DefaultValueFactory = _ => "cw",
+            HelpName = "cw|am|fm|pm|fsk|noise",
+        };
         kind.AcceptOnlyFromAmong("cw", "am", "fm", "pm", "fsk", "noise");
         var rate = Units.SiOption("--sample-rate", "Sample rate in Hz.", 48_000, "HZ");
         var duration = Units.SiOption("--duration", "Duration in seconds.", 1.0, "S");
-        var centre = Units.SiOption("--center-frequency", "Centre frequency written to the metadata (SigMF core:frequency), in Hz.");
-        var offset = Units.SiOption("--offset", "Carrier offset from the centre in Hz (complex); the carrier frequency itself for --real.", 0, "HZ");
-        var amplitude = new Option<double>("--amplitude") { Description = "Carrier amplitude in full-scale units (1.0 = full scale).", DefaultValueFactory = _ => 0.5 };
+        var centre = Units.SiOption(
+            "--center-frequency",
+            "Centre frequency written to the metadata (SigMF core:frequency), in Hz."
+        );
+        var offset = Units.SiOption(
+            "--offset",
+            "Carrier offset from the centre in Hz (complex); the carrier frequency itself for --real.",
+            0,
+            "HZ"
+        );
+        var amplitude = new Option<double>("--amplitude")
+        {
+            Description = "Carrier amplitude in full-scale units (1.0 = full scale).",
+            DefaultValueFactory = _ => 0.5,
+        };
         var tone = Units.SiOption("--tone", "Modulating tone frequency in Hz (am, fm, pm).", 1000, "HZ");
-        var depth = new Option<double>("--depth") { Description = "AM depth in percent (0 to 100).", DefaultValueFactory = _ => 50, HelpName = "PERCENT" };
+        var depth = new Option<double>("--depth")
+        {
+            Description = "AM depth in percent (0 to 100).",
+            DefaultValueFactory = _ => 50,
+            HelpName = "PERCENT",
+        };
         var deviation = Units.SiOption("--deviation", "FM peak deviation in Hz.", 2500, "HZ");
-        var phase = new Option<double>("--phase-deviation") { Description = "PM peak phase deviation in radians.", DefaultValueFactory = _ => 1.0, HelpName = "RAD" };
+        var phase = new Option<double>("--phase-deviation")
+        {
+            Description = "PM peak phase deviation in radians.",
+            DefaultValueFactory = _ => 1.0,
+            HelpName = "RAD",
+        };
         var shift = Units.SiOption("--shift", "FSK shift (distance between the two tones) in Hz.", 1000, "HZ");
         var symbolRate = Units.SiOption("--symbol-rate", "FSK symbol rate in baud.", 1200, "BD");
         var drift = Units.SiOption("--drift", "Linear carrier drift in Hz per second.", 0, "HZ_PER_S");
-        var snr = new Option<double?>("--snr") { Description = "Signal-to-noise ratio in dB over the whole sampled bandwidth (signal mean power / noise mean power); omit for no noise.", HelpName = "DB" };
-        var seed = new Option<int>("--seed") { Description = "Seed of the noise and FSK data.", DefaultValueFactory = _ => 1 };
-        var real = new Option<bool>("--real") { Description = "Write a real signal (audio, a carrier at --offset Hz) instead of complex I/Q." };
-        var datatype = new Option<string?>("--datatype") { Description = "Sample datatype in SigMF words (default cf32_le, or rf32_le with --real); for WAV: ci16_le, ci24_le, ci32_le, cf32_le, cf64_le, cu8 (and r... forms). A raw file's ending (.cu8, .cs16, .cf32) also sets it.", HelpName = "WORD" };
-        var time = new Option<string?>("--start-time") { Description = "Time of the first sample written to SigMF metadata (RFC 3339, e.g. 2026-05-04T10:00:00Z).", HelpName = "TIME" };
-        var rf64 = new Option<bool>("--rf64") { Description = "Write RF64 even when the data is below 4 GiB (WAV only)." };
-        var force = new Option<bool>("--force") { Description = "Replace an existing output file." };
-        var cmd = new Command("synth", "Write a capture of known parameters: carrier, AM, FM, PM or 2-FSK, with carrier offset, drift, white noise at a given SNR and a seed. The signal formulas are in the README.")
+        var snr = new Option<double?>("--snr")
         {
-            output, kind, rate, duration, centre, offset, amplitude, tone, depth, deviation, phase, shift, symbolRate, drift, snr, seed, real, datatype, time, rf64, force,
+            Description =
+                "Signal-to-noise ratio in dB over the whole sampled bandwidth (signal mean power / noise mean power); omit for no noise.",
+            HelpName = "DB",
+        };
+        var seed = new Option<int>("--seed")
+        {
+            Description = "Seed of the noise and FSK data.",
+            DefaultValueFactory = _ => 1,
+        };
+        var real = new Option<bool>("--real")
+        {
+            Description = "Write a real signal (audio, a carrier at --offset Hz) instead of complex I/Q.",
+        };
+        var datatype = new Option<string?>("--datatype")
+        {
+            Description =
+                "Sample datatype in SigMF words (default cf32_le, or rf32_le with --real); for WAV: ci16_le, ci24_le, ci32_le, cf32_le, cf64_le, cu8 (and r... forms). A raw file's ending (.cu8, .cs16, .cf32) also sets it.",
+            HelpName = "WORD",
+        };
+        var time = new Option<string?>("--start-time")
+        {
+            Description = "Time of the first sample written to SigMF metadata (RFC 3339, e.g. 2026-05-04T10:00:00Z).",
+            HelpName = "TIME",
+        };
+        var rf64 = new Option<bool>("--rf64")
+        {
+            Description = "Write RF64 even when the data is below 4 GiB (WAV only).",
+        };
+        var force = new Option<bool>("--force") { Description = "Replace an existing output file." };
+        var cmd = new Command(
+            "synth",
+            "Write a capture of known parameters: carrier, AM, FM, PM or 2-FSK, with carrier offset, drift, white noise at a given SNR and a seed. The signal formulas are in the README."
+        )
+        {
+            output,
+            kind,
+            rate,
+            duration,
+            centre,
+            offset,
+            amplitude,
+            tone,
+            depth,
+            deviation,
+            phase,
+            shift,
+            symbolRate,
+            drift,
+            snr,
+            seed,
+            real,
+            datatype,
+            time,
+            rf64,
+            force,
         };
         cmd.SetAction(r =>
         {
@@ -63,15 +141,27 @@ internal static class SynthCommand
             DateTimeOffset? start = null;
             if (r.GetValue(time) is { } ts)
             {
-                if (!DateTimeOffset.TryParse(ts, CultureInfo.InvariantCulture, DateTimeStyles.AssumeUniversal | DateTimeStyles.AdjustToUniversal, out DateTimeOffset t))
-                    throw new UsageException($"--start-time: '{ts}' is not an RFC 3339 time such as 2026-05-04T10:00:00Z");
+                if (
+                    !DateTimeOffset.TryParse(
+                        ts,
+                        CultureInfo.InvariantCulture,
+                        DateTimeStyles.AssumeUniversal | DateTimeStyles.AdjustToUniversal,
+                        out DateTimeOffset t
+                    )
+                )
+                    throw new UsageException(
+                        $"--start-time: '{ts}' is not an RFC 3339 time such as 2026-05-04T10:00:00Z"
+                    );
                 start = t;
             }
             SynthesisResult result = Synthesizer.Write(spec, path, format, start, r.GetValue(force), r.GetValue(rf64));
-            foreach (string p in result.Paths) stdout.WriteLine($"wrote {p}");
+            foreach (string p in result.Paths)
+                stdout.WriteLine($"wrote {p}");
             stdout.WriteLine($"{result.Samples} samples, {format.Name}, {Synthesizer.Describe(spec)}");
             if (result.ClippedValues > 0)
-                stderr.WriteLine($"signalinspect: warning: {result.ClippedValues} sample value(s) clipped at full scale (lower --amplitude or raise --snr)");
+                stderr.WriteLine(
+                    $"signalinspect: warning: {result.ClippedValues} sample value(s) clipped at full scale (lower --amplitude or raise --snr)"
+                );
             return ExitCodes.Success;
         });
         return cmd;
@@ -83,11 +173,17 @@ internal static class SynthCommand
         {
             string word = datatype.Trim();
             // WAV may hold 24-bit integers, which SigMF has no word for.
-            if (word is "ci24_le" or "ri24_le") return new SampleFormat(word[0] == 'c', ComponentEncoding.Int24, false, 0);
-            if (!SampleFormat.TryParse(word, out SampleFormat f, out string error)) throw new UsageException("--datatype: " + error);
+            if (word is "ci24_le" or "ri24_le")
+                return new SampleFormat(word[0] == 'c', ComponentEncoding.Int24, false, 0);
+            if (!SampleFormat.TryParse(word, out SampleFormat f, out string error))
+                throw new UsageException("--datatype: " + error);
             return f;
         }
-        if (Synthesizer.ContainerFor(path) == CaptureContainer.Raw && SampleFormat.FromFileExtension(path) is { } byName) return byName;
+        if (
+            Synthesizer.ContainerFor(path) == CaptureContainer.Raw
+            && SampleFormat.FromFileExtension(path) is { } byName
+        )
+            return byName;
         return SampleFormat.Parse(isReal ? "rf32_le" : "cf32_le");
     }
 }

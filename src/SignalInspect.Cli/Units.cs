@@ -14,8 +14,18 @@ internal static class Units
         if (t.Length > 1)
         {
             char last = t[^1];
-            double? m = last switch { 'k' or 'K' => 1e3, 'M' => 1e6, 'G' => 1e9, _ => null };
-            if (m is { } mm) { mult = mm; t = t[..^1]; }
+            double? m = last switch
+            {
+                'k' or 'K' => 1e3,
+                'M' => 1e6,
+                'G' => 1e9,
+                _ => null,
+            };
+            if (m is { } mm)
+            {
+                mult = mm;
+                t = t[..^1];
+            }
         }
         if (double.TryParse(t, NumberStyles.Float, CultureInfo.InvariantCulture, out double v) && double.IsFinite(v))
         {
@@ -27,30 +37,35 @@ internal static class Units
     }
 
     /// <summary>An option taking a number in SI units (Hz, s ...), e.g. "2.4M".</summary>
-    public static Option<double?> SiOption(string name, string description, string helpName = "HZ") => new(name)
-    {
-        Description = description,
-        HelpName = helpName,
-        CustomParser = r => Parse(r, name),
-    };
+    public static Option<double?> SiOption(string name, string description, string helpName = "HZ") =>
+        new(name)
+        {
+            Description = description,
+            HelpName = helpName,
+            CustomParser = r => Parse(r, name),
+        };
 
     /// <summary>An option taking a number in SI units with a default.</summary>
-    public static Option<double> SiOption(string name, string description, double defaultValue, string helpName) => new(name)
-    {
-        Description = description,
-        HelpName = helpName,
-        DefaultValueFactory = _ => defaultValue,
-        CustomParser = r => Parse(r, name) ?? defaultValue,
-    };
+    public static Option<double> SiOption(string name, string description, double defaultValue, string helpName) =>
+        new(name)
+        {
+            Description = description,
+            HelpName = helpName,
+            DefaultValueFactory = _ => defaultValue,
+            CustomParser = r => Parse(r, name) ?? defaultValue,
+        };
 
     private static double? Parse(ArgumentResult r, string name)
     {
-        if (r.Tokens.Count == 0) return null;
+        if (r.Tokens.Count == 0)
+            return null;
         string s = r.Tokens[0].Value;
-        if (TryParseSi(s, out double v)) return v;
+        if (TryParseSi(s, out double v))
+            return v;
         r.AddError($"{name}: '{s}' is not a number (examples: 48000, 2.4M, 12.5k, 1e-3)");
         return null;
     }
 
-    public static string Hz(double? hz) => hz is { } v ? v.ToString("0.###", CultureInfo.InvariantCulture) + " Hz" : "unknown";
+    public static string Hz(double? hz) =>
+        hz is { } v ? v.ToString("0.###", CultureInfo.InvariantCulture) + " Hz" : "unknown";
 }

@@ -9,8 +9,11 @@ internal static class TestData
     private static readonly Lazy<string> RootDir = new(() =>
     {
         var dir = new DirectoryInfo(AppContext.BaseDirectory);
-        while (dir is not null && !File.Exists(System.IO.Path.Combine(dir.FullName, "SignalInspect.sln"))) dir = dir.Parent;
-        return dir is null ? throw new InvalidOperationException("cannot find the repository root (SignalInspect.sln)") : System.IO.Path.Combine(dir.FullName, "testdata");
+        while (dir is not null && !File.Exists(System.IO.Path.Combine(dir.FullName, "SignalInspect.sln")))
+            dir = dir.Parent;
+        return dir is null
+            ? throw new InvalidOperationException("cannot find the repository root (SignalInspect.sln)")
+            : System.IO.Path.Combine(dir.FullName, "testdata");
     });
 
     public static string Path(params string[] parts) => System.IO.Path.Combine([RootDir.Value, .. parts]);
@@ -24,14 +27,16 @@ internal static class TestData
         return v;
     }
 
-    /// <summary>Reads a whole capture through the streaming reader, in small odd-sized blocks to cross buffer edges.</summary>
+    /// <summary>Reads a whole capture through the streaming reader, in small odd-sized blocks to cross buffer
+    /// edges.</summary>
     public static double[] ReadAll(CaptureSource source, int blockSamples = 333)
     {
         using CaptureReader reader = source.OpenReader();
         var all = new List<double>();
         var block = new double[blockSamples * reader.ValuesPerSample];
         int n;
-        while ((n = reader.Read(block)) > 0) all.AddRange(block.AsSpan(0, n * reader.ValuesPerSample).ToArray());
+        while ((n = reader.Read(block)) > 0)
+            all.AddRange(block.AsSpan(0, n * reader.ValuesPerSample).ToArray());
         return [.. all];
     }
 
@@ -56,7 +61,11 @@ internal sealed class TempDir : IDisposable
 
     public void Dispose()
     {
-        try { Directory.Delete(Path, recursive: true); } catch (IOException) { }
+        try
+        {
+            Directory.Delete(Path, recursive: true);
+        }
+        catch (IOException) { }
     }
 }
 
@@ -72,25 +81,39 @@ internal static class CliRunner
     }
 }
 
-/// <summary>Assertions with an explicit absolute tolerance (xunit's precision argument rounds, which misleads at the edge).</summary>
+/// <summary>Assertions with an explicit absolute tolerance (xunit's precision argument rounds, which misleads at the
+/// edge).</summary>
 internal static class Near
 {
     public static void Equal(double expected, double actual, double tolerance, string? what = null)
     {
-        Assert.True(Math.Abs(expected - actual) <= tolerance,
-            $"{what ?? "value"}: expected {expected:R} +/- {tolerance:R}, got {actual:R} (off by {Math.Abs(expected - actual):G3})");
+        Assert.True(
+            Math.Abs(expected - actual) <= tolerance,
+            $"{what ?? "value"}: expected {expected:R} +/- {tolerance:R}, got {actual:R} (off by {Math.Abs(expected - actual):G3})"
+        );
     }
 }
 
-/// <summary>Runs code on the 256-bit kernels (<paramref name="narrow"/>) or on those the CPU has (512-bit where it can), for the calling flow only, then restores the default.</summary>
+/// <summary>Runs code on the 256-bit kernels (<paramref name="narrow"/>) or on those the CPU has (512-bit where it
+/// can), for the calling flow only, then restores the default.</summary>
 internal static class VectorWidth
 {
     public static T Run<T>(bool narrow, Func<T> run)
     {
         SignalInspect.Dsp.Simd.NarrowForTests = narrow;
-        try { return run(); }
-        finally { SignalInspect.Dsp.Simd.NarrowForTests = false; }
+        try
+        {
+            return run();
+        }
+        finally
+        {
+            SignalInspect.Dsp.Simd.NarrowForTests = false;
+        }
     }
 
-    public static void Run(bool narrow, Action run) => Run(narrow, () => { run(); return 0; });
+    public static void Run(bool narrow, Action run) => Run(narrow, () =>
+        {
+            run();
+            return 0;
+        });
 }

@@ -9,57 +9,113 @@ public sealed record BatchRecord
 {
     /// <summary>The capture's path as found.</summary>
     public required string File { get; init; }
+
     /// <summary>"ok" or "error".</summary>
     public required string Status { get; init; }
-    /// <summary>SHA-256 of the file's content (with its .sigmf-data for a SigMF pair); null when it could not be read.</summary>
+
+    /// <summary>SHA-256 of the file's content (with its .sigmf-data for a SigMF pair); null when it could not be
+    /// read.</summary>
     public string? ContentSha256 { get; init; }
+
     /// <summary>File size in bytes (with the data file of a SigMF pair).</summary>
     public long Bytes { get; init; }
+
     /// <summary>Modulation found.</summary>
     public string? Modulation { get; init; }
+
     /// <summary>Classifier confidence.</summary>
     public double? Confidence { get; init; }
+
     /// <summary>SNR in the occupied bandwidth, dB.</summary>
     public double? ChannelSnrDb { get; init; }
+
     /// <summary>Sample rate, Hz.</summary>
     public double? SampleRateHz { get; init; }
+
     /// <summary>Duration, s.</summary>
     public double? DurationS { get; init; }
+
     /// <summary>Carrier frequency (absolute when known), Hz.</summary>
     public double? CarrierFrequencyHz { get; init; }
+
     /// <summary>Carrier offset, Hz.</summary>
     public double? OffsetHz { get; init; }
+
     /// <summary>Occupied bandwidth, Hz.</summary>
     public double? OccupiedHz { get; init; }
+
     /// <summary>FM peak deviation, Hz.</summary>
     public double? PeakDeviationHz { get; init; }
+
     /// <summary>AM depth, percent.</summary>
     public double? DepthPercent { get; init; }
+
     /// <summary>Emission designator.</summary>
     public string? EmissionDesignator { get; init; }
+
     /// <summary>Overall verdict when limits were given (PASS, FAIL, INCONCLUSIVE).</summary>
     public string? Verdict { get; init; }
+
     /// <summary>Warnings, joined with "; ".</summary>
     public string? Warnings { get; init; }
+
     /// <summary>The one-line error for status "error".</summary>
     public string? Error { get; init; }
+
     /// <summary>Report PDF written (--reports), relative to the output folder.</summary>
     public string? Report { get; init; }
+
     /// <summary>Spectrum thumbnail, relative to the output folder.</summary>
     public string? Thumbnail { get; init; }
 
     /// <summary>The columns of summary.csv, in order (the same keys as the JSON lines).</summary>
     public static readonly string[] Columns =
     [
-        "file", "status", "modulation", "carrierFrequencyHz", "offsetHz", "occupiedHz", "peakDeviationHz", "depthPercent", "verdict", "error",
-        "confidence", "channelSnrDb", "emissionDesignator", "sampleRateHz", "durationS", "bytes", "contentSha256", "warnings", "report", "thumbnail",
+        "file",
+        "status",
+        "modulation",
+        "carrierFrequencyHz",
+        "offsetHz",
+        "occupiedHz",
+        "peakDeviationHz",
+        "depthPercent",
+        "verdict",
+        "error",
+        "confidence",
+        "channelSnrDb",
+        "emissionDesignator",
+        "sampleRateHz",
+        "durationS",
+        "bytes",
+        "contentSha256",
+        "warnings",
+        "report",
+        "thumbnail",
     ];
 
     private object?[] Values() =>
-    [
-        File, Status, Modulation, CarrierFrequencyHz, OffsetHz, OccupiedHz, PeakDeviationHz, DepthPercent, Verdict, Error,
-        Confidence, ChannelSnrDb, EmissionDesignator, SampleRateHz, DurationS, Bytes, ContentSha256, Warnings, Report, Thumbnail,
-    ];
+        [
+            File,
+            Status,
+            Modulation,
+            CarrierFrequencyHz,
+            OffsetHz,
+            OccupiedHz,
+            PeakDeviationHz,
+            DepthPercent,
+            Verdict,
+            Error,
+            Confidence,
+            ChannelSnrDb,
+            EmissionDesignator,
+            SampleRateHz,
+            DurationS,
+            Bytes,
+            ContentSha256,
+            Warnings,
+            Report,
+            Thumbnail,
+        ];
 
     /// <summary>One JSON line, keys in <see cref="Columns"/> order.</summary>
     public string ToJsonLine()
@@ -73,11 +129,21 @@ public sealed record BatchRecord
             {
                 switch (v[i])
                 {
-                    case null: w.WriteNull(Columns[i]); break;
-                    case string s: w.WriteString(Columns[i], s); break;
-                    case double d when double.IsFinite(d): w.WriteNumber(Columns[i], d); break;
-                    case double: w.WriteNull(Columns[i]); break;
-                    case long l: w.WriteNumber(Columns[i], l); break;
+                    case null:
+                        w.WriteNull(Columns[i]);
+                        break;
+                    case string s:
+                        w.WriteString(Columns[i], s);
+                        break;
+                    case double d when double.IsFinite(d):
+                        w.WriteNumber(Columns[i], d);
+                        break;
+                    case double:
+                        w.WriteNull(Columns[i]);
+                        break;
+                    case long l:
+                        w.WriteNumber(Columns[i], l);
+                        break;
                 }
             }
             w.WriteEndObject();
@@ -86,16 +152,24 @@ public sealed record BatchRecord
     }
 
     /// <summary>One CSV row (RFC 4180 quoting, invariant numbers).</summary>
-    public string ToCsvRow() => string.Join(',', Values().Select(v => v switch
-    {
-        null => string.Empty,
-        double d => double.IsFinite(d) ? d.ToString("R", CultureInfo.InvariantCulture) : string.Empty,
-        long l => l.ToString(CultureInfo.InvariantCulture),
-        string s => Quote(s),
-        _ => string.Empty,
-    }));
+    public string ToCsvRow() =>
+        string.Join(
+            ',',
+            Values()
+                .Select(v =>
+                    v switch
+                    {
+                        null => string.Empty,
+                        double d => double.IsFinite(d) ? d.ToString("R", CultureInfo.InvariantCulture) : string.Empty,
+                        long l => l.ToString(CultureInfo.InvariantCulture),
+                        string s => Quote(s),
+                        _ => string.Empty,
+                    }
+                )
+        );
 
-    private static string Quote(string s) => s.IndexOfAny([',', '"', '\n', '\r']) >= 0 ? "\"" + s.Replace("\"", "\"\"") + "\"" : s;
+    private static string Quote(string s) =>
+        s.IndexOfAny([',', '"', '\n', '\r']) >= 0 ? "\"" + s.Replace("\"", "\"\"") + "\"" : s;
 
     /// <summary>Reads a JSON line back.</summary>
     /// <exception cref="Capture.CaptureException">The line is not a summary record.</exception>
@@ -105,8 +179,10 @@ public sealed record BatchRecord
         {
             using JsonDocument doc = JsonDocument.Parse(line);
             JsonElement e = doc.RootElement;
-            string? S(string k) => e.TryGetProperty(k, out JsonElement v) && v.ValueKind == JsonValueKind.String ? v.GetString() : null;
-            double? D(string k) => e.TryGetProperty(k, out JsonElement v) && v.ValueKind == JsonValueKind.Number ? v.GetDouble() : null;
+            string? S(string k) =>
+                e.TryGetProperty(k, out JsonElement v) && v.ValueKind == JsonValueKind.String ? v.GetString() : null;
+            double? D(string k) =>
+                e.TryGetProperty(k, out JsonElement v) && v.ValueKind == JsonValueKind.Number ? v.GetDouble() : null;
             return new BatchRecord
             {
                 File = S("file") ?? throw new FormatException("no file"),
@@ -133,7 +209,10 @@ public sealed record BatchRecord
         }
         catch (Exception ex) when (ex is JsonException or FormatException or InvalidOperationException)
         {
-            throw Capture.CaptureException.ForFile(source, "holds a line that is not a batch summary record: " + ex.Message.ReplaceLineEndings(" "));
+            throw Capture.CaptureException.ForFile(
+                source,
+                "holds a line that is not a batch summary record: " + ex.Message.ReplaceLineEndings(" ")
+            );
         }
     }
 }

@@ -15,22 +15,31 @@ public sealed record BatchOptions
 {
     /// <summary>Output folder.</summary>
     public required string OutDir { get; init; }
+
     /// <summary>Reader options used as defaults (a sidecar overrides them per file).</summary>
     public ReaderOptions Reader { get; init; } = ReaderOptions.Default;
+
     /// <summary>Analysis options.</summary>
     public AnalysisOptions Analysis { get; init; } = new();
+
     /// <summary>Limit profile, null for none.</summary>
     public LimitProfile? Profile { get; init; }
+
     /// <summary>Path of the profile, for the reports.</summary>
     public string? ProfilePath { get; init; }
+
     /// <summary>Captures analysed at once (1 or more).</summary>
     public int Jobs { get; init; } = Math.Max(1, Environment.ProcessorCount);
+
     /// <summary>Write a PDF report per capture.</summary>
     public bool Reports { get; init; }
+
     /// <summary>Skip captures already in the output folder's summary (matched by content hash).</summary>
     public bool Resume { get; init; }
+
     /// <summary>This shard (1-based) of <see cref="ShardCount"/>.</summary>
     public int ShardIndex { get; init; } = 1;
+
     /// <summary>Number of shards.</summary>
     public int ShardCount { get; init; } = 1;
 }
@@ -61,9 +70,30 @@ public static class BatchRunner
     /// <summary>Name of a raw capture's sidecar: the capture's file name plus this ending.</summary>
     public const string SidecarSuffix = ".si.json";
 
-    private static readonly string[] CaptureEndings = [".wav", ".rf64", ".bw64", ".sigmf", ".sigmf-meta", ".cu8", ".cs8", ".ci8", ".cs16", ".ci16", ".cs32", ".cf32", ".cfile", ".fc32", ".cf64", ".ru8", ".rs16", ".rf32"];
+    private static readonly string[] CaptureEndings =
+    [
+        ".wav",
+        ".rf64",
+        ".bw64",
+        ".sigmf",
+        ".sigmf-meta",
+        ".cu8",
+        ".cs8",
+        ".ci8",
+        ".cs16",
+        ".ci16",
+        ".cs32",
+        ".cf32",
+        ".cfile",
+        ".fc32",
+        ".cf64",
+        ".ru8",
+        ".rs16",
+        ".rf32",
+    ];
 
-    /// <summary>Finds the captures named by folders (searched recursively), files and globs (* and ? in the file name).</summary>
+    /// <summary>Finds the captures named by folders (searched recursively), files and globs (* and ? in the file
+    /// name).</summary>
     /// <exception cref="CaptureException">An input names nothing.</exception>
     public static IReadOnlyList<BatchInput> Discover(IEnumerable<string> inputs, ReaderOptions defaults)
     {
@@ -72,8 +102,20 @@ public static class BatchRunner
         {
             if (Directory.Exists(input))
             {
-                foreach (string f in Directory.EnumerateFiles(input, "*", new EnumerationOptions { RecurseSubdirectories = true, IgnoreInaccessible = true, AttributesToSkip = FileAttributes.Hidden }))
-                    if (LooksLikeCapture(f)) Add(found, f, Path.GetRelativePath(input, f), defaults);
+                foreach (
+                    string f in Directory.EnumerateFiles(
+                        input,
+                        "*",
+                        new EnumerationOptions
+                        {
+                            RecurseSubdirectories = true,
+                            IgnoreInaccessible = true,
+                            AttributesToSkip = FileAttributes.Hidden,
+                        }
+                    )
+                )
+                    if (LooksLikeCapture(f))
+                        Add(found, f, Path.GetRelativePath(input, f), defaults);
             }
             else if (File.Exists(input))
             {
@@ -82,9 +124,11 @@ public static class BatchRunner
             else if (input.IndexOfAny(['*', '?']) >= 0)
             {
                 string dir = Path.GetDirectoryName(input) is { Length: > 0 } d ? d : ".";
-                if (!Directory.Exists(dir)) throw CaptureException.ForFile(input, "the folder of this pattern does not exist");
+                if (!Directory.Exists(dir))
+                    throw CaptureException.ForFile(input, "the folder of this pattern does not exist");
                 foreach (string f in Directory.EnumerateFiles(dir, Path.GetFileName(input)))
-                    if (!f.EndsWith(SidecarSuffix, StringComparison.Ordinal)) Add(found, f, Path.GetFileName(f), defaults);
+                    if (!f.EndsWith(SidecarSuffix, StringComparison.Ordinal))
+                        Add(found, f, Path.GetFileName(f), defaults);
             }
             else
             {
@@ -97,17 +141,30 @@ public static class BatchRunner
     private static bool LooksLikeCapture(string f)
     {
         string l = f.ToLowerInvariant();
-        if (l.EndsWith(SidecarSuffix, StringComparison.Ordinal)) return false;
-        if (l.EndsWith(".sigmf-data", StringComparison.Ordinal)) return !File.Exists(f[..^".sigmf-data".Length] + ".sigmf-meta");
+        if (l.EndsWith(SidecarSuffix, StringComparison.Ordinal))
+            return false;
+        if (l.EndsWith(".sigmf-data", StringComparison.Ordinal))
+            return !File.Exists(f[..^".sigmf-data".Length] + ".sigmf-meta");
         return CaptureEndings.Any(e => l.EndsWith(e, StringComparison.Ordinal)) || File.Exists(f + SidecarSuffix);
     }
 
     private static void Add(SortedDictionary<string, BatchInput> found, string path, string key, ReaderOptions defaults)
     {
         string full = Path.GetFullPath(path);
-        if (full.EndsWith(".sigmf-data", StringComparison.OrdinalIgnoreCase) && File.Exists(full[..^11] + ".sigmf-meta")) full = full[..^11] + ".sigmf-meta";
-        if (found.ContainsKey(full)) return;
-        long bytes = new FileInfo(full).Length + (full.EndsWith(".sigmf-meta", StringComparison.OrdinalIgnoreCase) && File.Exists(full[..^11] + ".sigmf-data") ? new FileInfo(full[..^11] + ".sigmf-data").Length : 0);
+        if (
+            full.EndsWith(".sigmf-data", StringComparison.OrdinalIgnoreCase) && File.Exists(full[..^11] + ".sigmf-meta")
+        )
+            full = full[..^11] + ".sigmf-meta";
+        if (found.ContainsKey(full))
+            return;
+        long bytes =
+            new FileInfo(full).Length
+            + (
+                full.EndsWith(".sigmf-meta", StringComparison.OrdinalIgnoreCase)
+                && File.Exists(full[..^11] + ".sigmf-data")
+                    ? new FileInfo(full[..^11] + ".sigmf-data").Length
+                    : 0
+            );
         found[full] = new BatchInput(path, key.Replace('\\', '/'), defaults, bytes);
     }
 
@@ -116,14 +173,29 @@ public static class BatchRunner
     public static ReaderOptions WithSidecar(string capture, ReaderOptions defaults)
     {
         string side = capture + SidecarSuffix;
-        if (!File.Exists(side)) return defaults;
+        if (!File.Exists(side))
+            return defaults;
         try
         {
             using JsonDocument doc = JsonDocument.Parse(File.ReadAllText(side));
             JsonElement e = doc.RootElement;
-            if (e.ValueKind != JsonValueKind.Object) throw CaptureException.ForFile(side, "a sidecar must be a JSON object");
-            string? dt = e.TryGetProperty("datatype", out JsonElement d) ? (d.ValueKind == JsonValueKind.String ? d.GetString() : throw CaptureException.ForFile(side, "datatype must be a string")) : null;
-            double? Num(string k) => e.TryGetProperty(k, out JsonElement v) ? (v.ValueKind == JsonValueKind.Number ? v.GetDouble() : throw CaptureException.ForFile(side, $"{k} must be a number")) : null;
+            if (e.ValueKind != JsonValueKind.Object)
+                throw CaptureException.ForFile(side, "a sidecar must be a JSON object");
+            string? dt = e.TryGetProperty("datatype", out JsonElement d)
+                ? (
+                    d.ValueKind == JsonValueKind.String
+                        ? d.GetString()
+                        : throw CaptureException.ForFile(side, "datatype must be a string")
+                )
+                : null;
+            double? Num(string k) =>
+                e.TryGetProperty(k, out JsonElement v)
+                    ? (
+                        v.ValueKind == JsonValueKind.Number
+                            ? v.GetDouble()
+                            : throw CaptureException.ForFile(side, $"{k} must be a number")
+                    )
+                    : null;
             return defaults with
             {
                 Datatype = dt ?? defaults.Datatype,
@@ -137,18 +209,25 @@ public static class BatchRunner
         }
     }
 
-    /// <summary>The shard (0-based) of a capture: FNV-1a 64 of its key, modulo the shard count. Stable across machines and runs.</summary>
+    /// <summary>The shard (0-based) of a capture: FNV-1a 64 of its key, modulo the shard count. Stable across machines
+    /// and runs.</summary>
     public static int ShardOf(string key, int shards)
     {
         ulong h = 14695981039346656037UL;
-        foreach (byte b in Encoding.UTF8.GetBytes(key)) { h ^= b; h *= 1099511628211UL; }
+        foreach (byte b in Encoding.UTF8.GetBytes(key))
+        {
+            h ^= b;
+            h *= 1099511628211UL;
+        }
         return (int)(h % (ulong)shards);
     }
 
     /// <summary>SHA-256 of a capture's content: the file, and for a SigMF pair its data file too.</summary>
     public static string ContentHash(string path)
     {
-        string data = path.EndsWith(".sigmf-meta", StringComparison.OrdinalIgnoreCase) ? path[..^11] + ".sigmf-data" : "";
+        string data = path.EndsWith(".sigmf-meta", StringComparison.OrdinalIgnoreCase)
+            ? path[..^11] + ".sigmf-data"
+            : "";
         return data.Length > 0 && File.Exists(data) ? FileHash.Sha256(path, data) : FileHash.Sha256(path);
     }
 
@@ -157,48 +236,79 @@ public static class BatchRunner
     /// <param name="options">Settings.</param>
     /// <param name="onRecord">Called after each capture (from worker threads, serialised).</param>
     /// <param name="cancel">Stops scheduling new captures; those running finish, and the summary is written.</param>
-    public static BatchOutcome Run(IReadOnlyList<BatchInput> inputs, BatchOptions options, Action<BatchRecord, BatchInput>? onRecord = null, CancellationToken cancel = default)
+    public static BatchOutcome Run(
+        IReadOnlyList<BatchInput> inputs,
+        BatchOptions options,
+        Action<BatchRecord, BatchInput>? onRecord = null,
+        CancellationToken cancel = default
+    )
     {
         Directory.CreateDirectory(options.OutDir);
         string jsonl = Path.Combine(options.OutDir, "summary.jsonl");
         var done = new Dictionary<string, BatchRecord>(StringComparer.Ordinal);
         if (options.Resume && File.Exists(jsonl))
-            foreach (BatchRecord r in ReadJsonl(jsonl)) done[r.ContentSha256 ?? "path:" + r.File] = r;
+            foreach (BatchRecord r in ReadJsonl(jsonl))
+                done[r.ContentSha256 ?? "path:" + r.File] = r;
         else if (File.Exists(jsonl))
             File.Delete(jsonl);
         List<BatchInput> mine = [.. inputs.Where(i => ShardOf(i.Key, options.ShardCount) == options.ShardIndex - 1)];
         var records = new ConcurrentBag<BatchRecord>(done.Values);
         object gate = new();
-        int analysed = 0, skipped = 0;
+        int analysed = 0,
+            skipped = 0;
         bool cancelled = false;
-        using var append = new StreamWriter(new FileStream(jsonl, FileMode.Append, FileAccess.Write, FileShare.Read), new UTF8Encoding(false)) { AutoFlush = true, NewLine = "\n" };
+        using var append = new StreamWriter(
+            new FileStream(jsonl, FileMode.Append, FileAccess.Write, FileShare.Read),
+            new UTF8Encoding(false)
+        )
+        {
+            AutoFlush = true,
+            NewLine = "\n",
+        };
         try
         {
-            Parallel.ForEach(mine, new ParallelOptions { MaxDegreeOfParallelism = Math.Max(1, options.Jobs), CancellationToken = cancel }, input =>
-            {
-                string? hash = null;
-                try { hash = ContentHash(input.Path); } catch (IOException) { } catch (UnauthorizedAccessException) { }
-                if (options.Resume && (hash is not null ? done.ContainsKey(hash) : done.ContainsKey("path:" + input.Path)))
+            Parallel.ForEach(
+                mine,
+                new ParallelOptions { MaxDegreeOfParallelism = Math.Max(1, options.Jobs), CancellationToken = cancel },
+                input =>
                 {
-                    Interlocked.Increment(ref skipped);
-                    return;
+                    string? hash = null;
+                    try
+                    {
+                        hash = ContentHash(input.Path);
+                    }
+                    catch (IOException) { }
+                    catch (UnauthorizedAccessException) { }
+                    if (
+                        options.Resume
+                        && (hash is not null ? done.ContainsKey(hash) : done.ContainsKey("path:" + input.Path))
+                    )
+                    {
+                        Interlocked.Increment(ref skipped);
+                        return;
+                    }
+                    BatchRecord rec = AnalyseOne(input, hash, options);
+                    lock (gate)
+                    {
+                        append.WriteLine(rec.ToJsonLine());
+                        records.Add(rec);
+                        analysed++;
+                        onRecord?.Invoke(rec, input);
+                    }
                 }
-                BatchRecord rec = AnalyseOne(input, hash, options);
-                lock (gate)
-                {
-                    append.WriteLine(rec.ToJsonLine());
-                    records.Add(rec);
-                    analysed++;
-                    onRecord?.Invoke(rec, input);
-                }
-            });
+            );
         }
         catch (OperationCanceledException)
         {
             cancelled = true;
         }
         append.Dispose();
-        List<BatchRecord> all = [.. records.OrderBy(r => r.File, StringComparer.Ordinal).ThenBy(r => r.ContentSha256, StringComparer.Ordinal)];
+        List<BatchRecord> all =
+        [
+            .. records
+                .OrderBy(r => r.File, StringComparer.Ordinal)
+                .ThenBy(r => r.ContentSha256, StringComparer.Ordinal),
+        ];
         WriteOutputs(options.OutDir, all, options.Profile?.Name);
         return new BatchOutcome(all, analysed, skipped, cancelled);
     }
@@ -209,8 +319,24 @@ public static class BatchRunner
         try
         {
             CaptureSource source = CaptureSource.Open(file, WithSidecar(file, input.Options));
-            AnalysisResult r = Analyzer.Analyze(source, o.Analysis with { Threads = 1, KeepSpectrogram = o.Reports, NominalHz = o.Analysis.NominalHz ?? o.Profile?.NominalFrequencyHz });
-            MeasurementReport model = MeasurementReport.Create(r, o.Profile, o.ProfilePath, "Measurement of " + Path.GetFileName(file)) with { CommandLine = "signalinspect batch" };
+            AnalysisResult r = Analyzer.Analyze(
+                source,
+                o.Analysis with
+                {
+                    Threads = 1,
+                    KeepSpectrogram = o.Reports,
+                    NominalHz = o.Analysis.NominalHz ?? o.Profile?.NominalFrequencyHz,
+                }
+            );
+            MeasurementReport model = MeasurementReport.Create(
+                r,
+                o.Profile,
+                o.ProfilePath,
+                "Measurement of " + Path.GetFileName(file)
+            ) with
+            {
+                CommandLine = "signalinspect batch",
+            };
             Verdict? overall = model.Overall;
             string stem = (hash ?? r.Sha256)[..16];
             string thumbRel = Path.Combine("thumbs", stem + ".png");
@@ -220,7 +346,13 @@ public static class BatchRunner
             string? reportRel = null;
             if (o.Reports)
             {
-                reportRel = Path.Combine("reports", Path.GetFileNameWithoutExtension(file.Replace(".sigmf-meta", string.Empty)) + "-" + stem[..8] + ".pdf");
+                reportRel = Path.Combine(
+                    "reports",
+                    Path.GetFileNameWithoutExtension(file.Replace(".sigmf-meta", string.Empty))
+                        + "-"
+                        + stem[..8]
+                        + ".pdf"
+                );
                 Directory.CreateDirectory(Path.Combine(o.OutDir, "reports"));
                 string pdf = Path.Combine(o.OutDir, reportRel);
                 AtomicFile.Write(Path.ChangeExtension(pdf, ".json"), true, s => s.Write(ReportJson.ToBytes(model)));
@@ -249,10 +381,20 @@ public static class BatchRunner
                 Thumbnail = thumbRel.Replace('\\', '/'),
             };
         }
-        catch (Exception e) when (e is CaptureException or ArgumentOutOfRangeException or IOException or UnauthorizedAccessException)
+        catch (Exception e)
+            when (e is CaptureException or ArgumentOutOfRangeException or IOException or UnauthorizedAccessException)
         {
-            string message = e is ArgumentOutOfRangeException a ? $"{a.ParamName}: {a.Message.Split(" (Parameter", 2)[0]}" : e.Message;
-            return new BatchRecord { File = file, Status = "error", ContentSha256 = hash, Bytes = input.Bytes, Error = message.ReplaceLineEndings(" ").Trim() };
+            string message = e is ArgumentOutOfRangeException a
+                ? $"{a.ParamName}: {a.Message.Split(" (Parameter", 2)[0]}"
+                : e.Message;
+            return new BatchRecord
+            {
+                File = file,
+                Status = "error",
+                ContentSha256 = hash,
+                Bytes = input.Bytes,
+                Error = message.ReplaceLineEndings(" ").Trim(),
+            };
         }
     }
 
@@ -260,7 +402,8 @@ public static class BatchRunner
     public static IEnumerable<BatchRecord> ReadJsonl(string path)
     {
         foreach (string line in File.ReadLines(path))
-            if (!string.IsNullOrWhiteSpace(line)) yield return BatchRecord.FromJsonLine(line, path);
+            if (!string.IsNullOrWhiteSpace(line))
+                yield return BatchRecord.FromJsonLine(line, path);
     }
 
     /// <summary>Writes summary.csv, summary.jsonl (sorted) and summary.pdf, each atomically.</summary>
@@ -269,18 +412,23 @@ public static class BatchRunner
         AtomicFile.Write(Path.Combine(outDir, "summary.jsonl"), true, s =>
         {
             using var w = new StreamWriter(s, new UTF8Encoding(false)) { NewLine = "\n" };
-            foreach (BatchRecord r in records) w.WriteLine(r.ToJsonLine());
+            foreach (BatchRecord r in records)
+                w.WriteLine(r.ToJsonLine());
         });
         AtomicFile.Write(Path.Combine(outDir, "summary.csv"), true, s =>
         {
             using var w = new StreamWriter(s, new UTF8Encoding(false)) { NewLine = "\n" };
             w.WriteLine(string.Join(',', BatchRecord.Columns));
-            foreach (BatchRecord r in records) w.WriteLine(r.ToCsvRow());
+            foreach (BatchRecord r in records)
+                w.WriteLine(r.ToCsvRow());
         });
-        AtomicFile.Write(Path.Combine(outDir, "summary.pdf"), true, s => BatchSummaryPdf.Write(records, outDir, profileName, s));
+        AtomicFile.Write(Path.Combine(outDir, "summary.pdf"), true, s =>
+            BatchSummaryPdf.Write(records, outDir, profileName, s)
+        );
     }
 
-    /// <summary>Joins the summaries of several output folders (shards) into one, de-duplicated by content hash.</summary>
+    /// <summary>Joins the summaries of several output folders (shards) into one, de-duplicated by content
+    /// hash.</summary>
     public static IReadOnlyList<BatchRecord> Merge(IEnumerable<string> dirs, string outDir)
     {
         var byHash = new SortedDictionary<string, BatchRecord>(StringComparer.Ordinal);
@@ -288,21 +436,37 @@ public static class BatchRunner
         foreach (string dir in dirs)
         {
             string jsonl = Path.Combine(dir, "summary.jsonl");
-            if (!File.Exists(jsonl)) throw CaptureException.ForFile(dir, "holds no summary.jsonl (not a batch output folder)");
+            if (!File.Exists(jsonl))
+                throw CaptureException.ForFile(dir, "holds no summary.jsonl (not a batch output folder)");
             foreach (BatchRecord r in ReadJsonl(jsonl))
             {
                 byHash[(r.ContentSha256 ?? "path:" + r.File) + "|" + r.File] = r;
-                foreach (string? rel in new[] { r.Thumbnail, r.Report, r.Report is { } rp ? Path.ChangeExtension(rp, ".json") : null })
+                foreach (
+                    string? rel in new[]
+                    {
+                        r.Thumbnail,
+                        r.Report,
+                        r.Report is { } rp ? Path.ChangeExtension(rp, ".json") : null,
+                    }
+                )
                 {
-                    if (rel is null) continue;
-                    string src = Path.Combine(dir, rel), dst = Path.Combine(outDir, rel);
-                    if (!File.Exists(src) || Path.GetFullPath(src) == Path.GetFullPath(dst)) continue;
+                    if (rel is null)
+                        continue;
+                    string src = Path.Combine(dir, rel),
+                        dst = Path.Combine(outDir, rel);
+                    if (!File.Exists(src) || Path.GetFullPath(src) == Path.GetFullPath(dst))
+                        continue;
                     Directory.CreateDirectory(Path.GetDirectoryName(dst)!);
                     File.Copy(src, dst, overwrite: true);
                 }
             }
         }
-        List<BatchRecord> all = [.. byHash.Values.OrderBy(r => r.File, StringComparer.Ordinal).ThenBy(r => r.ContentSha256, StringComparer.Ordinal)];
+        List<BatchRecord> all =
+        [
+            .. byHash
+                .Values.OrderBy(r => r.File, StringComparer.Ordinal)
+                .ThenBy(r => r.ContentSha256, StringComparer.Ordinal),
+        ];
         WriteOutputs(outDir, all, null);
         return all;
     }

@@ -20,7 +20,8 @@ internal abstract class ByteSource : IDisposable
     private MappedExtent? _mapped;
     private bool _mapTried;
 
-    /// <summary>The sample data through a memory map (see <see cref="MappedExtent"/>), made on first use, or null where it cannot be mapped: then only <see cref="Read"/>.</summary>
+    /// <summary>The sample data through a memory map (see <see cref="MappedExtent"/>), made on first use, or null where
+    /// it cannot be mapped: then only <see cref="Read"/>.</summary>
     public MappedExtent? Mapped
     {
         get
@@ -37,19 +38,23 @@ internal abstract class ByteSource : IDisposable
     /// <summary>Maps the sample data if this source can (<see cref="MappedExtent.TryOpen"/>); null otherwise.</summary>
     protected virtual MappedExtent? TryMap() => null;
 
-    /// <summary>Releases the map, if one was made; each source's <see cref="Dispose"/> calls it before closing its file.</summary>
+    /// <summary>Releases the map, if one was made; each source's <see cref="Dispose"/> calls it before closing its
+    /// file.</summary>
     protected void DisposeMap() => _mapped?.Dispose();
 
     /// <summary>Opens a file for reading only, shared with other readers, for sequential access.</summary>
     public static FileStream OpenReadOnly(string path) =>
-        new(path, new FileStreamOptions
-        {
-            Mode = FileMode.Open,
-            Access = FileAccess.Read,
-            Share = FileShare.Read | FileShare.Delete,
-            Options = FileOptions.SequentialScan,
-            BufferSize = 0,
-        });
+        new(
+            path,
+            new FileStreamOptions
+            {
+                Mode = FileMode.Open,
+                Access = FileAccess.Read,
+                Share = FileShare.Read | FileShare.Delete,
+                Options = FileOptions.SequentialScan,
+                BufferSize = 0,
+            }
+        );
 }
 
 /// <summary>One contiguous byte range of a file.</summary>
@@ -72,7 +77,8 @@ internal sealed class FileExtentSource : ByteSource
 
     public override long Length => _length;
 
-    /// <summary>Mapped when the data is one range of the file (a raw file, a SigMF data file or archive member).</summary>
+    /// <summary>Mapped when the data is one range of the file (a raw file, a SigMF data file or archive
+    /// member).</summary>
     protected override MappedExtent? TryMap() =>
         _extents.Length == 1 ? MappedExtent.TryOpen(_stream, _extents[0].Offset, _extents[0].Length) : null;
 
@@ -87,14 +93,19 @@ internal sealed class FileExtentSource : ByteSource
             FileExtent extent = default;
             foreach (FileExtent e in _extents)
             {
-                if (_position < start + e.Length) { extent = e; break; }
+                if (_position < start + e.Length)
+                {
+                    extent = e;
+                    break;
+                }
                 start += e.Length;
             }
             long within = _position - start;
             int want = (int)Math.Min(buffer.Length - total, extent.Length - within);
             _stream.Position = extent.Offset + within;
             int got = _stream.Read(buffer.Slice(total, want));
-            if (got <= 0) break;
+            if (got <= 0)
+                break;
             total += got;
             _position += got;
         }
@@ -120,9 +131,16 @@ internal sealed class WaveDataSource : ByteSource
     /// <param name="stream">What NAudio reads.</param>
     /// <param name="reader">NAudio's reader over it.</param>
     /// <param name="length">Data bytes to deliver.</param>
-    /// <param name="file">The file under <paramref name="stream"/>, for mapping the data chunk; null: reads only.</param>
+    /// <param name="file">The file under <paramref name="stream"/>, for mapping the data chunk; null: reads
+    /// only.</param>
     /// <param name="dataStart">The data chunk's first byte in <paramref name="file"/>.</param>
-    public WaveDataSource(Stream stream, WaveFileReader reader, long length, FileStream? file = null, long dataStart = 0)
+    public WaveDataSource(
+        Stream stream,
+        WaveFileReader reader,
+        long length,
+        FileStream? file = null,
+        long dataStart = 0
+    )
     {
         _stream = stream;
         _reader = reader;
@@ -134,7 +152,8 @@ internal sealed class WaveDataSource : ByteSource
     public override long Length => _length;
 
     /// <summary>The data chunk mapped (when it lies wholly within the file; a chunk cut short is read).</summary>
-    protected override MappedExtent? TryMap() => _file is null ? null : MappedExtent.TryOpen(_file, _dataStart, _length);
+    protected override MappedExtent? TryMap() =>
+        _file is null ? null : MappedExtent.TryOpen(_file, _dataStart, _length);
 
     public override void Seek(long offset)
     {
@@ -145,15 +164,18 @@ internal sealed class WaveDataSource : ByteSource
     public override int Read(Span<byte> buffer)
     {
         long left = _length - _reader.Position;
-        if (left <= 0) return 0;
+        if (left <= 0)
+            return 0;
         int block = _reader.BlockAlign;
         int want = (int)Math.Min(buffer.Length, left) / block * block;
-        if (want == 0) return 0;
+        if (want == 0)
+            return 0;
         int total = 0;
         while (total < want)
         {
             int got = _reader.Read(buffer[total..want]);
-            if (got <= 0) break;
+            if (got <= 0)
+                break;
             total += got;
         }
         return total;

@@ -8,12 +8,13 @@ namespace SignalInspect.Capture;
 public sealed class CaptureException : Exception
 {
     /// <summary>Creates the exception with a one-line message.</summary>
-    public CaptureException(string message) : base(message) { }
+    public CaptureException(string message)
+        : base(message) { }
 
     /// <summary>Creates the exception with a one-line message and the low-level cause.</summary>
-    public CaptureException(string message, Exception inner) : base(message, inner) { }
+    public CaptureException(string message, Exception inner)
+        : base(message, inner) { }
 
     /// <summary>A message of the form "FILE: problem".</summary>
-    public static CaptureException ForFile(string path, string problem) =>
-        new($"{Path.GetFileName(path)}: {problem}");
+    public static CaptureException ForFile(string path, string problem) => new($"{Path.GetFileName(path)}: {problem}");
 }

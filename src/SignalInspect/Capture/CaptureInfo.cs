@@ -7,7 +7,14 @@ namespace SignalInspect.Capture;
 /// <param name="FrequencyHz">Centre frequency (<c>core:frequency</c>), null when not given.</param>
 /// <param name="StartTime">Time of the first sample (<c>core:datetime</c>), null when not given.</param>
 /// <param name="HeaderBytes">Bytes of non-sample data before the segment (<c>core:header_bytes</c>).</param>
-public sealed record CaptureSegment(int Index, long SampleStart, long SampleCount, double? FrequencyHz, DateTimeOffset? StartTime, long HeaderBytes);
+public sealed record CaptureSegment(
+    int Index,
+    long SampleStart,
+    long SampleCount,
+    double? FrequencyHz,
+    DateTimeOffset? StartTime,
+    long HeaderBytes
+);
 
 /// <summary>One SigMF annotation, as listed in the metadata.</summary>
 /// <param name="SampleStart">First sample the annotation covers.</param>
@@ -16,7 +23,14 @@ public sealed record CaptureSegment(int Index, long SampleStart, long SampleCoun
 /// <param name="UpperEdgeHz">Upper frequency edge, null when not given.</param>
 /// <param name="Label">Short label, null when not given.</param>
 /// <param name="Comment">Free text, null when not given.</param>
-public sealed record CaptureAnnotation(long SampleStart, long? SampleCount, double? LowerEdgeHz, double? UpperEdgeHz, string? Label, string? Comment);
+public sealed record CaptureAnnotation(
+    long SampleStart,
+    long? SampleCount,
+    double? LowerEdgeHz,
+    double? UpperEdgeHz,
+    string? Label,
+    string? Comment
+);
 
 /// <summary>
 /// What was read from a capture file: everything later stages need to interpret its samples.
@@ -27,7 +41,8 @@ public sealed record CaptureInfo
     /// <summary>Path of the file the user named.</summary>
     public required string Path { get; init; }
 
-    /// <summary>Container: <c>WAV</c>, <c>RF64</c>, <c>BW64</c>, <c>raw</c>, <c>SigMF</c> or <c>SigMF archive</c>.</summary>
+    /// <summary>Container: <c>WAV</c>, <c>RF64</c>, <c>BW64</c>, <c>raw</c>, <c>SigMF</c> or <c>SigMF
+    /// archive</c>.</summary>
     public required string Container { get; init; }
 
     /// <summary>Sample rate in Hz (always positive and finite).</summary>
@@ -48,7 +63,8 @@ public sealed record CaptureInfo
     /// <summary>Channels in the file (a two-channel IQ WAV has 2; a one-channel complex SigMF has 1).</summary>
     public required int Channels { get; init; }
 
-    /// <summary>How the delivered signal is taken from the file's channels, e.g. "I=ch0, Q=ch1", "ch1 (right)".</summary>
+    /// <summary>How the delivered signal is taken from the file's channels, e.g. "I=ch0, Q=ch1", "ch1
+    /// (right)".</summary>
     public required string ChannelUse { get; init; }
 
     /// <summary>Datatype of the delivered signal in SigMF words (e.g. <c>ci16_le</c> for a 16-bit IQ WAV).</summary>

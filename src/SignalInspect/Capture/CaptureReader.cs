@@ -20,12 +20,21 @@ public sealed class CaptureReader : IDisposable
     private readonly long _firstSample;
     private readonly byte[] _bytes;
     private readonly MappedExtent? _mapped;
-    private long _position, _sourceAt;
+    private long _position,
+        _sourceAt;
+
     // Read path of Float32View: the samples held, from _heldFirst.
     private float[]? _held;
-    private long _heldFirst, _heldCount;
+    private long _heldFirst,
+        _heldCount;
 
-    internal CaptureReader(CaptureInfo info, ByteSource source, SampleDecoder decoder, long firstSample, long sampleCount)
+    internal CaptureReader(
+        CaptureInfo info,
+        ByteSource source,
+        SampleDecoder decoder,
+        long firstSample,
+        long sampleCount
+    )
     {
         Info = info;
         _source = source;
@@ -33,7 +42,11 @@ public sealed class CaptureReader : IDisposable
         _firstSample = firstSample;
         SampleCount = sampleCount;
         _mapped = source.Mapped;
-        _bytes = _mapped is null ? ArrayPool<byte>.Shared.Rent(Math.Max(decoder.FrameBytes, BufferBytes / decoder.FrameBytes * decoder.FrameBytes)) : [];
+        _bytes = _mapped is null
+            ? ArrayPool<byte>.Shared.Rent(
+                Math.Max(decoder.FrameBytes, BufferBytes / decoder.FrameBytes * decoder.FrameBytes)
+            )
+            : [];
         _source.Seek(firstSample * decoder.FrameBytes);
     }
 
@@ -70,7 +83,8 @@ public sealed class CaptureReader : IDisposable
                 int frames = Math.Min(wanted - done, Math.Max(1, map.Window / frameBytes));
                 ReadOnlySpan<byte> bytes = map.Get((_firstSample + _position + done) * frameBytes, frames * frameBytes);
                 int got = bytes.Length / frameBytes;
-                if (got == 0) break;
+                if (got == 0)
+                    break;
                 _decoder.Decode(bytes[..(got * frameBytes)], destination[(done * ValuesPerSample)..]);
                 done += got;
             }
@@ -82,7 +96,8 @@ public sealed class CaptureReader : IDisposable
         {
             int frames = Math.Min(wanted - done, _bytes.Length / frameBytes);
             int got = ReadWholeFrames(_bytes.AsSpan(0, frames * frameBytes), frameBytes);
-            if (got == 0) break;
+            if (got == 0)
+                break;
             _decoder.Decode(_bytes.AsSpan(0, got * frameBytes), destination[(done * ValuesPerSample)..]);
             done += got;
         }
@@ -106,7 +121,8 @@ public sealed class CaptureReader : IDisposable
     /// <exception cref="InvalidOperationException">The capture does not store float32 samples as delivered.</exception>
     public int Read(Span<float> destination)
     {
-        if (!DeliversFloat32) throw new InvalidOperationException("the capture does not store its samples as float32 as delivered");
+        if (!DeliversFloat32)
+            throw new InvalidOperationException("the capture does not store its samples as float32 as delivered");
         int frameBytes = _decoder.FrameBytes;
         int wanted = (int)Math.Min(destination.Length / ValuesPerSample, SampleCount - _position);
         if (_mapped is not null)
@@ -130,17 +146,21 @@ public sealed class CaptureReader : IDisposable
     /// already held. Valid until the next read or view; <see cref="Position"/> moves to its end.
     /// </summary>
     /// <exception cref="InvalidOperationException">The capture does not store float32 samples as delivered.</exception>
-    /// <exception cref="ArgumentOutOfRangeException">The sample is outside the window, or the count is negative.</exception>
+    /// <exception cref="ArgumentOutOfRangeException">The sample is outside the window, or the count is
+    /// negative.</exception>
     public ReadOnlySpan<float> Float32View(long sample, int samples)
     {
-        if (!DeliversFloat32) throw new InvalidOperationException("the capture does not store its samples as float32 as delivered");
+        if (!DeliversFloat32)
+            throw new InvalidOperationException("the capture does not store its samples as float32 as delivered");
         ArgumentOutOfRangeException.ThrowIfNegative(sample);
         ArgumentOutOfRangeException.ThrowIfGreaterThan(sample, SampleCount);
         ArgumentOutOfRangeException.ThrowIfNegative(samples);
-        int frameBytes = _decoder.FrameBytes, vps = ValuesPerSample;
+        int frameBytes = _decoder.FrameBytes,
+            vps = ValuesPerSample;
         int count = (int)Math.Min(samples, SampleCount - sample);
         _position = sample + count;
-        if (count == 0) return default;
+        if (count == 0)
+            return default;
         if (_mapped is { } map)
         {
             ReadOnlySpan<byte> bytes = map.Get((_firstSample + sample) * frameBytes, count * frameBytes);
@@ -153,7 +173,8 @@ public sealed class CaptureReader : IDisposable
         if (sample < _heldFirst || end > _heldFirst + _heldCount)
         {
             int capacity = Math.Max(count, (MappedExtent.WindowBytesForTests.Value ?? BufferBytes) / frameBytes);
-            if (_held is null || _held.Length < capacity * vps) Array.Resize(ref _held, capacity * vps);
+            if (_held is null || _held.Length < capacity * vps)
+                Array.Resize(ref _held, capacity * vps);
             int keep = 0;
             if (sample >= _heldFirst && sample < _heldFirst + _heldCount)
             {
@@ -172,7 +193,8 @@ public sealed class CaptureReader : IDisposable
         return _held.AsSpan((int)(sample - _heldFirst) * vps, count * vps);
     }
 
-    /// <summary>Whether the reader sees the file through a memory map (no copies; see <see cref="MappedExtent"/>).</summary>
+    /// <summary>Whether the reader sees the file through a memory map (no copies; see <see
+    /// cref="MappedExtent"/>).</summary>
     public bool Mapped => _mapped is not null;
 
     /// <summary>Moves to a sample within the window (0 is its first sample).</summary>
@@ -187,7 +209,8 @@ public sealed class CaptureReader : IDisposable
     /// <summary>Puts the byte source where the reads go on (a view may have moved it elsewhere).</summary>
     private void SyncSource()
     {
-        if (_sourceAt == _position) return;
+        if (_sourceAt == _position)
+            return;
         _source.Seek((_firstSample + _position) * _decoder.FrameBytes);
         _sourceAt = _position;
     }
@@ -198,7 +221,8 @@ public sealed class CaptureReader : IDisposable
         while (total < buffer.Length)
         {
             int got = _source.Read(buffer[total..]);
-            if (got <= 0) break;
+            if (got <= 0)
+                break;
             total += got;
         }
         return total / frameBytes;
@@ -208,6 +232,7 @@ public sealed class CaptureReader : IDisposable
     public void Dispose()
     {
         _source.Dispose();
-        if (_mapped is null) ArrayPool<byte>.Shared.Return(_bytes);
+        if (_mapped is null)
+            ArrayPool<byte>.Shared.Return(_bytes);
     }
 }

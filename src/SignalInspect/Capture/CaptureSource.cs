@@ -13,7 +13,14 @@ public sealed class CaptureSource
     private readonly int[] _pick;
     private readonly long _firstSample;
 
-    internal CaptureSource(CaptureInfo info, Func<ByteSource> openBytes, SampleFormat storedFormat, int frameComponents, int[] pick, long firstSample = 0)
+    internal CaptureSource(
+        CaptureInfo info,
+        Func<ByteSource> openBytes,
+        SampleFormat storedFormat,
+        int frameComponents,
+        int[] pick,
+        long firstSample = 0
+    )
     {
         Info = info;
         _openBytes = openBytes;
@@ -30,7 +37,10 @@ public sealed class CaptureSource
     internal double? CenterOverrideHz { get; init; }
 
     internal CaptureSource WithInfo(CaptureInfo info) =>
-        new(info, _openBytes, _storedFormat, _frameComponents, _pick, _firstSample) { CenterOverrideHz = CenterOverrideHz };
+        new(info, _openBytes, _storedFormat, _frameComponents, _pick, _firstSample)
+        {
+            CenterOverrideHz = CenterOverrideHz,
+        };
 
     /// <summary>
     /// Opens a capture, choosing the reader from the file's content and name: WAV/RF64/BW64,
@@ -41,8 +51,10 @@ public sealed class CaptureSource
     public static CaptureSource Open(string path, ReaderOptions? options = null)
     {
         options ??= ReaderOptions.Default;
-        if (Directory.Exists(path)) throw CaptureException.ForFile(path, "is a folder, not a capture file");
-        if (!File.Exists(path)) throw CaptureException.ForFile(path, "file not found");
+        if (Directory.Exists(path))
+            throw CaptureException.ForFile(path, "is a folder, not a capture file");
+        if (!File.Exists(path))
+            throw CaptureException.ForFile(path, "file not found");
         try
         {
             return OpenKnown(path, options);
@@ -61,15 +73,23 @@ public sealed class CaptureSource
     {
         long size = new FileInfo(path).Length;
         string lower = path.ToLowerInvariant();
-        if (lower.EndsWith(".sigmf-meta", StringComparison.Ordinal) || lower.EndsWith(".sigmf-data", StringComparison.Ordinal))
+        if (
+            lower.EndsWith(".sigmf-meta", StringComparison.Ordinal)
+            || lower.EndsWith(".sigmf-data", StringComparison.Ordinal)
+        )
             return SigMfReader.OpenPair(path, options);
-        if (size == 0) throw CaptureException.ForFile(path, "file is empty");
+        if (size == 0)
+            throw CaptureException.ForFile(path, "file is empty");
         if (lower.EndsWith(".sigmf", StringComparison.Ordinal))
             return SigMfReader.OpenArchive(path, options);
         string magic = ReadMagic(path);
         if (magic is "RIFF" or "RF64" or "BW64")
             return WavReader.Open(path, options);
-        if (lower.EndsWith(".wav", StringComparison.Ordinal) || lower.EndsWith(".rf64", StringComparison.Ordinal) || lower.EndsWith(".bw64", StringComparison.Ordinal))
+        if (
+            lower.EndsWith(".wav", StringComparison.Ordinal)
+            || lower.EndsWith(".rf64", StringComparison.Ordinal)
+            || lower.EndsWith(".bw64", StringComparison.Ordinal)
+        )
             throw CaptureException.ForFile(path, "not a WAV file (no RIFF, RF64 or BW64 header)");
         return RawReader.Open(path, options);
     }
@@ -109,7 +129,10 @@ public sealed class CaptureSource
     public (long First, long Count) WindowSamples(double startS, double? durationS)
     {
         if (!double.IsFinite(startS) || startS < 0 || (startS > 0 && startS >= Info.DurationS))
-            throw CaptureException.ForFile(Info.Path, $"--start {startS:R} s lies outside the capture (0 to {Info.DurationS:0.######} s)");
+            throw CaptureException.ForFile(
+                Info.Path,
+                $"--start {startS:R} s lies outside the capture (0 to {Info.DurationS:0.######} s)"
+            );
         if (durationS is { } d && (!double.IsFinite(d) || d <= 0))
             throw CaptureException.ForFile(Info.Path, $"--duration {d:R} s must be positive");
         long first = (long)Math.Round(startS * Info.SampleRateHz);
@@ -117,7 +140,8 @@ public sealed class CaptureSource
         return (first, Math.Min(count, Info.SampleCount - first));
     }
 
-    /// <summary>Opens a reader over a window given in seconds from the capture's first sample (see <see cref="WindowSamples"/>).</summary>
+    /// <summary>Opens a reader over a window given in seconds from the capture's first sample (see <see
+    /// cref="WindowSamples"/>).</summary>
     /// <exception cref="CaptureException">The window lies outside the capture.</exception>
     public CaptureReader OpenReader(double startS, double? durationS)
     {
@@ -132,7 +156,10 @@ public sealed class CaptureSource
     public CaptureSource ForSegment(int index)
     {
         if (index < 0 || index >= Info.Segments.Count)
-            throw CaptureException.ForFile(Info.Path, $"--segment {index}: the recording has {Info.Segments.Count} capture segment(s), numbered from 0");
+            throw CaptureException.ForFile(
+                Info.Path,
+                $"--segment {index}: the recording has {Info.Segments.Count} capture segment(s), numbered from 0"
+            );
         CaptureSegment seg = Info.Segments[index];
         long first = Info.Segments.Take(index).Sum(s => s.SampleCount);
         CaptureInfo info = Info with
@@ -142,30 +169,59 @@ public sealed class CaptureSource
             StartTime = seg.StartTime,
             SelectedSegment = index,
         };
-        return new CaptureSource(info, _openBytes, _storedFormat, _frameComponents, _pick, _firstSample + first) { CenterOverrideHz = CenterOverrideHz };
+        return new CaptureSource(info, _openBytes, _storedFormat, _frameComponents, _pick, _firstSample + first)
+        {
+            CenterOverrideHz = CenterOverrideHz,
+        };
     }
 
     /// <summary>
     /// Works out which frame components make the delivered signal, from the stored layout and
     /// the user's channel choice. Real multi-channel data (WAV) can pair two channels into I/Q.
     /// </summary>
-    internal static (int[] Pick, bool IsComplex, string Use) PickChannels(string path, SampleFormat stored, int channels, ReaderOptions options)
+    internal static (int[] Pick, bool IsComplex, string Use) PickChannels(
+        string path,
+        SampleFormat stored,
+        int channels,
+        ReaderOptions options
+    )
     {
-        if (channels < 1) throw CaptureException.ForFile(path, "the file declares zero channels");
+        if (channels < 1)
+            throw CaptureException.ForFile(path, "the file declares zero channels");
         int Check(int ch)
         {
             if (ch < 0 || ch >= channels)
-                throw CaptureException.ForFile(path, $"--channel {ch}: the file has {channels} channel(s), numbered from 0");
+                throw CaptureException.ForFile(
+                    path,
+                    $"--channel {ch}: the file has {channels} channel(s), numbered from 0"
+                );
             return ch;
         }
         if (stored.IsComplex)
         {
-            if (options.Channels is ChannelSelection.IQ or ChannelSelection.QI or ChannelSelection.Left or ChannelSelection.Right && channels == 1)
-                throw CaptureException.ForFile(path, "--channel iq/qi/left/right applies to real two-channel files; this file is already complex");
+            if (
+                options.Channels
+                    is ChannelSelection.IQ
+                        or ChannelSelection.QI
+                        or ChannelSelection.Left
+                        or ChannelSelection.Right
+                && channels == 1
+            )
+                throw CaptureException.ForFile(
+                    path,
+                    "--channel iq/qi/left/right applies to real two-channel files; this file is already complex"
+                );
             int ch = options.Channels == ChannelSelection.Index ? Check(options.ChannelIndex) : 0;
             if (channels > 1 && options.Channels != ChannelSelection.Index)
-                throw CaptureException.ForFile(path, $"the file has {channels} complex channels: pick one with --channel N (0 to {channels - 1})");
-            return ([2 * ch, 2 * ch + 1], true, channels == 1 ? "single complex channel" : $"complex channel {ch} of {channels}");
+                throw CaptureException.ForFile(
+                    path,
+                    $"the file has {channels} complex channels: pick one with --channel N (0 to {channels - 1})"
+                );
+            return (
+                [2 * ch, 2 * ch + 1],
+                true,
+                channels == 1 ? "single complex channel" : $"complex channel {ch} of {channels}"
+            );
         }
         switch (options.Channels)
         {
@@ -176,16 +232,26 @@ public sealed class CaptureSource
             case ChannelSelection.QI when channels == 2:
                 return ([1, 0], true, "I = channel 1, Q = channel 0 (swapped)");
             case ChannelSelection.IQ or ChannelSelection.QI:
-                throw CaptureException.ForFile(path, $"--channel iq/qi needs exactly two channels; the file has {channels}");
+                throw CaptureException.ForFile(
+                    path,
+                    $"--channel iq/qi needs exactly two channels; the file has {channels}"
+                );
             case ChannelSelection.Left:
                 return ([0], false, $"channel 0 (left) of {channels}, as a real signal");
             case ChannelSelection.Right:
                 Check(1);
                 return ([1], false, $"channel 1 (right) of {channels}, as a real signal");
             case ChannelSelection.Index:
-                return ([Check(options.ChannelIndex)], false, $"channel {options.ChannelIndex} of {channels}, as a real signal");
+                return (
+                    [Check(options.ChannelIndex)],
+                    false,
+                    $"channel {options.ChannelIndex} of {channels}, as a real signal"
+                );
             default:
-                throw CaptureException.ForFile(path, $"the file has {channels} channels: pick one with --channel N (0 to {channels - 1})");
+                throw CaptureException.ForFile(
+                    path,
+                    $"the file has {channels} channels: pick one with --channel N (0 to {channels - 1})"
+                );
         }
     }
 

@@ -11,10 +11,13 @@ public enum CaptureContainer
 {
     /// <summary>WAV (RIFF), or RF64 when the data passes 4 GiB or RF64 is asked for.</summary>
     Wav,
+
     /// <summary>Headerless raw samples.</summary>
     Raw,
+
     /// <summary>SigMF <c>.sigmf-meta</c> + <c>.sigmf-data</c> pair.</summary>
     SigMf,
+
     /// <summary>SigMF <c>.sigmf</c> tar archive.</summary>
     SigMfArchive,
 }
@@ -66,8 +69,17 @@ public sealed class CaptureWriter : IDisposable
     /// <param name="totalSamples">Samples that will be written (needed up front for headers).</param>
     /// <param name="overwrite">Replace existing files.</param>
     /// <param name="forceRf64">Write RF64 even below 4 GiB (WAV only).</param>
-    /// <exception cref="CaptureException">The output exists and <paramref name="overwrite"/> is false, or the format does not fit the container.</exception>
-    public CaptureWriter(string path, CaptureContainer container, SampleFormat format, CaptureMetadata metadata, long totalSamples, bool overwrite = false, bool forceRf64 = false)
+    /// <exception cref="CaptureException">The output exists and <paramref name="overwrite"/> is false, or the format
+    /// does not fit the container.</exception>
+    public CaptureWriter(
+        string path,
+        CaptureContainer container,
+        SampleFormat format,
+        CaptureMetadata metadata,
+        long totalSamples,
+        bool overwrite = false,
+        bool forceRf64 = false
+    )
     {
         ArgumentOutOfRangeException.ThrowIfNegative(totalSamples);
         _container = container;
@@ -75,16 +87,23 @@ public sealed class CaptureWriter : IDisposable
         _meta = metadata;
         _totalSamples = totalSamples;
         if (container == CaptureContainer.Wav && format.IsUnsigned && format.Encoding != ComponentEncoding.UInt8)
-            throw new CaptureException($"WAV cannot hold {format.Name}: use 8-bit unsigned, 16/24/32-bit signed or float");
+            throw new CaptureException(
+                $"WAV cannot hold {format.Name}: use 8-bit unsigned, 16/24/32-bit signed or float"
+            );
         if (container == CaptureContainer.Wav && format.BigEndian && format.BytesPerComponent > 1)
             throw new CaptureException($"WAV is little-endian: {format.Name} cannot be written to it");
         if (container != CaptureContainer.Wav && format.Encoding == ComponentEncoding.Int24)
             throw new CaptureException("24-bit samples are written to WAV only (SigMF has no 24-bit datatype)");
-        if (container == CaptureContainer.Wav && format.Encoding == ComponentEncoding.UInt8) _format = format with { UnsignedOffset = 128 };
+        if (container == CaptureContainer.Wav && format.Encoding == ComponentEncoding.UInt8)
+            _format = format with { UnsignedOffset = 128 };
         string full = Path.GetFullPath(path);
         if (container == CaptureContainer.SigMf)
         {
-            string stem = full.EndsWith(".sigmf-meta", StringComparison.OrdinalIgnoreCase) || full.EndsWith(".sigmf-data", StringComparison.OrdinalIgnoreCase) ? full[..^11] : full;
+            string stem =
+                full.EndsWith(".sigmf-meta", StringComparison.OrdinalIgnoreCase)
+                || full.EndsWith(".sigmf-data", StringComparison.OrdinalIgnoreCase)
+                    ? full[..^11]
+                    : full;
             _dataPath = stem + ".sigmf-data";
             _metaPath = stem + ".sigmf-meta";
         }
@@ -93,21 +112,29 @@ public sealed class CaptureWriter : IDisposable
             _dataPath = full;
         }
         foreach (string p in OutputPaths)
-            if (File.Exists(p) && !overwrite) throw CaptureException.ForFile(p, "already exists (use --force to replace it)");
+            if (File.Exists(p) && !overwrite)
+                throw CaptureException.ForFile(p, "already exists (use --force to replace it)");
         string? dir = Path.GetDirectoryName(_dataPath);
-        if (dir is not null && !Directory.Exists(dir)) throw CaptureException.ForFile(_dataPath, $"output folder {dir} does not exist");
-        _tempPath = Path.Combine(dir ?? ".", $".{Path.GetFileName(_dataPath)}.{Environment.ProcessId}.{Guid.NewGuid():N}.tmp");
+        if (dir is not null && !Directory.Exists(dir))
+            throw CaptureException.ForFile(_dataPath, $"output folder {dir} does not exist");
+        _tempPath = Path.Combine(
+            dir ?? ".",
+            $".{Path.GetFileName(_dataPath)}.{Environment.ProcessId}.{Guid.NewGuid():N}.tmp"
+        );
         _out = new FileStream(_tempPath, FileMode.CreateNew, FileAccess.ReadWrite, FileShare.None, 1 << 16);
         long dataBytes = totalSamples * _format.BytesPerSample;
         _rf64 = container == CaptureContainer.Wav && (forceRf64 || dataBytes + 44 > uint.MaxValue);
-        if (container == CaptureContainer.Wav) WriteWavHeader(dataBytes);
-        if (container == CaptureContainer.SigMfArchive) WriteTarHeader(_out, ArchiveMemberName(".sigmf-data"), dataBytes);
+        if (container == CaptureContainer.Wav)
+            WriteWavHeader(dataBytes);
+        if (container == CaptureContainer.SigMfArchive)
+            WriteTarHeader(_out, ArchiveMemberName(".sigmf-data"), dataBytes);
     }
 
     /// <summary>The files this writer produces.</summary>
     public IReadOnlyList<string> OutputPaths => _metaPath is null ? [_dataPath] : [_metaPath, _dataPath];
 
-    /// <summary>Sample components (I, Q or real values) whose code had to be clamped to the code range (clipped).</summary>
+    /// <summary>Sample components (I, Q or real values) whose code had to be clamped to the code range
+    /// (clipped).</summary>
     public long ClippedValues { get; private set; }
 
     /// <summary>Appends samples (interleaved I, Q for complex).</summary>
@@ -116,12 +143,15 @@ public sealed class CaptureWriter : IDisposable
     {
         int per = _format.ComponentsPerSample;
         long n = samples.Length / per;
-        if (_written + n > _totalSamples) throw new InvalidOperationException("more samples written than announced");
+        if (_written + n > _totalSamples)
+            throw new InvalidOperationException("more samples written than announced");
         int bytes = samples.Length * _format.BytesPerComponent;
-        if (_buffer.Length < bytes) _buffer = new byte[bytes];
+        if (_buffer.Length < bytes)
+            _buffer = new byte[bytes];
         Encode(samples, _buffer.AsSpan(0, bytes));
         _out.Write(_buffer, 0, bytes);
-        if (_container is CaptureContainer.SigMf or CaptureContainer.SigMfArchive) _sha.AppendData(_buffer, 0, bytes);
+        if (_container is CaptureContainer.SigMf or CaptureContainer.SigMfArchive)
+            _sha.AppendData(_buffer, 0, bytes);
         _written += n;
     }
 
@@ -129,13 +159,15 @@ public sealed class CaptureWriter : IDisposable
     /// <exception cref="InvalidOperationException">Fewer samples were written than announced.</exception>
     public void Complete()
     {
-        if (_written != _totalSamples) throw new InvalidOperationException($"{_written} samples written, {_totalSamples} announced");
+        if (_written != _totalSamples)
+            throw new InvalidOperationException($"{_written} samples written, {_totalSamples} announced");
         string sha = Convert.ToHexStringLower(_sha.GetHashAndReset());
         long dataBytes = _totalSamples * _format.BytesPerSample;
         switch (_container)
         {
             case CaptureContainer.Wav:
-                if ((dataBytes & 1) == 1) _out.WriteByte(0);
+                if ((dataBytes & 1) == 1)
+                    _out.WriteByte(0);
                 break;
             case CaptureContainer.SigMfArchive:
                 Pad(_out, dataBytes);
@@ -166,9 +198,14 @@ public sealed class CaptureWriter : IDisposable
     public void Dispose()
     {
         _sha.Dispose();
-        if (_completed) return;
+        if (_completed)
+            return;
         _out.Dispose();
-        try { File.Delete(_tempPath); } catch (IOException) { }
+        try
+        {
+            File.Delete(_tempPath);
+        }
+        catch (IOException) { }
     }
 
     private string ArchiveMemberName(string ext)
@@ -189,13 +226,19 @@ public sealed class CaptureWriter : IDisposable
             w.WriteNumber("core:sample_rate", _meta.SampleRateHz);
             w.WriteString("core:sha512", sha);
             w.WriteString("core:recorder", "signalinspect synth");
-            if (_meta.Description is { } d) w.WriteString("core:description", d);
+            if (_meta.Description is { } d)
+                w.WriteString("core:description", d);
             w.WriteEndObject();
             w.WriteStartArray("captures");
             w.WriteStartObject();
             w.WriteNumber("core:sample_start", 0);
-            if (_meta.CenterFrequencyHz is { } f) w.WriteNumber("core:frequency", f);
-            if (_meta.StartTime is { } t) w.WriteString("core:datetime", t.UtcDateTime.ToString("yyyy-MM-dd'T'HH:mm:ss.fff'Z'", CultureInfo.InvariantCulture));
+            if (_meta.CenterFrequencyHz is { } f)
+                w.WriteNumber("core:frequency", f);
+            if (_meta.StartTime is { } t)
+                w.WriteString(
+                    "core:datetime",
+                    t.UtcDateTime.ToString("yyyy-MM-dd'T'HH:mm:ss.fff'Z'", CultureInfo.InvariantCulture)
+                );
             w.WriteEndObject();
             w.WriteEndArray();
             w.WriteStartArray("annotations");
@@ -258,7 +301,8 @@ public sealed class CaptureWriter : IDisposable
         h[156] = (byte)'0';
         Encoding.ASCII.GetBytes("ustar\0").CopyTo(h, 257);
         Encoding.ASCII.GetBytes("00").CopyTo(h, 263);
-        for (int i = 148; i < 156; i++) h[i] = (byte)' ';
+        for (int i = 148; i < 156; i++)
+            h[i] = (byte)' ';
         int sum = h.Sum(b => b);
         Encoding.ASCII.GetBytes(Convert.ToString(sum, 8).PadLeft(6, '0') + "\0 ").CopyTo(h, 148);
         s.Write(h);
@@ -267,7 +311,8 @@ public sealed class CaptureWriter : IDisposable
     private static void Pad(Stream s, long size)
     {
         int pad = (int)((512 - size % 512) % 512);
-        if (pad > 0) s.Write(new byte[pad]);
+        if (pad > 0)
+            s.Write(new byte[pad]);
     }
 
     private void Encode(ReadOnlySpan<double> src, Span<byte> dst)
@@ -294,12 +339,18 @@ public sealed class CaptureWriter : IDisposable
             double x = src[i];
             if (f.Encoding == ComponentEncoding.Float32)
             {
-                if (big) BinaryPrimitives.WriteSingleBigEndian(d, (float)x); else BinaryPrimitives.WriteSingleLittleEndian(d, (float)x);
+                if (big)
+                    BinaryPrimitives.WriteSingleBigEndian(d, (float)x);
+                else
+                    BinaryPrimitives.WriteSingleLittleEndian(d, (float)x);
                 continue;
             }
             if (f.Encoding == ComponentEncoding.Float64)
             {
-                if (big) BinaryPrimitives.WriteDoubleBigEndian(d, x); else BinaryPrimitives.WriteDoubleLittleEndian(d, x);
+                if (big)
+                    BinaryPrimitives.WriteDoubleBigEndian(d, x);
+                else
+                    BinaryPrimitives.WriteDoubleLittleEndian(d, x);
                 continue;
             }
             double code = Math.Round(x * scale + off, MidpointRounding.AwayFromZero);
@@ -310,16 +361,42 @@ public sealed class CaptureWriter : IDisposable
             }
             switch (f.Encoding)
             {
-                case ComponentEncoding.Int8: d[0] = (byte)(sbyte)code; break;
-                case ComponentEncoding.UInt8: d[0] = (byte)code; break;
-                case ComponentEncoding.Int16: if (big) BinaryPrimitives.WriteInt16BigEndian(d, (short)code); else BinaryPrimitives.WriteInt16LittleEndian(d, (short)code); break;
-                case ComponentEncoding.UInt16: if (big) BinaryPrimitives.WriteUInt16BigEndian(d, (ushort)code); else BinaryPrimitives.WriteUInt16LittleEndian(d, (ushort)code); break;
+                case ComponentEncoding.Int8:
+                    d[0] = (byte)(sbyte)code;
+                    break;
+                case ComponentEncoding.UInt8:
+                    d[0] = (byte)code;
+                    break;
+                case ComponentEncoding.Int16:
+                    if (big)
+                        BinaryPrimitives.WriteInt16BigEndian(d, (short)code);
+                    else
+                        BinaryPrimitives.WriteInt16LittleEndian(d, (short)code);
+                    break;
+                case ComponentEncoding.UInt16:
+                    if (big)
+                        BinaryPrimitives.WriteUInt16BigEndian(d, (ushort)code);
+                    else
+                        BinaryPrimitives.WriteUInt16LittleEndian(d, (ushort)code);
+                    break;
                 case ComponentEncoding.Int24:
                     int v24 = (int)code;
-                    d[0] = (byte)v24; d[1] = (byte)(v24 >> 8); d[2] = (byte)(v24 >> 16);
+                    d[0] = (byte)v24;
+                    d[1] = (byte)(v24 >> 8);
+                    d[2] = (byte)(v24 >> 16);
                     break;
-                case ComponentEncoding.Int32: if (big) BinaryPrimitives.WriteInt32BigEndian(d, (int)code); else BinaryPrimitives.WriteInt32LittleEndian(d, (int)code); break;
-                case ComponentEncoding.UInt32: if (big) BinaryPrimitives.WriteUInt32BigEndian(d, (uint)code); else BinaryPrimitives.WriteUInt32LittleEndian(d, (uint)code); break;
+                case ComponentEncoding.Int32:
+                    if (big)
+                        BinaryPrimitives.WriteInt32BigEndian(d, (int)code);
+                    else
+                        BinaryPrimitives.WriteInt32LittleEndian(d, (int)code);
+                    break;
+                case ComponentEncoding.UInt32:
+                    if (big)
+                        BinaryPrimitives.WriteUInt32BigEndian(d, (uint)code);
+                    else
+                        BinaryPrimitives.WriteUInt32LittleEndian(d, (uint)code);
+                    break;
             }
         }
     }

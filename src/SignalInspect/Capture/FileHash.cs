@@ -25,7 +25,8 @@ public static class FileHash
             }
             buf ??= new byte[1 << 20];
             int n;
-            while ((n = fs.Read(buf)) > 0) sha.AppendData(buf, 0, n);
+            while ((n = fs.Read(buf)) > 0)
+                sha.AppendData(buf, 0, n);
         }
         return Convert.ToHexStringLower(sha.GetHashAndReset());
     }

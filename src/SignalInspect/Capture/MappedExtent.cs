@@ -19,11 +19,13 @@ internal sealed unsafe class MappedExtent : IDisposable
     public const int WindowBytes = 8 << 20;
 
     private readonly MemoryMappedFile _map;
-    private readonly long _offset, _length;
+    private readonly long _offset,
+        _length;
     private readonly int _window;
     private MemoryMappedViewAccessor? _view;
     private byte* _base;
-    private long _viewStart, _viewLength;
+    private long _viewStart,
+        _viewLength;
 
     private MappedExtent(MemoryMappedFile map, long offset, long length, int window)
     {
@@ -44,7 +46,8 @@ internal sealed unsafe class MappedExtent : IDisposable
     /// <summary>Tests only: maps or reads in the calling flow whatever the environment says.</summary>
     internal static readonly AsyncLocal<bool?> EnabledForTests = new();
 
-    /// <summary>Tests only: a smaller window in the calling flow, so that small files cross window boundaries.</summary>
+    /// <summary>Tests only: a smaller window in the calling flow, so that small files cross window
+    /// boundaries.</summary>
     internal static readonly AsyncLocal<int?> WindowBytesForTests = new();
 
     /// <summary>
@@ -55,14 +58,24 @@ internal sealed unsafe class MappedExtent : IDisposable
     /// </summary>
     public static MappedExtent? TryOpen(FileStream stream, long offset, long length)
     {
-        if (!Enabled || length <= 0 || offset < 0) return null;
+        if (!Enabled || length <= 0 || offset < 0)
+            return null;
         try
         {
-            if (offset + length > stream.Length) return null;
-            var map = MemoryMappedFile.CreateFromFile(stream, null, 0, MemoryMappedFileAccess.Read, HandleInheritability.None, leaveOpen: true);
+            if (offset + length > stream.Length)
+                return null;
+            var map = MemoryMappedFile.CreateFromFile(
+                stream,
+                null,
+                0,
+                MemoryMappedFileAccess.Read,
+                HandleInheritability.None,
+                leaveOpen: true
+            );
             return new MappedExtent(map, offset, length, WindowBytesForTests.Value ?? WindowBytes);
         }
-        catch (Exception e) when (e is IOException or UnauthorizedAccessException or NotSupportedException or ArgumentException)
+        catch (Exception e)
+            when (e is IOException or UnauthorizedAccessException or NotSupportedException or ArgumentException)
         {
             return null;
         }
@@ -80,9 +93,11 @@ internal sealed unsafe class MappedExtent : IDisposable
     /// </summary>
     public ReadOnlySpan<byte> Get(long at, int count)
     {
-        if (at < 0 || at > _length) throw new ArgumentOutOfRangeException(nameof(at));
+        if (at < 0 || at > _length)
+            throw new ArgumentOutOfRangeException(nameof(at));
         count = (int)Math.Min(count, _length - at);
-        if (count <= 0) return default;
+        if (count <= 0)
+            return default;
         if (at < _viewStart || at + count > _viewStart + _viewLength || _view is null)
         {
             Release();
@@ -99,7 +114,8 @@ internal sealed unsafe class MappedExtent : IDisposable
 
     private void Release()
     {
-        if (_view is null) return;
+        if (_view is null)
+            return;
         _view.SafeMemoryMappedViewHandle.ReleasePointer();
         _view.Dispose();
         _view = null;

@@ -14,7 +14,8 @@ internal static class RawReader
         SampleFormat format;
         if (options.Datatype is { } word)
         {
-            if (!SampleFormat.TryParse(word, out format, out string error)) throw CaptureException.ForFile(path, "--datatype: " + error);
+            if (!SampleFormat.TryParse(word, out format, out string error))
+                throw CaptureException.ForFile(path, "--datatype: " + error);
         }
         else if (SampleFormat.FromFileExtension(path) is { } guessed)
         {
@@ -23,14 +24,25 @@ internal static class RawReader
         }
         else
         {
-            throw CaptureException.ForFile(path, "not a WAV or SigMF file, and the datatype of a raw file is unknown: give --datatype (e.g. cu8, ci16_le, cf32_le) and --sample-rate HZ");
+            throw CaptureException.ForFile(
+                path,
+                "not a WAV or SigMF file, and the datatype of a raw file is unknown: give --datatype (e.g. cu8, ci16_le, cf32_le) and --sample-rate HZ"
+            );
         }
-        double rate = CaptureSource.CheckRate(path, options.SampleRateHz, options.SampleRateHz is null ? "a raw file has no header" : "--sample-rate");
+        double rate = CaptureSource.CheckRate(
+            path,
+            options.SampleRateHz,
+            options.SampleRateHz is null ? "a raw file has no header" : "--sample-rate"
+        );
         var warnings = new List<string>();
         long tail = size % format.BytesPerSample;
-        if (tail != 0) warnings.Add($"file length is not a whole number of {format.Name} samples: the last {tail} byte(s) are ignored");
+        if (tail != 0)
+            warnings.Add(
+                $"file length is not a whole number of {format.Name} samples: the last {tail} byte(s) are ignored"
+            );
         long samples = size / format.BytesPerSample;
-        if (samples == 0) throw CaptureException.ForFile(path, $"holds no whole {format.Name} sample ({size} bytes)");
+        if (samples == 0)
+            throw CaptureException.ForFile(path, $"holds no whole {format.Name} sample ({size} bytes)");
         var (pick, complex, use) = CaptureSource.PickChannels(path, format, 1, options);
         var info = new CaptureInfo
         {
@@ -49,6 +61,12 @@ internal static class RawReader
             Warnings = warnings,
         };
         FileExtent[] extents = [new FileExtent(0, samples * format.BytesPerSample)];
-        return new CaptureSource(info, () => new FileExtentSource(path, extents), format, format.ComponentsPerSample, pick);
+        return new CaptureSource(
+            info,
+            () => new FileExtentSource(path, extents),
+            format,
+            format.ComponentsPerSample,
+            pick
+        );
     }
 }

@@ -31,13 +31,16 @@ internal sealed class SampleDecoder
     /// <summary>Bytes in one frame.</summary>
     public int FrameBytes => _frameComponents * _format.BytesPerComponent;
 
-    /// <summary>Whether the stored frames are exactly the output in single precision (little-endian float32, every component used, in order).</summary>
-    public bool StoresOutputAsFloat32 => _identity && _format.Encoding == ComponentEncoding.Float32 && _format.BigEndian != BitConverter.IsLittleEndian;
+    /// <summary>Whether the stored frames are exactly the output in single precision (little-endian float32, every
+    /// component used, in order).</summary>
+    public bool StoresOutputAsFloat32 =>
+        _identity && _format.Encoding == ComponentEncoding.Float32 && _format.BigEndian != BitConverter.IsLittleEndian;
 
     /// <summary>Values written per output sample (2 complex, 1 real).</summary>
     public int OutputComponents => _pick.Length;
 
-    /// <summary>Decodes whole frames from <paramref name="bytes"/> into <paramref name="output"/>; returns frames decoded.</summary>
+    /// <summary>Decodes whole frames from <paramref name="bytes"/> into <paramref name="output"/>; returns frames
+    /// decoded.</summary>
     public int Decode(ReadOnlySpan<byte> bytes, Span<double> output)
     {
         int frames = Math.Min(bytes.Length / FrameBytes, output.Length / _pick.Length);
@@ -47,14 +50,16 @@ internal sealed class SampleDecoder
             return frames;
         }
         int need = frames * _frameComponents;
-        if (_scratch.Length < need) _scratch = new double[need];
+        if (_scratch.Length < need)
+            _scratch = new double[need];
         Span<double> all = _scratch.AsSpan(0, need);
         DecodeComponents(bytes[..(frames * FrameBytes)], all);
         int k = 0;
         for (int f = 0; f < frames; f++)
         {
             int b = f * _frameComponents;
-            foreach (int p in _pick) output[k++] = all[b + p];
+            foreach (int p in _pick)
+                output[k++] = all[b + p];
         }
         return frames;
     }
@@ -64,36 +69,48 @@ internal sealed class SampleDecoder
         bool swap = _format.BigEndian == BitConverter.IsLittleEndian;
         double inv = 1.0 / _format.CodeFullScale;
         double off = _format.UnsignedOffset;
-        // Unsigned codes divide by a full scale that is not a power of two: divide (exactly as defined) rather than multiply by a rounded inverse.
+        // Unsigned codes divide by a full scale that is not a power of two: divide (exactly as defined) rather than
+        // multiply by a rounded inverse.
         double fullScale = _format.CodeFullScale;
         int n = dst.Length;
         switch (_format.Encoding)
         {
             case ComponentEncoding.Float32:
-                if (!swap) SignalInspect.Dsp.VectorMath.Widen(MemoryMarshal.Cast<byte, float>(src)[..n], dst);
+                if (!swap)
+                    SignalInspect.Dsp.VectorMath.Widen(MemoryMarshal.Cast<byte, float>(src)[..n], dst);
                 else
                 {
-                    for (int i = 0; i < n; i++) dst[i] = BinaryPrimitives.ReadSingleBigEndian(src[(4 * i)..]);
+                    for (int i = 0; i < n; i++)
+                        dst[i] = BinaryPrimitives.ReadSingleBigEndian(src[(4 * i)..]);
                 }
                 break;
             case ComponentEncoding.Float64:
-                if (!swap) MemoryMarshal.Cast<byte, double>(src)[..n].CopyTo(dst);
-                else for (int i = 0; i < n; i++) dst[i] = BinaryPrimitives.ReadDoubleBigEndian(src[(8 * i)..]);
+                if (!swap)
+                    MemoryMarshal.Cast<byte, double>(src)[..n].CopyTo(dst);
+                else
+                    for (int i = 0; i < n; i++)
+                        dst[i] = BinaryPrimitives.ReadDoubleBigEndian(src[(8 * i)..]);
                 break;
             case ComponentEncoding.Int8:
-                for (int i = 0; i < n; i++) dst[i] = (sbyte)src[i] * inv;
+                for (int i = 0; i < n; i++)
+                    dst[i] = (sbyte)src[i] * inv;
                 break;
             case ComponentEncoding.UInt8:
                 WidenUInt8(src[..n], off, fullScale, dst);
                 break;
             case ComponentEncoding.Int16:
-                if (!swap) WidenInt16(MemoryMarshal.Cast<byte, short>(src)[..n], inv, dst);
-                else for (int i = 0; i < n; i++) dst[i] = BinaryPrimitives.ReadInt16BigEndian(src[(2 * i)..]) * inv;
+                if (!swap)
+                    WidenInt16(MemoryMarshal.Cast<byte, short>(src)[..n], inv, dst);
+                else
+                    for (int i = 0; i < n; i++)
+                        dst[i] = BinaryPrimitives.ReadInt16BigEndian(src[(2 * i)..]) * inv;
                 break;
             case ComponentEncoding.UInt16:
                 for (int i = 0; i < n; i++)
                 {
-                    ushort v = _format.BigEndian ? BinaryPrimitives.ReadUInt16BigEndian(src[(2 * i)..]) : BinaryPrimitives.ReadUInt16LittleEndian(src[(2 * i)..]);
+                    ushort v = _format.BigEndian
+                        ? BinaryPrimitives.ReadUInt16BigEndian(src[(2 * i)..])
+                        : BinaryPrimitives.ReadUInt16LittleEndian(src[(2 * i)..]);
                     dst[i] = (v - off) / fullScale;
                 }
                 break;
@@ -110,14 +127,18 @@ internal sealed class SampleDecoder
             case ComponentEncoding.Int32:
                 for (int i = 0; i < n; i++)
                 {
-                    int v = _format.BigEndian ? BinaryPrimitives.ReadInt32BigEndian(src[(4 * i)..]) : BinaryPrimitives.ReadInt32LittleEndian(src[(4 * i)..]);
+                    int v = _format.BigEndian
+                        ? BinaryPrimitives.ReadInt32BigEndian(src[(4 * i)..])
+                        : BinaryPrimitives.ReadInt32LittleEndian(src[(4 * i)..]);
                     dst[i] = v * inv;
                 }
                 break;
             case ComponentEncoding.UInt32:
                 for (int i = 0; i < n; i++)
                 {
-                    uint v = _format.BigEndian ? BinaryPrimitives.ReadUInt32BigEndian(src[(4 * i)..]) : BinaryPrimitives.ReadUInt32LittleEndian(src[(4 * i)..]);
+                    uint v = _format.BigEndian
+                        ? BinaryPrimitives.ReadUInt32BigEndian(src[(4 * i)..])
+                        : BinaryPrimitives.ReadUInt32LittleEndian(src[(4 * i)..]);
                     dst[i] = (v - off) / fullScale;
                 }
                 break;
@@ -129,7 +150,9 @@ internal sealed class SampleDecoder
 
     private static void WidenInt16(ReadOnlySpan<short> s, double inv, Span<double> dst)
     {
-        int w = Vector<short>.Count, i = 0, q = Vector<double>.Count;
+        int w = Vector<short>.Count,
+            i = 0,
+            q = Vector<double>.Count;
         var scale = new Vector<double>(inv);
         for (; i + w <= s.Length; i += w)
         {
@@ -141,12 +164,15 @@ internal sealed class SampleDecoder
             (Vector.ConvertToDouble(b0) * scale).CopyTo(dst[(i + 2 * q)..]);
             (Vector.ConvertToDouble(b1) * scale).CopyTo(dst[(i + 3 * q)..]);
         }
-        for (; i < s.Length; i++) dst[i] = s[i] * inv;
+        for (; i < s.Length; i++)
+            dst[i] = s[i] * inv;
     }
 
     private static void WidenUInt8(ReadOnlySpan<byte> s, double off, double fullScale, Span<double> dst)
     {
-        int w = Vector<byte>.Count, i = 0, q = Vector<double>.Count;
+        int w = Vector<byte>.Count,
+            i = 0,
+            q = Vector<double>.Count;
         var o = new Vector<double>(off);
         var fs = new Vector<double>(fullScale);
         for (; i + w <= s.Length; i += w)
@@ -166,6 +192,7 @@ internal sealed class SampleDecoder
                 }
             }
         }
-        for (; i < s.Length; i++) dst[i] = (s[i] - off) / fullScale;
+        for (; i < s.Length; i++)
+            dst[i] = (s[i] - off) / fullScale;
     }
 }

@@ -7,20 +7,28 @@ public enum ComponentEncoding
 {
     /// <summary>IEEE 754 binary32.</summary>
     Float32,
+
     /// <summary>IEEE 754 binary64.</summary>
     Float64,
+
     /// <summary>Two's complement 8-bit integer.</summary>
     Int8,
+
     /// <summary>Two's complement 16-bit integer.</summary>
     Int16,
+
     /// <summary>Two's complement 24-bit integer (WAV only; not a SigMF datatype).</summary>
     Int24,
+
     /// <summary>Two's complement 32-bit integer.</summary>
     Int32,
+
     /// <summary>Unsigned 8-bit integer (offset binary).</summary>
     UInt8,
+
     /// <summary>Unsigned 16-bit integer (offset binary).</summary>
     UInt16,
+
     /// <summary>Unsigned 32-bit integer (offset binary).</summary>
     UInt32,
 }
@@ -38,21 +46,28 @@ public enum ComponentEncoding
 /// For unsigned encodings, the code that stands for zero. SigMF/raw captures use the midpoint
 /// of the code range (127.5 for <c>cu8</c>, the usual receiver convention); WAV 8-bit PCM uses 128.
 /// </param>
-public readonly record struct SampleFormat(bool IsComplex, ComponentEncoding Encoding, bool BigEndian, double UnsignedOffset)
+public readonly record struct SampleFormat(
+    bool IsComplex,
+    ComponentEncoding Encoding,
+    bool BigEndian,
+    double UnsignedOffset
+)
 {
     private static readonly Regex Grammar = new(
         "^(?<kind>[rc])(?:(?<wide>f32|f64|i32|i16|u32|u16)_(?<endian>le|be)|(?<narrow>i8|u8))$",
-        RegexOptions.CultureInvariant);
+        RegexOptions.CultureInvariant
+    );
 
     /// <summary>Bytes in one component.</summary>
-    public int BytesPerComponent => Encoding switch
-    {
-        ComponentEncoding.Int8 or ComponentEncoding.UInt8 => 1,
-        ComponentEncoding.Int16 or ComponentEncoding.UInt16 => 2,
-        ComponentEncoding.Int24 => 3,
-        ComponentEncoding.Float64 => 8,
-        _ => 4,
-    };
+    public int BytesPerComponent =>
+        Encoding switch
+        {
+            ComponentEncoding.Int8 or ComponentEncoding.UInt8 => 1,
+            ComponentEncoding.Int16 or ComponentEncoding.UInt16 => 2,
+            ComponentEncoding.Int24 => 3,
+            ComponentEncoding.Float64 => 8,
+            _ => 4,
+        };
 
     /// <summary>Components in one sample of one channel: 2 for complex, 1 for real.</summary>
     public int ComponentsPerSample => IsComplex ? 2 : 1;
@@ -64,23 +79,26 @@ public readonly record struct SampleFormat(bool IsComplex, ComponentEncoding Enc
     /// Scale from a stored code (after removing <see cref="UnsignedOffset"/>) to full-scale units:
     /// value = (code - offset) / <see cref="CodeFullScale"/>.
     /// </summary>
-    public double CodeFullScale => Encoding switch
-    {
-        ComponentEncoding.Float32 or ComponentEncoding.Float64 => 1.0,
-        ComponentEncoding.Int8 => 128.0,
-        ComponentEncoding.Int16 => 32768.0,
-        ComponentEncoding.Int24 => 8388608.0,
-        ComponentEncoding.Int32 => 2147483648.0,
-        _ => UnsignedOffset,
-    };
+    public double CodeFullScale =>
+        Encoding switch
+        {
+            ComponentEncoding.Float32 or ComponentEncoding.Float64 => 1.0,
+            ComponentEncoding.Int8 => 128.0,
+            ComponentEncoding.Int16 => 32768.0,
+            ComponentEncoding.Int24 => 8388608.0,
+            ComponentEncoding.Int32 => 2147483648.0,
+            _ => UnsignedOffset,
+        };
 
     /// <summary>True for the unsigned (offset binary) encodings.</summary>
-    public bool IsUnsigned => Encoding is ComponentEncoding.UInt8 or ComponentEncoding.UInt16 or ComponentEncoding.UInt32;
+    public bool IsUnsigned =>
+        Encoding is ComponentEncoding.UInt8 or ComponentEncoding.UInt16 or ComponentEncoding.UInt32;
 
     /// <summary>True for the floating-point encodings.</summary>
     public bool IsFloat => Encoding is ComponentEncoding.Float32 or ComponentEncoding.Float64;
 
-    /// <summary>The datatype word, e.g. <c>cf32_le</c>, <c>ri16_le</c>, <c>cu8</c>; <c>ri24_le</c> for 24-bit WAV.</summary>
+    /// <summary>The datatype word, e.g. <c>cf32_le</c>, <c>ri16_le</c>, <c>cu8</c>; <c>ri24_le</c> for 24-bit
+    /// WAV.</summary>
     public string Name
     {
         get
@@ -113,7 +131,8 @@ public readonly record struct SampleFormat(bool IsComplex, ComponentEncoding Enc
         Match m = Grammar.Match(text);
         if (!m.Success)
         {
-            error = $"unknown datatype '{text}' (expected a SigMF datatype such as cu8, ci8, ci16_le, cf32_le, rf32_le)";
+            error =
+                $"unknown datatype '{text}' (expected a SigMF datatype such as cu8, ci8, ci16_le, cf32_le, rf32_le)";
             return false;
         }
         bool complex = m.Groups["kind"].Value == "c";
@@ -148,8 +167,8 @@ public readonly record struct SampleFormat(bool IsComplex, ComponentEncoding Enc
         TryParse(datatype, out SampleFormat f, out string error) ? f : throw new CaptureException(error);
 
     /// <summary>
-    /// The datatype a raw file's name suggests (<c>.cu8</c>, <c>.cs8</c>, <c>.cs16</c>, <c>.cf32</c>, <c>.cfile</c> ...),
-    /// or null. A full SigMF word as the extension (e.g. <c>.ci16_le</c>) is taken as it is.
+    /// The datatype a raw file's name suggests (<c>.cu8</c>, <c>.cs8</c>, <c>.cs16</c>, <c>.cf32</c>, <c>.cfile</c>
+    /// ...), or null. A full SigMF word as the extension (e.g. <c>.ci16_le</c>) is taken as it is.
     /// </summary>
     public static SampleFormat? FromFileExtension(string path)
     {

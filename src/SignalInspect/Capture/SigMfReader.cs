@@ -23,11 +23,21 @@ internal static class SigMfReader
         string stem = path[..^MetaExt.Length];
         string metaPath = stem + MetaExt;
         string dataPath = stem + DataExt;
-        if (!File.Exists(metaPath)) throw CaptureException.ForFile(path, $"metadata file {Path.GetFileName(metaPath)} not found beside the data");
-        if (!File.Exists(dataPath)) throw CaptureException.ForFile(metaPath, $"data file {Path.GetFileName(dataPath)} not found");
+        if (!File.Exists(metaPath))
+            throw CaptureException.ForFile(
+                path,
+                $"metadata file {Path.GetFileName(metaPath)} not found beside the data"
+            );
+        if (!File.Exists(dataPath))
+            throw CaptureException.ForFile(metaPath, $"data file {Path.GetFileName(dataPath)} not found");
         long metaSize = new FileInfo(metaPath).Length;
-        if (metaSize == 0) throw CaptureException.ForFile(metaPath, "metadata file is empty");
-        if (metaSize > MaxMetadataBytes) throw CaptureException.ForFile(metaPath, $"metadata file of {metaSize} bytes is larger than the {MaxMetadataBytes >> 20} MiB read");
+        if (metaSize == 0)
+            throw CaptureException.ForFile(metaPath, "metadata file is empty");
+        if (metaSize > MaxMetadataBytes)
+            throw CaptureException.ForFile(
+                metaPath,
+                $"metadata file of {metaSize} bytes is larger than the {MaxMetadataBytes >> 20} MiB read"
+            );
         byte[] json;
         using (FileStream fs = ByteSource.OpenReadOnly(metaPath))
         {
@@ -41,29 +51,64 @@ internal static class SigMfReader
     public static CaptureSource OpenArchive(string path, ReaderOptions options)
     {
         IReadOnlyList<TarMember> members = TarArchive.List(path);
-        List<TarMember> metas = [.. members.Where(m => m.Name.EndsWith(MetaExt, StringComparison.Ordinal)).OrderBy(m => m.Name, StringComparer.Ordinal)];
-        if (metas.Count == 0) throw CaptureException.ForFile(path, "the archive holds no .sigmf-meta member");
+        List<TarMember> metas =
+        [
+            .. members
+                .Where(m => m.Name.EndsWith(MetaExt, StringComparison.Ordinal))
+                .OrderBy(m => m.Name, StringComparer.Ordinal),
+        ];
+        if (metas.Count == 0)
+            throw CaptureException.ForFile(path, "the archive holds no .sigmf-meta member");
         TarMember meta = metas[0];
         string dataName = meta.Name[..^MetaExt.Length] + DataExt;
         TarMember data = members.FirstOrDefault(m => m.Name == dataName)
-            ?? throw CaptureException.ForFile(path, $"the archive holds {meta.Name} but not its data member {dataName}");
-        if (meta.Size > MaxMetadataBytes) throw CaptureException.ForFile(path, $"metadata member of {meta.Size} bytes is larger than the {MaxMetadataBytes >> 20} MiB read");
+            ?? throw CaptureException.ForFile(
+                path,
+                $"the archive holds {meta.Name} but not its data member {dataName}"
+            );
+        if (meta.Size > MaxMetadataBytes)
+            throw CaptureException.ForFile(
+                path,
+                $"metadata member of {meta.Size} bytes is larger than the {MaxMetadataBytes >> 20} MiB read"
+            );
         byte[] json = new byte[meta.Size];
         using (FileStream fs = ByteSource.OpenReadOnly(path))
         {
             fs.Position = meta.DataOffset;
             fs.ReadExactly(json);
         }
-        CaptureSource source = Build(path, json, path, data.DataOffset, data.Size, "SigMF archive", new FileInfo(path).Length, options);
+        CaptureSource source = Build(
+            path,
+            json,
+            path,
+            data.DataOffset,
+            data.Size,
+            "SigMF archive",
+            new FileInfo(path).Length,
+            options
+        );
         if (metas.Count > 1)
         {
-            var notes = source.Info.Notes.Append($"the archive holds {metas.Count} recordings; {meta.Name} is read ({string.Join(", ", metas.Skip(1).Select(m => m.Name))} are not)").ToList();
+            var notes = source
+                .Info.Notes.Append(
+                    $"the archive holds {metas.Count} recordings; {meta.Name} is read ({string.Join(", ", metas.Skip(1).Select(m => m.Name))} are not)"
+                )
+                .ToList();
             source = source.WithInfo(source.Info with { Notes = notes });
         }
         return source;
     }
 
-    private static CaptureSource Build(string metaPath, byte[] json, string dataPath, long dataOffset, long dataLength, string container, long fileSize, ReaderOptions options)
+    private static CaptureSource Build(
+        string metaPath,
+        byte[] json,
+        string dataPath,
+        long dataOffset,
+        long dataLength,
+        string container,
+        long fileSize,
+        ReaderOptions options
+    )
     {
         try
         {
@@ -80,39 +125,56 @@ internal static class SigMfReader
         }
         catch (JsonException e)
         {
-            string where = e.LineNumber is { } l ? $" at line {l + 1}, column {(e.BytePositionInLine ?? 0) + 1}" : string.Empty;
+            string where = e.LineNumber is { } l
+                ? $" at line {l + 1}, column {(e.BytePositionInLine ?? 0) + 1}"
+                : string.Empty;
             throw CaptureException.ForFile(metaPath, $"metadata is not valid JSON{where}: {FirstSentence(e.Message)}");
         }
         using (doc)
         {
             var m = new Meta(metaPath);
             JsonElement root = doc.RootElement;
-            if (root.ValueKind != JsonValueKind.Object) throw m.Error("the metadata must be a JSON object");
+            if (root.ValueKind != JsonValueKind.Object)
+                throw m.Error("the metadata must be a JSON object");
             JsonElement global = m.Object(root, "global", required: true)!.Value;
-            string datatype = m.String(global, "global", "core:datatype") ?? throw m.Error("global.core:datatype is missing");
-            if (!SampleFormat.TryParse(datatype, out SampleFormat format, out string dtError)) throw m.Error("global.core:datatype: " + dtError);
+            string datatype = m.String(global, "global", "core:datatype")
+                ?? throw m.Error("global.core:datatype is missing");
+            if (!SampleFormat.TryParse(datatype, out SampleFormat format, out string dtError))
+                throw m.Error("global.core:datatype: " + dtError);
             var notes = new List<string>();
             var warnings = new List<string>();
-            if (m.String(global, "global", "core:version") is null) warnings.Add("global.core:version is missing (required by SigMF)");
+            if (m.String(global, "global", "core:version") is null)
+                warnings.Add("global.core:version is missing (required by SigMF)");
             double? fileRate = m.Number(global, "global", "core:sample_rate");
             double rate;
             if (options.SampleRateHz is { } userRate)
             {
                 rate = CaptureSource.CheckRate(metaPath, userRate, "--sample-rate");
-                notes.Add(fileRate is { } fr ? $"sample rate {rate:R} Hz from --sample-rate overrides core:sample_rate {fr:R} Hz" : $"sample rate {rate:R} Hz from --sample-rate (the metadata has no core:sample_rate)");
+                notes.Add(
+                    fileRate is { } fr
+                        ? $"sample rate {rate:R} Hz from --sample-rate overrides core:sample_rate {fr:R} Hz"
+                        : $"sample rate {rate:R} Hz from --sample-rate (the metadata has no core:sample_rate)"
+                );
             }
             else
             {
-                rate = CaptureSource.CheckRate(metaPath, fileRate, fileRate is null ? "no global.core:sample_rate in the metadata" : "global.core:sample_rate");
+                rate = CaptureSource.CheckRate(
+                    metaPath,
+                    fileRate,
+                    fileRate is null ? "no global.core:sample_rate in the metadata" : "global.core:sample_rate"
+                );
             }
             long channels = m.Integer(global, "global", "core:num_channels") ?? 1;
-            if (channels < 1) throw m.Error("global.core:num_channels must be 1 or more");
-            if (channels > 4096) throw m.Error($"global.core:num_channels {channels} is more than the 4096 read");
+            if (channels < 1)
+                throw m.Error("global.core:num_channels must be 1 or more");
+            if (channels > 4096)
+                throw m.Error($"global.core:num_channels {channels} is more than the 4096 read");
             long indexOffset = m.Integer(global, "global", "core:offset") ?? 0;
             string? sha = m.String(global, "global", "core:sha512");
             string? description = m.String(global, "global", "core:description");
             string? hardware = m.String(global, "global", "core:hw");
-            if (options.Datatype is not null) notes.Add("--datatype is ignored: SigMF metadata states core:datatype");
+            if (options.Datatype is not null)
+                notes.Add("--datatype is ignored: SigMF metadata states core:datatype");
 
             int frameBytes = checked(format.BytesPerSample * (int)channels);
             List<(long Start, double? Freq, DateTimeOffset? Time, long Header)> caps = [];
@@ -122,13 +184,18 @@ internal static class SigMfReader
                 foreach (JsonElement c in capArray.EnumerateArray())
                 {
                     string where = $"captures[{i}]";
-                    if (c.ValueKind != JsonValueKind.Object) throw m.Error($"{where} must be an object");
+                    if (c.ValueKind != JsonValueKind.Object)
+                        throw m.Error($"{where} must be an object");
                     long start = m.Integer(c, where, "core:sample_start") ?? 0;
                     double? freq = m.Number(c, where, "core:frequency");
                     DateTimeOffset? time = m.Time(c, where, "core:datetime");
                     long header = m.Integer(c, where, "core:header_bytes") ?? 0;
-                    if (start < indexOffset) throw m.Error($"{where}.core:sample_start {start} is before global.core:offset {indexOffset}");
-                    if (caps.Count > 0 && start < caps[^1].Start) throw m.Error($"{where}.core:sample_start {start} is out of order (captures must be sorted by core:sample_start)");
+                    if (start < indexOffset)
+                        throw m.Error($"{where}.core:sample_start {start} is before global.core:offset {indexOffset}");
+                    if (caps.Count > 0 && start < caps[^1].Start)
+                        throw m.Error(
+                            $"{where}.core:sample_start {start} is out of order (captures must be sorted by core:sample_start)"
+                        );
                     caps.Add((start - indexOffset, freq, time, header));
                     i++;
                 }
@@ -148,7 +215,9 @@ internal static class SigMfReader
                 headerSum += caps[i].Header;
                 long byteStart = headerSum + caps[i].Start * (long)frameBytes;
                 if (byteStart > dataLength)
-                    throw m.Error($"captures[{i}] starts at byte {byteStart} (core:header_bytes and core:sample_start), beyond the {dataLength}-byte data file");
+                    throw m.Error(
+                        $"captures[{i}] starts at byte {byteStart} (core:header_bytes and core:sample_start), beyond the {dataLength}-byte data file"
+                    );
                 long count;
                 if (i + 1 < caps.Count)
                 {
@@ -159,11 +228,23 @@ internal static class SigMfReader
                 else
                 {
                     long rest = dataLength - byteStart;
-                    if (rest % frameBytes != 0) warnings.Add($"data file length is not a whole number of {format.Name} x {channels} samples: the last {rest % frameBytes} byte(s) are ignored");
+                    if (rest % frameBytes != 0)
+                        warnings.Add(
+                            $"data file length is not a whole number of {format.Name} x {channels} samples: the last {rest % frameBytes} byte(s) are ignored"
+                        );
                     count = rest / frameBytes;
                 }
                 extents.Add(new FileExtent(dataOffset + byteStart, count * frameBytes));
-                segments.Add(new CaptureSegment(i, caps[i].Start + indexOffset, count, caps[i].Freq, caps[i].Time, caps[i].Header));
+                segments.Add(
+                    new CaptureSegment(
+                        i,
+                        caps[i].Start + indexOffset,
+                        count,
+                        caps[i].Freq,
+                        caps[i].Time,
+                        caps[i].Header
+                    )
+                );
             }
             long total = segments.Sum(s => s.SampleCount);
 
@@ -174,14 +255,19 @@ internal static class SigMfReader
                 foreach (JsonElement a in annArray.EnumerateArray())
                 {
                     string where = $"annotations[{i}]";
-                    if (a.ValueKind != JsonValueKind.Object) throw m.Error($"{where} must be an object");
-                    annotations.Add(new CaptureAnnotation(
-                        m.Integer(a, where, "core:sample_start") ?? throw m.Error($"{where}.core:sample_start is missing"),
-                        m.Integer(a, where, "core:sample_count"),
-                        m.Number(a, where, "core:freq_lower_edge"),
-                        m.Number(a, where, "core:freq_upper_edge"),
-                        m.String(a, where, "core:label"),
-                        m.String(a, where, "core:comment")));
+                    if (a.ValueKind != JsonValueKind.Object)
+                        throw m.Error($"{where} must be an object");
+                    annotations.Add(
+                        new CaptureAnnotation(
+                            m.Integer(a, where, "core:sample_start")
+                                ?? throw m.Error($"{where}.core:sample_start is missing"),
+                            m.Integer(a, where, "core:sample_count"),
+                            m.Number(a, where, "core:freq_lower_edge"),
+                            m.Number(a, where, "core:freq_upper_edge"),
+                            m.String(a, where, "core:label"),
+                            m.String(a, where, "core:comment")
+                        )
+                    );
                     i++;
                 }
             }
@@ -189,17 +275,25 @@ internal static class SigMfReader
             string checksum = "not present";
             if (sha is not null)
             {
-                if (!options.VerifyChecksum) checksum = "not checked (--no-verify)";
+                if (!options.VerifyChecksum)
+                    checksum = "not checked (--no-verify)";
                 else
                 {
                     string actual = Sha512Hex(dataPath, dataOffset, dataLength);
                     if (!string.Equals(actual, sha.Trim(), StringComparison.OrdinalIgnoreCase))
-                        throw m.Error($"core:sha512 does not match the data (metadata {Short(sha)}, data {Short(actual)}): the data is damaged or belongs to another recording (--no-verify reads it anyway)");
+                        throw m.Error(
+                            $"core:sha512 does not match the data (metadata {Short(sha)}, data {Short(actual)}): the data is damaged or belongs to another recording (--no-verify reads it anyway)"
+                        );
                     checksum = "verified";
                 }
             }
 
-            (int[] pick, bool complex, string use) = CaptureSource.PickChannels(metaPath, format, (int)channels, options);
+            (int[] pick, bool complex, string use) = CaptureSource.PickChannels(
+                metaPath,
+                format,
+                (int)channels,
+                options
+            );
             double?[] freqs = [.. segments.Select(s => s.FrequencyHz)];
             bool oneFrequency = freqs.Distinct().Count() == 1;
             if (!oneFrequency && options.Segment is null)
@@ -207,7 +301,11 @@ internal static class SigMfReader
             double? centre = oneFrequency ? freqs[0] : null;
             if (options.CenterFrequencyHz is { } cf)
             {
-                notes.Add(centre is { } c0 ? $"centre frequency {cf:R} Hz from --center-frequency overrides core:frequency {c0:R} Hz" : $"centre frequency {cf:R} Hz from --center-frequency");
+                notes.Add(
+                    centre is { } c0
+                        ? $"centre frequency {cf:R} Hz from --center-frequency overrides core:frequency {c0:R} Hz"
+                        : $"centre frequency {cf:R} Hz from --center-frequency"
+                );
                 centre = cf;
             }
             var info = new CaptureInfo
@@ -232,7 +330,13 @@ internal static class SigMfReader
                 Notes = notes,
                 Warnings = warnings,
             };
-            var source = new CaptureSource(info, () => new FileExtentSource(dataPath, extents), format, format.ComponentsPerSample * (int)channels, pick)
+            var source = new CaptureSource(
+                info,
+                () => new FileExtentSource(dataPath, extents),
+                format,
+                format.ComponentsPerSample * (int)channels,
+                pick
+            )
             {
                 CenterOverrideHz = options.CenterFrequencyHz,
             };
@@ -246,7 +350,8 @@ internal static class SigMfReader
     {
         s = s.ReplaceLineEndings(" ");
         int cut = s.IndexOf(" LineNumber:", StringComparison.Ordinal);
-        if (cut < 0) cut = s.IndexOf(" Path:", StringComparison.Ordinal);
+        if (cut < 0)
+            cut = s.IndexOf(" Path:", StringComparison.Ordinal);
         return (cut > 0 ? s[..cut] : s).Trim();
     }
 
@@ -260,7 +365,8 @@ internal static class SigMfReader
         while (left > 0)
         {
             int n = fs.Read(buf, 0, (int)Math.Min(buf.Length, left));
-            if (n <= 0) break;
+            if (n <= 0)
+                break;
             hash.AppendData(buf, 0, n);
             left -= n;
         }
@@ -276,37 +382,48 @@ internal static class SigMfReader
         {
             if (!parent.TryGetProperty(key, out JsonElement v))
                 return required ? throw Error($"'{key}' object is missing") : null;
-            return v.ValueKind == JsonValueKind.Object ? v : throw Error($"'{key}' must be a JSON object, not {Kind(v)}");
+            return v.ValueKind == JsonValueKind.Object
+                ? v
+                : throw Error($"'{key}' must be a JSON object, not {Kind(v)}");
         }
 
         public JsonElement? Array(JsonElement parent, string key)
         {
-            if (!parent.TryGetProperty(key, out JsonElement v) || v.ValueKind == JsonValueKind.Null) return null;
+            if (!parent.TryGetProperty(key, out JsonElement v) || v.ValueKind == JsonValueKind.Null)
+                return null;
             return v.ValueKind == JsonValueKind.Array ? v : throw Error($"'{key}' must be a JSON array, not {Kind(v)}");
         }
 
         public string? String(JsonElement obj, string where, string key)
         {
-            if (!obj.TryGetProperty(key, out JsonElement v) || v.ValueKind == JsonValueKind.Null) return null;
-            return v.ValueKind == JsonValueKind.String ? v.GetString() : throw Error($"{where}.{key} must be a string, not {Kind(v)}");
+            if (!obj.TryGetProperty(key, out JsonElement v) || v.ValueKind == JsonValueKind.Null)
+                return null;
+            return v.ValueKind == JsonValueKind.String
+                ? v.GetString()
+                : throw Error($"{where}.{key} must be a string, not {Kind(v)}");
         }
 
         public double? Number(JsonElement obj, string where, string key)
         {
-            if (!obj.TryGetProperty(key, out JsonElement v) || v.ValueKind == JsonValueKind.Null) return null;
-            if (v.ValueKind != JsonValueKind.Number) throw Error($"{where}.{key} must be a number, not {Kind(v)}");
+            if (!obj.TryGetProperty(key, out JsonElement v) || v.ValueKind == JsonValueKind.Null)
+                return null;
+            if (v.ValueKind != JsonValueKind.Number)
+                throw Error($"{where}.{key} must be a number, not {Kind(v)}");
             double d = v.GetDouble();
             return double.IsFinite(d) ? d : throw Error($"{where}.{key} is not a finite number");
         }
 
         public long? Integer(JsonElement obj, string where, string key)
         {
-            if (!obj.TryGetProperty(key, out JsonElement v) || v.ValueKind == JsonValueKind.Null) return null;
-            if (v.ValueKind != JsonValueKind.Number) throw Error($"{where}.{key} must be a whole number, not {Kind(v)}");
+            if (!obj.TryGetProperty(key, out JsonElement v) || v.ValueKind == JsonValueKind.Null)
+                return null;
+            if (v.ValueKind != JsonValueKind.Number)
+                throw Error($"{where}.{key} must be a whole number, not {Kind(v)}");
             if (!v.TryGetInt64(out long n))
             {
                 double d = v.GetDouble();
-                if (d != Math.Floor(d) || Math.Abs(d) > 9e15) throw Error($"{where}.{key} must be a whole number, not {v.GetRawText()}");
+                if (d != Math.Floor(d) || Math.Abs(d) > 9e15)
+                    throw Error($"{where}.{key} must be a whole number, not {v.GetRawText()}");
                 n = (long)d;
             }
             return n >= 0 ? n : throw Error($"{where}.{key} must not be negative ({n})");
@@ -315,20 +432,27 @@ internal static class SigMfReader
         public DateTimeOffset? Time(JsonElement obj, string where, string key)
         {
             string? s = String(obj, where, key);
-            if (s is null) return null;
-            return DateTimeOffset.TryParse(s, CultureInfo.InvariantCulture, DateTimeStyles.AssumeUniversal | DateTimeStyles.AdjustToUniversal, out DateTimeOffset t)
+            if (s is null)
+                return null;
+            return DateTimeOffset.TryParse(
+                s,
+                CultureInfo.InvariantCulture,
+                DateTimeStyles.AssumeUniversal | DateTimeStyles.AdjustToUniversal,
+                out DateTimeOffset t
+            )
                 ? t
                 : throw Error($"{where}.{key} '{s}' is not an RFC 3339 date and time");
         }
 
-        private static string Kind(JsonElement v) => v.ValueKind switch
-        {
-            JsonValueKind.String => "a string",
-            JsonValueKind.Number => "a number",
-            JsonValueKind.Object => "an object",
-            JsonValueKind.Array => "an array",
-            JsonValueKind.True or JsonValueKind.False => "a boolean",
-            _ => "null",
-        };
+        private static string Kind(JsonElement v) =>
+            v.ValueKind switch
+            {
+                JsonValueKind.String => "a string",
+                JsonValueKind.Number => "a number",
+                JsonValueKind.Object => "an object",
+                JsonValueKind.Array => "an array",
+                JsonValueKind.True or JsonValueKind.False => "a boolean",
+                _ => "null",
+            };
     }
 }

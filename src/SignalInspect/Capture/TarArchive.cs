@@ -27,17 +27,27 @@ internal static class TarArchive
         {
             fs.Position = pos;
             fs.ReadExactly(header);
-            if (header.All(b => b == 0)) break;
+            if (header.All(b => b == 0))
+                break;
             if (!ChecksumOk(header))
-                throw CaptureException.ForFile(path, pos == 0 ? "not a tar archive (a .sigmf file must be a tar archive)" : $"damaged tar header at byte {pos}");
+                throw CaptureException.ForFile(
+                    path,
+                    pos == 0
+                        ? "not a tar archive (a .sigmf file must be a tar archive)"
+                        : $"damaged tar header at byte {pos}"
+                );
             string name = CString(header, 0, 100);
             string prefix = CString(header, 345, 155);
-            if (Encoding.ASCII.GetString(header, 257, 5) == "ustar" && prefix.Length > 0) name = prefix + "/" + name;
+            if (Encoding.ASCII.GetString(header, 257, 5) == "ustar" && prefix.Length > 0)
+                name = prefix + "/" + name;
             long size = ParseOctal(path, header, 124, 12);
             char type = (char)header[156];
             long dataAt = pos + Block;
             if (dataAt + size > length)
-                throw CaptureException.ForFile(path, $"tar member '{name}' declares {size} bytes, more than the archive holds (truncated archive?)");
+                throw CaptureException.ForFile(
+                    path,
+                    $"tar member '{name}' declares {size} bytes, more than the archive holds (truncated archive?)"
+                );
             switch (type)
             {
                 case 'x':
@@ -52,28 +62,37 @@ internal static class TarArchive
                     string full = longName ?? name;
                     longName = null;
                     CheckName(path, full, type);
-                    if (type is '0' or '\0' or '7') members.Add(new TarMember(full, type, dataAt, size));
+                    if (type is '0' or '\0' or '7')
+                        members.Add(new TarMember(full, type, dataAt, size));
                     break;
             }
             pos = dataAt + (size + Block - 1) / Block * Block;
         }
-        if (members.Count == 0 && pos == 0) throw CaptureException.ForFile(path, "not a tar archive (a .sigmf file must be a tar archive)");
+        if (members.Count == 0 && pos == 0)
+            throw CaptureException.ForFile(path, "not a tar archive (a .sigmf file must be a tar archive)");
         return members;
     }
 
     private static void CheckName(string path, string name, char type)
     {
         if (type is '1' or '2')
-            throw CaptureException.ForFile(path, $"tar member '{name}' is a link; links are refused in a SigMF archive");
+            throw CaptureException.ForFile(
+                path,
+                $"tar member '{name}' is a link; links are refused in a SigMF archive"
+            );
         string n = name.Replace('\\', '/');
         if (n.StartsWith('/') || (n.Length > 1 && n[1] == ':') || n.Split('/').Contains(".."))
-            throw CaptureException.ForFile(path, $"tar member '{name}' has an unsafe path (absolute or with '..'); refused");
+            throw CaptureException.ForFile(
+                path,
+                $"tar member '{name}' has an unsafe path (absolute or with '..'); refused"
+            );
     }
 
     private static bool ChecksumOk(byte[] h)
     {
         long sum = 0;
-        for (int i = 0; i < Block; i++) sum += i is >= 148 and < 156 ? (byte)' ' : h[i];
+        for (int i = 0; i < Block; i++)
+            sum += i is >= 148 and < 156 ? (byte)' ' : h[i];
         string field = CString(h, 148, 8).Trim(' ', '\0');
         try
         {
@@ -90,12 +109,15 @@ internal static class TarArchive
         if ((h[at] & 0x80) != 0)
         {
             long v = 0;
-            for (int i = at + 1; i < at + len; i++) v = (v << 8) | h[i];
-            if (v < 0) throw CaptureException.ForFile(path, "tar member size is negative");
+            for (int i = at + 1; i < at + len; i++)
+                v = (v << 8) | h[i];
+            if (v < 0)
+                throw CaptureException.ForFile(path, "tar member size is negative");
             return v;
         }
         string s = CString(h, at, len).Trim(' ', '\0');
-        if (s.Length == 0) return 0;
+        if (s.Length == 0)
+            return 0;
         try
         {
             return Convert.ToInt64(s, 8);
@@ -108,7 +130,8 @@ internal static class TarArchive
 
     private static string ReadRecord(string path, FileStream fs, long at, long size)
     {
-        if (size > MaxNameRecordBytes) throw CaptureException.ForFile(path, $"tar name record of {size} bytes is too large");
+        if (size > MaxNameRecordBytes)
+            throw CaptureException.ForFile(path, $"tar name record of {size} bytes is too large");
         var buf = new byte[size];
         fs.Position = at;
         fs.ReadExactly(buf);
@@ -122,9 +145,11 @@ internal static class TarArchive
         foreach (string line in text.Split('\n'))
         {
             int space = line.IndexOf(' ');
-            if (space < 0) continue;
+            if (space < 0)
+                continue;
             string kv = line[(space + 1)..];
-            if (kv.StartsWith("path=", StringComparison.Ordinal)) result = kv[5..];
+            if (kv.StartsWith("path=", StringComparison.Ordinal))
+                result = kv[5..];
         }
         return result;
     }

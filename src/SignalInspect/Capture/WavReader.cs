@@ -31,16 +31,22 @@ internal static class WavReader
         long dataBytes = scan.DeclaredDataBytes;
         if (scan.DeclaredDataBytes == uint.MaxValue && scan.Magic == "RIFF")
         {
-            warnings.Add($"data chunk size is 0xFFFFFFFF (an unfinished recording); the {available} bytes present are read");
+            warnings.Add(
+                $"data chunk size is 0xFFFFFFFF (an unfinished recording); the {available} bytes present are read"
+            );
             dataBytes = available;
         }
         else if (dataBytes > available)
         {
-            warnings.Add($"data chunk declares {dataBytes} bytes but the file holds {available} after its start: the recording looks truncated; the bytes present are read");
+            warnings.Add(
+                $"data chunk declares {dataBytes} bytes but the file holds {available} after its start: the recording looks truncated; the bytes present are read"
+            );
             dataBytes = available;
         }
         if (dataBytes % frameBytes != 0)
-            warnings.Add($"data chunk holds {dataBytes % frameBytes} byte(s) after the last whole sample frame; they are ignored");
+            warnings.Add(
+                $"data chunk holds {dataBytes % frameBytes} byte(s) after the last whole sample frame; they are ignored"
+            );
         dataBytes = dataBytes / frameBytes * frameBytes;
 
         (int[] pick, bool complex, string use) = CaptureSource.PickChannels(path, stored, channels, options);
@@ -55,8 +61,10 @@ internal static class WavReader
         {
             CaptureSource.CheckRate(path, rate, "WAV header");
         }
-        if (options.CenterFrequencyHz is { } cf) notes.Add($"centre frequency {cf:R} Hz from --center-frequency (a WAV file does not state one)");
-        if (options.Datatype is not null) notes.Add("--datatype is ignored: a WAV file states its own format");
+        if (options.CenterFrequencyHz is { } cf)
+            notes.Add($"centre frequency {cf:R} Hz from --center-frequency (a WAV file does not state one)");
+        if (options.Datatype is not null)
+            notes.Add("--datatype is ignored: a WAV file states its own format");
 
         var info = new CaptureInfo
         {
@@ -112,15 +120,27 @@ internal static class WavReader
                 using var reader = new WaveFileReader(stream);
                 fmt = reader.WaveFormat;
             }
-            catch (Exception e) when (e is FormatException or InvalidDataException or EndOfStreamException or ArgumentException or IOException or OverflowException)
+            catch (Exception e)
+                when (e
+                        is FormatException
+                            or InvalidDataException
+                            or EndOfStreamException
+                            or ArgumentException
+                            or IOException
+                            or OverflowException
+                )
             {
                 throw CaptureException.ForFile(path, "malformed WAV header: " + OneLine(e.Message));
             }
         }
-        if (fmt.Channels < 1) throw CaptureException.ForFile(path, "the file declares zero channels");
-        if (fmt.SampleRate <= 0) throw CaptureException.ForFile(path, $"sample rate {fmt.SampleRate} Hz in the WAV header must be positive");
+        if (fmt.Channels < 1)
+            throw CaptureException.ForFile(path, "the file declares zero channels");
+        if (fmt.SampleRate <= 0)
+            throw CaptureException.ForFile(path, $"sample rate {fmt.SampleRate} Hz in the WAV header must be positive");
         ushort code = (ushort)fmt.Encoding;
-        if (code == FormatExtensible) code = scan.SubFormatCode ?? throw CaptureException.ForFile(path, "WAVE_FORMAT_EXTENSIBLE header without a sub-format");
+        if (code == FormatExtensible)
+            code = scan.SubFormatCode
+                ?? throw CaptureException.ForFile(path, "WAVE_FORMAT_EXTENSIBLE header without a sub-format");
         int bits = fmt.BitsPerSample;
         ComponentEncoding? enc = (code, bits) switch
         {
@@ -133,10 +153,16 @@ internal static class WavReader
             _ => null,
         };
         if (enc is null)
-            throw CaptureException.ForFile(path, $"unsupported WAV encoding (format code {code}, {bits} bits): PCM 8/16/24/32-bit and IEEE float 32/64-bit are read");
+            throw CaptureException.ForFile(
+                path,
+                $"unsupported WAV encoding (format code {code}, {bits} bits): PCM 8/16/24/32-bit and IEEE float 32/64-bit are read"
+            );
         var stored = new SampleFormat(false, enc.Value, false, enc == ComponentEncoding.UInt8 ? 128.0 : 0.0);
         if (fmt.BlockAlign != stored.BytesPerComponent * fmt.Channels)
-            throw CaptureException.ForFile(path, $"block align {fmt.BlockAlign} does not match {fmt.Channels} channel(s) of {bits} bits");
+            throw CaptureException.ForFile(
+                path,
+                $"block align {fmt.BlockAlign} does not match {fmt.Channels} channel(s) of {bits} bits"
+            );
         return (stored, fmt.Channels, fmt.SampleRate);
     }
 
@@ -162,7 +188,12 @@ internal static class WavReader
         {
             fs.Position = pos;
             if (fs.ReadAtLeast(ch, 8, throwOnEndOfStream: false) < 8)
-                throw CaptureException.ForFile(path, sawFmt ? "no data chunk found (the file may be truncated)" : "truncated WAV header: no fmt chunk before the end of the file");
+                throw CaptureException.ForFile(
+                    path,
+                    sawFmt
+                        ? "no data chunk found (the file may be truncated)"
+                        : "truncated WAV header: no fmt chunk before the end of the file"
+                );
             string id = System.Text.Encoding.ASCII.GetString(ch[..4]);
             uint size = BinaryPrimitives.ReadUInt32LittleEndian(ch[4..]);
             long bodyAt = pos + 8;
@@ -171,32 +202,48 @@ internal static class WavReader
                 if (size < 24 || fs.ReadAtLeast(body[..24], 24, throwOnEndOfStream: false) < 24)
                     throw CaptureException.ForFile(path, "truncated ds64 chunk");
                 ds64Data = BinaryPrimitives.ReadInt64LittleEndian(body[8..16]);
-                if (ds64Data < 0) throw CaptureException.ForFile(path, "ds64 chunk declares a negative data size");
+                if (ds64Data < 0)
+                    throw CaptureException.ForFile(path, "ds64 chunk declares a negative data size");
             }
             else if (id == "fmt ")
             {
                 sawFmt = true;
-                if (size < 16) throw CaptureException.ForFile(path, $"fmt chunk of {size} bytes is too short (16 at least)");
-                if (bodyAt + size > fileSize) throw CaptureException.ForFile(path, $"truncated or damaged WAV header: the fmt chunk declares {size} bytes, more than the file holds");
+                if (size < 16)
+                    throw CaptureException.ForFile(path, $"fmt chunk of {size} bytes is too short (16 at least)");
+                if (bodyAt + size > fileSize)
+                    throw CaptureException.ForFile(
+                        path,
+                        $"truncated or damaged WAV header: the fmt chunk declares {size} bytes, more than the file holds"
+                    );
                 int want = (int)Math.Min(size, 40);
                 fs.ReadAtLeast(body[..want], want, throwOnEndOfStream: false);
                 ushort declaredChannels = BinaryPrimitives.ReadUInt16LittleEndian(body[2..]);
-                if (declaredChannels == 0) throw CaptureException.ForFile(path, "the file declares zero channels");
-                if (declaredChannels > MaxChannels) throw CaptureException.ForFile(path, $"the file declares {declaredChannels} channels, more than the {MaxChannels} read");
+                if (declaredChannels == 0)
+                    throw CaptureException.ForFile(path, "the file declares zero channels");
+                if (declaredChannels > MaxChannels)
+                    throw CaptureException.ForFile(
+                        path,
+                        $"the file declares {declaredChannels} channels, more than the {MaxChannels} read"
+                    );
                 if (BinaryPrimitives.ReadUInt16LittleEndian(body) == FormatExtensible && want >= 26)
                     sub = BinaryPrimitives.ReadUInt16LittleEndian(body[24..]);
             }
             else if (id == "data")
             {
-                if (!sawFmt) throw CaptureException.ForFile(path, "data chunk comes before the fmt chunk");
+                if (!sawFmt)
+                    throw CaptureException.ForFile(path, "data chunk comes before the fmt chunk");
                 long declared = size;
                 if (magic != "RIFF" && size == uint.MaxValue)
-                    declared = ds64Data ?? throw CaptureException.ForFile(path, $"{magic} data chunk needs a ds64 chunk with its size");
+                    declared = ds64Data
+                        ?? throw CaptureException.ForFile(path, $"{magic} data chunk needs a ds64 chunk with its size");
                 return new ChunkScan(magic, bodyAt, declared, sub);
             }
             long next = bodyAt + size + (size & 1);
             if (next > fileSize)
-                throw CaptureException.ForFile(path, $"'{Printable(id)}' chunk declares {size} bytes, more than the file holds, before any data chunk");
+                throw CaptureException.ForFile(
+                    path,
+                    $"'{Printable(id)}' chunk declares {size} bytes, more than the file holds, before any data chunk"
+                );
             pos = next;
         }
     }
@@ -205,29 +252,43 @@ internal static class WavReader
 
     private static string OneLine(string s) => s.ReplaceLineEndings(" ").Trim();
 
-    /// <summary>A read-only view of a stream whose first bytes read as another magic (BW64 is RF64 with another name).</summary>
+    /// <summary>A read-only view of a stream whose first bytes read as another magic (BW64 is RF64 with another
+    /// name).</summary>
     private sealed class MagicPatchStream(Stream inner, byte[] magic) : Stream
     {
         public override bool CanRead => true;
         public override bool CanSeek => inner.CanSeek;
         public override bool CanWrite => false;
         public override long Length => inner.Length;
-        public override long Position { get => inner.Position; set => inner.Position = value; }
+        public override long Position
+        {
+            get => inner.Position;
+            set => inner.Position = value;
+        }
+
         public override void Flush() { }
+
         public override int Read(byte[] buffer, int offset, int count) => Read(buffer.AsSpan(offset, count));
+
         public override int Read(Span<byte> buffer)
         {
             long at = inner.Position;
             int n = inner.Read(buffer);
-            for (long i = at; i < magic.Length && i < at + n; i++) buffer[(int)(i - at)] = magic[i];
+            for (long i = at; i < magic.Length && i < at + n; i++)
+                buffer[(int)(i - at)] = magic[i];
             return n;
         }
+
         public override long Seek(long offset, SeekOrigin origin) => inner.Seek(offset, origin);
+
         public override void SetLength(long value) => throw new NotSupportedException();
+
         public override void Write(byte[] buffer, int offset, int count) => throw new NotSupportedException();
+
         protected override void Dispose(bool disposing)
         {
-            if (disposing) inner.Dispose();
+            if (disposing)
+                inner.Dispose();
             base.Dispose(disposing);
         }
     }

@@ -9,9 +9,12 @@ public enum Verdict
 {
     /// <summary>Inside the limit by more than the expanded uncertainty.</summary>
     Pass,
+
     /// <summary>Outside the limit by more than the expanded uncertainty.</summary>
     Fail,
-    /// <summary>The value plus or minus its expanded uncertainty straddles the limit (or the capture cannot show it).</summary>
+
+    /// <summary>The value plus or minus its expanded uncertainty straddles the limit (or the capture cannot show
+    /// it).</summary>
     Inconclusive,
 }
 
@@ -25,7 +28,17 @@ public enum Verdict
 /// <param name="Margin">Limit minus value for an upper limit (positive: inside), same unit.</param>
 /// <param name="Verdict">The verdict under the decision rule.</param>
 /// <param name="Basis">Where the limit comes from and any note.</param>
-public sealed record LimitCheck(string Measurement, double Value, string Unit, double ExpandedUncertainty, double Limit, string LimitText, double Margin, Verdict Verdict, string Basis);
+public sealed record LimitCheck(
+    string Measurement,
+    double Value,
+    string Unit,
+    double ExpandedUncertainty,
+    double Limit,
+    string LimitText,
+    double Margin,
+    Verdict Verdict,
+    string Basis
+);
 
 /// <summary>
 /// Judges measurements against a profile. Decision rule: guarded acceptance and rejection with a
@@ -39,7 +52,8 @@ public static class Judgement
     public const string DecisionRule =
         "Guarded acceptance and rejection, guard band w = U (expanded uncertainty, coverage factor k): PASS if the measured value plus U is within the limit; FAIL if the value minus U is beyond it; INCONCLUSIVE otherwise (a guard-banded decision rule as described in ILAC-G8:09/2019).";
 
-    /// <summary>The expanded uncertainty the emission-mask check uses, dB (type B: Welch estimate spread and window scalloping).</summary>
+    /// <summary>The expanded uncertainty the emission-mask check uses, dB (type B: Welch estimate spread and window
+    /// scalloping).</summary>
     public const double MaskUncertaintyDb = 2.0;
 
     /// <summary>Checks every limit of the profile that applies to the measured modulation.</summary>
@@ -54,53 +68,136 @@ public static class Judgement
             double? nominal = p.NominalFrequencyHz ?? r.Capture.CenterFrequencyHz;
             bool absolute = r.Capture.IsComplex && r.Capture.CenterFrequencyHz is not null;
             double offset = absolute && p.NominalFrequencyHz is { } nom ? car.FrequencyHz.Value - nom : car.OffsetHz;
-            double? tolHz = p.FrequencyToleranceHz ?? (nominal is { } n && p.FrequencyTolerancePpm is { } ppm ? ppm * n / 1e6 : null);
+            double? tolHz = p.FrequencyToleranceHz
+                ?? (nominal is { } n && p.FrequencyTolerancePpm is { } ppm ? ppm * n / 1e6 : null);
             if (tolHz is { } t)
             {
                 double u = k * car.FrequencyHz.StandardUncertainty;
-                checks.Add(Upper("carrier frequency error |f - f0|", Math.Abs(offset), "Hz", u, t,
-                    string.Create(c, $"<= {t:0.###} Hz ({p.ToleranceText} of {nominal:0.###} Hz)"), $"{src}; offset {offset:+0.###;-0.###} Hz"));
+                checks.Add(
+                    Upper(
+                        "carrier frequency error |f - f0|",
+                        Math.Abs(offset),
+                        "Hz",
+                        u,
+                        t,
+                        string.Create(c, $"<= {t:0.###} Hz ({p.ToleranceText} of {nominal:0.###} Hz)"),
+                        $"{src}; offset {offset:+0.###;-0.###} Hz"
+                    )
+                );
             }
             else
             {
-                checks.Add(new LimitCheck("carrier frequency error", Math.Abs(car.OffsetHz), "Hz", double.NaN, double.NaN, p.ToleranceText ?? "", double.NaN, Verdict.Inconclusive,
-                    "the RF frequency is unknown (no centre frequency and no nominal): a ppm tolerance cannot be applied"));
+                checks.Add(
+                    new LimitCheck(
+                        "carrier frequency error",
+                        Math.Abs(car.OffsetHz),
+                        "Hz",
+                        double.NaN,
+                        double.NaN,
+                        p.ToleranceText ?? "",
+                        double.NaN,
+                        Verdict.Inconclusive,
+                        "the RF frequency is unknown (no centre frequency and no nominal): a ppm tolerance cannot be applied"
+                    )
+                );
             }
         }
         if (p.MaxPeakDeviationHz is { } maxDev)
         {
             if (r.Fm is { } fm)
-                checks.Add(Upper("FM peak deviation", fm.PeakDeviationHz.Value, "Hz", k * fm.PeakDeviationHz.StandardUncertainty, maxDev, string.Create(c, $"<= {maxDev:0.###} Hz"), src));
+                checks.Add(
+                    Upper(
+                        "FM peak deviation",
+                        fm.PeakDeviationHz.Value,
+                        "Hz",
+                        k * fm.PeakDeviationHz.StandardUncertainty,
+                        maxDev,
+                        string.Create(c, $"<= {maxDev:0.###} Hz"),
+                        src
+                    )
+                );
             else if (r.Fsk is { } fsk)
-                checks.Add(Upper("FSK peak deviation (shift / 2)", fsk.DeviationHz, "Hz", k * fsk.ShiftHz.StandardUncertainty / 2, maxDev, string.Create(c, $"<= {maxDev:0.###} Hz"), src));
+                checks.Add(
+                    Upper(
+                        "FSK peak deviation (shift / 2)",
+                        fsk.DeviationHz,
+                        "Hz",
+                        k * fsk.ShiftHz.StandardUncertainty / 2,
+                        maxDev,
+                        string.Create(c, $"<= {maxDev:0.###} Hz"),
+                        src
+                    )
+                );
         }
         if (p.MaxOccupiedBandwidthHz is { } maxObw)
-            checks.Add(Upper($"occupied bandwidth ({100 * (1 - r.Bandwidth.Beta):0.#} %)", r.Bandwidth.OccupiedHz, "Hz", k * r.OccupiedUncertaintyHz, maxObw, string.Create(c, $"<= {maxObw:0.###} Hz"), src));
+            checks.Add(
+                Upper(
+                    $"occupied bandwidth ({100 * (1 - r.Bandwidth.Beta):0.#} %)",
+                    r.Bandwidth.OccupiedHz,
+                    "Hz",
+                    k * r.OccupiedUncertaintyHz,
+                    maxObw,
+                    string.Create(c, $"<= {maxObw:0.###} Hz"),
+                    src
+                )
+            );
         if (r.Am is { } am)
         {
             if (p.MaxAmPositivePeakPercent is { } pos)
-                checks.Add(Upper("AM positive-peak modulation", am.PositivePeakPercent, "%", k * am.DepthPercent.StandardUncertainty, pos, string.Create(c, $"<= {pos:0.##} %"), src));
+                checks.Add(
+                    Upper(
+                        "AM positive-peak modulation",
+                        am.PositivePeakPercent,
+                        "%",
+                        k * am.DepthPercent.StandardUncertainty,
+                        pos,
+                        string.Create(c, $"<= {pos:0.##} %"),
+                        src
+                    )
+                );
             if (p.MaxAmNegativePeakPercent is { } neg)
-                checks.Add(Upper("AM negative-peak modulation", am.NegativePeakPercent, "%", k * am.DepthPercent.StandardUncertainty, neg, string.Create(c, $"<= {neg:0.##} %"), src));
+                checks.Add(
+                    Upper(
+                        "AM negative-peak modulation",
+                        am.NegativePeakPercent,
+                        "%",
+                        k * am.DepthPercent.StandardUncertainty,
+                        neg,
+                        string.Create(c, $"<= {neg:0.##} %"),
+                        src
+                    )
+                );
         }
-        if (p.Mask is { } mask && r.Carrier is not null) checks.Add(MaskCheck(r, mask));
+        if (p.Mask is { } mask && r.Carrier is not null)
+            checks.Add(MaskCheck(r, mask));
         return checks;
     }
 
-    /// <summary>The overall verdict: FAIL if any check fails, else INCONCLUSIVE if any is, else PASS (PASS also when there is no check).</summary>
+    /// <summary>The overall verdict: FAIL if any check fails, else INCONCLUSIVE if any is, else PASS (PASS also when
+    /// there is no check).</summary>
     public static Verdict Overall(IEnumerable<LimitCheck> checks)
     {
         var list = checks.ToList();
-        if (list.Any(x => x.Verdict == Verdict.Fail)) return Verdict.Fail;
+        if (list.Any(x => x.Verdict == Verdict.Fail))
+            return Verdict.Fail;
         return list.Any(x => x.Verdict == Verdict.Inconclusive) ? Verdict.Inconclusive : Verdict.Pass;
     }
 
     /// <summary>Verdict for an upper limit under the guard-banded rule.</summary>
     public static Verdict UpperVerdict(double value, double expandedU, double limit) =>
-        value + expandedU <= limit ? Verdict.Pass : value - expandedU > limit ? Verdict.Fail : Verdict.Inconclusive;
+        value + expandedU <= limit ? Verdict.Pass
+        : value - expandedU > limit ? Verdict.Fail
+        : Verdict.Inconclusive;
 
-    private static LimitCheck Upper(string what, double value, string unit, double u, double limit, string text, string basis) =>
-        new(what, value, unit, u, limit, text, limit - value, UpperVerdict(value, u, limit), basis);
+    private static LimitCheck Upper(
+        string what,
+        double value,
+        string unit,
+        double u,
+        double limit,
+        string text,
+        string basis
+    ) => new(what, value, unit, u, limit, text, limit - value, UpperVerdict(value, u, limit), basis);
 
     /// <summary>
     /// Mask: the max-hold PSD, as power in the mask's reference bandwidth, against the required
@@ -113,46 +210,76 @@ public static class Judgement
         PowerSpectrum hold = r.Spectrum.MaxHold;
         PowerSpectrum mean = r.Spectrum.Mean;
         double total = mean.TotalPower();
-        double carrierAxis = r.Carrier!.FrequencyHz.Value - (r.Capture.IsComplex && r.Capture.CenterFrequencyHz is { } cf ? cf : 0);
+        double carrierAxis =
+            r.Carrier!.FrequencyHz.Value - (r.Capture.IsComplex && r.Capture.CenterFrequencyHz is { } cf ? cf : 0);
         double floor = r.Bandwidth.NoiseFloorDensity;
-        double worst = double.PositiveInfinity, worstAt = 0;
+        double worst = double.PositiveInfinity,
+            worstAt = 0;
         bool floorLimited = false;
         // Power in the reference bandwidth around each bin: the density summed over the bins within
         // +/- B/2 (right for lines and for continuous spectra alike).
         int halfBins = Math.Max(0, (int)Math.Round(mask.ReferenceBandwidthHz / hold.BinWidthHz / 2));
         var prefix = new double[hold.Count + 1];
-        for (int i = 0; i < hold.Count; i++) prefix[i + 1] = prefix[i] + hold.Values[i] * hold.BinWidthHz;
+        for (int i = 0; i < hold.Count; i++)
+            prefix[i + 1] = prefix[i] + hold.Values[i] * hold.BinWidthHz;
         for (int i = 0; i < hold.Count; i++)
         {
             double fd = hold.FrequenciesHz[i] - carrierAxis;
             double req = mask.RequiredAttenuationDb(fd);
-            if (req <= 0) continue;
-            int a = Math.Max(0, i - halfBins), b = Math.Min(hold.Count - 1, i + halfBins);
-            double inRef = (prefix[b + 1] - prefix[a]) * Math.Min(1, mask.ReferenceBandwidthHz / ((b - a + 1) * hold.BinWidthHz));
+            if (req <= 0)
+                continue;
+            int a = Math.Max(0, i - halfBins),
+                b = Math.Min(hold.Count - 1, i + halfBins);
+            double inRef =
+                (prefix[b + 1] - prefix[a]) * Math.Min(1, mask.ReferenceBandwidthHz / ((b - a + 1) * hold.BinWidthHz));
             double att = 10 * Math.Log10(total / Math.Max(inRef, 1e-300));
             double margin = att - req;
             // A bin whose mean level is within 5 dB of the noise floor shows the capture, not the emission.
             bool atFloor = mean.Values[i] <= 3 * floor;
             if (atFloor)
             {
-                if (margin < MaskUncertaintyDb) floorLimited = true;
+                if (margin < MaskUncertaintyDb)
+                    floorLimited = true;
                 continue;
             }
-            if (margin < worst) { worst = margin; worstAt = fd; }
+            if (margin < worst)
+            {
+                worst = margin;
+                worstAt = fd;
+            }
         }
         string name = mask.Name;
-        string basis = string.Create(CultureInfo.InvariantCulture, $"{name}; max-hold PSD in {mask.ReferenceBandwidthHz:0.#} Hz against the mean total power; U = {MaskUncertaintyDb:0.#} dB (type B)");
-        if (double.IsPositiveInfinity(worst)) worst = floorLimited ? double.NaN : 99;
-        Verdict v = double.IsNaN(worst) ? Verdict.Inconclusive : worst - MaskUncertaintyDb >= 0 ? Verdict.Pass : worst + MaskUncertaintyDb < 0 ? Verdict.Fail : Verdict.Inconclusive;
+        string basis = string.Create(
+            CultureInfo.InvariantCulture,
+            $"{name}; max-hold PSD in {mask.ReferenceBandwidthHz:0.#} Hz against the mean total power; U = {MaskUncertaintyDb:0.#} dB (type B)"
+        );
+        if (double.IsPositiveInfinity(worst))
+            worst = floorLimited ? double.NaN : 99;
+        Verdict v =
+            double.IsNaN(worst) ? Verdict.Inconclusive
+            : worst - MaskUncertaintyDb >= 0 ? Verdict.Pass
+            : worst + MaskUncertaintyDb < 0 ? Verdict.Fail
+            : Verdict.Inconclusive;
         if (v == Verdict.Pass && floorLimited)
         {
             v = Verdict.Inconclusive;
-            basis += "; the capture's noise floor is above the mask at some offsets (not enough dynamic range to show compliance there)";
+            basis +=
+                "; the capture's noise floor is above the mask at some offsets (not enough dynamic range to show compliance there)";
         }
         else if (!double.IsNaN(worst) && worst < 99)
         {
             basis += string.Create(CultureInfo.InvariantCulture, $"; worst at {worstAt:+0;-0} Hz from the carrier");
         }
-        return new LimitCheck("emission mask: worst margin", double.IsNaN(worst) ? 0 : worst, "dB", MaskUncertaintyDb, 0, ">= 0 dB above the mask attenuation", double.IsNaN(worst) ? double.NaN : worst, v, basis);
+        return new LimitCheck(
+            "emission mask: worst margin",
+            double.IsNaN(worst) ? 0 : worst,
+            "dB",
+            MaskUncertaintyDb,
+            0,
+            ">= 0 dB above the mask attenuation",
+            double.IsNaN(worst) ? double.NaN : worst,
+            v,
+            basis
+        );
     }
 }

@@ -3,13 +3,15 @@ using System.Text.Json;
 
 namespace SignalInspect.Compliance;
 
-/// <summary>An emission mask: required attenuation (dB below the reference power) against |offset from the carrier|.</summary>
+/// <summary>An emission mask: required attenuation (dB below the reference power) against |offset from the
+/// carrier|.</summary>
 public sealed record EmissionMask
 {
     /// <summary>What the mask is, e.g. "47 CFR 90.210(d) mask D".</summary>
     public required string Name { get; init; }
 
-    /// <summary>Points (offset Hz, attenuation dB), ascending in offset; attenuation is interpolated linearly between them and held beyond the last.</summary>
+    /// <summary>Points (offset Hz, attenuation dB), ascending in offset; attenuation is interpolated linearly between
+    /// them and held beyond the last.</summary>
     public IReadOnlyList<(double OffsetHz, double AttenuationDb)> Points { get; init; } = [];
 
     /// <summary>A named rule with a formula instead of points: "47cfr90.210d" (mask D).</summary>
@@ -18,7 +20,8 @@ public sealed record EmissionMask
     /// <summary>Bandwidth in which the emission power is measured against the mask (Hz).</summary>
     public double ReferenceBandwidthHz { get; init; } = 100;
 
-    /// <summary>Transmitter power in watts, for rules whose floor depends on it (mask D: 50 + 10 log10 P dB); null for the 70 dB cap.</summary>
+    /// <summary>Transmitter power in watts, for rules whose floor depends on it (mask D: 50 + 10 log10 P dB); null for
+    /// the 70 dB cap.</summary>
     public double? TransmitterPowerW { get; init; }
 
     /// <summary>Required attenuation at an offset (Hz, either side) from the carrier.</summary>
@@ -27,15 +30,20 @@ public sealed record EmissionMask
         double fd = Math.Abs(offsetHz);
         if (Rule == "47cfr90.210d")
         {
-            // 47 CFR 90.210(d), fd in kHz: 0 dB to 5.625; 7.27 (fd - 2.88) to 12.5; beyond, the lesser of 50 + 10 log10 P and 70 dB.
+            // 47 CFR 90.210(d), fd in kHz: 0 dB to 5.625; 7.27 (fd - 2.88) to 12.5; beyond, the lesser of 50 + 10 log10
+            // P and 70 dB.
             double k = fd / 1000;
-            if (k <= 5.625) return 0;
-            if (k <= 12.5) return 7.27 * (k - 2.88);
+            if (k <= 5.625)
+                return 0;
+            if (k <= 12.5)
+                return 7.27 * (k - 2.88);
             double floor = TransmitterPowerW is { } p && p > 0 ? 50 + 10 * Math.Log10(p) : 70;
             return Math.Min(floor, 70);
         }
-        if (Points.Count == 0) return 0;
-        if (fd <= Points[0].OffsetHz) return Points[0].AttenuationDb;
+        if (Points.Count == 0)
+            return 0;
+        if (fd <= Points[0].OffsetHz)
+            return Points[0].AttenuationDb;
         for (int i = 1; i < Points.Count; i++)
         {
             if (fd <= Points[i].OffsetHz)
@@ -57,40 +65,55 @@ public sealed record LimitProfile
 {
     /// <summary>Profile name.</summary>
     public required string Name { get; init; }
+
     /// <summary>Where its numbers come from (rule sections).</summary>
     public string? Source { get; init; }
+
     /// <summary>Nominal carrier frequency, Hz (absolute RF); null to take the capture's centre.</summary>
     public double? NominalFrequencyHz { get; init; }
+
     /// <summary>Frequency tolerance in ppm of the nominal frequency.</summary>
     public double? FrequencyTolerancePpm { get; init; }
+
     /// <summary>Frequency tolerance in Hz.</summary>
     public double? FrequencyToleranceHz { get; init; }
+
     /// <summary>Maximum FM peak deviation, Hz.</summary>
     public double? MaxPeakDeviationHz { get; init; }
+
     /// <summary>Maximum occupied bandwidth, Hz.</summary>
     public double? MaxOccupiedBandwidthHz { get; init; }
+
     /// <summary>Maximum AM positive-peak modulation, percent.</summary>
     public double? MaxAmPositivePeakPercent { get; init; }
+
     /// <summary>Maximum AM negative-peak modulation, percent.</summary>
     public double? MaxAmNegativePeakPercent { get; init; }
+
     /// <summary>Emission mask, null for none.</summary>
     public EmissionMask? Mask { get; init; }
+
     /// <summary>Coverage factor k for expanded uncertainties (default 2, about 95 %).</summary>
     public double CoverageFactor { get; init; } = 2;
 
     /// <summary>Reads a profile file.</summary>
-    /// <exception cref="Capture.CaptureException">The file is missing or malformed; the message names the field.</exception>
+    /// <exception cref="Capture.CaptureException">The file is missing or malformed; the message names the
+    /// field.</exception>
     public static LimitProfile Load(string path)
     {
-        if (!File.Exists(path)) throw Capture.CaptureException.ForFile(path, "limit profile not found");
-        if (new FileInfo(path).Length > 1 << 20) throw Capture.CaptureException.ForFile(path, "limit profile larger than 1 MiB");
+        if (!File.Exists(path))
+            throw Capture.CaptureException.ForFile(path, "limit profile not found");
+        if (new FileInfo(path).Length > 1 << 20)
+            throw Capture.CaptureException.ForFile(path, "limit profile larger than 1 MiB");
         try
         {
             return Parse(File.ReadAllText(path), path);
         }
         catch (JsonException e)
         {
-            string where = e.LineNumber is { } l ? $" at line {l + 1}, column {(e.BytePositionInLine ?? 0) + 1}" : string.Empty;
+            string where = e.LineNumber is { } l
+                ? $" at line {l + 1}, column {(e.BytePositionInLine ?? 0) + 1}"
+                : string.Empty;
             throw Capture.CaptureException.ForFile(path, $"limit profile is not valid JSON{where}");
         }
     }
@@ -98,64 +121,106 @@ public sealed record LimitProfile
     /// <summary>Parses profile JSON.</summary>
     public static LimitProfile Parse(string json, string path = "profile")
     {
-        using JsonDocument doc = JsonDocument.Parse(json, new JsonDocumentOptions { MaxDepth = 16, CommentHandling = JsonCommentHandling.Skip, AllowTrailingCommas = true });
+        using JsonDocument doc = JsonDocument.Parse(
+            json,
+            new JsonDocumentOptions
+            {
+                MaxDepth = 16,
+                CommentHandling = JsonCommentHandling.Skip,
+                AllowTrailingCommas = true,
+            }
+        );
         JsonElement root = doc.RootElement;
         Exception Bad(string field, string problem) => Capture.CaptureException.ForFile(path, $"{field} {problem}");
-        if (root.ValueKind != JsonValueKind.Object) throw Bad("the profile", "must be a JSON object");
-        var known = new HashSet<string> { "name", "source", "nominalFrequencyHz", "frequencyTolerance", "maxPeakDeviationHz", "maxOccupiedBandwidthHz", "am", "mask", "coverageFactor", "notes" };
+        if (root.ValueKind != JsonValueKind.Object)
+            throw Bad("the profile", "must be a JSON object");
+        var known = new HashSet<string>
+        {
+            "name",
+            "source",
+            "nominalFrequencyHz",
+            "frequencyTolerance",
+            "maxPeakDeviationHz",
+            "maxOccupiedBandwidthHz",
+            "am",
+            "mask",
+            "coverageFactor",
+            "notes",
+        };
         foreach (JsonProperty p in root.EnumerateObject())
-            if (!known.Contains(p.Name)) throw Bad(p.Name, $"is not a profile field (known: {string.Join(", ", known)})");
+            if (!known.Contains(p.Name))
+                throw Bad(p.Name, $"is not a profile field (known: {string.Join(", ", known)})");
         double? Num(JsonElement obj, string key, string field, bool positive = true)
         {
-            if (!obj.TryGetProperty(key, out JsonElement v) || v.ValueKind == JsonValueKind.Null) return null;
-            if (v.ValueKind != JsonValueKind.Number) throw Bad(field, "must be a number");
+            if (!obj.TryGetProperty(key, out JsonElement v) || v.ValueKind == JsonValueKind.Null)
+                return null;
+            if (v.ValueKind != JsonValueKind.Number)
+                throw Bad(field, "must be a number");
             double d = v.GetDouble();
-            if (!double.IsFinite(d) || (positive && d <= 0)) throw Bad(field, "must be a positive number");
+            if (!double.IsFinite(d) || (positive && d <= 0))
+                throw Bad(field, "must be a positive number");
             return d;
         }
         string? Str(JsonElement obj, string key, string field)
         {
-            if (!obj.TryGetProperty(key, out JsonElement v) || v.ValueKind == JsonValueKind.Null) return null;
+            if (!obj.TryGetProperty(key, out JsonElement v) || v.ValueKind == JsonValueKind.Null)
+                return null;
             return v.ValueKind == JsonValueKind.String ? v.GetString() : throw Bad(field, "must be a string");
         }
         string name = Str(root, "name", "name") ?? throw Bad("name", "is missing");
-        double? tolPpm = null, tolHz = null;
+        double? tolPpm = null,
+            tolHz = null;
         if (root.TryGetProperty("frequencyTolerance", out JsonElement tol))
         {
-            if (tol.ValueKind != JsonValueKind.Object) throw Bad("frequencyTolerance", "must be an object with \"ppm\" or \"hz\"");
+            if (tol.ValueKind != JsonValueKind.Object)
+                throw Bad("frequencyTolerance", "must be an object with \"ppm\" or \"hz\"");
             tolPpm = Num(tol, "ppm", "frequencyTolerance.ppm");
             tolHz = Num(tol, "hz", "frequencyTolerance.hz");
-            if (tolPpm is null && tolHz is null) throw Bad("frequencyTolerance", "needs \"ppm\" or \"hz\"");
+            if (tolPpm is null && tolHz is null)
+                throw Bad("frequencyTolerance", "needs \"ppm\" or \"hz\"");
         }
-        double? pos = null, neg = null;
+        double? pos = null,
+            neg = null;
         if (root.TryGetProperty("am", out JsonElement am))
         {
-            if (am.ValueKind != JsonValueKind.Object) throw Bad("am", "must be an object");
+            if (am.ValueKind != JsonValueKind.Object)
+                throw Bad("am", "must be an object");
             pos = Num(am, "maxPositivePeakPercent", "am.maxPositivePeakPercent");
             neg = Num(am, "maxNegativePeakPercent", "am.maxNegativePeakPercent");
         }
         EmissionMask? mask = null;
         if (root.TryGetProperty("mask", out JsonElement m))
         {
-            if (m.ValueKind != JsonValueKind.Object) throw Bad("mask", "must be an object");
+            if (m.ValueKind != JsonValueKind.Object)
+                throw Bad("mask", "must be an object");
             string? rule = Str(m, "rule", "mask.rule");
-            if (rule is not null && rule != "47cfr90.210d") throw Bad("mask.rule", $"'{rule}' is not a known rule (known: 47cfr90.210d)");
+            if (rule is not null && rule != "47cfr90.210d")
+                throw Bad("mask.rule", $"'{rule}' is not a known rule (known: 47cfr90.210d)");
             var points = new List<(double, double)>();
             if (m.TryGetProperty("points", out JsonElement pts))
             {
-                if (pts.ValueKind != JsonValueKind.Array) throw Bad("mask.points", "must be an array of [offsetHz, attenuationDb] pairs");
+                if (pts.ValueKind != JsonValueKind.Array)
+                    throw Bad("mask.points", "must be an array of [offsetHz, attenuationDb] pairs");
                 int i = 0;
                 foreach (JsonElement pt in pts.EnumerateArray())
                 {
-                    if (pt.ValueKind != JsonValueKind.Array || pt.GetArrayLength() != 2 || pt[0].ValueKind != JsonValueKind.Number || pt[1].ValueKind != JsonValueKind.Number)
+                    if (
+                        pt.ValueKind != JsonValueKind.Array
+                        || pt.GetArrayLength() != 2
+                        || pt[0].ValueKind != JsonValueKind.Number
+                        || pt[1].ValueKind != JsonValueKind.Number
+                    )
                         throw Bad($"mask.points[{i}]", "must be a pair [offsetHz, attenuationDb] of numbers");
-                    double f = pt[0].GetDouble(), a = pt[1].GetDouble();
-                    if (f < 0 || (points.Count > 0 && f <= points[^1].Item1)) throw Bad($"mask.points[{i}]", "offsets must be 0 or more and ascending");
+                    double f = pt[0].GetDouble(),
+                        a = pt[1].GetDouble();
+                    if (f < 0 || (points.Count > 0 && f <= points[^1].Item1))
+                        throw Bad($"mask.points[{i}]", "offsets must be 0 or more and ascending");
                     points.Add((f, a));
                     i++;
                 }
             }
-            if (rule is null && points.Count == 0) throw Bad("mask", "needs \"rule\" or \"points\"");
+            if (rule is null && points.Count == 0)
+                throw Bad("mask", "needs \"rule\" or \"points\"");
             mask = new EmissionMask
             {
                 Name = Str(m, "name", "mask.name") ?? rule ?? "emission mask",
@@ -182,7 +247,8 @@ public sealed record LimitProfile
     }
 
     /// <summary>A one-line description of the tolerance, e.g. "2.5 ppm".</summary>
-    public string? ToleranceText => FrequencyTolerancePpm is { } p
-        ? p.ToString("0.###", CultureInfo.InvariantCulture) + " ppm"
-        : FrequencyToleranceHz is { } h ? h.ToString("0.###", CultureInfo.InvariantCulture) + " Hz" : null;
+    public string? ToleranceText =>
+        FrequencyTolerancePpm is { } p ? p.ToString("0.###", CultureInfo.InvariantCulture) + " ppm"
+        : FrequencyToleranceHz is { } h ? h.ToString("0.###", CultureInfo.InvariantCulture) + " Hz"
+        : null;
 }

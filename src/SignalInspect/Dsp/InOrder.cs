@@ -7,7 +7,8 @@ namespace SignalInspect.Dsp;
 /// </summary>
 /// <param name="create">Makes a new, empty partial result.</param>
 /// <param name="take">Adds a partial result into the total and leaves it empty for reuse.</param>
-public sealed class InOrder<T>(Func<T> create, Action<T> take) where T : class
+public sealed class InOrder<T>(Func<T> create, Action<T> take)
+    where T : class
 {
     private readonly Dictionary<int, T> _pending = [];
     private readonly Stack<T> _free = new();
@@ -16,10 +17,12 @@ public sealed class InOrder<T>(Func<T> create, Action<T> take) where T : class
     /// <summary>An empty partial result (recycled when one is free).</summary>
     public T Rent()
     {
-        lock (_pending) return _free.Count > 0 ? _free.Pop() : create();
+        lock (_pending)
+            return _free.Count > 0 ? _free.Pop() : create();
     }
 
-    /// <summary>Hands in the partial result of <paramref name="index"/>; every result whose turn has come is taken into the total.</summary>
+    /// <summary>Hands in the partial result of <paramref name="index"/>; every result whose turn has come is taken into
+    /// the total.</summary>
     public void Complete(int index, T part)
     {
         lock (_pending)

@@ -8,14 +8,19 @@ public enum WindowKind
 {
     /// <summary>Rectangular (no window).</summary>
     Rectangular,
+
     /// <summary>Hann (raised cosine), a0 = 0.5.</summary>
     Hann,
+
     /// <summary>Hamming, a0 = 0.54.</summary>
     Hamming,
+
     /// <summary>4-term Blackman-Harris (Harris 1978, 92 dB sidelobes): 0.35875, 0.48829, 0.14128, 0.01168.</summary>
     BlackmanHarris,
+
     /// <summary>Flat-top (the 5-term coefficients scipy.signal.windows.flattop uses), for amplitude accuracy.</summary>
     FlatTop,
+
     /// <summary>Kaiser with shape parameter beta.</summary>
     Kaiser,
 }
@@ -35,8 +40,13 @@ public sealed class Window
         Kind = kind;
         KaiserBeta = beta;
         _w = w;
-        double sum = 0, sum2 = 0;
-        foreach (double v in w) { sum += v; sum2 += v * v; }
+        double sum = 0,
+            sum2 = 0;
+        foreach (double v in w)
+        {
+            sum += v;
+            sum2 += v * v;
+        }
         Sum = sum;
         SumOfSquares = sum2;
     }
@@ -45,7 +55,8 @@ public sealed class Window
     // trigonometric calls per point, so worked out only when asked for).
     private double ScallopingLoss()
     {
-        double re = 0, im = 0;
+        double re = 0,
+            im = 0;
         for (int n = 0; n < _w.Length; n++)
         {
             double a = -Math.PI * n / _w.Length;
@@ -66,15 +77,21 @@ public sealed class Window
         if (kind == WindowKind.Kaiser && (!double.IsFinite(kaiserBeta) || kaiserBeta < 0))
             throw new ArgumentOutOfRangeException(nameof(kaiserBeta), kaiserBeta, "must be 0 or more");
         // Windows are immutable: the large ones are kept and shared (each analysis builds the same few).
-        if (size < 1024) return Build(kind, size, kaiserBeta);
+        if (size < 1024)
+            return Build(kind, size, kaiserBeta);
         var key = (kind, size, kind == WindowKind.Kaiser ? kaiserBeta : 0.0);
-        if (Cache.TryGetValue(key, out Window? hit)) return hit;
+        if (Cache.TryGetValue(key, out Window? hit))
+            return hit;
         Window made = Build(kind, size, kaiserBeta);
-        if (Cache.Count >= 32) Cache.Clear();
+        if (Cache.Count >= 32)
+            Cache.Clear();
         return Cache.GetOrAdd(key, made);
     }
 
-    private static readonly System.Collections.Concurrent.ConcurrentDictionary<(WindowKind, int, double), Window> Cache = new();
+    private static readonly System.Collections.Concurrent.ConcurrentDictionary<
+        (WindowKind, int, double),
+        Window
+    > Cache = new();
 
     private static Window Build(WindowKind kind, int size, double kaiserBeta)
     {
@@ -84,16 +101,24 @@ public sealed class Window
         {
             double x = 2 * Math.PI * n / m;
             double c = kind is WindowKind.Kaiser or WindowKind.Rectangular ? 0 : Math.Cos(x);
-            // cos 2x, 3x and 4x from cos x by the multiple-angle formulas (one cosine per point; absolute error below 1e-15).
-            double c2 = 2 * c * c - 1, c3 = c * (2 * c2 - 1), c4 = 2 * c2 * c2 - 1;
+            // cos 2x, 3x and 4x from cos x by the multiple-angle formulas (one cosine per point; absolute error below
+            // 1e-15).
+            double c2 = 2 * c * c - 1,
+                c3 = c * (2 * c2 - 1),
+                c4 = 2 * c2 * c2 - 1;
             w[n] = kind switch
             {
                 WindowKind.Rectangular => 1.0,
                 WindowKind.Hann => 0.5 - 0.5 * c,
                 WindowKind.Hamming => 0.54 - 0.46 * c,
                 WindowKind.BlackmanHarris => 0.35875 - 0.48829 * c + 0.14128 * c2 - 0.01168 * c3,
-                WindowKind.FlatTop => 0.21557895 - 0.41663158 * c + 0.277263158 * c2 - 0.083578947 * c3 + 0.006947368 * c4,
-                _ => SpecialFunctions.BesselI0(kaiserBeta * Math.Sqrt(Math.Max(0, 1 - Math.Pow(2.0 * n / m - 1, 2)))) / SpecialFunctions.BesselI0(kaiserBeta),
+                WindowKind.FlatTop => 0.21557895
+                    - 0.41663158 * c
+                    + 0.277263158 * c2
+                    - 0.083578947 * c3
+                    + 0.006947368 * c4,
+                _ => SpecialFunctions.BesselI0(kaiserBeta * Math.Sqrt(Math.Max(0, 1 - Math.Pow(2.0 * n / m - 1, 2))))
+                    / SpecialFunctions.BesselI0(kaiserBeta),
             };
         }
         return new Window(kind, kind == WindowKind.Kaiser ? kaiserBeta : double.NaN, w);
@@ -110,8 +135,14 @@ public sealed class Window
         double beta = 8.6;
         if (s.StartsWith("kaiser:", StringComparison.Ordinal))
         {
-            if (!double.TryParse(s[7..], NumberStyles.Float, CultureInfo.InvariantCulture, out beta) || beta < 0 || !double.IsFinite(beta))
-                throw new ArgumentException($"window '{name}': the Kaiser beta must be a number of 0 or more (e.g. kaiser:8.6)");
+            if (
+                !double.TryParse(s[7..], NumberStyles.Float, CultureInfo.InvariantCulture, out beta)
+                || beta < 0
+                || !double.IsFinite(beta)
+            )
+                throw new ArgumentException(
+                    $"window '{name}': the Kaiser beta must be a number of 0 or more (e.g. kaiser:8.6)"
+                );
             s = "kaiser";
         }
         WindowKind kind = s switch
@@ -122,7 +153,9 @@ public sealed class Window
             "blackmanharris" or "bh4" => WindowKind.BlackmanHarris,
             "flattop" => WindowKind.FlatTop,
             "kaiser" => WindowKind.Kaiser,
-            _ => throw new ArgumentException($"unknown window '{name}' (rectangular, hann, hamming, blackmanharris, flattop, kaiser:BETA)"),
+            _ => throw new ArgumentException(
+                $"unknown window '{name}' (rectangular, hann, hamming, blackmanharris, flattop, kaiser:BETA)"
+            ),
         };
         return (kind, beta);
     }
@@ -134,13 +167,14 @@ public sealed class Window
     public double KaiserBeta { get; }
 
     /// <summary>A short name, e.g. "hann", "kaiser(beta=8.6)".</summary>
-    public string Name => Kind switch
-    {
-        WindowKind.Kaiser => string.Create(CultureInfo.InvariantCulture, $"kaiser(beta={KaiserBeta:0.###})"),
-        WindowKind.BlackmanHarris => "blackmanharris",
-        WindowKind.FlatTop => "flattop",
-        _ => Kind.ToString().ToLowerInvariant(),
-    };
+    public string Name =>
+        Kind switch
+        {
+            WindowKind.Kaiser => string.Create(CultureInfo.InvariantCulture, $"kaiser(beta={KaiserBeta:0.###})"),
+            WindowKind.BlackmanHarris => "blackmanharris",
+            WindowKind.FlatTop => "flattop",
+            _ => Kind.ToString().ToLowerInvariant(),
+        };
 
     /// <summary>Points N.</summary>
     public int Size => _w.Length;
@@ -163,14 +197,16 @@ public sealed class Window
     /// <summary>Equivalent noise bandwidth in Hz at a sample rate: ENBW(bins) x fs / N.</summary>
     public double EnbwHz(double sampleRateHz) => EnbwBins * sampleRateHz / Size;
 
-    /// <summary>Worst-case scalloping loss in dB: the response to a tone half a bin off centre (Harris 1978, Table 1).</summary>
+    /// <summary>Worst-case scalloping loss in dB: the response to a tone half a bin off centre (Harris 1978, Table
+    /// 1).</summary>
     public double ScallopingLossDb
     {
         get
         {
             // Windows are shared between threads: a double is written whole, so a reader sees NaN or the value.
             double v = _scallopingLossDb;
-            if (double.IsNaN(v)) _scallopingLossDb = v = ScallopingLoss();
+            if (double.IsNaN(v))
+                _scallopingLossDb = v = ScallopingLoss();
             return v;
         }
     }
@@ -178,12 +214,13 @@ public sealed class Window
     private double _scallopingLossDb = double.NaN;
 
     /// <summary>Half-width of the main lobe in bins (to its first null), for blanking a spectral line.</summary>
-    public int MainLobeHalfWidthBins => Kind switch
-    {
-        WindowKind.Rectangular => 1,
-        WindowKind.Hann or WindowKind.Hamming => 2,
-        WindowKind.BlackmanHarris => 4,
-        WindowKind.FlatTop => 5,
-        _ => (int)Math.Ceiling(Math.Sqrt(1 + Math.Pow(KaiserBeta / Math.PI, 2))),
-    };
+    public int MainLobeHalfWidthBins =>
+        Kind switch
+        {
+            WindowKind.Rectangular => 1,
+            WindowKind.Hann or WindowKind.Hamming => 2,
+            WindowKind.BlackmanHarris => 4,
+            WindowKind.FlatTop => 5,
+            _ => (int)Math.Ceiling(Math.Sqrt(1 + Math.Pow(KaiserBeta / Math.PI, 2))),
+        };
 }

@@ -5,47 +5,71 @@ namespace SignalInspect.Measure;
 /// <summary>What to measure and how. Every value has a default that suits a first look.</summary>
 public sealed record AnalysisOptions
 {
-    /// <summary>Nominal (assigned) carrier frequency, Hz: absolute RF when the capture's centre is known, else on the capture's own axis. Null: offsets are taken from the centre.</summary>
+    /// <summary>Nominal (assigned) carrier frequency, Hz: absolute RF when the capture's centre is known, else on the
+    /// capture's own axis. Null: offsets are taken from the centre.</summary>
     public double? NominalHz { get; init; }
+
     /// <summary>Modulation to measure as, overriding the classifier; null to classify.</summary>
     public ModulationKind? Expect { get; init; }
+
     /// <summary>Occupied-bandwidth percentage (99 by default: beta = 1 %).</summary>
     public double ObwPercent { get; init; } = 99;
+
     /// <summary>The x of the x-dB bandwidth, dB (26 by default).</summary>
     public double Xdb { get; init; } = 26;
+
     /// <summary>Noise-floor treatment for the occupied bandwidth.</summary>
     public NoiseFloorTreatment ObwNoise { get; init; } = NoiseFloorTreatment.Subtract;
+
     /// <summary>FFT size of the bandwidth spectrum; null to choose (4096, smaller for short captures).</summary>
     public int? FftSize { get; init; }
+
     /// <summary>Window of the bandwidth spectrum.</summary>
     public WindowKind Window { get; init; } = WindowKind.Hann;
+
     /// <summary>Post-detection low-pass cutoff, Hz; null for the default (the channel filter's width).</summary>
     public double? PostLowPassHz { get; init; }
+
     /// <summary>Post-detection high-pass corner, Hz; null for none.</summary>
     public double? PostHighPassHz { get; init; }
+
     /// <summary>De-emphasis time constant in microseconds (e.g. 50 or 75), null for none.</summary>
     public double? DeEmphasisUs { get; init; }
+
     /// <summary>Interpolate over a receiver DC spike in the spectrum.</summary>
     public bool SuppressDc { get; init; }
+
     /// <summary>Start of the analysed window, s.</summary>
     public double StartS { get; init; }
+
     /// <summary>Length of the analysed window, s; null to the end.</summary>
     public double? DurationS { get; init; }
-    /// <summary>Whether to keep the spectrogram, which only the PDF report draws (true by default; the command line turns it off when no report is written).</summary>
+
+    /// <summary>Whether to keep the spectrogram, which only the PDF report draws (true by default; the command line
+    /// turns it off when no report is written).</summary>
     public bool KeepSpectrogram { get; init; } = true;
+
     /// <summary>Worker threads for the spectrum; null for one per core.</summary>
     public int? Threads { get; init; }
 
     /// <summary>Checks every option; the message names it.</summary>
     public void Validate()
     {
-        if (!(ObwPercent > 0 && ObwPercent < 100)) throw new ArgumentOutOfRangeException("--obw-percent", ObwPercent, "must lie between 0 and 100");
-        if (!(Xdb > 0 && Xdb < 200)) throw new ArgumentOutOfRangeException("--xdb", Xdb, "must lie between 0 and 200 dB");
-        if (PostLowPassHz is { } lp && !(lp > 0)) throw new ArgumentOutOfRangeException("--post-lowpass", lp, "must be a positive number of Hz");
-        if (PostHighPassHz is { } hp && !(hp > 0)) throw new ArgumentOutOfRangeException("--post-highpass", hp, "must be a positive number of Hz");
-        if (DeEmphasisUs is { } de && !(de > 0 && de < 1e6)) throw new ArgumentOutOfRangeException("--deemphasis", de, "must be a positive number of microseconds");
-        if (NominalHz is { } nom && !double.IsFinite(nom)) throw new ArgumentOutOfRangeException("--nominal", nom, "must be a number of Hz");
-        if (!(StartS >= 0 && double.IsFinite(StartS))) throw new ArgumentOutOfRangeException("--start", StartS, "must be 0 or more seconds");
-        if (DurationS is { } d && !(d > 0 && double.IsFinite(d))) throw new ArgumentOutOfRangeException("--duration", d, "must be a positive number of seconds");
+        if (!(ObwPercent > 0 && ObwPercent < 100))
+            throw new ArgumentOutOfRangeException("--obw-percent", ObwPercent, "must lie between 0 and 100");
+        if (!(Xdb > 0 && Xdb < 200))
+            throw new ArgumentOutOfRangeException("--xdb", Xdb, "must lie between 0 and 200 dB");
+        if (PostLowPassHz is { } lp && !(lp > 0))
+            throw new ArgumentOutOfRangeException("--post-lowpass", lp, "must be a positive number of Hz");
+        if (PostHighPassHz is { } hp && !(hp > 0))
+            throw new ArgumentOutOfRangeException("--post-highpass", hp, "must be a positive number of Hz");
+        if (DeEmphasisUs is { } de && !(de > 0 && de < 1e6))
+            throw new ArgumentOutOfRangeException("--deemphasis", de, "must be a positive number of microseconds");
+        if (NominalHz is { } nom && !double.IsFinite(nom))
+            throw new ArgumentOutOfRangeException("--nominal", nom, "must be a number of Hz");
+        if (!(StartS >= 0 && double.IsFinite(StartS)))
+            throw new ArgumentOutOfRangeException("--start", StartS, "must be 0 or more seconds");
+        if (DurationS is { } d && !(d > 0 && double.IsFinite(d)))
+            throw new ArgumentOutOfRangeException("--duration", d, "must be a positive number of seconds");
     }
 }

@@ -11,12 +11,14 @@ public enum NoiseFloorTreatment
     /// the whole capture bandwidth then does not widen the result. Default.
     /// </summary>
     Subtract,
+
     /// <summary>Power is summed as measured, noise included (the plain SM.443 beta-% summation).</summary>
     Keep,
 }
 
 /// <summary>Occupied and x-dB bandwidth of a spectrum, with their edges.</summary>
-/// <param name="OccupiedHz">Occupied bandwidth: the band outside which each side holds beta/2 of the total power.</param>
+/// <param name="OccupiedHz">Occupied bandwidth: the band outside which each side holds beta/2 of the total
+/// power.</param>
 /// <param name="LowerEdgeHz">Lower edge of the occupied bandwidth (spectrum axis: offset or audio frequency).</param>
 /// <param name="UpperEdgeHz">Upper edge of the occupied bandwidth.</param>
 /// <param name="Beta">Fraction of power outside (0.01 for the 99 % bandwidth).</param>
@@ -28,8 +30,20 @@ public enum NoiseFloorTreatment
 /// <param name="Treatment">How the noise floor was treated.</param>
 /// <param name="SignalPower">Power summed (full-scale^2), after any floor subtraction.</param>
 /// <param name="CentroidHz">Power-weighted mean frequency inside the occupied bandwidth.</param>
-public sealed record BandwidthResult(double OccupiedHz, double LowerEdgeHz, double UpperEdgeHz, double Beta, double XdbHz, double XdbLowerEdgeHz,
-                                     double XdbUpperEdgeHz, double Xdb, double NoiseFloorDensity, NoiseFloorTreatment Treatment, double SignalPower, double CentroidHz);
+public sealed record BandwidthResult(
+    double OccupiedHz,
+    double LowerEdgeHz,
+    double UpperEdgeHz,
+    double Beta,
+    double XdbHz,
+    double XdbLowerEdgeHz,
+    double XdbUpperEdgeHz,
+    double Xdb,
+    double NoiseFloorDensity,
+    NoiseFloorTreatment Treatment,
+    double SignalPower,
+    double CentroidHz
+);
 
 /// <summary>
 /// Occupied bandwidth by the beta-% method (ITU Radio Regulations No. 1.153, ITU-R SM.328,
@@ -45,42 +59,70 @@ public static class BandwidthMeasurement
     /// <param name="beta">Fraction of power outside the band, 0 &lt; beta &lt; 1 (0.01 for 99 %).</param>
     /// <param name="xdb">The x of the x-dB bandwidth, positive (26 by default in the tools that call this).</param>
     /// <param name="treatment">Noise-floor treatment.</param>
-    public static BandwidthResult Measure(PowerSpectrum psd, double beta = 0.01, double xdb = 26, NoiseFloorTreatment treatment = NoiseFloorTreatment.Subtract)
+    public static BandwidthResult Measure(
+        PowerSpectrum psd,
+        double beta = 0.01,
+        double xdb = 26,
+        NoiseFloorTreatment treatment = NoiseFloorTreatment.Subtract
+    )
     {
-        if (!(beta > 0 && beta < 1)) throw new ArgumentOutOfRangeException("--obw-percent", (1 - beta) * 100, "must lie between 0 and 100");
-        if (!(xdb > 0 && double.IsFinite(xdb))) throw new ArgumentOutOfRangeException("--xdb", xdb, "must be a positive number of dB");
-        if (psd.Scaling != SpectrumScaling.DensityPerHz) psd = psd.In(SpectrumScaling.DensityPerHz);
+        if (!(beta > 0 && beta < 1))
+            throw new ArgumentOutOfRangeException("--obw-percent", (1 - beta) * 100, "must lie between 0 and 100");
+        if (!(xdb > 0 && double.IsFinite(xdb)))
+            throw new ArgumentOutOfRangeException("--xdb", xdb, "must be a positive number of dB");
+        if (psd.Scaling != SpectrumScaling.DensityPerHz)
+            psd = psd.In(SpectrumScaling.DensityPerHz);
         int n = psd.Count;
         ReadOnlySpan<double> v = psd.Values;
         ReadOnlySpan<double> f = psd.FrequenciesHz;
         double bw = psd.BinWidthHz;
         double floor = NoiseFloor(v);
         var p = new double[n];
-        for (int i = 0; i < n; i++) p[i] = treatment == NoiseFloorTreatment.Subtract ? Math.Max(0, v[i] - floor) * bw : v[i] * bw;
+        for (int i = 0; i < n; i++)
+            p[i] = treatment == NoiseFloorTreatment.Subtract ? Math.Max(0, v[i] - floor) * bw : v[i] * bw;
         double total = p.Sum();
         if (total <= 0)
         {
-            for (int i = 0; i < n; i++) p[i] = v[i] * bw;
+            for (int i = 0; i < n; i++)
+                p[i] = v[i] * bw;
             total = p.Sum();
         }
         double target = beta / 2 * total;
         double lower = Edge(p, f, bw, target, fromLow: true);
         double upper = Edge(p, f, bw, target, fromLow: false);
-        double num = 0, den = 0;
+        double num = 0,
+            den = 0;
         for (int i = 0; i < n; i++)
         {
-            if (f[i] < lower || f[i] > upper) continue;
+            if (f[i] < lower || f[i] > upper)
+                continue;
             num += p[i] * f[i];
             den += p[i];
         }
         int peak = psd.PeakIndex();
         double limit = v[peak] * Math.Pow(10, -xdb / 10);
-        int lo = 0, hi = n - 1;
-        while (lo < peak && v[lo] < limit) lo++;
-        while (hi > peak && v[hi] < limit) hi--;
+        int lo = 0,
+            hi = n - 1;
+        while (lo < peak && v[lo] < limit)
+            lo++;
+        while (hi > peak && v[hi] < limit)
+            hi--;
         double xl = lo > 0 ? Cross(f[lo - 1], v[lo - 1], f[lo], v[lo], limit) : f[0];
         double xu = hi < n - 1 ? Cross(f[hi + 1], v[hi + 1], f[hi], v[hi], limit) : f[n - 1];
-        return new BandwidthResult(upper - lower, lower, upper, beta, xu - xl, xl, xu, xdb, floor, treatment, total, den > 0 ? num / den : f[peak]);
+        return new BandwidthResult(
+            upper - lower,
+            lower,
+            upper,
+            beta,
+            xu - xl,
+            xl,
+            xu,
+            xdb,
+            floor,
+            treatment,
+            total,
+            den > 0 ? num / den : f[peak]
+        );
     }
 
     /// <summary>The noise floor density: the 10th percentile of the bins.</summary>
@@ -108,10 +150,13 @@ public static class BandwidthMeasurement
         return fromLow ? f[n - 1] : f[0];
     }
 
-    /// <summary>Frequency where the level crosses <paramref name="limit"/> between an outer bin (below) and an inner bin (above), interpolated in dB.</summary>
+    /// <summary>Frequency where the level crosses <paramref name="limit"/> between an outer bin (below) and an inner
+    /// bin (above), interpolated in dB.</summary>
     private static double Cross(double fOut, double vOut, double fIn, double vIn, double limit)
     {
-        double a = 10 * Math.Log10(Math.Max(vOut, 1e-300)), b = 10 * Math.Log10(vIn), l = 10 * Math.Log10(limit);
+        double a = 10 * Math.Log10(Math.Max(vOut, 1e-300)),
+            b = 10 * Math.Log10(vIn),
+            l = 10 * Math.Log10(limit);
         double t = b - a > 0 ? (l - a) / (b - a) : 1;
         return fOut + Math.Clamp(t, 0, 1) * (fIn - fOut);
     }

@@ -16,9 +16,14 @@ public static class EmissionDesignator
     /// <exception cref="ArgumentOutOfRangeException">Bandwidth not positive, or 1000 GHz or more.</exception>
     public static string BandwidthCode(double hz)
     {
-        if (!(hz > 0) || hz >= 1e12) throw new ArgumentOutOfRangeException(nameof(hz), hz, "must be positive and below 1000 GHz");
+        if (!(hz > 0) || hz >= 1e12)
+            throw new ArgumentOutOfRangeException(nameof(hz), hz, "must be positive and below 1000 GHz");
         (double unit, char letter)[] units = [(1, 'H'), (1e3, 'K'), (1e6, 'M'), (1e9, 'G')];
-        int u = hz < 1e3 ? 0 : hz < 1e6 ? 1 : hz < 1e9 ? 2 : 3;
+        int u =
+            hz < 1e3 ? 0
+            : hz < 1e6 ? 1
+            : hz < 1e9 ? 2
+            : 3;
         while (true)
         {
             double v = hz / units[u].unit;
@@ -26,18 +31,25 @@ public static class EmissionDesignator
             int exp = v < 1 ? -1 : (int)Math.Floor(Math.Log10(v));
             double scale = Math.Pow(10, 2 - exp);
             double rounded = Math.Floor(v * scale + 0.5 + 1e-9) / scale;
-            if (rounded >= 1000 && u < 3) { u++; continue; }
+            if (rounded >= 1000 && u < 3)
+            {
+                u++;
+                continue;
+            }
             char letter = units[u].letter;
             if (rounded < 1)
                 return letter + ((int)Math.Round(rounded * 1000)).ToString("000", CultureInfo.InvariantCulture);
-            string digits = ((int)Math.Round(rounded * Math.Pow(10, 2 - (int)Math.Floor(Math.Log10(rounded) + 1e-12)))).ToString(CultureInfo.InvariantCulture);
+            string digits = (
+                (int)Math.Round(rounded * Math.Pow(10, 2 - (int)Math.Floor(Math.Log10(rounded) + 1e-12)))
+            ).ToString(CultureInfo.InvariantCulture);
             int intDigits = (int)Math.Floor(Math.Log10(rounded) + 1e-12) + 1;
             return digits[..intDigits] + letter + digits[intDigits..];
         }
     }
 
     /// <summary>FM or PM telephony/sound: Bn = 2M + 2DK, K = 1 (47 CFR 2.202(g)).</summary>
-    public static double AngleModulationBandwidthHz(double modulatingHz, double peakDeviationHz, double k = 1) => 2 * modulatingHz + 2 * peakDeviationHz * k;
+    public static double AngleModulationBandwidthHz(double modulatingHz, double peakDeviationHz, double k = 1) =>
+        2 * modulatingHz + 2 * peakDeviationHz * k;
 
     /// <summary>Double-sideband AM: Bn = 2M (47 CFR 2.202(g)).</summary>
     public static double AmBandwidthHz(double modulatingHz) => 2 * modulatingHz;
@@ -63,8 +75,10 @@ public static class EmissionDesignator
             ModulationKind.Fsk => "F1D",
             _ => null,
         };
-        if (cls is null) return null;
-        if (kind == ModulationKind.Cw || necessaryHz is not { } bn || !(bn > 0)) return kind == ModulationKind.Cw ? cls : null;
+        if (cls is null)
+            return null;
+        if (kind == ModulationKind.Cw || necessaryHz is not { } bn || !(bn > 0))
+            return kind == ModulationKind.Cw ? cls : null;
         return BandwidthCode(bn) + cls;
     }
 }

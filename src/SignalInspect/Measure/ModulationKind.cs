@@ -5,14 +5,19 @@ public enum ModulationKind
 {
     /// <summary>Noise only: no signal found above the floor.</summary>
     Noise,
+
     /// <summary>Unmodulated carrier.</summary>
     Cw,
+
     /// <summary>Amplitude modulation (double sideband, full carrier).</summary>
     Am,
+
     /// <summary>Frequency modulation (analogue).</summary>
     Fm,
+
     /// <summary>Phase modulation (analogue).</summary>
     Pm,
+
     /// <summary>Frequency-shift keying.</summary>
     Fsk,
 }
@@ -26,7 +31,9 @@ public static class ModulationKindNames
     /// <summary>Parses a name.</summary>
     /// <exception cref="ArgumentException">Not one of the names.</exception>
     public static ModulationKind Parse(string name) =>
-        Enum.TryParse(name.Trim(), ignoreCase: true, out ModulationKind k) && Enum.IsDefined(k) && !int.TryParse(name, out _)
+        Enum.TryParse(name.Trim(), ignoreCase: true, out ModulationKind k)
+        && Enum.IsDefined(k)
+        && !int.TryParse(name, out _)
             ? k
             : throw new ArgumentException($"--expect: '{name}' is not one of am, fm, pm, fsk, cw, noise");
 }

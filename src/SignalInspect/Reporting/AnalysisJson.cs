@@ -17,7 +17,8 @@ public static class AnalysisJson
     public static byte[] ToBytes(AnalysisResult r, bool indented = true)
     {
         using var ms = new MemoryStream();
-        using (var w = new Utf8JsonWriter(ms, new JsonWriterOptions { Indented = indented })) Write(w, r);
+        using (var w = new Utf8JsonWriter(ms, new JsonWriterOptions { Indented = indented }))
+            Write(w, r);
         return ms.ToArray();
     }
 
@@ -84,7 +85,10 @@ public static class AnalysisJson
         w.WriteNumber("xdbUpperEdgeHz", Abs(b.XdbUpperEdgeHz));
         w.WriteNumber("rbwHz", r.Method.RbwHz);
         w.WriteString("noiseFloor", b.Treatment == NoiseFloorTreatment.Subtract ? "subtracted" : "kept");
-        w.WriteNumber("noiseFloorDbfsPerHz", b.NoiseFloorDensity > 0 ? Math.Round(10 * Math.Log10(b.NoiseFloorDensity), 3) : -400);
+        w.WriteNumber(
+            "noiseFloorDbfsPerHz",
+            b.NoiseFloorDensity > 0 ? Math.Round(10 * Math.Log10(b.NoiseFloorDensity), 3) : -400
+        );
         w.WriteBoolean("edgesAbsolute", abs);
         w.WriteEndObject();
         w.WriteStartObject("am");
@@ -96,7 +100,12 @@ public static class AnalysisJson
             w.WriteNumber("negativePeakPercent", am.NegativePeakPercent);
             CaptureInfoJson.WriteNumberOrNull(w, "sidebandDepthPercent", am.SidebandDepthPercent);
         }
-        else { w.WriteNull("depthPercent"); w.WriteNull("positivePeakPercent"); w.WriteNull("negativePeakPercent"); }
+        else
+        {
+            w.WriteNull("depthPercent");
+            w.WriteNull("positivePeakPercent");
+            w.WriteNull("negativePeakPercent");
+        }
         w.WriteEndObject();
         w.WriteStartObject("fm");
         if (r.Fm is { } fm)
@@ -109,7 +118,13 @@ public static class AnalysisJson
             w.WriteNumber("rmsDeviationHz", fm.RmsDeviationHz);
             CaptureInfoJson.WriteNumberOrNull(w, "modulationIndex", fm.ModulationIndex);
         }
-        else { w.WriteNull("peakDeviationHz"); w.WriteNull("positivePeakHz"); w.WriteNull("negativePeakHz"); w.WriteNull("rmsDeviationHz"); }
+        else
+        {
+            w.WriteNull("peakDeviationHz");
+            w.WriteNull("positivePeakHz");
+            w.WriteNull("negativePeakHz");
+            w.WriteNull("rmsDeviationHz");
+        }
         w.WriteEndObject();
         w.WriteStartObject("pm");
         if (r.Pm is { } pm)
@@ -119,7 +134,8 @@ public static class AnalysisJson
             w.WriteNumber("positivePeakRad", pm.PositivePeakRad);
             w.WriteNumber("negativePeakRad", pm.NegativePeakRad);
         }
-        else w.WriteNull("peakDeviationRad");
+        else
+            w.WriteNull("peakDeviationRad");
         w.WriteEndObject();
         w.WriteStartObject("fsk");
         if (r.Fsk is { } fsk)
@@ -131,14 +147,24 @@ public static class AnalysisJson
             CaptureInfoJson.WriteNumberOrNull(w, "symbolRateUncertaintyBd", fsk.SymbolRateBd?.StandardUncertainty);
             CaptureInfoJson.WriteNumberOrNull(w, "modulationIndex", fsk.ModulationIndex);
             w.WriteStartArray("toneFrequenciesHz");
-            foreach (double t in fsk.ToneFrequenciesHz) w.WriteNumberValue(t);
+            foreach (double t in fsk.ToneFrequenciesHz)
+                w.WriteNumberValue(t);
             w.WriteEndArray();
         }
-        else { w.WriteNull("shiftHz"); w.WriteNull("symbolRateBd"); w.WriteStartArray("toneFrequenciesHz"); w.WriteEndArray(); }
+        else
+        {
+            w.WriteNull("shiftHz");
+            w.WriteNull("symbolRateBd");
+            w.WriteStartArray("toneFrequenciesHz");
+            w.WriteEndArray();
+        }
         w.WriteEndObject();
         CaptureInfoJson.WriteNumberOrNull(w, "modulatingFrequencyHz", r.ModulatingFrequencyHz?.Value);
         CaptureInfoJson.WriteNumberOrNull(w, "necessaryBandwidthHz", r.NecessaryBandwidthHz);
-        if (r.EmissionDesignator is { } d) w.WriteString("emissionDesignator", d); else w.WriteNull("emissionDesignator");
+        if (r.EmissionDesignator is { } d)
+            w.WriteString("emissionDesignator", d);
+        else
+            w.WriteNull("emissionDesignator");
         var m = r.Method;
         w.WriteStartObject("method");
         w.WriteString("window", r.Spectrum.Mean.Window.Name);
@@ -154,10 +180,12 @@ public static class AnalysisJson
         w.WriteBoolean("dcSuppressed", r.Spectrum.DcBinsSuppressed > 0);
         w.WriteEndObject();
         w.WriteStartArray("notes");
-        foreach (string n in info.Notes) w.WriteStringValue(n);
+        foreach (string n in info.Notes)
+            w.WriteStringValue(n);
         w.WriteEndArray();
         w.WriteStartArray("warnings");
-        foreach (string s in r.Warnings) w.WriteStringValue(s);
+        foreach (string s in r.Warnings)
+            w.WriteStringValue(s);
         w.WriteEndArray();
         w.WriteEndObject();
     }

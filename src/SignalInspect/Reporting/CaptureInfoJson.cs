@@ -4,7 +4,8 @@ using SignalInspect.Capture;
 
 namespace SignalInspect.Reporting;
 
-/// <summary>Writes a <see cref="CaptureInfo"/> as JSON: stable key order, SI units in the key names, null where unknown.</summary>
+/// <summary>Writes a <see cref="CaptureInfo"/> as JSON: stable key order, SI units in the key names, null where
+/// unknown.</summary>
 public static class CaptureInfoJson
 {
     /// <summary>Writes the capture as a JSON object (the <c>info --json</c> output).</summary>
@@ -21,11 +22,19 @@ public static class CaptureInfoJson
         w.WriteString("datatype", info.Datatype);
         w.WriteNumber("channels", info.Channels);
         w.WriteString("channelUse", info.ChannelUse);
-        if (info.StartTime is { } t) w.WriteString("startTime", t.UtcDateTime.ToString("yyyy-MM-dd'T'HH:mm:ss.FFFFFFF'Z'", CultureInfo.InvariantCulture));
-        else w.WriteNull("startTime");
+        if (info.StartTime is { } t)
+            w.WriteString(
+                "startTime",
+                t.UtcDateTime.ToString("yyyy-MM-dd'T'HH:mm:ss.FFFFFFF'Z'", CultureInfo.InvariantCulture)
+            );
+        else
+            w.WriteNull("startTime");
         w.WriteNumber("fileSizeBytes", info.FileSizeBytes);
         w.WriteString("checksum", info.ChecksumStatus);
-        if (info.SelectedSegment is { } s) w.WriteNumber("segment", s); else w.WriteNull("segment");
+        if (info.SelectedSegment is { } s)
+            w.WriteNumber("segment", s);
+        else
+            w.WriteNull("segment");
         w.WriteStartArray("segments");
         foreach (CaptureSegment seg in info.Segments)
         {
@@ -34,8 +43,13 @@ public static class CaptureInfoJson
             w.WriteNumber("sampleStart", seg.SampleStart);
             w.WriteNumber("samples", seg.SampleCount);
             WriteNumberOrNull(w, "frequencyHz", seg.FrequencyHz);
-            if (seg.StartTime is { } st) w.WriteString("startTime", st.UtcDateTime.ToString("yyyy-MM-dd'T'HH:mm:ss.FFFFFFF'Z'", CultureInfo.InvariantCulture));
-            else w.WriteNull("startTime");
+            if (seg.StartTime is { } st)
+                w.WriteString(
+                    "startTime",
+                    st.UtcDateTime.ToString("yyyy-MM-dd'T'HH:mm:ss.FFFFFFF'Z'", CultureInfo.InvariantCulture)
+                );
+            else
+                w.WriteNull("startTime");
             w.WriteNumber("headerBytes", seg.HeaderBytes);
             w.WriteEndObject();
         }
@@ -45,7 +59,10 @@ public static class CaptureInfoJson
         {
             w.WriteStartObject();
             w.WriteNumber("sampleStart", a.SampleStart);
-            if (a.SampleCount is { } c) w.WriteNumber("samples", c); else w.WriteNull("samples");
+            if (a.SampleCount is { } c)
+                w.WriteNumber("samples", c);
+            else
+                w.WriteNull("samples");
             WriteNumberOrNull(w, "lowerEdgeHz", a.LowerEdgeHz);
             WriteNumberOrNull(w, "upperEdgeHz", a.UpperEdgeHz);
             w.WriteString("label", a.Label);
@@ -61,14 +78,17 @@ public static class CaptureInfoJson
     /// <summary>Writes a number, or null when there is none.</summary>
     public static void WriteNumberOrNull(Utf8JsonWriter w, string name, double? value)
     {
-        if (value is { } v && double.IsFinite(v)) w.WriteNumber(name, v);
-        else w.WriteNull(name);
+        if (value is { } v && double.IsFinite(v))
+            w.WriteNumber(name, v);
+        else
+            w.WriteNull(name);
     }
 
     private static void WriteStrings(Utf8JsonWriter w, string name, IEnumerable<string> items)
     {
         w.WriteStartArray(name);
-        foreach (string s in items) w.WriteStringValue(s);
+        foreach (string s in items)
+            w.WriteStringValue(s);
         w.WriteEndArray();
     }
 }

@@ -9,6 +9,7 @@ public enum PaperSize
 {
     /// <summary>ISO A4, 210 x 297 mm.</summary>
     A4,
+
     /// <summary>US Letter, 8.5 x 11 in.</summary>
     Letter,
 }
@@ -21,28 +22,40 @@ public sealed record MeasurementReport
 {
     /// <summary>Report identifier: SI-yyyyMMdd-HHmmss-first 8 hex of the capture hash.</summary>
     public required string ReportId { get; init; }
+
     /// <summary>When the report was made (UTC).</summary>
     public required DateTimeOffset Created { get; init; }
+
     /// <summary>Title.</summary>
     public required string Title { get; init; }
+
     /// <summary>Who measured.</summary>
     public string? Operator { get; init; }
+
     /// <summary>Equipment under test.</summary>
     public string? Equipment { get; init; }
+
     /// <summary>Free notes.</summary>
     public string? Notes { get; init; }
+
     /// <summary>The analysis.</summary>
     public required AnalysisResult Analysis { get; init; }
+
     /// <summary>The limit profile, null when none was given.</summary>
     public LimitProfile? Profile { get; init; }
+
     /// <summary>Path of the profile file, null when none.</summary>
     public string? ProfilePath { get; init; }
+
     /// <summary>Limit checks (empty without a profile).</summary>
     public IReadOnlyList<LimitCheck> Checks { get; init; } = [];
+
     /// <summary>Overall verdict, null without a profile.</summary>
     public Verdict? Overall { get; init; }
+
     /// <summary>Paper size.</summary>
     public PaperSize Paper { get; init; } = PaperSize.A4;
+
     /// <summary>The command that made the report, for reproduction.</summary>
     public string? CommandLine { get; init; }
 
@@ -50,7 +63,13 @@ public sealed record MeasurementReport
     /// The report of an analysis: judges it against the profile (when given) and fills the id and
     /// time; the caller adds operator, equipment, notes, paper and command line with <c>with</c>.
     /// </summary>
-    public static MeasurementReport Create(AnalysisResult analysis, LimitProfile? profile, string? profilePath, string title, DateTimeOffset? created = null)
+    public static MeasurementReport Create(
+        AnalysisResult analysis,
+        LimitProfile? profile,
+        string? profilePath,
+        string title,
+        DateTimeOffset? created = null
+    )
     {
         DateTimeOffset now = created ?? DateTimeOffset.UtcNow;
         IReadOnlyList<LimitCheck> checks = profile is null ? [] : Judgement.Check(analysis, profile);
@@ -69,7 +88,10 @@ public sealed record MeasurementReport
 
     /// <summary>Makes the report id from the time and the capture hash.</summary>
     public static string MakeId(DateTimeOffset created, string sha256) =>
-        "SI-" + created.UtcDateTime.ToString("yyyyMMdd-HHmmss", CultureInfo.InvariantCulture) + "-" + sha256[..Math.Min(8, sha256.Length)].ToUpperInvariant();
+        "SI-"
+        + created.UtcDateTime.ToString("yyyyMMdd-HHmmss", CultureInfo.InvariantCulture)
+        + "-"
+        + sha256[..Math.Min(8, sha256.Length)].ToUpperInvariant();
 
     /// <summary>The cautions every report and the README carry.</summary>
     public static readonly IReadOnlyList<string> Cautions =

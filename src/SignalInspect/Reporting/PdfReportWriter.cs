@@ -23,7 +23,9 @@ public static class PdfReportWriter
 
     private sealed class FontResolver(string regular, string bold) : IFontResolver
     {
-        public FontResolverInfo ResolveTypeface(string familyName, bool isBold, bool isItalic) => new(isBold ? "si-bold" : "si-regular");
+        public FontResolverInfo ResolveTypeface(string familyName, bool isBold, bool isItalic) =>
+            new(isBold ? "si-bold" : "si-regular");
+
         public byte[] GetFont(string faceName) => File.ReadAllBytes(faceName == "si-bold" ? bold : regular);
     }
 
@@ -31,7 +33,8 @@ public static class PdfReportWriter
     {
         lock (FontGate)
         {
-            if (_fontsReady) return;
+            if (_fontsReady)
+                return;
             var (regular, bold, _) = FontLocator.Require();
             GlobalFontSettings.FontResolver = new FontResolver(regular, bold);
             _fontsReady = true;
@@ -56,7 +59,8 @@ public static class PdfReportWriter
 
     private static readonly CultureInfo C = CultureInfo.InvariantCulture;
 
-    private static string Hz(double? v) => v is { } x ? x.ToString(Math.Abs(x) >= 1e6 ? "#,0.###" : "0.###", C) + " Hz" : "unknown";
+    private static string Hz(double? v) =>
+        v is { } x ? x.ToString(Math.Abs(x) >= 1e6 ? "#,0.###" : "0.###", C) + " Hz" : "unknown";
 
     private static void FirstPage(Layout l, MeasurementReport r)
     {
@@ -76,30 +80,63 @@ public static class PdfReportWriter
             ("Date", r.Created.UtcDateTime.ToString("yyyy-MM-dd HH:mm 'UTC'", C)),
             ("Operator", r.Operator ?? "not given"),
             ("Equipment under test", r.Equipment ?? "not given"),
-            ("Capture file", Path.GetFileName(info.Path) + (info.DataPath is { } dp && dp != info.Path ? $" (data: {Path.GetFileName(dp)})" : string.Empty)),
+            (
+                "Capture file",
+                Path.GetFileName(info.Path)
+                    + (info.DataPath is { } dp && dp != info.Path ? $" (data: {Path.GetFileName(dp)})" : string.Empty)
+            ),
             ("File size", info.FileSizeBytes.ToString("#,0", C) + " bytes"),
             ("SHA-256 (sample data)", a.Sha256),
-            ("Format", $"{info.Container}, {info.Datatype}, {(info.IsComplex ? "complex I/Q" : "real")}, {info.ChannelUse}"),
+            (
+                "Format",
+                $"{info.Container}, {info.Datatype}, {(info.IsComplex ? "complex I/Q" : "real")}, {info.ChannelUse}"
+            ),
             ("Sample rate", Hz(info.SampleRateHz)),
             ("Centre frequency", Hz(info.CenterFrequencyHz)),
-            ("Duration", string.Create(C, $"{info.DurationS:0.######} s ({info.SampleCount:#,0} samples); analysed {a.Window.Count / info.SampleRateHz:0.######} s from {a.Window.First / info.SampleRateHz:0.######} s")),
-            ("Capture time", info.StartTime?.UtcDateTime.ToString("yyyy-MM-dd HH:mm:ss.fff 'UTC'", C) ?? "not stated in the file"),
-            ("Limit profile", r.Profile is { } p ? p.Name + (p.Source is { } s ? $" ({s})" : string.Empty) : "none (measurements only, no verdicts)"),
+            (
+                "Duration",
+                string.Create(
+                    C,
+                    $"{info.DurationS:0.######} s ({info.SampleCount:#,0} samples); analysed {a.Window.Count / info.SampleRateHz:0.######} s from {a.Window.First / info.SampleRateHz:0.######} s"
+                )
+            ),
+            (
+                "Capture time",
+                info.StartTime?.UtcDateTime.ToString("yyyy-MM-dd HH:mm:ss.fff 'UTC'", C) ?? "not stated in the file"
+            ),
+            (
+                "Limit profile",
+                r.Profile is { } p
+                    ? p.Name + (p.Source is { } s ? $" ({s})" : string.Empty)
+                    : "none (measurements only, no verdicts)"
+            ),
         };
         l.KeyValueTable(block);
         l.Gap(10);
         l.Text("Results", l.H2);
         l.ResultsTable(Rows(r));
         l.Gap(4);
-        l.Text(string.Create(C, $"U: expanded uncertainty, k = {r.Profile?.CoverageFactor ?? 2:0.#}. Margin: limit minus value (positive = inside the limit). Decision rule: see Method."), l.Small, XBrushes.DimGray);
+        l.Text(
+            string.Create(
+                C,
+                $"U: expanded uncertainty, k = {r.Profile?.CoverageFactor ?? 2:0.#}. Margin: limit minus value (positive = inside the limit). Decision rule: see Method."
+            ),
+            l.Small,
+            XBrushes.DimGray
+        );
         if (a.Warnings.Count > 0)
         {
             l.Gap(8);
             l.Text("Warnings", l.H2, XBrushes.DarkRed);
-            foreach (string w in a.Warnings) l.Text("- " + w, l.Body);
+            foreach (string w in a.Warnings)
+                l.Text("- " + w, l.Body);
         }
         l.Gap(8);
-        l.Text("Cautions: RF exposure, receiver protection and licensing, and the standing of these results, are on the last page.", l.Small, XBrushes.DimGray);
+        l.Text(
+            "Cautions: RF exposure, receiver protection and licensing, and the standing of these results, are on the last page.",
+            l.Small,
+            XBrushes.DimGray
+        );
     }
 
     private static List<string[]> Rows(MeasurementReport r)
@@ -109,22 +146,46 @@ public static class PdfReportWriter
         var rows = new List<string[]>();
         string F(double v, string f) => double.IsFinite(v) ? v.ToString(f, C) : "-";
         foreach (LimitCheck c in r.Checks)
-            rows.Add([c.Measurement, F(c.Value, "0.###"), c.Unit, F(c.ExpandedUncertainty, "0.###"), c.LimitText, F(c.Margin, "+0.##;-0.##"), c.Verdict.ToString().ToUpperInvariant()]);
+            rows.Add([
+                c.Measurement,
+                F(c.Value, "0.###"),
+                c.Unit,
+                F(c.ExpandedUncertainty, "0.###"),
+                c.LimitText,
+                F(c.Margin, "+0.##;-0.##"),
+                c.Verdict.ToString().ToUpperInvariant(),
+            ]);
         // Values already judged above are not repeated as information rows.
         var judged = r.Checks.Select(c => c.Measurement).ToList();
         void Info(string what, double value, string unit, double u, string fmt = "0.###")
         {
-            if (judged.Any(j => j == what || j.StartsWith(what + " (", StringComparison.Ordinal))) return;
+            if (judged.Any(j => j == what || j.StartsWith(what + " (", StringComparison.Ordinal)))
+                return;
             rows.Add([what, F(value, fmt), unit, double.IsNaN(u) ? "-" : F(k * u, "0.###"), "-", "-", "-"]);
         }
-        rows.Add(["modulation", a.Classification.Kind.Name().ToUpperInvariant(), "", "", "-", "-", string.Create(C, $"conf. {a.Classification.Confidence:0.00}")]);
+        rows.Add([
+            "modulation",
+            a.Classification.Kind.Name().ToUpperInvariant(),
+            "",
+            "",
+            "-",
+            "-",
+            string.Create(C, $"conf. {a.Classification.Confidence:0.00}"),
+        ]);
         if (a.Carrier is { } car)
         {
             Info("carrier frequency", car.FrequencyHz.Value, "Hz", car.FrequencyHz.StandardUncertainty);
             Info("carrier offset", car.OffsetHz, "Hz", car.FrequencyHz.StandardUncertainty);
-            if (car.OffsetPpm is { } ppm) Info("carrier offset", ppm, "ppm", double.NaN, "0.####");
+            if (car.OffsetPpm is { } ppm)
+                Info("carrier offset", ppm, "ppm", double.NaN, "0.####");
         }
-        Info($"occupied bandwidth ({100 * (1 - a.Bandwidth.Beta):0.#} %)", a.Bandwidth.OccupiedHz, "Hz", a.OccupiedUncertaintyHz, "0.#");
+        Info(
+            $"occupied bandwidth ({100 * (1 - a.Bandwidth.Beta):0.#} %)",
+            a.Bandwidth.OccupiedHz,
+            "Hz",
+            a.OccupiedUncertaintyHz,
+            "0.#"
+        );
         Info($"{a.Bandwidth.Xdb:0.#} dB bandwidth", a.Bandwidth.XdbHz, "Hz", a.Method.RbwHz / Math.Sqrt(3), "0.#");
         if (a.Fm is { } fm)
         {
@@ -137,17 +198,35 @@ public static class PdfReportWriter
         {
             Info("AM depth", am.DepthPercent.Value, "%", am.DepthPercent.StandardUncertainty, "0.##");
             rows.Add(["AM +peak / -peak", "", "%", "-", "-", "-", "-"]);
-            rows[^1][1] = $"{am.PositivePeakPercent.ToString("0.##", C)} / {am.NegativePeakPercent.ToString("0.##", C)}";
+            rows[^1][1] =
+                $"{am.PositivePeakPercent.ToString("0.##", C)} / {am.NegativePeakPercent.ToString("0.##", C)}";
         }
-        if (a.Pm is { } pm) Info("PM peak phase deviation", pm.PeakDeviationRad.Value, "rad", pm.PeakDeviationRad.StandardUncertainty, "0.####");
+        if (a.Pm is { } pm)
+            Info(
+                "PM peak phase deviation",
+                pm.PeakDeviationRad.Value,
+                "rad",
+                pm.PeakDeviationRad.StandardUncertainty,
+                "0.####"
+            );
         if (a.Fsk is { } fsk)
         {
             Info("FSK shift", fsk.ShiftHz.Value, "Hz", fsk.ShiftHz.StandardUncertainty, "0.#");
-            if (fsk.SymbolRateBd is { } sr) Info("FSK symbol rate", sr.Value, "Bd", sr.StandardUncertainty, "0.##");
+            if (fsk.SymbolRateBd is { } sr)
+                Info("FSK symbol rate", sr.Value, "Bd", sr.StandardUncertainty, "0.##");
         }
-        if (a.ModulatingFrequencyHz is { } mf) Info("modulating frequency", mf.Value, "Hz", mf.StandardUncertainty, "0.##");
+        if (a.ModulatingFrequencyHz is { } mf)
+            Info("modulating frequency", mf.Value, "Hz", mf.StandardUncertainty, "0.##");
         if (a.EmissionDesignator is { } d)
-            rows.Add(["emission designator", d, "", "", "-", "-", a.NecessaryBandwidthHz is { } nb ? $"Bn {nb.ToString("0", C)} Hz" : "-"]);
+            rows.Add([
+                "emission designator",
+                d,
+                "",
+                "",
+                "-",
+                "-",
+                a.NecessaryBandwidthHz is { } nb ? $"Bn {nb.ToString("0", C)} Hz" : "-",
+            ]);
         return rows;
     }
 
@@ -175,34 +254,87 @@ public static class PdfReportWriter
             for (int i = 0; i < psd.Count; i += Math.Max(1, psd.Count / 800))
             {
                 double fd = psd.FrequenciesHz[i] - carrierAxis;
-                pts.Add((psd.FrequenciesHz[i] + shift, total - mask.RequiredAttenuationDb(fd) - 10 * Math.Log10(mask.ReferenceBandwidthHz) + psd.Settings.CalibrationDb));
+                pts.Add(
+                    (
+                        psd.FrequenciesHz[i] + shift,
+                        total
+                            - mask.RequiredAttenuationDb(fd)
+                            - 10 * Math.Log10(mask.ReferenceBandwidthHz)
+                            + psd.Settings.CalibrationDb
+                    )
+                );
             }
             limit = pts;
             limitLabel = mask.Name + " (as PSD)";
         }
         double hSpec = 210;
-        byte[] spec = SpectrumPlot.RenderPng(a.Spectrum.MaxHold is { } hold && limit is not null ? hold : psd, "Spectrum (" + psd.Window.Name + ", RBW " + psd.RbwHz.ToString("0.##", C) + " Hz)",
-            Px(w), Px(hSpec), Dpi / 96, new SpectrumPlot.Marks { Lines = lines, Limit = limit, LimitLabel = limitLabel }, absolute: true);
+        byte[] spec = SpectrumPlot.RenderPng(
+            a.Spectrum.MaxHold is { } hold && limit is not null ? hold : psd,
+            "Spectrum (" + psd.Window.Name + ", RBW " + psd.RbwHz.ToString("0.##", C) + " Hz)",
+            Px(w),
+            Px(hSpec),
+            Dpi / 96,
+            new SpectrumPlot.Marks
+            {
+                Lines = lines,
+                Limit = limit,
+                LimitLabel = limitLabel,
+            },
+            absolute: true
+        );
         l.Image(spec, w, hSpec);
         l.Gap(6);
         double hGram = 165;
-        Spectrum.Spectrogram map = a.Spectrum.Spectrogram ?? throw new ArgumentException("the analysis was made without its spectrogram (AnalysisOptions.KeepSpectrogram off): a report needs it");
-        byte[] gram = TimePlots.SpectrogramPng(map, a.Capture.IsComplex ? a.Capture.CenterFrequencyHz : null, $"Spectrogram ({map.Rows} rows)", Px(w), Px(hGram), Dpi / 96);
+        Spectrum.Spectrogram map = a.Spectrum.Spectrogram
+            ?? throw new ArgumentException(
+                "the analysis was made without its spectrogram (AnalysisOptions.KeepSpectrogram off): a report needs it"
+            );
+        byte[] gram = TimePlots.SpectrogramPng(
+            map,
+            a.Capture.IsComplex ? a.Capture.CenterFrequencyHz : null,
+            $"Spectrogram ({map.Rows} rows)",
+            Px(w),
+            Px(hGram),
+            Dpi / 96
+        );
         l.Image(gram, w, hGram);
         l.Gap(6);
         if (a.Waveform.Count > 1)
         {
             double hWave = 135;
             var levels = new List<(double, string)>();
-            if (a.Fm is { } fm && r.Profile?.MaxPeakDeviationHz is { } md) { levels.Add((md, "deviation limit")); levels.Add((-md, "")); }
-            string unit = a.WaveformLabel.StartsWith("envelope", StringComparison.Ordinal) ? "envelope (FS)" : "deviation (Hz)";
+            if (a.Fm is { } fm && r.Profile?.MaxPeakDeviationHz is { } md)
+            {
+                levels.Add((md, "deviation limit"));
+                levels.Add((-md, ""));
+            }
+            string unit = a.WaveformLabel.StartsWith("envelope", StringComparison.Ordinal)
+                ? "envelope (FS)"
+                : "deviation (Hz)";
             if (a.TrendHigh.Count > 1)
             {
-                byte[] trend = TimePlots.SeriesPng(a.TrendHigh, (unit.StartsWith("env") ? "Envelope" : "Deviation") + " against time (highest and lowest per 5 ms)", unit, Px(w), Px(hWave), Dpi / 96, levels, a.TrendLow);
+                byte[] trend = TimePlots.SeriesPng(
+                    a.TrendHigh,
+                    (unit.StartsWith("env") ? "Envelope" : "Deviation") + " against time (highest and lowest per 5 ms)",
+                    unit,
+                    Px(w),
+                    Px(hWave),
+                    Dpi / 96,
+                    levels,
+                    a.TrendLow
+                );
                 l.Image(trend, w, hWave);
                 l.Gap(6);
             }
-            byte[] wave = TimePlots.SeriesPng(a.Waveform, "Demodulated waveform (start of the capture)", unit, Px(w), Px(hWave), Dpi / 96, levels);
+            byte[] wave = TimePlots.SeriesPng(
+                a.Waveform,
+                "Demodulated waveform (start of the capture)",
+                unit,
+                Px(w),
+                Px(hWave),
+                Dpi / 96,
+                levels
+            );
             l.Image(wave, w, hWave);
         }
     }
@@ -218,27 +350,69 @@ public static class PdfReportWriter
         var info = a.Capture;
         var items = new List<(string, string)>
         {
-            ("Reader", $"{info.Container}; datatype {info.Datatype}; {info.ChannelUse}; full scale = amplitude 1.0; checksum {info.ChecksumStatus}"),
-            ("Spectrum", string.Create(C, $"Welch's method, {psd(a).Window.Name} window (periodic), FFT {m.Spectrum.FftSize}, overlap {100.0 * m.Spectrum.OverlapSamples / m.Spectrum.FftSize:0.#} %, {a.Spectrum.Mean.Segments} segments averaged (mean; max-hold for the mask), no detrending, density scaling; RBW {m.RbwHz:0.###} Hz (window ENBW){(a.Spectrum.DcBinsSuppressed > 0 ? $"; {a.Spectrum.DcBinsSuppressed} bins around 0 Hz interpolated (DC spike)" : string.Empty)}")),
-            ("Occupied bandwidth", $"beta-% method, ITU Radio Regulations No. 1.153, ITU-R SM.328 and SM.443 Annex 1; noise floor {(m.ObwNoise == NoiseFloorTreatment.Subtract ? "subtracted (10th percentile of the PSD bins)" : "kept")}"),
-            ("x-dB bandwidth", string.Create(C, $"ITU-R SM.443 Annex 2, x = {a.Bandwidth.Xdb:0.#} dB below the maximum of the PSD")),
+            (
+                "Reader",
+                $"{info.Container}; datatype {info.Datatype}; {info.ChannelUse}; full scale = amplitude 1.0; checksum {info.ChecksumStatus}"
+            ),
+            (
+                "Spectrum",
+                string.Create(
+                    C,
+                    $"Welch's method, {psd(a).Window.Name} window (periodic), FFT {m.Spectrum.FftSize}, overlap {100.0 * m.Spectrum.OverlapSamples / m.Spectrum.FftSize:0.#} %, {a.Spectrum.Mean.Segments} segments averaged (mean; max-hold for the mask), no detrending, density scaling; RBW {m.RbwHz:0.###} Hz (window ENBW){(a.Spectrum.DcBinsSuppressed > 0 ? $"; {a.Spectrum.DcBinsSuppressed} bins around 0 Hz interpolated (DC spike)" : string.Empty)}"
+                )
+            ),
+            (
+                "Occupied bandwidth",
+                $"beta-% method, ITU Radio Regulations No. 1.153, ITU-R SM.328 and SM.443 Annex 1; noise floor {(m.ObwNoise == NoiseFloorTreatment.Subtract ? "subtracted (10th percentile of the PSD bins)" : "kept")}"
+            ),
+            (
+                "x-dB bandwidth",
+                string.Create(C, $"ITU-R SM.443 Annex 2, x = {a.Bandwidth.Xdb:0.#} dB below the maximum of the PSD")
+            ),
             ("Channel filter", m.ChannelFilter),
-            ("Demodulation", string.Create(C, $"at {m.DemodRateHz:0.###} Hz: envelope |z|, unwrapped phase, instantaneous frequency from phase differences; post-detection low-pass {m.PostLowPassHz:0.#} Hz{(m.PostHighPassHz is { } hp ? $", high-pass {hp:0.#} Hz" : string.Empty)}{(m.DeEmphasisUs is { } de ? $", de-emphasis {de:0.#} us" : string.Empty)}")),
+            (
+                "Demodulation",
+                string.Create(
+                    C,
+                    $"at {m.DemodRateHz:0.###} Hz: envelope |z|, unwrapped phase, instantaneous frequency from phase differences; post-detection low-pass {m.PostLowPassHz:0.#} Hz{(m.PostHighPassHz is { } hp ? $", high-pass {hp:0.#} Hz" : string.Empty)}{(m.DeEmphasisUs is { } de ? $", de-emphasis {de:0.#} us" : string.Empty)}"
+                )
+            ),
             ("Peaks", m.PeakStatistic),
             ("Carrier", a.Carrier is { } c ? $"{c.Method}; offset from {c.OffsetReference}" : "no carrier (noise)"),
-            ("Classification", a.Classification.Reason + string.Create(C, $" (SNR in the occupied bandwidth {a.ChannelSnrDb:0.#} dB)")),
-            ("Emission designator", "necessary bandwidth from the measured values by 47 CFR 2.202 / ITU Radio Regulations Appendix 1; code by 47 CFR 2.202(b)(3)"),
-            ("Uncertainty", "standard uncertainties: carrier from the least-squares fit (statistical); deviation, depth, phase and shift type-B from validation against synthesised signals, growing below 30 dB SNR; bandwidths from the resolution bandwidth; expanded with the coverage factor shown. Not included: the recorder's calibration and frequency reference."),
+            (
+                "Classification",
+                a.Classification.Reason + string.Create(C, $" (SNR in the occupied bandwidth {a.ChannelSnrDb:0.#} dB)")
+            ),
+            (
+                "Emission designator",
+                "necessary bandwidth from the measured values by 47 CFR 2.202 / ITU Radio Regulations Appendix 1; code by 47 CFR 2.202(b)(3)"
+            ),
+            (
+                "Uncertainty",
+                "standard uncertainties: carrier from the least-squares fit (statistical); deviation, depth, phase and shift type-B from validation against synthesised signals, growing below 30 dB SNR; bandwidths from the resolution bandwidth; expanded with the coverage factor shown. Not included: the recorder's calibration and frequency reference."
+            ),
             ("Decision rule", Judgement.DecisionRule),
         };
-        if (r.Profile is { } p) items.Add(("Limits", $"{p.Name}" + (p.Source is { } s ? $"; {s}" : string.Empty) + (r.ProfilePath is { } pp ? $"; file {Path.GetFileName(pp)}" : string.Empty)));
-        foreach (string n in info.Notes) items.Add(("Reader note", n));
-        if (r.Notes is { } notes) items.Add(("Notes", notes));
-        if (r.CommandLine is { } cmd) items.Add(("Command", cmd));
+        if (r.Profile is { } p)
+            items.Add(
+                (
+                    "Limits",
+                    $"{p.Name}"
+                        + (p.Source is { } s ? $"; {s}" : string.Empty)
+                        + (r.ProfilePath is { } pp ? $"; file {Path.GetFileName(pp)}" : string.Empty)
+                )
+            );
+        foreach (string n in info.Notes)
+            items.Add(("Reader note", n));
+        if (r.Notes is { } notes)
+            items.Add(("Notes", notes));
+        if (r.CommandLine is { } cmd)
+            items.Add(("Command", cmd));
         l.KeyValueTable(items, keyWidth: 105);
         l.Gap(10);
         l.Text("Cautions", l.H2);
-        foreach (string caution in MeasurementReport.Cautions) l.Text("- " + caution, l.Body);
+        foreach (string caution in MeasurementReport.Cautions)
+            l.Text("- " + caution, l.Body);
         l.Gap(6);
         l.Text("Standing of these results", l.H2);
         l.Text(MeasurementReport.Disclaimer, l.Body);
@@ -286,7 +460,8 @@ public static class PdfReportWriter
 
         private void Need(double h)
         {
-            if (_y + h > Bottom) NewPage();
+            if (_y + h > Bottom)
+                NewPage();
         }
 
         public void Gap(double h) => _y += h;
@@ -309,13 +484,15 @@ public static class PdfReportWriter
                             while (_g.MeasureString(rest, font).Width > width)
                             {
                                 int cut = rest.Length - 1;
-                                while (cut > 1 && _g.MeasureString(rest[..cut], font).Width > width) cut--;
+                                while (cut > 1 && _g.MeasureString(rest[..cut], font).Width > width)
+                                    cut--;
                                 lines.Add(rest[..cut]);
                                 rest = rest[cut..];
                             }
                             line = rest;
                         }
-                        else line = candidate;
+                        else
+                            line = candidate;
                     }
                     else
                     {
@@ -335,7 +512,13 @@ public static class PdfReportWriter
             foreach (string line in Wrap(text, font, ContentWidth))
             {
                 Need(LineHeight(font));
-                _g!.DrawString(line, font, brush ?? XBrushes.Black, new XRect(Margin, _y, ContentWidth, LineHeight(font)), XStringFormats.TopLeft);
+                _g!.DrawString(
+                    line,
+                    font,
+                    brush ?? XBrushes.Black,
+                    new XRect(Margin, _y, ContentWidth, LineHeight(font)),
+                    XStringFormats.TopLeft
+                );
                 _y += LineHeight(font);
             }
         }
@@ -353,9 +536,16 @@ public static class PdfReportWriter
             var rect = new XRect(Margin, _y, ContentWidth, 26);
             _g!.DrawRectangle(new XSolidBrush(colour), rect);
             string text = v is null ? word : $"Overall verdict: {word}";
-            _g.DrawString(text, H2, XBrushes.White, new XRect(Margin + 8, _y, ContentWidth - 16, 26), XStringFormats.CenterLeft);
+            _g.DrawString(
+                text,
+                H2,
+                XBrushes.White,
+                new XRect(Margin + 8, _y, ContentWidth - 16, 26),
+                XStringFormats.CenterLeft
+            );
             _y += 28;
-            if (profile is not null) Text("against the limit profile: " + profile, Body, XBrushes.DimGray);
+            if (profile is not null)
+                Text("against the limit profile: " + profile, Body, XBrushes.DimGray);
         }
 
         public void KeyValueTable(IReadOnlyList<(string Key, string Value)> rows, double keyWidth = 120)
@@ -367,12 +557,30 @@ public static class PdfReportWriter
                 var lines = Wrap(value, vf, valueWidth);
                 double h = Math.Max(1, lines.Count) * LineHeight(vf) + 2;
                 Need(h);
-                _g!.DrawLine(new XPen(XColor.FromArgb(225, 225, 225), 0.5), Margin, _y + h, Margin + ContentWidth, _y + h);
-                _g.DrawString(key, Bold, XBrushes.Black, new XRect(Margin, _y + 1, keyWidth, LineHeight(Body)), XStringFormats.TopLeft);
+                _g!.DrawLine(
+                    new XPen(XColor.FromArgb(225, 225, 225), 0.5),
+                    Margin,
+                    _y + h,
+                    Margin + ContentWidth,
+                    _y + h
+                );
+                _g.DrawString(
+                    key,
+                    Bold,
+                    XBrushes.Black,
+                    new XRect(Margin, _y + 1, keyWidth, LineHeight(Body)),
+                    XStringFormats.TopLeft
+                );
                 double y = _y + 1;
                 foreach (string line in lines)
                 {
-                    _g.DrawString(line, vf, XBrushes.Black, new XRect(Margin + keyWidth + 6, y, valueWidth, LineHeight(vf)), XStringFormats.TopLeft);
+                    _g.DrawString(
+                        line,
+                        vf,
+                        XBrushes.Black,
+                        new XRect(Margin + keyWidth + 6, y, valueWidth, LineHeight(vf)),
+                        XStringFormats.TopLeft
+                    );
                     y += LineHeight(vf);
                 }
                 _y += h;
@@ -389,7 +597,8 @@ public static class PdfReportWriter
                 var wrapped = cells.Select((c, i) => Wrap(c, font, widths[i] - 6)).ToArray();
                 double h = wrapped.Max(w => w.Count) * LineHeight(font) + 4;
                 Need(h);
-                if (fill is not null) _g!.DrawRectangle(fill, new XRect(Margin, _y, ContentWidth, h));
+                if (fill is not null)
+                    _g!.DrawRectangle(fill, new XRect(Margin, _y, ContentWidth, h));
                 double x = Margin;
                 for (int i = 0; i < cells.Length; i++)
                 {
@@ -408,7 +617,13 @@ public static class PdfReportWriter
                     double y = _y + 2;
                     foreach (string line in wrapped[i])
                     {
-                        _g!.DrawString(line, f, brush, new XRect(x + 3, y, widths[i] - 6, LineHeight(font)), XStringFormats.TopLeft);
+                        _g!.DrawString(
+                            line,
+                            f,
+                            brush,
+                            new XRect(x + 3, y, widths[i] - 6, LineHeight(font)),
+                            XStringFormats.TopLeft
+                        );
                         y += LineHeight(font);
                     }
                     x += widths[i];
@@ -417,28 +632,54 @@ public static class PdfReportWriter
                 _g!.DrawLine(new XPen(XColor.FromArgb(210, 210, 210), 0.5), Margin, _y, Margin + ContentWidth, _y);
             }
             Row(head, Bold, new XSolidBrush(XColor.FromArgb(232, 238, 245)), false);
-            foreach (string[] r in rows) Row(r, Body, null, true);
+            foreach (string[] r in rows)
+                Row(r, Body, null, true);
         }
 
-        /// <summary>A table whose first column is a small image (a spectrum thumbnail); the last column coloured by verdict.</summary>
-        public void ThumbnailTable(string[] head, double[] frac, IReadOnlyList<(byte[]? Png, string[] Cells)> rows, double thumbHeight)
+        /// <summary>A table whose first column is a small image (a spectrum thumbnail); the last column coloured by
+        /// verdict.</summary>
+        public void ThumbnailTable(
+            string[] head,
+            double[] frac,
+            IReadOnlyList<(byte[]? Png, string[] Cells)> rows,
+            double thumbHeight
+        )
         {
             double[] widths = [.. frac.Select(f => f * ContentWidth)];
             double headH = LineHeight(Bold) + 4;
             void Head()
             {
                 Need(headH);
-                _g!.DrawRectangle(new XSolidBrush(XColor.FromArgb(232, 238, 245)), new XRect(Margin, _y, ContentWidth, headH));
+                _g!.DrawRectangle(
+                    new XSolidBrush(XColor.FromArgb(232, 238, 245)),
+                    new XRect(Margin, _y, ContentWidth, headH)
+                );
                 double hx = Margin;
-                for (int i = 0; i < head.Length; i++) { _g.DrawString(head[i], Bold, XBrushes.Black, new XRect(hx + 3, _y + 2, widths[i] - 6, headH), XStringFormats.TopLeft); hx += widths[i]; }
+                for (int i = 0; i < head.Length; i++)
+                {
+                    _g.DrawString(
+                        head[i],
+                        Bold,
+                        XBrushes.Black,
+                        new XRect(hx + 3, _y + 2, widths[i] - 6, headH),
+                        XStringFormats.TopLeft
+                    );
+                    hx += widths[i];
+                }
                 _y += headH;
             }
             Head();
             foreach (var (png, cells) in rows)
             {
-                var wrapped = cells.Select((c, i) => Wrap(c, i == cells.Length - 1 ? Bold : Small, widths[i + 1] - 6)).ToArray();
+                var wrapped = cells
+                    .Select((c, i) => Wrap(c, i == cells.Length - 1 ? Bold : Small, widths[i + 1] - 6))
+                    .ToArray();
                 double h = Math.Max(thumbHeight + 4, wrapped.Max(w => w.Count) * LineHeight(Small) + 4);
-                if (_y + h > Bottom) { NewPage(); Head(); }
+                if (_y + h > Bottom)
+                {
+                    NewPage();
+                    Head();
+                }
                 if (png is not null)
                 {
                     using var ms = new MemoryStream(png);
@@ -449,17 +690,25 @@ public static class PdfReportWriter
                 for (int i = 0; i < cells.Length; i++)
                 {
                     bool last = i == cells.Length - 1;
-                    XBrush brush = last ? cells[i] switch
-                    {
-                        "FAIL" or "ERROR" => new XSolidBrush(XColor.FromArgb(192, 0, 0)),
-                        "PASS" => new XSolidBrush(XColor.FromArgb(46, 125, 50)),
-                        "INCONCLUSIVE" => new XSolidBrush(XColor.FromArgb(191, 120, 0)),
-                        _ => XBrushes.Black,
-                    } : XBrushes.Black;
+                    XBrush brush = last
+                        ? cells[i] switch
+                        {
+                            "FAIL" or "ERROR" => new XSolidBrush(XColor.FromArgb(192, 0, 0)),
+                            "PASS" => new XSolidBrush(XColor.FromArgb(46, 125, 50)),
+                            "INCONCLUSIVE" => new XSolidBrush(XColor.FromArgb(191, 120, 0)),
+                            _ => XBrushes.Black,
+                        }
+                        : XBrushes.Black;
                     double y = _y + 2;
                     foreach (string line in wrapped[i])
                     {
-                        _g!.DrawString(line, last ? Bold : Small, brush, new XRect(x + 3, y, widths[i + 1] - 6, LineHeight(Small)), XStringFormats.TopLeft);
+                        _g!.DrawString(
+                            line,
+                            last ? Bold : Small,
+                            brush,
+                            new XRect(x + 3, y, widths[i + 1] - 6, LineHeight(Small)),
+                            XStringFormats.TopLeft
+                        );
                         y += LineHeight(Small);
                     }
                     x += widths[i + 1];
@@ -488,9 +737,22 @@ public static class PdfReportWriter
             for (int i = 0; i < n; i++)
             {
                 using XGraphics g = XGraphics.FromPdfPage(_doc.Pages[i], XGraphicsPdfPageOptions.Append);
-                string left = $"SignalInspect {AnalysisJson.Version}  |  {id}  |  informative results, see the last page";
-                g.DrawString(left, Small, XBrushes.DimGray, new XRect(Margin, PageHeight - Margin + 4, ContentWidth, 10), XStringFormats.TopLeft);
-                g.DrawString($"page {i + 1} of {n}", Small, XBrushes.DimGray, new XRect(Margin, PageHeight - Margin + 4, ContentWidth, 10), XStringFormats.TopRight);
+                string left =
+                    $"SignalInspect {AnalysisJson.Version}  |  {id}  |  informative results, see the last page";
+                g.DrawString(
+                    left,
+                    Small,
+                    XBrushes.DimGray,
+                    new XRect(Margin, PageHeight - Margin + 4, ContentWidth, 10),
+                    XStringFormats.TopLeft
+                );
+                g.DrawString(
+                    $"page {i + 1} of {n}",
+                    Small,
+                    XBrushes.DimGray,
+                    new XRect(Margin, PageHeight - Margin + 4, ContentWidth, 10),
+                    XStringFormats.TopRight
+                );
             }
         }
     }

@@ -4,7 +4,8 @@ using SignalInspect.Compliance;
 
 namespace SignalInspect.Reporting;
 
-/// <summary>Writes a <see cref="MeasurementReport"/> as JSON (beside the PDF): report metadata, the analysis (as analyze --json), limits and checks.</summary>
+/// <summary>Writes a <see cref="MeasurementReport"/> as JSON (beside the PDF): report metadata, the analysis (as
+/// analyze --json), limits and checks.</summary>
 public static class ReportJson
 {
     /// <summary>Serialises the report to UTF-8 JSON bytes.</summary>
@@ -16,7 +17,10 @@ public static class ReportJson
             w.WriteStartObject();
             w.WriteStartObject("report");
             w.WriteString("id", report.ReportId);
-            w.WriteString("created", report.Created.UtcDateTime.ToString("yyyy-MM-dd'T'HH:mm:ss'Z'", CultureInfo.InvariantCulture));
+            w.WriteString(
+                "created",
+                report.Created.UtcDateTime.ToString("yyyy-MM-dd'T'HH:mm:ss'Z'", CultureInfo.InvariantCulture)
+            );
             w.WriteString("title", report.Title);
             w.WriteString("operator", report.Operator);
             w.WriteString("equipment", report.Equipment);
@@ -67,6 +71,9 @@ public static class ReportJson
 
     private static void Num(Utf8JsonWriter w, string name, double v)
     {
-        if (double.IsFinite(v)) w.WriteNumber(name, v); else w.WriteNull(name);
+        if (double.IsFinite(v))
+            w.WriteNumber(name, v);
+        else
+            w.WriteNull(name);
     }
 }

@@ -5,9 +5,12 @@ namespace SignalInspect.Spectrum;
 /// <summary>How a spectrum's values are scaled (the two conventions of scipy.signal.welch).</summary>
 public enum SpectrumScaling
 {
-    /// <summary>Power spectral density in full-scale^2 per Hz: |X|^2 / (fs sum w^2) (scipy 'density'); shown as dBFS/Hz.</summary>
+    /// <summary>Power spectral density in full-scale^2 per Hz: |X|^2 / (fs sum w^2) (scipy 'density'); shown as
+    /// dBFS/Hz.</summary>
     DensityPerHz,
-    /// <summary>Power per bin in full-scale^2: |X|^2 / (sum w)^2 (scipy 'spectrum'); a tone of amplitude A reads A^2/2 (real) or A^2 (complex). Shown as dBFS.</summary>
+
+    /// <summary>Power per bin in full-scale^2: |X|^2 / (sum w)^2 (scipy 'spectrum'); a tone of amplitude A reads A^2/2
+    /// (real) or A^2 (complex). Shown as dBFS.</summary>
     PowerPerBin,
 }
 
@@ -16,6 +19,7 @@ public enum SpectrumAveraging
 {
     /// <summary>Mean of the segments' periodograms (Welch 1967).</summary>
     Mean,
+
     /// <summary>Largest value of each bin over all segments (max-hold, for mask checks).</summary>
     MaxHold,
 }
@@ -31,8 +35,18 @@ public sealed class PowerSpectrum
     private readonly double[] _values;
     private readonly double[] _frequencies;
 
-    internal PowerSpectrum(double[] frequenciesHz, double[] values, SpectrumScaling scaling, SpectrumAveraging averaging, SpectrumSettings settings,
-                           Window window, double sampleRateHz, double? centerFrequencyHz, bool isOneSided, long segments)
+    internal PowerSpectrum(
+        double[] frequenciesHz,
+        double[] values,
+        SpectrumScaling scaling,
+        SpectrumAveraging averaging,
+        SpectrumSettings settings,
+        Window window,
+        double sampleRateHz,
+        double? centerFrequencyHz,
+        bool isOneSided,
+        long segments
+    )
     {
         _frequencies = frequenciesHz;
         _values = values;
@@ -46,7 +60,8 @@ public sealed class PowerSpectrum
         Segments = segments;
     }
 
-    /// <summary>Bin frequencies in Hz, ascending: offsets from the centre (complex) or audio frequencies (real).</summary>
+    /// <summary>Bin frequencies in Hz, ascending: offsets from the centre (complex) or audio frequencies
+    /// (real).</summary>
     public ReadOnlySpan<double> FrequenciesHz => _frequencies;
 
     /// <summary>Linear values in <see cref="Scaling"/> units.</summary>
@@ -85,10 +100,12 @@ public sealed class PowerSpectrum
     /// <summary>Resolution bandwidth: the window's equivalent noise bandwidth in Hz.</summary>
     public double RbwHz => Window.EnbwHz(SampleRateHz);
 
-    /// <summary>Absolute RF frequency of bin <paramref name="index"/> when the centre is known, else its offset.</summary>
+    /// <summary>Absolute RF frequency of bin <paramref name="index"/> when the centre is known, else its
+    /// offset.</summary>
     public double AbsoluteFrequencyHz(int index) => _frequencies[index] + (IsOneSided ? 0 : CenterFrequencyHz ?? 0);
 
-    /// <summary>Value of a bin in dB (10 log10) plus the calibration offset: dBFS/Hz or dBFS (dBm/Hz or dBm when calibrated).</summary>
+    /// <summary>Value of a bin in dB (10 log10) plus the calibration offset: dBFS/Hz or dBFS (dBm/Hz or dBm when
+    /// calibrated).</summary>
     public double Db(int index) => ToDb(_values[index]);
 
     /// <summary>10 log10(value) + calibration offset; -400 dB for zero.</summary>
@@ -100,24 +117,40 @@ public sealed class PowerSpectrum
     /// </summary>
     public PowerSpectrum In(SpectrumScaling scaling)
     {
-        if (scaling == Scaling) return this;
+        if (scaling == Scaling)
+            return this;
         double k = scaling == SpectrumScaling.PowerPerBin ? RbwHz : 1.0 / RbwHz;
-        return new PowerSpectrum(_frequencies, [.. _values.Select(v => v * k)], scaling, Averaging, Settings, Window, SampleRateHz, CenterFrequencyHz, IsOneSided, Segments);
+        return new PowerSpectrum(
+            _frequencies,
+            [.. _values.Select(v => v * k)],
+            scaling,
+            Averaging,
+            Settings,
+            Window,
+            SampleRateHz,
+            CenterFrequencyHz,
+            IsOneSided,
+            Segments
+        );
     }
 
     /// <summary>Index of the largest value.</summary>
     public int PeakIndex()
     {
         int best = 0;
-        for (int i = 1; i < _values.Length; i++) if (_values[i] > _values[best]) best = i;
+        for (int i = 1; i < _values.Length; i++)
+            if (_values[i] > _values[best])
+                best = i;
         return best;
     }
 
-    /// <summary>Total power in full-scale^2: the sum of density values times the bin width (Parseval for the mean spectrum).</summary>
+    /// <summary>Total power in full-scale^2: the sum of density values times the bin width (Parseval for the mean
+    /// spectrum).</summary>
     public double TotalPower()
     {
         double s = 0;
-        foreach (double v in _values) s += v;
+        foreach (double v in _values)
+            s += v;
         return Scaling == SpectrumScaling.DensityPerHz ? s * BinWidthHz : s * BinWidthHz / RbwHz;
     }
 }

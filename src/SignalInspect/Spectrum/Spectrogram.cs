@@ -10,7 +10,16 @@ public sealed class Spectrogram
 {
     private readonly double[] _values;
 
-    internal Spectrogram(int rows, int columns, double[] values, double[] rowTimesS, double[] columnFrequenciesHz, int segmentsPerRow, SpectrumAveraging averaging, double calibrationDb)
+    internal Spectrogram(
+        int rows,
+        int columns,
+        double[] values,
+        double[] rowTimesS,
+        double[] columnFrequenciesHz,
+        int segmentsPerRow,
+        SpectrumAveraging averaging,
+        double calibrationDb
+    )
     {
         Rows = rows;
         Columns = columns;

@@ -9,7 +9,8 @@ public sealed record SpectrumResult
     /// <summary>Per-bin maximum over the segments, density scaling.</summary>
     public required PowerSpectrum MaxHold { get; init; }
 
-    /// <summary>Power over time and frequency; null when the settings asked for none (<see cref="SpectrumSettings.KeepSpectrogram"/>).</summary>
+    /// <summary>Power over time and frequency; null when the settings asked for none (<see
+    /// cref="SpectrumSettings.KeepSpectrogram"/>).</summary>
     public required Spectrogram? Spectrogram { get; init; }
 
     /// <summary>First sample of the analysed window within the capture.</summary>

@@ -31,8 +31,14 @@ public static class WelchEstimator
     /// <param name="cancel">Stops the pass between segments.</param>
     /// <exception cref="CaptureException">The window holds fewer samples than one segment.</exception>
     /// <exception cref="ArgumentOutOfRangeException">A setting is out of range.</exception>
-    public static SpectrumResult Estimate(CaptureSource source, SpectrumSettings settings, long firstSample = 0, long? sampleCount = null,
-                                          Action<long>? progress = null, CancellationToken cancel = default)
+    public static SpectrumResult Estimate(
+        CaptureSource source,
+        SpectrumSettings settings,
+        long firstSample = 0,
+        long? sampleCount = null,
+        Action<long>? progress = null,
+        CancellationToken cancel = default
+    )
     {
         settings.Validate();
         CaptureInfo info = source.Info;
@@ -41,7 +47,10 @@ public static class WelchEstimator
         long count = Math.Min(sampleCount ?? long.MaxValue, info.SampleCount - firstSample);
         long segments = count >= n ? (count - n) / step + 1 : 0;
         if (segments == 0)
-            throw CaptureException.ForFile(info.Path, $"holds {Math.Max(count, 0)} samples, fewer than one FFT segment of {n}: use a smaller --fft");
+            throw CaptureException.ForFile(
+                info.Path,
+                $"holds {Math.Max(count, 0)} samples, fewer than one FFT segment of {n}: use a smaller --fft"
+            );
         Window window = Window.Create(settings.Window, n, settings.KaiserBeta);
         bool complex = info.IsComplex;
         int bins = complex ? n : n / 2 + 1;
@@ -55,40 +64,54 @@ public static class WelchEstimator
         // per segment); the sums are put back in order once, at the end.
         var probe = new FftPlan(n);
         int[]? slots = probe.CanScramble ? [.. Enumerable.Range(0, n).Select(probe.ScrambledIndex)] : null;
-        var layout = new Layout(n, step, complex, bins, info.SampleRateHz, window, perRow, segments, q, columns, slots) { RowMax = settings.SpectrogramAveraging == SpectrumAveraging.MaxHold };
+        var layout = new Layout(n, step, complex, bins, info.SampleRateHz, window, perRow, segments, q, columns, slots)
+        {
+            RowMax = settings.SpectrogramAveraging == SpectrumAveraging.MaxHold,
+        };
 
         int threads = Math.Max(1, Math.Min(settings.Threads ?? Environment.ProcessorCount, rows));
         var workers = new Worker[threads];
         // The rows are also the units of work shared between the threads, kept without a spectrogram.
         double[]? gram = settings.KeepSpectrogram ? new double[(long)rows * columns] : null;
         var sum = new double[n];
-        var total = new InOrder<double[]>(() => new double[n], row =>
-        {
-            Span<Vector<double>> vs = MemoryMarshal.Cast<double, Vector<double>>(sum.AsSpan());
-            ReadOnlySpan<Vector<double>> vr = MemoryMarshal.Cast<double, Vector<double>>(row.AsSpan());
-            for (int v = 0; v < vs.Length; v++) vs[v] += vr[v];
-            for (int k = vs.Length * Vector<double>.Count; k < n; k++) sum[k] += row[k];
-            Array.Clear(row);
-        });
+        var total = new InOrder<double[]>(
+            () => new double[n],
+            row =>
+            {
+                Span<Vector<double>> vs = MemoryMarshal.Cast<double, Vector<double>>(sum.AsSpan());
+                ReadOnlySpan<Vector<double>> vr = MemoryMarshal.Cast<double, Vector<double>>(row.AsSpan());
+                for (int v = 0; v < vs.Length; v++)
+                    vs[v] += vr[v];
+                for (int k = vs.Length * Vector<double>.Count; k < n; k++)
+                    sum[k] += row[k];
+                Array.Clear(row);
+            }
+        );
         long done = 0;
         int nextRow = -1;
         Action<long>? report = progress is null ? null : delta => progress(Interlocked.Add(ref done, delta));
         // The threads take rows in turn; each row's sum joins the total in row order, so that the
         // result does not depend on the thread count (a sum of doubles depends on its order).
-        Parallel.For(0, threads, new ParallelOptions { MaxDegreeOfParallelism = threads, CancellationToken = cancel }, w =>
-        {
-            var worker = workers[w] = new Worker(layout);
-            using CaptureReader reader = source.OpenReader(firstSample, (segments - 1) * step + n);
-            int r;
-            while ((r = Interlocked.Increment(ref nextRow)) < rows)
-                worker.RunRow(reader, r, gram, total, report, cancel);
-        });
+        Parallel.For(
+            0,
+            threads,
+            new ParallelOptions { MaxDegreeOfParallelism = threads, CancellationToken = cancel },
+            w =>
+            {
+                var worker = workers[w] = new Worker(layout);
+                using CaptureReader reader = source.OpenReader(firstSample, (segments - 1) * step + n);
+                int r;
+                while ((r = Interlocked.Increment(ref nextRow)) < rows)
+                    worker.RunRow(reader, r, gram, total, report, cancel);
+            }
+        );
         // The sums, then scaled and ordered by ascending frequency.
         var max = new double[n];
         long nonFinite = 0;
         foreach (Worker wk in workers)
         {
-            for (int k = 0; k < n; k++) max[k] = Math.Max(max[k], wk.Max[k]);
+            for (int k = 0; k < n; k++)
+                max[k] = Math.Max(max[k], wk.Max[k]);
             nonFinite += wk.NonFiniteSegments;
         }
         double[] freqs = layout.Frequencies();
@@ -99,26 +122,63 @@ public static class WelchEstimator
         {
             dcBins = SuppressDc(mean, n / 2, window.MainLobeHalfWidthBins);
             SuppressDc(hold, n / 2, window.MainLobeHalfWidthBins);
-            if (q == 1 && gram is not null) for (int r = 0; r < rows; r++) SuppressDc(gram.AsSpan(r * columns, columns), n / 2, window.MainLobeHalfWidthBins);
+            if (q == 1 && gram is not null)
+                for (int r = 0; r < rows; r++)
+                    SuppressDc(gram.AsSpan(r * columns, columns), n / 2, window.MainLobeHalfWidthBins);
         }
         double? centre = complex ? info.CenterFrequencyHz : null;
         var rowTimes = new double[rows];
         for (int r = 0; r < rows; r++)
         {
-            long s0 = r * perRow, s1 = Math.Min(segments, (r + 1) * perRow) - 1;
+            long s0 = r * perRow,
+                s1 = Math.Min(segments, (r + 1) * perRow) - 1;
             rowTimes[r] = (s0 * step + s1 * step + n) / 2.0 / info.SampleRateHz;
         }
         var colFreqs = new double[columns];
         for (int c = 0; c < columns; c++)
         {
-            int a = c * q, b = Math.Min(bins, a + q) - 1;
+            int a = c * q,
+                b = Math.Min(bins, a + q) - 1;
             colFreqs[c] = (freqs[a] + freqs[b]) / 2;
         }
         return new SpectrumResult
         {
-            Mean = new PowerSpectrum(freqs, mean, SpectrumScaling.DensityPerHz, SpectrumAveraging.Mean, settings, window, info.SampleRateHz, centre, !complex, segments),
-            MaxHold = new PowerSpectrum(freqs, hold, SpectrumScaling.DensityPerHz, SpectrumAveraging.MaxHold, settings, window, info.SampleRateHz, centre, !complex, segments),
-            Spectrogram = gram is null ? null : new Spectrogram(rows, columns, gram, rowTimes, colFreqs, (int)perRow, settings.SpectrogramAveraging, settings.CalibrationDb),
+            Mean = new PowerSpectrum(
+                freqs,
+                mean,
+                SpectrumScaling.DensityPerHz,
+                SpectrumAveraging.Mean,
+                settings,
+                window,
+                info.SampleRateHz,
+                centre,
+                !complex,
+                segments
+            ),
+            MaxHold = new PowerSpectrum(
+                freqs,
+                hold,
+                SpectrumScaling.DensityPerHz,
+                SpectrumAveraging.MaxHold,
+                settings,
+                window,
+                info.SampleRateHz,
+                centre,
+                !complex,
+                segments
+            ),
+            Spectrogram = gram is null
+                ? null
+                : new Spectrogram(
+                    rows,
+                    columns,
+                    gram,
+                    rowTimes,
+                    colFreqs,
+                    (int)perRow,
+                    settings.SpectrogramAveraging,
+                    settings.CalibrationDb
+                ),
             FirstSample = firstSample,
             SamplesAnalysed = (segments - 1) * step + n,
             DcBinsSuppressed = dcBins,
@@ -127,17 +187,33 @@ public static class WelchEstimator
         };
     }
 
-    /// <summary>Replaces bins centre-hw..centre+hw by a straight line between their neighbours; returns the bins replaced.</summary>
+    /// <summary>Replaces bins centre-hw..centre+hw by a straight line between their neighbours; returns the bins
+    /// replaced.</summary>
     private static int SuppressDc(Span<double> v, int centre, int hw)
     {
-        int lo = centre - hw - 1, hi = centre + hw + 1;
-        if (lo < 0 || hi >= v.Length) return 0;
-        for (int i = lo + 1; i < hi; i++) v[i] = v[lo] + (v[hi] - v[lo]) * (i - lo) / (hi - lo);
+        int lo = centre - hw - 1,
+            hi = centre + hw + 1;
+        if (lo < 0 || hi >= v.Length)
+            return 0;
+        for (int i = lo + 1; i < hi; i++)
+            v[i] = v[lo] + (v[hi] - v[lo]) * (i - lo) / (hi - lo);
         return hi - lo - 1;
     }
 
     /// <summary>The fixed geometry of one estimate: bin order, scaling, rows.</summary>
-    private sealed class Layout(int n, int step, bool complex, int bins, double fs, Window window, long perRow, long segments, int q, int columns, int[]? slots)
+    private sealed class Layout(
+        int n,
+        int step,
+        bool complex,
+        int bins,
+        double fs,
+        Window window,
+        long perRow,
+        long segments,
+        int q,
+        int columns,
+        int[]? slots
+    )
     {
         public int N => n;
         public bool Complex => complex;
@@ -153,7 +229,8 @@ public static class WelchEstimator
         /// <summary>Whether the transforms leave their bins in bit-reversed order.</summary>
         public bool Scrambled => slots is not null;
 
-        /// <summary>Where the sums hold output index i (ascending frequency): its FFT bin, bit-reversed when the transforms leave it so.</summary>
+        /// <summary>Where the sums hold output index i (ascending frequency): its FFT bin, bit-reversed when the
+        /// transforms leave it so.</summary>
         public int BinOf(int i)
         {
             int bin = complex ? (i - n / 2 + n) % n : i;
@@ -163,14 +240,17 @@ public static class WelchEstimator
         public double[] Frequencies()
         {
             var f = new double[bins];
-            for (int i = 0; i < bins; i++) f[i] = (complex ? i - n / 2 : i) * fs / n;
+            for (int i = 0; i < bins; i++)
+                f[i] = (complex ? i - n / 2 : i) * fs / n;
             return f;
         }
 
-        /// <summary>Density of output index i from a raw |X|^2 value: 1/(fs sum w^2), doubled for one-sided interior bins.</summary>
+        /// <summary>Density of output index i from a raw |X|^2 value: 1/(fs sum w^2), doubled for one-sided interior
+        /// bins.</summary>
         public double Scale(int i)
         {
-            if (complex) return _density;
+            if (complex)
+                return _density;
             bool nyquist = n % 2 == 0 && i == n / 2;
             return i == 0 || nyquist ? _density : 2 * _density;
         }
@@ -182,22 +262,29 @@ public static class WelchEstimator
         public double[] Order(double[] raw, double factor)
         {
             var o = new double[bins];
-            for (int i = 0; i < bins; i++) o[i] = raw[BinOf(i)] * Scale(i) * factor;
+            for (int i = 0; i < bins; i++)
+                o[i] = raw[BinOf(i)] * Scale(i) * factor;
             return o;
         }
 
         /// <summary>Writes a finished row (raw sums over its segments) into the spectrogram.</summary>
         public void WriteRow(double[] gram, int row, double[] raw, long segmentsInRow, bool mean)
         {
-            int[] binOf = LazyInitializer.EnsureInitialized(ref _binOf, () => [.. Enumerable.Range(0, bins).Select(BinOf)]);
-            double[] scaleOf = LazyInitializer.EnsureInitialized(ref _scaleOf, () => [.. Enumerable.Range(0, bins).Select(Scale)]);
+            int[] binOf = LazyInitializer.EnsureInitialized(ref _binOf, () =>
+                [.. Enumerable.Range(0, bins).Select(BinOf)]
+            );
+            double[] scaleOf = LazyInitializer.EnsureInitialized(ref _scaleOf, () =>
+                [.. Enumerable.Range(0, bins).Select(Scale)]
+            );
             double f = mean ? 1.0 / segmentsInRow : 1.0;
             Span<double> dst = gram.AsSpan(row * columns, columns);
             for (int c = 0; c < columns; c++)
             {
-                int a = c * q, b = Math.Min(bins, a + q);
+                int a = c * q,
+                    b = Math.Min(bins, a + q);
                 double s = 0;
-                for (int i = a; i < b; i++) s += raw[binOf[i]] * scaleOf[i];
+                for (int i = a; i < b; i++)
+                    s += raw[binOf[i]] * scaleOf[i];
                 dst[c] = s * f / (b - a);
             }
         }
@@ -209,10 +296,13 @@ public static class WelchEstimator
         private readonly Layout _l;
         private readonly FftPlan _fft;
         private readonly bool _scrambled;
-        private readonly double[] _re, _im, _w, _row;
-        private readonly float[]? _wSingle;   // the window in float, where float segments are transformed in float
+        private readonly double[] _re,
+            _im,
+            _w,
+            _row;
+        private readonly float[]? _wSingle; // the window in float, where float segments are transformed in float
         private double[]? _staging;
-        private double[] _rowSum;   // the row's periodogram sum, handed to the total when the row ends
+        private double[] _rowSum; // the row's periodogram sum, handed to the total when the row ends
 
         public Worker(Layout layout)
         {
@@ -222,7 +312,8 @@ public static class WelchEstimator
             _re = new double[layout.N];
             _im = new double[layout.N];
             _w = layout.Window.Coefficients.ToArray();
-            if (_scrambled && layout.Complex && _fft.CanSingle) _wSingle = [.. _w.Select(v => (float)v)];
+            if (_scrambled && layout.Complex && _fft.CanSingle)
+                _wSingle = [.. _w.Select(v => (float)v)];
             _row = new double[layout.N];
             _rowSum = new double[layout.N];
             Max = new double[layout.N];
@@ -234,26 +325,47 @@ public static class WelchEstimator
         public double[] Max { get; }
         public long NonFiniteSegments { get; private set; }
 
-        /// <summary>The segments of spectrogram row r: its row, its share of the max-hold, its sum into the total.</summary>
-        public void RunRow(CaptureReader reader, int r, double[]? gram, InOrder<double[]> total, Action<long>? report, CancellationToken cancel)
+        /// <summary>The segments of spectrogram row r: its row, its share of the max-hold, its sum into the
+        /// total.</summary>
+        public void RunRow(
+            CaptureReader reader,
+            int r,
+            double[]? gram,
+            InOrder<double[]> total,
+            Action<long>? report,
+            CancellationToken cancel
+        )
         {
             // float32 captures are taken as stored, each segment a view of the file (no copy where it
             // is mapped), and widened as the scrambled transform loads them (the same values).
-            if (reader.DeliversFloat32 && _scrambled) RunRowViews(reader, r, gram, total, report, cancel);
-            else RunRow(reader, _staging ??= new double[StagingValues], r, gram, total, report, cancel);
+            if (reader.DeliversFloat32 && _scrambled)
+                RunRowViews(reader, r, gram, total, report, cancel);
+            else
+                RunRow(reader, _staging ??= new double[StagingValues], r, gram, total, report, cancel);
         }
 
-        private void RunRowViews(CaptureReader reader, int r, double[]? gram, InOrder<double[]> total, Action<long>? report, CancellationToken cancel)
+        private void RunRowViews(
+            CaptureReader reader,
+            int r,
+            double[]? gram,
+            InOrder<double[]> total,
+            Action<long>? report,
+            CancellationToken cancel
+        )
         {
-            int n = _l.N, step = _l.Step, vps = reader.ValuesPerSample;
-            long seg0 = r * _l.PerRow, seg1 = Math.Min(_l.Segments, (r + 1) * _l.PerRow);
+            int n = _l.N,
+                step = _l.Step,
+                vps = reader.ValuesPerSample;
+            long seg0 = r * _l.PerRow,
+                seg1 = Math.Min(_l.Segments, (r + 1) * _l.PerRow);
             long segment = seg0;
             Array.Clear(_row);
             for (; segment < seg1; segment++)
             {
                 cancel.ThrowIfCancellationRequested();
                 ReadOnlySpan<float> x = reader.Float32View(segment * step, n);
-                if (x.Length < n * vps) break;
+                if (x.Length < n * vps)
+                    break;
                 report?.Invoke(segment == seg0 ? n : step);
                 Periodogram(x, vps == 2);
             }
@@ -262,18 +374,31 @@ public static class WelchEstimator
 
         private void EndRow(int r, long segments, double[]? gram, InOrder<double[]> total)
         {
-            if (gram is not null) _l.WriteRow(gram, r, _scrambled && !_l.RowMax ? _rowSum : _row, segments, !_l.RowMax);
+            if (gram is not null)
+                _l.WriteRow(gram, r, _scrambled && !_l.RowMax ? _rowSum : _row, segments, !_l.RowMax);
             total.Complete(r, _rowSum);
             _rowSum = total.Rent();
         }
 
-        private void RunRow(CaptureReader reader, double[] staging, int r, double[]? gram, InOrder<double[]> total, Action<long>? report, CancellationToken cancel)
+        private void RunRow(
+            CaptureReader reader,
+            double[] staging,
+            int r,
+            double[]? gram,
+            InOrder<double[]> total,
+            Action<long>? report,
+            CancellationToken cancel
+        )
         {
-            int n = _l.N, step = _l.Step, vps = reader.ValuesPerSample;
-            long seg0 = r * _l.PerRow, seg1 = Math.Min(_l.Segments, (r + 1) * _l.PerRow);
+            int n = _l.N,
+                step = _l.Step,
+                vps = reader.ValuesPerSample;
+            long seg0 = r * _l.PerRow,
+                seg1 = Math.Min(_l.Segments, (r + 1) * _l.PerRow);
             reader.Seek(seg0 * step);
-            long left = (seg1 - seg0 - 1) * step + n;   // samples this row needs
-            int filled = 0, pos = 0;
+            long left = (seg1 - seg0 - 1) * step + n; // samples this row needs
+            int filled = 0,
+                pos = 0;
             long segment = seg0;
             Array.Clear(_row);
             while (segment < seg1)
@@ -287,7 +412,8 @@ public static class WelchEstimator
                     pos = 0;
                     int want = (int)Math.Min(staging.Length / vps - filled, left);
                     int got = want <= 0 ? 0 : reader.Read(staging.AsSpan(filled * vps, want * vps));
-                    if (got == 0) break;
+                    if (got == 0)
+                        break;
                     filled += got;
                     left -= got;
                     report?.Invoke(got);
@@ -300,25 +426,58 @@ public static class WelchEstimator
             EndRow(r, segment - seg0, gram, total);
         }
 
-        private void Periodogram<T>(ReadOnlySpan<T> samples, bool complex) where T : unmanaged
+        private void Periodogram<T>(ReadOnlySpan<T> samples, bool complex)
+            where T : unmanaged
         {
             if (_scrambled)
             {
-                // Transform and sums in one go; a segment with NaN or infinity adds nothing and is redone with those samples as 0.
-                // A mean spectrogram row is the row's sum itself: no separate row is accumulated.
+                // Transform and sums in one go; a segment with NaN or infinity adds nothing and is redone with those
+                // samples as 0. A mean spectrogram row is the row's sum itself: no separate row is accumulated.
                 Span<double> row = _l.RowMax ? _row : default;
                 // Complex float samples (cf32 as stored) are transformed in float: their own precision.
-                double check = typeof(T) == typeof(float)
-                    ? _wSingle is not null
-                        ? _fft.ForwardPowerScrambledSingle(MemoryMarshal.Cast<T, float>(samples), _wSingle, _w, _re, _im, _rowSum, Max, row, _l.RowMax)
-                        : _fft.ForwardPowerScrambled(MemoryMarshal.Cast<T, float>(samples), complex, _w, _re, _im, _rowSum, Max, row, _l.RowMax)
-                    : _fft.ForwardPowerScrambled(MemoryMarshal.Cast<T, double>(samples), complex, _w, _re, _im, _rowSum, Max, row, _l.RowMax);
-                if (double.IsFinite(check)) return;
+                double check =
+                    typeof(T) == typeof(float)
+                        ? _wSingle is not null
+                            ? _fft.ForwardPowerScrambledSingle(
+                                MemoryMarshal.Cast<T, float>(samples),
+                                _wSingle,
+                                _w,
+                                _re,
+                                _im,
+                                _rowSum,
+                                Max,
+                                row,
+                                _l.RowMax
+                            )
+                            : _fft.ForwardPowerScrambled(
+                                MemoryMarshal.Cast<T, float>(samples),
+                                complex,
+                                _w,
+                                _re,
+                                _im,
+                                _rowSum,
+                                Max,
+                                row,
+                                _l.RowMax
+                            )
+                        : _fft.ForwardPowerScrambled(
+                            MemoryMarshal.Cast<T, double>(samples),
+                            complex,
+                            _w,
+                            _re,
+                            _im,
+                            _rowSum,
+                            Max,
+                            row,
+                            _l.RowMax
+                        );
+                if (double.IsFinite(check))
+                    return;
                 NonFiniteSegments++;
                 _fft.ForwardPowerScrambled(Clean(samples), complex, _w, _re, _im, _rowSum, Max, row, _l.RowMax);
                 return;
             }
-            ReadOnlySpan<double> x = MemoryMarshal.Cast<T, double>(samples);   // float staging only with the scrambled transform
+            ReadOnlySpan<double> x = MemoryMarshal.Cast<T, double>(samples); // float staging only with the scrambled transform
             if (!double.IsFinite(_fft.ForwardWindowed(x, complex, _w, _re, _im)))
             {
                 NonFiniteSegments++;
@@ -330,20 +489,27 @@ public static class WelchEstimator
         private static double[] Widen(ReadOnlySpan<float> x)
         {
             var d = new double[x.Length];
-            for (int i = 0; i < d.Length; i++) d[i] = x[i];
+            for (int i = 0; i < d.Length; i++)
+                d[i] = x[i];
             return d;
         }
 
         /// <summary>The segment with NaN and infinite samples taken as 0.</summary>
-        private static double[] Clean<T>(ReadOnlySpan<T> samples) where T : unmanaged
+        private static double[] Clean<T>(ReadOnlySpan<T> samples)
+            where T : unmanaged
         {
-            ReadOnlySpan<double> x = typeof(T) == typeof(double) ? MemoryMarshal.Cast<T, double>(samples) : Widen(MemoryMarshal.Cast<T, float>(samples));
+            ReadOnlySpan<double> x =
+                typeof(T) == typeof(double)
+                    ? MemoryMarshal.Cast<T, double>(samples)
+                    : Widen(MemoryMarshal.Cast<T, float>(samples));
             var clean = new double[x.Length];
-            for (int i = 0; i < clean.Length; i++) clean[i] = double.IsFinite(x[i]) ? x[i] : 0;
+            for (int i = 0; i < clean.Length; i++)
+                clean[i] = double.IsFinite(x[i]) ? x[i] : 0;
             return clean;
         }
 
-        /// <summary>|X|^2 of the transformed segment into the sum, the max-hold and the current row, in one pass.</summary>
+        /// <summary>|X|^2 of the transformed segment into the sum, the max-hold and the current row, in one
+        /// pass.</summary>
         private void Accumulate()
         {
             int vw = Vector<double>.Count;

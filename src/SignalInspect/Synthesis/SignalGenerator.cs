@@ -24,7 +24,8 @@ public sealed class SignalGenerator
         _spec = spec;
         _random = new Random(spec.Seed);
         _noiseSigma = spec.SnrDb is { } snr ? Math.Sqrt(spec.SignalPower / Math.Pow(10, snr / 10)) : 0;
-        if (spec.Kind == SignalKind.Noise) _noiseSigma = Math.Sqrt(spec.SignalPower);
+        if (spec.Kind == SignalKind.Noise)
+            _noiseSigma = Math.Sqrt(spec.SignalPower);
     }
 
     /// <summary>Values per sample: 2 for complex, 1 for real.</summary>
@@ -51,14 +52,21 @@ public sealed class SignalGenerator
                     a *= 1 + s.AmDepth * Math.Cos(2 * Math.PI * Frac(s.ModulatingFrequencyHz * _n / fs));
                     break;
                 case SignalKind.Fm:
-                    phi = s.PeakDeviationHz / s.ModulatingFrequencyHz * Math.Sin(2 * Math.PI * Frac(s.ModulatingFrequencyHz * _n / fs));
+                    phi =
+                        s.PeakDeviationHz
+                        / s.ModulatingFrequencyHz
+                        * Math.Sin(2 * Math.PI * Frac(s.ModulatingFrequencyHz * _n / fs));
                     break;
                 case SignalKind.Pm:
                     phi = s.PeakPhaseRad * Math.Sin(2 * Math.PI * Frac(s.ModulatingFrequencyHz * _n / fs));
                     break;
                 case SignalKind.Fsk:
                     long k = (long)Math.Floor(_n * s.SymbolRateBd / fs);
-                    while (_symbol < k) { _bit = _random.Next(2); _symbol++; }
+                    while (_symbol < k)
+                    {
+                        _bit = _random.Next(2);
+                        _symbol++;
+                    }
                     cycles += _fskCycles;
                     _fskCycles = Frac(_fskCycles + (_bit == 1 ? 0.5 : -0.5) * s.FskShiftHz / fs);
                     break;
@@ -69,8 +77,13 @@ public sealed class SignalGenerator
             double theta = 2 * Math.PI * cycles + phi;
             if (s.IsComplex)
             {
-                double ni = 0, nq = 0;
-                if (_noiseSigma > 0) { ni = Gaussian() * _noiseSigma / Math.Sqrt(2); nq = Gaussian() * _noiseSigma / Math.Sqrt(2); }
+                double ni = 0,
+                    nq = 0;
+                if (_noiseSigma > 0)
+                {
+                    ni = Gaussian() * _noiseSigma / Math.Sqrt(2);
+                    nq = Gaussian() * _noiseSigma / Math.Sqrt(2);
+                }
                 destination[2 * i] = a * Math.Cos(theta) + ni;
                 destination[2 * i + 1] = a * Math.Sin(theta) + nq;
             }
@@ -87,8 +100,14 @@ public sealed class SignalGenerator
     /// <summary>Standard normal deviate (Marsaglia polar method) from the seeded generator.</summary>
     private double Gaussian()
     {
-        if (_spareGaussian is { } spare) { _spareGaussian = null; return spare; }
-        double u, v, q;
+        if (_spareGaussian is { } spare)
+        {
+            _spareGaussian = null;
+            return spare;
+        }
+        double u,
+            v,
+            q;
         do
         {
             u = 2 * _random.NextDouble() - 1;

@@ -5,14 +5,19 @@ public enum SignalKind
 {
     /// <summary>Unmodulated carrier.</summary>
     Cw,
+
     /// <summary>Double-sideband full-carrier AM by one tone.</summary>
     Am,
+
     /// <summary>FM by one tone.</summary>
     Fm,
+
     /// <summary>PM by one tone.</summary>
     Pm,
+
     /// <summary>Binary continuous-phase FSK with random data.</summary>
     Fsk,
+
     /// <summary>Noise only (no carrier).</summary>
     Noise,
 }
@@ -107,22 +112,49 @@ public sealed record SignalSpec
     {
         static void Positive(double v, string name)
         {
-            if (!double.IsFinite(v) || v <= 0) throw new ArgumentOutOfRangeException(name, v, "must be a positive number");
+            if (!double.IsFinite(v) || v <= 0)
+                throw new ArgumentOutOfRangeException(name, v, "must be a positive number");
         }
         Positive(SampleRateHz, "--sample-rate");
         Positive(DurationS, "--duration");
-        if (SampleCount < 1) throw new ArgumentOutOfRangeException("--duration", DurationS, "gives no sample at this rate");
-        if (!double.IsFinite(Amplitude) || Amplitude < 0 || Amplitude > 1) throw new ArgumentOutOfRangeException("--amplitude", Amplitude, "must be from 0 to 1 (full scale)");
+        if (SampleCount < 1)
+            throw new ArgumentOutOfRangeException("--duration", DurationS, "gives no sample at this rate");
+        if (!double.IsFinite(Amplitude) || Amplitude < 0 || Amplitude > 1)
+            throw new ArgumentOutOfRangeException("--amplitude", Amplitude, "must be from 0 to 1 (full scale)");
         if (!double.IsFinite(CarrierOffsetHz) || Math.Abs(CarrierOffsetHz) >= SampleRateHz / 2)
-            throw new ArgumentOutOfRangeException("--offset", CarrierOffsetHz, "must lie inside +/- half the sample rate");
-        if (!IsComplex && CarrierOffsetHz <= 0) throw new ArgumentOutOfRangeException("--offset", CarrierOffsetHz, "a real signal needs a positive carrier frequency");
-        if (Kind is SignalKind.Am or SignalKind.Fm or SignalKind.Pm) Positive(ModulatingFrequencyHz, "--tone");
-        if (Kind == SignalKind.Am && (!double.IsFinite(AmDepth) || AmDepth < 0 || AmDepth > 1)) throw new ArgumentOutOfRangeException("--depth", AmDepth, "must be from 0 to 1");
-        if (Kind == SignalKind.Am && Amplitude * (1 + AmDepth) > 1) throw new ArgumentOutOfRangeException("--amplitude", Amplitude, "x (1 + depth) must not exceed full scale (1.0)");
-        if (Kind == SignalKind.Fm) Positive(PeakDeviationHz, "--deviation");
-        if (Kind == SignalKind.Pm) Positive(PeakPhaseRad, "--phase-deviation");
-        if (Kind == SignalKind.Fsk) { Positive(FskShiftHz, "--shift"); Positive(SymbolRateBd, "--symbol-rate"); }
-        if (!double.IsFinite(DriftHzPerS)) throw new ArgumentOutOfRangeException("--drift", DriftHzPerS, "must be a number");
-        if (SnrDb is { } s && !double.IsFinite(s)) throw new ArgumentOutOfRangeException("--snr", s, "must be a number in dB");
+            throw new ArgumentOutOfRangeException(
+                "--offset",
+                CarrierOffsetHz,
+                "must lie inside +/- half the sample rate"
+            );
+        if (!IsComplex && CarrierOffsetHz <= 0)
+            throw new ArgumentOutOfRangeException(
+                "--offset",
+                CarrierOffsetHz,
+                "a real signal needs a positive carrier frequency"
+            );
+        if (Kind is SignalKind.Am or SignalKind.Fm or SignalKind.Pm)
+            Positive(ModulatingFrequencyHz, "--tone");
+        if (Kind == SignalKind.Am && (!double.IsFinite(AmDepth) || AmDepth < 0 || AmDepth > 1))
+            throw new ArgumentOutOfRangeException("--depth", AmDepth, "must be from 0 to 1");
+        if (Kind == SignalKind.Am && Amplitude * (1 + AmDepth) > 1)
+            throw new ArgumentOutOfRangeException(
+                "--amplitude",
+                Amplitude,
+                "x (1 + depth) must not exceed full scale (1.0)"
+            );
+        if (Kind == SignalKind.Fm)
+            Positive(PeakDeviationHz, "--deviation");
+        if (Kind == SignalKind.Pm)
+            Positive(PeakPhaseRad, "--phase-deviation");
+        if (Kind == SignalKind.Fsk)
+        {
+            Positive(FskShiftHz, "--shift");
+            Positive(SymbolRateBd, "--symbol-rate");
+        }
+        if (!double.IsFinite(DriftHzPerS))
+            throw new ArgumentOutOfRangeException("--drift", DriftHzPerS, "must be a number");
+        if (SnrDb is { } s && !double.IsFinite(s))
+            throw new ArgumentOutOfRangeException("--snr", s, "must be a number in dB");
     }
 }

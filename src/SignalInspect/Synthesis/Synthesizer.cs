@@ -14,13 +14,17 @@ public static class Synthesizer
 {
     private const int BlockSamples = 1 << 16;
 
-    /// <summary>Chooses the container from an output file name: .wav, .sigmf, .sigmf-meta/.sigmf-data, anything else raw.</summary>
+    /// <summary>Chooses the container from an output file name: .wav, .sigmf, .sigmf-meta/.sigmf-data, anything else
+    /// raw.</summary>
     public static CaptureContainer ContainerFor(string path)
     {
         string p = path.ToLowerInvariant();
-        if (p.EndsWith(".wav", StringComparison.Ordinal) || p.EndsWith(".rf64", StringComparison.Ordinal)) return CaptureContainer.Wav;
-        if (p.EndsWith(".sigmf", StringComparison.Ordinal)) return CaptureContainer.SigMfArchive;
-        if (p.EndsWith(".sigmf-meta", StringComparison.Ordinal) || p.EndsWith(".sigmf-data", StringComparison.Ordinal)) return CaptureContainer.SigMf;
+        if (p.EndsWith(".wav", StringComparison.Ordinal) || p.EndsWith(".rf64", StringComparison.Ordinal))
+            return CaptureContainer.Wav;
+        if (p.EndsWith(".sigmf", StringComparison.Ordinal))
+            return CaptureContainer.SigMfArchive;
+        if (p.EndsWith(".sigmf-meta", StringComparison.Ordinal) || p.EndsWith(".sigmf-data", StringComparison.Ordinal))
+            return CaptureContainer.SigMf;
         return CaptureContainer.Raw;
     }
 
@@ -31,24 +35,53 @@ public static class Synthesizer
         string mod = s.Kind switch
         {
             SignalKind.Am => string.Format(c, "AM depth {0:0.####} by {1:R} Hz", s.AmDepth, s.ModulatingFrequencyHz),
-            SignalKind.Fm => string.Format(c, "FM peak deviation {0:R} Hz by {1:R} Hz", s.PeakDeviationHz, s.ModulatingFrequencyHz),
-            SignalKind.Pm => string.Format(c, "PM peak phase {0:R} rad by {1:R} Hz", s.PeakPhaseRad, s.ModulatingFrequencyHz),
+            SignalKind.Fm => string.Format(
+                c,
+                "FM peak deviation {0:R} Hz by {1:R} Hz",
+                s.PeakDeviationHz,
+                s.ModulatingFrequencyHz
+            ),
+            SignalKind.Pm => string.Format(
+                c,
+                "PM peak phase {0:R} rad by {1:R} Hz",
+                s.PeakPhaseRad,
+                s.ModulatingFrequencyHz
+            ),
             SignalKind.Fsk => string.Format(c, "2-FSK shift {0:R} Hz at {1:R} Bd", s.FskShiftHz, s.SymbolRateBd),
             SignalKind.Noise => "noise only",
             _ => "unmodulated carrier",
         };
         string snr = s.SnrDb is { } db ? string.Format(c, ", SNR {0:R} dB", db) : ", no noise";
         string drift = s.DriftHzPerS != 0 ? string.Format(c, ", drift {0:R} Hz/s", s.DriftHzPerS) : string.Empty;
-        return string.Format(c, "synthesised: {0}, carrier offset {1:R} Hz, amplitude {2:R}{3}{4}, seed {5}", mod, s.CarrierOffsetHz, s.Amplitude, snr, drift, s.Seed);
+        return string.Format(
+            c,
+            "synthesised: {0}, carrier offset {1:R} Hz, amplitude {2:R}{3}{4}, seed {5}",
+            mod,
+            s.CarrierOffsetHz,
+            s.Amplitude,
+            snr,
+            drift,
+            s.Seed
+        );
     }
 
     /// <summary>Generates <paramref name="spec"/> and writes it.</summary>
     /// <exception cref="ArgumentOutOfRangeException">The spec is invalid.</exception>
     /// <exception cref="CaptureException">The output cannot be written as asked.</exception>
-    public static SynthesisResult Write(SignalSpec spec, string path, SampleFormat format, DateTimeOffset? startTime = null, bool overwrite = false, bool forceRf64 = false, CaptureContainer? container = null)
+    public static SynthesisResult Write(
+        SignalSpec spec,
+        string path,
+        SampleFormat format,
+        DateTimeOffset? startTime = null,
+        bool overwrite = false,
+        bool forceRf64 = false,
+        CaptureContainer? container = null
+    )
     {
         if (format.IsComplex != spec.IsComplex)
-            throw new CaptureException($"datatype {format.Name} is {(format.IsComplex ? "complex" : "real")} but the signal is {(spec.IsComplex ? "complex" : "real")}");
+            throw new CaptureException(
+                $"datatype {format.Name} is {(format.IsComplex ? "complex" : "real")} but the signal is {(spec.IsComplex ? "complex" : "real")}"
+            );
         var gen = new SignalGenerator(spec);
         var meta = new CaptureMetadata
         {
@@ -57,10 +90,19 @@ public static class Synthesizer
             StartTime = startTime,
             Description = Describe(spec),
         };
-        using var writer = new CaptureWriter(path, container ?? ContainerFor(path), format, meta, spec.SampleCount, overwrite, forceRf64);
+        using var writer = new CaptureWriter(
+            path,
+            container ?? ContainerFor(path),
+            format,
+            meta,
+            spec.SampleCount,
+            overwrite,
+            forceRf64
+        );
         var block = new double[BlockSamples * gen.ValuesPerSample];
         int n;
-        while ((n = gen.Generate(block)) > 0) writer.Write(block.AsSpan(0, n * gen.ValuesPerSample));
+        while ((n = gen.Generate(block)) > 0)
+            writer.Write(block.AsSpan(0, n * gen.ValuesPerSample));
         writer.Complete();
         return new SynthesisResult(writer.OutputPaths, spec.SampleCount, writer.ClippedValues);
     }

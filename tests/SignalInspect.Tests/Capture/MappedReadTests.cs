@@ -16,14 +16,22 @@ public class MappedReadTests
     {
         MappedExtent.EnabledForTests.Value = map;
         MappedExtent.WindowBytesForTests.Value = window;
-        try { return body(); }
-        finally { MappedExtent.EnabledForTests.Value = null; MappedExtent.WindowBytesForTests.Value = null; }
+        try
+        {
+            return body();
+        }
+        finally
+        {
+            MappedExtent.EnabledForTests.Value = null;
+            MappedExtent.WindowBytesForTests.Value = null;
+        }
     }
 
-    private static float[] Floats(byte[] bytes, int offset, int count) => MemoryMarshal.Cast<byte, float>(bytes.AsSpan(offset, count * 4)).ToArray();
+    private static float[] Floats(byte[] bytes, int offset, int count) =>
+        MemoryMarshal.Cast<byte, float>(bytes.AsSpan(offset, count * 4)).ToArray();
 
     [Theory]
-    [InlineData(true, 5000)]     // windows smaller than many requests and not a whole number of pages or frames
+    [InlineData(true, 5000)] // windows smaller than many requests and not a whole number of pages or frames
     [InlineData(true, 1 << 16)]
     [InlineData(false, 5000)]
     public void Float32_views_hold_the_stored_samples(bool map, int window)
@@ -32,7 +40,8 @@ public class MappedReadTests
         string path = tmp.File("v.cf32");
         var rng = new Random(7);
         var values = new float[2 * 40000];
-        for (int i = 0; i < values.Length; i++) values[i] = (float)(rng.NextDouble() * 2 - 1);
+        for (int i = 0; i < values.Length; i++)
+            values[i] = (float)(rng.NextDouble() * 2 - 1);
         File.WriteAllBytes(path, MemoryMarshal.AsBytes(values.AsSpan()).ToArray());
         With(map, window, () =>
         {
@@ -41,9 +50,21 @@ public class MappedReadTests
             using CaptureReader reader = src.OpenReader(1234, 30000);
             Assert.True(reader.DeliversFloat32);
             Assert.Equal(map, reader.Mapped);
-            // Overlapping steps as a Welch row takes them, jumps back and forth, requests longer than a window, the end.
-            var requests = new List<(long, int)> { (0, 4096), (2048, 4096), (4096, 4096), (100, 3000), (29000, 5000), (29999, 10), (30000, 10), (0, 0) };
-            for (int i = 0; i < 200; i++) requests.Add((rng.Next(0, 30000), rng.Next(0, 9000)));
+            // Overlapping steps as a Welch row takes them, jumps back and forth, requests longer than a window, the
+            // end.
+            var requests = new List<(long, int)>
+            {
+                (0, 4096),
+                (2048, 4096),
+                (4096, 4096),
+                (100, 3000),
+                (29000, 5000),
+                (29999, 10),
+                (30000, 10),
+                (0, 0),
+            };
+            for (int i = 0; i < 200; i++)
+                requests.Add((rng.Next(0, 30000), rng.Next(0, 9000)));
             foreach (var (at, count) in requests)
             {
                 int expect = (int)Math.Min(count, 30000 - at);
@@ -77,14 +98,15 @@ public class MappedReadTests
             using CaptureReader reader = CaptureSource.Open(path).OpenReader();
             Assert.Equal(map, reader.Mapped);
             var all = new List<float>();
-            for (long at = 0; at < reader.SampleCount; at += 333) all.AddRange(reader.Float32View(at, 333).ToArray());
+            for (long at = 0; at < reader.SampleCount; at += 333)
+                all.AddRange(reader.Float32View(at, 333).ToArray());
             return all.ToArray();
         });
         Assert.Equal(expect, got);
     }
 
     [Theory]
-    [InlineData("multi-ci8.sigmf-meta")]   // 8-bit, core:offset and three segments
+    [InlineData("multi-ci8.sigmf-meta")] // 8-bit, core:offset and three segments
     [InlineData("nbfm-ci16.sigmf-meta")]
     [InlineData("tone-cf32be.sigmf-meta")] // float32 but byte-swapped: decoded, not viewed
     public void Decoded_formats_read_the_same_mapped_or_copied(string meta)
@@ -99,11 +121,11 @@ public class MappedReadTests
     }
 
     [Theory]
-    [InlineData("sox-stereo-f32.wav", true)]    // float32 I/Q: viewed in place
+    [InlineData("sox-stereo-f32.wav", true)] // float32 I/Q: viewed in place
     [InlineData("sox-stereo-f32.wav", false)]
-    [InlineData("sox-mono-s24.wav", true)]      // WAVE_FORMAT_EXTENSIBLE, 24-bit: decoded from the map
+    [InlineData("sox-mono-s24.wav", true)] // WAVE_FORMAT_EXTENSIBLE, 24-bit: decoded from the map
     [InlineData("sox-stereo-s16.wav", true)]
-    [InlineData("py-rf64-s16.wav", true)]       // RF64 (Python-written), its data chunk after a ds64 chunk
+    [InlineData("py-rf64-s16.wav", true)] // RF64 (Python-written), its data chunk after a ds64 chunk
     [InlineData("py-bw64-s16.wav", true)]
     public void A_WAV_data_chunk_is_mapped_at_its_place_in_the_file(string file, bool map)
     {
@@ -120,7 +142,8 @@ public class MappedReadTests
         });
         Assert.Equal(map, mapped);
         Assert.Equal(copied, values);
-        if (view.Length > 0) Assert.Equal(values, view.Select(x => (double)x).ToArray());
+        if (view.Length > 0)
+            Assert.Equal(values, view.Select(x => (double)x).ToArray());
     }
 
     [Theory]
@@ -131,7 +154,9 @@ public class MappedReadTests
         // FIPS 180-2, Appendix B.1 ("abc") and B.3 (one million 'a'); the empty message's digest as
         // printed by coreutils sha256sum.
         using var tmp = new TempDir();
-        string abc = tmp.File("abc"), million = tmp.File("a"), empty = tmp.File("empty");
+        string abc = tmp.File("abc"),
+            million = tmp.File("a"),
+            empty = tmp.File("empty");
         File.WriteAllText(abc, "abc");
         File.WriteAllBytes(million, Enumerable.Repeat((byte)'a', 1_000_000).ToArray());
         File.WriteAllBytes(empty, []);
@@ -141,7 +166,10 @@ public class MappedReadTests
             Assert.Equal("cdc76e5c9914fb9281a1c7e284d73e67f1809a48a497200e046d39ccc7112cd0", FileHash.Sha256(million));
             Assert.Equal("e3b0c44298fc1c149afbf4c8996fb92427ae41e4649b934ca495991b7852b855", FileHash.Sha256(empty));
             // Files one after another hash as their concatenation ("abc" then the empty file).
-            Assert.Equal("ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad", FileHash.Sha256(abc, empty));
+            Assert.Equal(
+                "ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad",
+                FileHash.Sha256(abc, empty)
+            );
             return 0;
         });
     }

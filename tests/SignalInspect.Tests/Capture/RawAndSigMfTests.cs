@@ -14,14 +14,18 @@ public class RawAndSigMfTests
         string path = TestData.Path("raw", "tone-100k-2048k.cu8");
         var e = Assert.Throws<CaptureException>(() => CaptureSource.Open(path));
         Assert.Contains("sample rate missing", e.Message);
-        CaptureSource source = CaptureSource.Open(path, new ReaderOptions { SampleRateHz = 2.048e6, CenterFrequencyHz = 433.92e6 });
+        CaptureSource source = CaptureSource.Open(
+            path,
+            new ReaderOptions { SampleRateHz = 2.048e6, CenterFrequencyHz = 433.92e6 }
+        );
         Assert.Equal("cu8", source.Info.Datatype);
         Assert.Equal(8192, source.Info.SampleCount);
         Assert.Equal(433.92e6, source.Info.CenterFrequencyHz);
         Assert.Contains(source.Info.Notes, n => n.Contains("file ending"));
         double[] iq = TestData.ReadAll(source);
         byte[] codes = File.ReadAllBytes(path);
-        for (int i = 0; i < codes.Length; i++) Assert.Equal((codes[i] - 127.5) / 127.5, iq[i]);
+        for (int i = 0; i < codes.Length; i++)
+            Assert.Equal((codes[i] - 127.5) / 127.5, iq[i]);
         // The file holds round(127.5 + 127.5 * 0.7 e^{j 2 pi 100 kHz t}): within one code of the tone.
         for (int n = 0; n < 8192; n++)
             Assert.True(Math.Abs(iq[2 * n] - 0.7 * Math.Cos(2 * Math.PI * 100e3 * n / 2.048e6)) <= 1 / 127.5);
@@ -52,7 +56,10 @@ public class RawAndSigMfTests
         Assert.Equal(new DateTimeOffset(2026, 3, 14, 8, 15, 0, 250, TimeSpan.Zero), info.StartTime);
         Assert.Equal("reference generator (numpy)", info.Hardware);
         CaptureAnnotation a = Assert.Single(info.Annotations);
-        Assert.Equal((0L, 9600L, 462556000.0, 462569000.0, "FM voice"), (a.SampleStart, a.SampleCount!.Value, a.LowerEdgeHz!.Value, a.UpperEdgeHz!.Value, a.Label));
+        Assert.Equal(
+            (0L, 9600L, 462556000.0, 462569000.0, "FM voice"),
+            (a.SampleStart, a.SampleCount!.Value, a.LowerEdgeHz!.Value, a.UpperEdgeHz!.Value, a.Label)
+        );
         // Naming the data file opens the same recording.
         Assert.Equal(9600, CaptureSource.Open(TestData.Path("sigmf", "nbfm-ci16.sigmf-data")).Info.SampleCount);
     }
@@ -77,7 +84,7 @@ public class RawAndSigMfTests
         CaptureInfo info = whole.Info;
         Assert.Null(info.CenterFrequencyHz); // three different frequencies
         Assert.Contains(info.Notes, n => n.Contains("--segment"));
-        Assert.Equal([1000L, 3000L, 6000L], info.Segments.Select(s => s.SampleStart));   // absolute indices (core:offset 1000)
+        Assert.Equal([1000L, 3000L, 6000L], info.Segments.Select(s => s.SampleStart)); // absolute indices (core:offset 1000)
         Assert.Equal([2000L, 3000L, 1500L], info.Segments.Select(s => s.SampleCount));
         Assert.Equal([433.92e6, 434.00e6, 434.10e6], info.Segments.Select(s => s.FrequencyHz!.Value));
         Assert.Equal([0L, 64L, 0L], info.Segments.Select(s => s.HeaderBytes));
@@ -107,7 +114,9 @@ public class RawAndSigMfTests
     {
         string path = TestData.Path("sigmf", "twoch-cf32.sigmf-meta");
         Assert.Throws<CaptureException>(() => CaptureSource.Open(path));
-        double[] ch1 = TestData.ReadAll(CaptureSource.Open(path, new ReaderOptions { Channels = ChannelSelection.Index, ChannelIndex = 1 }));
+        double[] ch1 = TestData.ReadAll(
+            CaptureSource.Open(path, new ReaderOptions { Channels = ChannelSelection.Index, ChannelIndex = 1 })
+        );
         Assert.Equal(1000, ch1.Length);
         for (int n = 0; n < 500; n++)
             Assert.Equal((float)(0.25 * Math.Cos(-2 * Math.PI * 2000.0 * n / 8000)), ch1[2 * n], 6);
@@ -129,7 +138,12 @@ public class RawAndSigMfTests
     [Fact]
     public void Options_override_metadata_and_the_notes_say_so()
     {
-        CaptureInfo info = CaptureSource.Open(TestData.Path("sigmf", "cw-cf32.sigmf-meta"), new ReaderOptions { SampleRateHz = 200000, CenterFrequencyHz = 144.8e6 }).Info;
+        CaptureInfo info = CaptureSource
+            .Open(
+                TestData.Path("sigmf", "cw-cf32.sigmf-meta"),
+                new ReaderOptions { SampleRateHz = 200000, CenterFrequencyHz = 144.8e6 }
+            )
+            .Info;
         Assert.Equal(200000, info.SampleRateHz);
         Assert.Equal(144.8e6, info.CenterFrequencyHz);
         Assert.Contains(info.Notes, n => n.Contains("overrides core:sample_rate 250000"));

@@ -9,15 +9,53 @@ public class RoundTripTests
     public static TheoryData<string, string> Cases()
     {
         var data = new TheoryData<string, string>();
-        string[] words = ["cu8", "ci8", "ci16_le", "ci16_be", "ci32_le", "ci32_be", "cu16_le", "cu16_be", "cu32_le", "cu32_be", "cf32_le", "cf32_be", "cf64_le", "cf64_be",
-                          "ru8", "ri8", "ri16_le", "ri16_be", "ri32_le", "rf32_le", "rf32_be", "rf64_le"];
+        string[] words =
+        [
+            "cu8",
+            "ci8",
+            "ci16_le",
+            "ci16_be",
+            "ci32_le",
+            "ci32_be",
+            "cu16_le",
+            "cu16_be",
+            "cu32_le",
+            "cu32_be",
+            "cf32_le",
+            "cf32_be",
+            "cf64_le",
+            "cf64_be",
+            "ru8",
+            "ri8",
+            "ri16_le",
+            "ri16_be",
+            "ri32_le",
+            "rf32_le",
+            "rf32_be",
+            "rf64_le",
+        ];
         foreach (string w in words)
         {
             data.Add(w, "raw");
             data.Add(w, ".sigmf-meta");
             data.Add(w, ".sigmf");
         }
-        foreach (string w in new[] { "cu8", "ci16_le", "ci32_le", "cf32_le", "cf64_le", "ru8", "ri16_le", "ri32_le", "rf32_le", "rf64_le" }) data.Add(w, ".wav");
+        foreach (
+            string w in new[]
+            {
+                "cu8",
+                "ci16_le",
+                "ci32_le",
+                "cf32_le",
+                "cf64_le",
+                "ru8",
+                "ri16_le",
+                "ri32_le",
+                "rf32_le",
+                "rf64_le",
+            }
+        )
+            data.Add(w, ".wav");
         return data;
     }
 
@@ -30,8 +68,17 @@ public class RoundTripTests
         string path = tmp.File("rt" + (ending == "raw" ? "." + datatype : ending));
         var spec = new SignalSpec
         {
-            Kind = SignalKind.Fm, SampleRateHz = 32000, DurationS = 0.05, IsComplex = format.IsComplex, CarrierOffsetHz = format.IsComplex ? -1500 : 4000,
-            Amplitude = 0.6, ModulatingFrequencyHz = 700, PeakDeviationHz = 900, SnrDb = 25, Seed = 5, CenterFrequencyHz = 50e6,
+            Kind = SignalKind.Fm,
+            SampleRateHz = 32000,
+            DurationS = 0.05,
+            IsComplex = format.IsComplex,
+            CarrierOffsetHz = format.IsComplex ? -1500 : 4000,
+            Amplitude = 0.6,
+            ModulatingFrequencyHz = 700,
+            PeakDeviationHz = 900,
+            SnrDb = 25,
+            Seed = 5,
+            CenterFrequencyHz = 50e6,
         };
         SynthesisResult result = Synthesizer.Write(spec, path, format);
         Assert.Equal(0, result.ClippedValues);
@@ -41,7 +88,8 @@ public class RoundTripTests
         Assert.Equal(spec.SampleCount, source.Info.SampleCount);
         Assert.Equal(format.IsComplex, source.Info.IsComplex);
         Assert.Equal(32000, source.Info.SampleRateHz);
-        if (ending != "raw" && ending != ".wav") Assert.Equal(50e6, source.Info.CenterFrequencyHz);
+        if (ending != "raw" && ending != ".wav")
+            Assert.Equal(50e6, source.Info.CenterFrequencyHz);
         double[] read = TestData.ReadAll(source, blockSamples: 97);
 
         var expected = new double[spec.SampleCount * format.ComponentsPerSample];
@@ -65,7 +113,14 @@ public class RoundTripTests
     public void Integer_codes_clip_at_the_ends_of_their_range_and_are_counted()
     {
         using var tmp = new TempDir();
-        var spec = new SignalSpec { Kind = SignalKind.Cw, SampleRateHz = 1000, DurationS = 0.1, Amplitude = 1.0, CarrierOffsetHz = 0 };
+        var spec = new SignalSpec
+        {
+            Kind = SignalKind.Cw,
+            SampleRateHz = 1000,
+            DurationS = 0.1,
+            Amplitude = 1.0,
+            CarrierOffsetHz = 0,
+        };
         SynthesisResult r = Synthesizer.Write(spec, tmp.File("full.cs16"), SampleFormat.Parse("ci16_le"));
         // I = 1.0 (code 32768) does not fit a 16-bit code: clamped to 32767, once per sample.
         Assert.Equal(spec.SampleCount, r.ClippedValues);

@@ -34,14 +34,24 @@ public class WavReaderTests
         double[] expected = TestData.ReadF64(TestData.Path("wav", Path.ChangeExtension(file, ".f64")));
         double[] actual = TestData.ReadAll(source);
         Assert.Equal(expected.Length, actual.Length);
-        for (int i = 0; i < expected.Length; i++) Assert.True(Math.Abs(expected[i] - actual[i]) <= tolerance, $"sample {i}: sox {expected[i]:R}, read {actual[i]:R}");
+        for (int i = 0; i < expected.Length; i++)
+            Assert.True(
+                Math.Abs(expected[i] - actual[i]) <= tolerance,
+                $"sample {i}: sox {expected[i]:R}, read {actual[i]:R}"
+            );
         Assert.Empty(info.Warnings);
     }
 
     [Theory]
     [InlineData("sox-stereo-s16.wav", 8000, 400, "ci16_le", 0.0)]
     [InlineData("sox-stereo-f32.wav", 48000, 960, "cf32_le", SoxFloatQuantum)]
-    public void Two_channels_are_I_and_Q_with_I_on_channel_0(string file, int rate, int count, string datatype, double tolerance)
+    public void Two_channels_are_I_and_Q_with_I_on_channel_0(
+        string file,
+        int rate,
+        int count,
+        string datatype,
+        double tolerance
+    )
     {
         CaptureSource source = CaptureSource.Open(TestData.Path("wav", file));
         Assert.True(source.Info.IsComplex);
@@ -52,7 +62,8 @@ public class WavReaderTests
         double[] sox = TestData.ReadF64(TestData.Path("wav", Path.ChangeExtension(file, ".f64")));
         double[] iq = TestData.ReadAll(source);
         Assert.Equal(sox.Length, iq.Length);
-        for (int i = 0; i < sox.Length; i++) Assert.True(Math.Abs(sox[i] - iq[i]) <= tolerance);
+        for (int i = 0; i < sox.Length; i++)
+            Assert.True(Math.Abs(sox[i] - iq[i]) <= tolerance);
     }
 
     [Fact]
@@ -61,8 +72,12 @@ public class WavReaderTests
         string file = TestData.Path("wav", "sox-stereo-s16.wav");
         double[] sox = TestData.ReadF64(TestData.Path("wav", "sox-stereo-s16.f64"));
         double[] qi = TestData.ReadAll(CaptureSource.Open(file, new ReaderOptions { Channels = ChannelSelection.QI }));
-        double[] left = TestData.ReadAll(CaptureSource.Open(file, new ReaderOptions { Channels = ChannelSelection.Left }));
-        double[] right = TestData.ReadAll(CaptureSource.Open(file, new ReaderOptions { Channels = ChannelSelection.Right }));
+        double[] left = TestData.ReadAll(
+            CaptureSource.Open(file, new ReaderOptions { Channels = ChannelSelection.Left })
+        );
+        double[] right = TestData.ReadAll(
+            CaptureSource.Open(file, new ReaderOptions { Channels = ChannelSelection.Right })
+        );
         Assert.Equal(400, left.Length);
         for (int n = 0; n < 400; n++)
         {
@@ -82,11 +97,16 @@ public class WavReaderTests
         double[] sox = TestData.ReadF64(TestData.Path("wav", "sox-3ch-s16.f64"));
         for (int ch = 0; ch < 3; ch++)
         {
-            double[] x = TestData.ReadAll(CaptureSource.Open(file, new ReaderOptions { Channels = ChannelSelection.Index, ChannelIndex = ch }));
+            double[] x = TestData.ReadAll(
+                CaptureSource.Open(file, new ReaderOptions { Channels = ChannelSelection.Index, ChannelIndex = ch })
+            );
             Assert.Equal(400, x.Length);
-            for (int n = 0; n < 400; n++) Assert.Equal(sox[3 * n + ch], x[n]);
+            for (int n = 0; n < 400; n++)
+                Assert.Equal(sox[3 * n + ch], x[n]);
         }
-        Assert.Throws<CaptureException>(() => CaptureSource.Open(file, new ReaderOptions { Channels = ChannelSelection.Index, ChannelIndex = 3 }));
+        Assert.Throws<CaptureException>(() =>
+            CaptureSource.Open(file, new ReaderOptions { Channels = ChannelSelection.Index, ChannelIndex = 3 })
+        );
     }
 
     [Theory]
@@ -172,11 +192,25 @@ public class WavReaderTests
     {
         var ms = new MemoryStream();
         var w = new BinaryWriter(ms);
-        w.Write("RF64"u8); w.Write(uint.MaxValue); w.Write("WAVE"u8);
-        w.Write("ds64"u8); w.Write(28u); w.Write(dataBytes + 72); w.Write(dataBytes); w.Write(dataBytes / (channels * bits / 8)); w.Write(0u);
-        w.Write("fmt "u8); w.Write(16u); w.Write((ushort)1); w.Write((ushort)channels); w.Write(rate); w.Write(rate * channels * bits / 8);
-        w.Write((ushort)(channels * bits / 8)); w.Write((ushort)bits);
-        w.Write("data"u8); w.Write(uint.MaxValue);
+        w.Write("RF64"u8);
+        w.Write(uint.MaxValue);
+        w.Write("WAVE"u8);
+        w.Write("ds64"u8);
+        w.Write(28u);
+        w.Write(dataBytes + 72);
+        w.Write(dataBytes);
+        w.Write(dataBytes / (channels * bits / 8));
+        w.Write(0u);
+        w.Write("fmt "u8);
+        w.Write(16u);
+        w.Write((ushort)1);
+        w.Write((ushort)channels);
+        w.Write(rate);
+        w.Write(rate * channels * bits / 8);
+        w.Write((ushort)(channels * bits / 8));
+        w.Write((ushort)bits);
+        w.Write("data"u8);
+        w.Write(uint.MaxValue);
         return ms.ToArray();
     }
 }

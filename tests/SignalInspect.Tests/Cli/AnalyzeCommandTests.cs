@@ -26,7 +26,12 @@ public class AnalyzeCommandTests
         Near.Equal(70, j.GetProperty("am").GetProperty("depthPercent").GetDouble(), 1, "depth");
         Near.Equal(12000, j.GetProperty("carrier").GetProperty("frequencyHz").GetDouble(), 1, "carrier");
         Near.Equal(1000, j.GetProperty("modulatingFrequencyHz").GetDouble(), 1, "tone");
-        Near.Equal(2000, j.GetProperty("bandwidth").GetProperty("occupiedHz").GetDouble(), Math.Max(2 * j.GetProperty("bandwidth").GetProperty("rbwHz").GetDouble(), 60), "OBW = 2 fm");
+        Near.Equal(
+            2000,
+            j.GetProperty("bandwidth").GetProperty("occupiedHz").GetDouble(),
+            Math.Max(2 * j.GetProperty("bandwidth").GetProperty("rbwHz").GetDouble(), 60),
+            "OBW = 2 fm"
+        );
         Assert.Equal("2K00A3E", j.GetProperty("emissionDesignator").GetString());
         Assert.Equal(JsonValueKind.Null, j.GetProperty("fm").GetProperty("peakDeviationHz").ValueKind);
     }
@@ -53,7 +58,12 @@ public class AnalyzeCommandTests
         Near.Equal(15000, j.GetProperty("modulatingFrequencyHz").GetDouble(), 15, "tone");
         // beta = 5: OBW99 = 2 x 6 x 15 kHz = 180 kHz (Bessel sums, REFERENCE-VALUES.md).
         double rbw = j.GetProperty("bandwidth").GetProperty("rbwHz").GetDouble();
-        Near.Equal(180000, j.GetProperty("bandwidth").GetProperty("occupiedHz").GetDouble(), Math.Max(2 * rbw, 0.03 * 180000), "OBW");
+        Near.Equal(
+            180000,
+            j.GetProperty("bandwidth").GetProperty("occupiedHz").GetDouble(),
+            Math.Max(2 * rbw, 0.03 * 180000),
+            "OBW"
+        );
         Assert.Equal("180KF3E", j.GetProperty("emissionDesignator").GetString());
     }
 
@@ -69,7 +79,12 @@ public class AnalyzeCommandTests
         Near.Equal(2500 / Math.Sqrt(2), fm.GetProperty("rmsDeviationHz").GetDouble(), 25, "rms");
         Near.Equal(350, j.GetProperty("carrier").GetProperty("offsetHz").GetDouble(), 1, "offset");
         Near.Equal(350 / 151.62535, j.GetProperty("carrier").GetProperty("offsetPpm").GetDouble(), 0.01, "ppm");
-        Near.Equal(8000, j.GetProperty("bandwidth").GetProperty("occupiedHz").GetDouble(), 0.03 * 8000, "OBW (2.5 kHz / 1 kHz: 8.0 kHz)");
+        Near.Equal(
+            8000,
+            j.GetProperty("bandwidth").GetProperty("occupiedHz").GetDouble(),
+            0.03 * 8000,
+            "OBW (2.5 kHz / 1 kHz: 8.0 kHz)"
+        );
         Assert.Equal(151625000, j.GetProperty("capture").GetProperty("centerFrequencyHz").GetDouble());
         Assert.Equal(64, j.GetProperty("capture").GetProperty("sha256").GetString()!.Length);
     }
@@ -83,7 +98,12 @@ public class AnalyzeCommandTests
         Near.Equal(-777.7 / 462.5625, j.GetProperty("carrier").GetProperty("offsetPpm").GetDouble(), 0.005, "ppm");
         Assert.Equal("N0N", j.GetProperty("emissionDesignator").GetString());
         JsonElement n2 = Analyze(M("cw-462.sigmf-meta"), "--nominal", "462.5620M");
-        Near.Equal(-277.7, n2.GetProperty("carrier").GetProperty("offsetHz").GetDouble(), 1, "offset from another nominal");
+        Near.Equal(
+            -277.7,
+            n2.GetProperty("carrier").GetProperty("offsetHz").GetDouble(),
+            1,
+            "offset from another nominal"
+        );
     }
 
     [Fact]
@@ -103,14 +123,21 @@ public class AnalyzeCommandTests
     public void JSON_holds_every_documented_key()
     {
         JsonElement j = Analyze(M("nbfm-151625.sigmf-meta"));
-        foreach (string k in new[] { "sampleRateHz", "centerFrequencyHz", "samples", "durationS", "sha256" }) Assert.True(j.GetProperty("capture").TryGetProperty(k, out _), k);
-        foreach (string k in new[] { "frequencyHz", "offsetHz", "offsetPpm" }) Assert.True(j.GetProperty("carrier").TryGetProperty(k, out _), k);
-        foreach (string k in new[] { "occupiedHz", "lowerEdgeHz", "upperEdgeHz", "xdbHz", "xdb", "rbwHz" }) Assert.True(j.GetProperty("bandwidth").TryGetProperty(k, out _), k);
-        foreach (string k in new[] { "depthPercent", "positivePeakPercent", "negativePeakPercent" }) Assert.True(j.GetProperty("am").TryGetProperty(k, out _), k);
-        foreach (string k in new[] { "peakDeviationHz", "positivePeakHz", "negativePeakHz", "rmsDeviationHz" }) Assert.True(j.GetProperty("fm").TryGetProperty(k, out _), k);
+        foreach (string k in new[] { "sampleRateHz", "centerFrequencyHz", "samples", "durationS", "sha256" })
+            Assert.True(j.GetProperty("capture").TryGetProperty(k, out _), k);
+        foreach (string k in new[] { "frequencyHz", "offsetHz", "offsetPpm" })
+            Assert.True(j.GetProperty("carrier").TryGetProperty(k, out _), k);
+        foreach (string k in new[] { "occupiedHz", "lowerEdgeHz", "upperEdgeHz", "xdbHz", "xdb", "rbwHz" })
+            Assert.True(j.GetProperty("bandwidth").TryGetProperty(k, out _), k);
+        foreach (string k in new[] { "depthPercent", "positivePeakPercent", "negativePeakPercent" })
+            Assert.True(j.GetProperty("am").TryGetProperty(k, out _), k);
+        foreach (string k in new[] { "peakDeviationHz", "positivePeakHz", "negativePeakHz", "rmsDeviationHz" })
+            Assert.True(j.GetProperty("fm").TryGetProperty(k, out _), k);
         Assert.True(j.GetProperty("pm").TryGetProperty("peakDeviationRad", out _));
-        foreach (string k in new[] { "shiftHz", "symbolRateBd", "toneFrequenciesHz" }) Assert.True(j.GetProperty("fsk").TryGetProperty(k, out _), k);
-        foreach (string k in new[] { "modulation", "modulatingFrequencyHz", "emissionDesignator" }) Assert.True(j.TryGetProperty(k, out _), k);
+        foreach (string k in new[] { "shiftHz", "symbolRateBd", "toneFrequenciesHz" })
+            Assert.True(j.GetProperty("fsk").TryGetProperty(k, out _), k);
+        foreach (string k in new[] { "modulation", "modulatingFrequencyHz", "emissionDesignator" })
+            Assert.True(j.TryGetProperty(k, out _), k);
         Assert.Equal(26, j.GetProperty("bandwidth").GetProperty("xdb").GetDouble());
     }
 
@@ -123,7 +150,10 @@ public class AnalyzeCommandTests
         Assert.True(code == 0, stderr);
         Assert.Contains("modulation            cw", stdout);
         Assert.Contains("wrote", stdout);
-        Assert.Equal("cw", JsonDocument.Parse(File.ReadAllText(json)).RootElement.GetProperty("modulation").GetString());
+        Assert.Equal(
+            "cw",
+            JsonDocument.Parse(File.ReadAllText(json)).RootElement.GetProperty("modulation").GetString()
+        );
         Assert.Equal(2, CliRunner.Run("analyze", M("cw-462.sigmf-meta"), "--json", json).Code); // exists: needs --force
         Assert.Equal(2, CliRunner.Run("analyze", M("cw-462.sigmf-meta"), "--expect", "qam").Code);
         Assert.Equal(2, CliRunner.Run("analyze", M("cw-462.sigmf-meta"), "--obw-percent", "120").Code);

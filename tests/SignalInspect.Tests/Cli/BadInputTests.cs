@@ -21,7 +21,10 @@ public class BadInputTests
     [InlineData("unknown-datatype.sigmf-meta", "unknown datatype 'cf16_xx'")]
     [InlineData("rate-missing.sigmf-meta", "sample rate missing")]
     [InlineData("rate-zero.sigmf-meta", "must be a positive number")]
-    [InlineData("rate-negative.sigmf-meta", "sample rate -48000 Hz from global.core:sample_rate must be a positive number")]
+    [InlineData(
+        "rate-negative.sigmf-meta",
+        "sample rate -48000 Hz from global.core:sample_rate must be a positive number"
+    )]
     [InlineData("captures-not-array.sigmf-meta", "'captures' must be a JSON array")]
     [InlineData("data-missing.sigmf-meta", "data file data-missing.sigmf-data not found")]
     [InlineData("header-bytes-too-large.sigmf-meta", "beyond the 4000-byte data file")]
@@ -51,7 +54,14 @@ public class BadInputTests
     [InlineData("--sample-rate", "-2.4M", "must be a positive number")]
     public void Bad_reader_options_fail_with_exit_code_2(string option, string value, string problem)
     {
-        var (code, _, stderr) = CliRunner.Run("info", TestData.Path("raw", "tone-100k-2048k.cu8"), option, value, option == "--datatype" ? "--sample-rate" : "--datatype", option == "--datatype" ? "1M" : "cu8");
+        var (code, _, stderr) = CliRunner.Run(
+            "info",
+            TestData.Path("raw", "tone-100k-2048k.cu8"),
+            option,
+            value,
+            option == "--datatype" ? "--sample-rate" : "--datatype",
+            option == "--datatype" ? "1M" : "cu8"
+        );
         Assert.Equal(2, code);
         Assert.Contains(problem, stderr);
     }
@@ -111,8 +121,14 @@ public class CorpusTests
     public static TheoryData<string> Files()
     {
         var d = new TheoryData<string>();
-        foreach (string f in Directory.GetFiles(TestData.Path("bad")).Select(p => Path.GetFileName(p)).Order(StringComparer.Ordinal))
-            if (!f.EndsWith(".sigmf-data") && f != "README.md") d.Add(f);
+        foreach (
+            string f in Directory
+                .GetFiles(TestData.Path("bad"))
+                .Select(p => Path.GetFileName(p))
+                .Order(StringComparer.Ordinal)
+        )
+            if (!f.EndsWith(".sigmf-data") && f != "README.md")
+                d.Add(f);
         return d;
     }
 
@@ -133,7 +149,9 @@ public class CorpusTests
         else
         {
             Assert.Equal(2, code);
-            Assert.Single(stderr.Split('\n', StringSplitOptions.RemoveEmptyEntries), l => l.StartsWith("signalinspect: error: "));
+            Assert.Single(stderr.Split('\n', StringSplitOptions.RemoveEmptyEntries), l =>
+                l.StartsWith("signalinspect: error: ")
+            );
         }
         Assert.Equal(before, TestData.Sha256(path));
     }

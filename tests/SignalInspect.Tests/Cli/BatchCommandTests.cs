@@ -13,10 +13,26 @@ public class BatchCommandTests
     {
         string dir = Path.Combine(tmp.Path, "field");
         Directory.CreateDirectory(Path.Combine(dir, "day2"));
-        foreach (string f in new[] { "am-audio-12k.wav", "pm-iq.wav", "cw-462.sigmf-meta", "cw-462.sigmf-data", "nbfm-151625.sigmf-meta", "nbfm-151625.sigmf-data", "wbfm-1024k.cu8" })
+        foreach (
+            string f in new[]
+            {
+                "am-audio-12k.wav",
+                "pm-iq.wav",
+                "cw-462.sigmf-meta",
+                "cw-462.sigmf-data",
+                "nbfm-151625.sigmf-meta",
+                "nbfm-151625.sigmf-data",
+                "wbfm-1024k.cu8",
+            }
+        )
             File.Copy(TestData.Path("measure", f), Path.Combine(dir, f));
-        File.WriteAllText(Path.Combine(dir, "wbfm-1024k.cu8.si.json"), "{\"datatype\": \"cu8\", \"sampleRateHz\": 1024000, \"centerFrequencyHz\": 98100000}");
-        foreach (string f in new[] { "empty.wav", "text-named.wav", "syntax-error.sigmf-meta", "syntax-error.sigmf-data" })
+        File.WriteAllText(
+            Path.Combine(dir, "wbfm-1024k.cu8.si.json"),
+            "{\"datatype\": \"cu8\", \"sampleRateHz\": 1024000, \"centerFrequencyHz\": 98100000}"
+        );
+        foreach (
+            string f in new[] { "empty.wav", "text-named.wav", "syntax-error.sigmf-meta", "syntax-error.sigmf-data" }
+        )
             File.Copy(TestData.Path("bad", f), Path.Combine(dir, "day2", f));
         File.WriteAllText(Path.Combine(dir, "day2", "notes.txt"), "not a capture");
         return dir;
@@ -28,7 +44,8 @@ public class BatchCommandTests
     public void Mixed_folder_gives_one_row_per_capture_and_errors_for_the_bad_ones()
     {
         using var tmp = new TempDir();
-        string dir = MakeFolder(tmp), outDir = tmp.File("out");
+        string dir = MakeFolder(tmp),
+            outDir = tmp.File("out");
         var (code, stdout, stderr) = CliRunner.Run("batch", dir, "--out", outDir, "--jobs", "2");
         Assert.Equal(2, code); // some could not be read
         Assert.Contains("8 (5 ok, 3 could not be read)", stdout);
@@ -42,16 +59,31 @@ public class BatchCommandTests
         // The same numbers as analyze gives for this capture.
         var (_, json, _) = CliRunner.Run("analyze", TestData.Path("measure", "nbfm-151625.sigmf-meta"), "--json", "-");
         JsonElement a = JsonDocument.Parse(json).RootElement;
-        Assert.Equal(a.GetProperty("fm").GetProperty("peakDeviationHz").GetDouble(), nbfm.GetProperty("peakDeviationHz").GetDouble(), 6);
-        Assert.Equal(a.GetProperty("bandwidth").GetProperty("occupiedHz").GetDouble(), nbfm.GetProperty("occupiedHz").GetDouble(), 6);
-        Assert.Equal(a.GetProperty("carrier").GetProperty("offsetHz").GetDouble(), nbfm.GetProperty("offsetHz").GetDouble(), 6);
+        Assert.Equal(
+            a.GetProperty("fm").GetProperty("peakDeviationHz").GetDouble(),
+            nbfm.GetProperty("peakDeviationHz").GetDouble(),
+            6
+        );
+        Assert.Equal(
+            a.GetProperty("bandwidth").GetProperty("occupiedHz").GetDouble(),
+            nbfm.GetProperty("occupiedHz").GetDouble(),
+            6
+        );
+        Assert.Equal(
+            a.GetProperty("carrier").GetProperty("offsetHz").GetDouble(),
+            nbfm.GetProperty("offsetHz").GetDouble(),
+            6
+        );
         JsonElement wbfm = recs.Single(r => r.GetProperty("file").GetString()!.EndsWith(".cu8"));
         Near.Equal(75000, wbfm.GetProperty("peakDeviationHz").GetDouble(), 750, "sidecar-read cu8 deviation");
         var errors = recs.Where(r => r.GetProperty("status").GetString() == "error").ToList();
         Assert.Equal(3, errors.Count);
         Assert.All(errors, e => Assert.False(string.IsNullOrEmpty(e.GetProperty("error").GetString())));
         Assert.Contains(errors, e => e.GetProperty("error").GetString()!.Contains("not valid JSON at line"));
-        Assert.StartsWith("file,status,modulation,carrierFrequencyHz,offsetHz,occupiedHz,peakDeviationHz,depthPercent,verdict,error", Csv(outDir));
+        Assert.StartsWith(
+            "file,status,modulation,carrierFrequencyHz,offsetHz,occupiedHz,peakDeviationHz,depthPercent,verdict,error",
+            Csv(outDir)
+        );
         Assert.True(new FileInfo(Path.Combine(outDir, "summary.pdf")).Length > 1000);
     }
 
@@ -60,14 +92,30 @@ public class BatchCommandTests
     {
         using var tmp = new TempDir();
         string dir = MakeFolder(tmp);
-        string profile = Path.Combine(Path.GetDirectoryName(TestData.Path("x"))!, "..", "profiles", "land-mobile-12k5-vhf.json");
+        string profile = Path.Combine(
+            Path.GetDirectoryName(TestData.Path("x"))!,
+            "..",
+            "profiles",
+            "land-mobile-12k5-vhf.json"
+        );
         CliRunner.Run("batch", dir, "--out", tmp.File("serial"), "--jobs", "1", "--limits", profile);
         CliRunner.Run("batch", dir, "--out", tmp.File("parallel"), "--jobs", "3", "--limits", profile);
         Assert.Equal(Csv(tmp.File("serial")), Csv(tmp.File("parallel")));
-        for (int i = 1; i <= 3; i++) CliRunner.Run("batch", dir, "--out", tmp.File($"shard{i}"), "--shard", $"{i}/3", "--limits", profile);
-        int parts = Enumerable.Range(1, 3).Sum(i => File.ReadAllLines(Path.Combine(tmp.File($"shard{i}"), "summary.jsonl")).Length);
+        for (int i = 1; i <= 3; i++)
+            CliRunner.Run("batch", dir, "--out", tmp.File($"shard{i}"), "--shard", $"{i}/3", "--limits", profile);
+        int parts = Enumerable
+            .Range(1, 3)
+            .Sum(i => File.ReadAllLines(Path.Combine(tmp.File($"shard{i}"), "summary.jsonl")).Length);
         Assert.Equal(8, parts); // each capture in exactly one shard
-        var (code, _, stderr) = CliRunner.Run("batch", "merge", tmp.File("shard1"), tmp.File("shard2"), tmp.File("shard3"), "--out", tmp.File("merged"));
+        var (code, _, stderr) = CliRunner.Run(
+            "batch",
+            "merge",
+            tmp.File("shard1"),
+            tmp.File("shard2"),
+            tmp.File("shard3"),
+            "--out",
+            tmp.File("merged")
+        );
         Assert.True(code is 1 or 2, stderr);
         Assert.Equal(Csv(tmp.File("serial")), Csv(tmp.File("merged")));
     }
@@ -76,7 +124,9 @@ public class BatchCommandTests
     public void Resume_after_an_interrupted_run_gives_the_same_summary()
     {
         using var tmp = new TempDir();
-        string dir = MakeFolder(tmp), outDir = tmp.File("out"), whole = tmp.File("whole");
+        string dir = MakeFolder(tmp),
+            outDir = tmp.File("out"),
+            whole = tmp.File("whole");
         CliRunner.Run("batch", dir, "--out", whole);
         CliRunner.Run("batch", dir, "--out", outDir);
         // Interrupted: only the first three records reached the summary.

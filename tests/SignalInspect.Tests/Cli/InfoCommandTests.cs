@@ -41,7 +41,13 @@ public class InfoCommandTests
     [Fact]
     public void Raw_cu8_with_options()
     {
-        JsonElement j = InfoJson(TestData.Path("raw", "tone-100k-2048k.cu8"), "--sample-rate", "2.048M", "--center-frequency", "433.92M");
+        JsonElement j = InfoJson(
+            TestData.Path("raw", "tone-100k-2048k.cu8"),
+            "--sample-rate",
+            "2.048M",
+            "--center-frequency",
+            "433.92M"
+        );
         Assert.Equal(2.048e6, j.GetProperty("sampleRateHz").GetDouble());
         Assert.Equal(433.92e6, j.GetProperty("centerFrequencyHz").GetDouble());
         Assert.Equal(8192, j.GetProperty("samples").GetInt64());

@@ -13,12 +13,24 @@ public class SpectrumCommandTests
     [InlineData("raw/tone-100k-2048k.cu8", "capture-tone-100k-2048k-cu8-fft512.csv", "512")]
     [InlineData("wav/sox-mono-s16.wav", "capture-sox-mono-s16-fft128.csv", "128")]
     [InlineData("wav/sox-stereo-f32.wav", "capture-sox-stereo-f32-fft256.csv", "256")]
-    public void CSV_agrees_with_scipy_within_0_05_dB_where_within_80_dB_of_the_peak(string capture, string reference, string fft)
+    public void CSV_agrees_with_scipy_within_0_05_dB_where_within_80_dB_of_the_peak(
+        string capture,
+        string reference,
+        string fft
+    )
     {
         using var tmp = new TempDir();
         string csv = tmp.File("psd.csv");
         string[] rate = capture.EndsWith(".cu8") ? ["--sample-rate", "2.048M"] : [];
-        var (code, stdout, stderr) = CliRunner.Run(["spectrum", TestData.Path(capture.Split('/')), "--fft", fft, "--csv", csv, .. rate]);
+        var (code, stdout, stderr) = CliRunner.Run([
+            "spectrum",
+            TestData.Path(capture.Split('/')),
+            "--fft",
+            fft,
+            "--csv",
+            csv,
+            .. rate,
+        ]);
         Assert.True(code == 0, stderr);
         Assert.Contains("wrote", stdout);
         Assert.Equal("frequencyHz,psdDbfsPerHz", File.ReadLines(csv).First());
@@ -30,7 +42,8 @@ public class SpectrumCommandTests
         for (int i = 0; i < rf.Length; i++)
         {
             Near.Equal(rf[i], f[i], 1e-6, "frequency");
-            if (rdb[i] < peak - 80) continue;
+            if (rdb[i] < peak - 80)
+                continue;
             Near.Equal(rdb[i], db[i], 0.05, $"PSD at {rf[i]} Hz");
             compared++;
         }
@@ -57,7 +70,8 @@ public class SpectrumCommandTests
     public void PNG_is_written_and_existing_outputs_are_kept_without_force()
     {
         using var tmp = new TempDir();
-        string png = tmp.File("s.png"), csv = tmp.File("s.csv");
+        string png = tmp.File("s.png"),
+            csv = tmp.File("s.csv");
         File.WriteAllText(csv, "old");
         string capture = TestData.Path("sigmf", "cw-cf32.sigmf-meta");
         var (code, _, stderr) = CliRunner.Run("spectrum", capture, "--csv", csv);
@@ -75,7 +89,15 @@ public class SpectrumCommandTests
     [Fact]
     public void Summary_reports_RBW_window_peak_and_DC_suppression()
     {
-        var (code, stdout, _) = CliRunner.Run("spectrum", TestData.Path("sigmf", "cw-cf32.sigmf-meta"), "--rbw", "100", "--window", "flattop", "--suppress-dc");
+        var (code, stdout, _) = CliRunner.Run(
+            "spectrum",
+            TestData.Path("sigmf", "cw-cf32.sigmf-meta"),
+            "--rbw",
+            "100",
+            "--window",
+            "flattop",
+            "--suppress-dc"
+        );
         Assert.Equal(0, code);
         // flat-top ENBW 3.7702 bins x 250000 / 8192 = 115.06 Hz (the power of two nearest to the 100 Hz asked).
         Assert.Contains("FFT 8192", stdout);

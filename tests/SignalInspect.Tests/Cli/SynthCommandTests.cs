@@ -13,7 +13,22 @@ public class SynthCommandTests
     {
         using var tmp = new TempDir();
         string path = tmp.File(file);
-        var (code, stdout, stderr) = CliRunner.Run("synth", path, "--kind", "am", "--depth", "80", "--sample-rate", "96k", "--duration", "0.25", "--center-frequency", "1.53M", "--snr", "30");
+        var (code, stdout, stderr) = CliRunner.Run(
+            "synth",
+            path,
+            "--kind",
+            "am",
+            "--depth",
+            "80",
+            "--sample-rate",
+            "96k",
+            "--duration",
+            "0.25",
+            "--center-frequency",
+            "1.53M",
+            "--snr",
+            "30"
+        );
         Assert.True(code == 0, stderr);
         Assert.Contains("wrote", stdout);
         string[] extra = file.EndsWith(".cs16") ? ["--sample-rate", "96000"] : [];
@@ -23,7 +38,8 @@ public class SynthCommandTests
         Assert.Equal(container, j.GetProperty("container").GetString());
         Assert.Equal(96000, j.GetProperty("sampleRateHz").GetDouble());
         Assert.Equal(24000, j.GetProperty("samples").GetInt64());
-        if (container.StartsWith("SigMF")) Assert.Equal(1.53e6, j.GetProperty("centerFrequencyHz").GetDouble());
+        if (container.StartsWith("SigMF"))
+            Assert.Equal(1.53e6, j.GetProperty("centerFrequencyHz").GetDouble());
     }
 
     [Fact]
@@ -58,7 +74,24 @@ public class SynthCommandTests
     {
         using var tmp = new TempDir();
         string path = tmp.File("audio.wav");
-        Assert.Equal(0, CliRunner.Run("synth", path, "--real", "--kind", "fm", "--offset", "6k", "--datatype", "ri16_le", "--duration", "0.1").Code);
+        Assert.Equal(
+            0,
+            CliRunner
+                .Run(
+                    "synth",
+                    path,
+                    "--real",
+                    "--kind",
+                    "fm",
+                    "--offset",
+                    "6k",
+                    "--datatype",
+                    "ri16_le",
+                    "--duration",
+                    "0.1"
+                )
+                .Code
+        );
         var (_, json, _) = CliRunner.Run("info", path, "--json");
         JsonElement j = JsonDocument.Parse(json).RootElement;
         Assert.False(j.GetProperty("isComplex").GetBoolean());

@@ -23,7 +23,12 @@ public class ComplianceTests
     public void Mask_D_floor_uses_the_transmitter_power_when_given()
     {
         // 50 + 10 log10(5 W) = 56.99 dB, below the 70 dB cap.
-        var mask = new EmissionMask { Name = "D", Rule = "47cfr90.210d", TransmitterPowerW = 5 };
+        var mask = new EmissionMask
+        {
+            Name = "D",
+            Rule = "47cfr90.210d",
+            TransmitterPowerW = 5,
+        };
         Near.Equal(56.9897, mask.RequiredAttenuationDb(30000), 1e-3);
     }
 
@@ -60,7 +65,8 @@ public class ComplianceTests
         string dir = Path.Combine(Path.GetDirectoryName(TestData.Path("x"))!, "..", "profiles");
         string[] files = Directory.GetFiles(dir, "*.json");
         Assert.True(files.Length >= 5);
-        foreach (string f in files) Assert.False(string.IsNullOrWhiteSpace(LimitProfile.Load(f).Name));
+        foreach (string f in files)
+            Assert.False(string.IsNullOrWhiteSpace(LimitProfile.Load(f).Name));
         LimitProfile vhf = LimitProfile.Load(Path.Combine(dir, "land-mobile-12k5-vhf.json"));
         Assert.Equal(2.5, vhf.FrequencyTolerancePpm);
         Assert.Equal(2500, vhf.MaxPeakDeviationHz);
@@ -73,9 +79,15 @@ public class ComplianceTests
     [InlineData("{\"name\": \"x\", \"maxPeakDeviationHz\": -1}", "maxPeakDeviationHz must be a positive number")]
     [InlineData("{\"name\": \"x\", \"frequencyTolerance\": {}}", "frequencyTolerance needs")]
     [InlineData("{\"name\": \"x\", \"mask\": {\"rule\": \"90.210z\"}}", "mask.rule '90.210z' is not a known rule")]
-    [InlineData("{\"name\": \"x\", \"mask\": {\"points\": [[1000, 0], [500, 10]]}}", "mask.points[1] offsets must be 0 or more and ascending")]
+    [InlineData(
+        "{\"name\": \"x\", \"mask\": {\"points\": [[1000, 0], [500, 10]]}}",
+        "mask.points[1] offsets must be 0 or more and ascending"
+    )]
     [InlineData("{\"name\": \"x\", \"maxDeviation\": 2500}", "maxDeviation is not a profile field")]
-    [InlineData("{\"name\": \"x\", \"am\": {\"maxPositivePeakPercent\": true}}", "am.maxPositivePeakPercent must be a number")]
+    [InlineData(
+        "{\"name\": \"x\", \"am\": {\"maxPositivePeakPercent\": true}}",
+        "am.maxPositivePeakPercent must be a number"
+    )]
     public void A_bad_profile_gives_one_line_naming_the_field(string json, string message)
     {
         using var tmp = new TempDir();

@@ -17,14 +17,20 @@ public class FilterTests
         for (int n = 0; n < x.Length; n++)
         {
             double s = 0;
-            for (int k = 0; k < h.Length && k <= n; k++) s += h[k] * x[n - k];
+            for (int k = 0; k < h.Length && k <= n; k++)
+                s += h[k] * x[n - k];
             y[n] = s;
         }
         return y;
     }
 
     [Theory]
-    [InlineData(3)] [InlineData(17)] [InlineData(63)] [InlineData(64)] [InlineData(163)] [InlineData(1023)]
+    [InlineData(3)]
+    [InlineData(17)]
+    [InlineData(63)]
+    [InlineData(64)]
+    [InlineData(163)]
+    [InlineData(1023)]
     public void Block_FIR_equals_the_convolution_sum_directly_and_by_fast_convolution(int taps)
     {
         var rng = new Random(taps);
@@ -42,7 +48,8 @@ public class FilterTests
         }
         fir.Process(x.AsSpan(at), got.AsSpan(at));
         double scale = Math.Sqrt(taps);
-        for (int i = 0; i < x.Length; i++) Assert.True(Math.Abs(got[i] - want[i]) < 1e-12 * scale, $"sample {i}: {got[i]} vs {want[i]}");
+        for (int i = 0; i < x.Length; i++)
+            Assert.True(Math.Abs(got[i] - want[i]) < 1e-12 * scale, $"sample {i}: {got[i]} vs {want[i]}");
     }
 
     [Fact]
@@ -56,8 +63,10 @@ public class FilterTests
         double[] want = Convolve(h, x);
         var got = new double[x.Length];
         new BlockFir(h).Process(x, got);
-        for (int i = 0; i < 2500; i++) Assert.True(Math.Abs(got[i] - want[i]) < 1e-12 * Math.Sqrt(300), $"sample {i}");
-        for (int i = 2500; i < 2800; i++) Assert.True(double.IsNaN(got[i]), $"sample {i} should be NaN");
+        for (int i = 0; i < 2500; i++)
+            Assert.True(Math.Abs(got[i] - want[i]) < 1e-12 * Math.Sqrt(300), $"sample {i}");
+        for (int i = 2500; i < 2800; i++)
+            Assert.True(double.IsNaN(got[i]), $"sample {i} should be NaN");
     }
 
     [Fact]
@@ -69,7 +78,8 @@ public class FilterTests
         double[] want = Convolve(h, x);
         var buf = (double[])x.Clone();
         new BlockFir(h).Process(buf, buf);
-        for (int i = 0; i < x.Length; i++) Assert.Equal(want[i], buf[i], 9);
+        for (int i = 0; i < x.Length; i++)
+            Assert.Equal(want[i], buf[i], 9);
     }
 
     [Theory]
@@ -83,12 +93,20 @@ public class FilterTests
     [InlineData(false, 4, 61, false, true)]
     [InlineData(true, 2, 31, false, true)]
     [InlineData(true, 10, 201, true, true)]
-    public void Channel_decimator_equals_shift_filter_and_decimate_in_double(bool complex, int decimation, int taps, bool narrow, bool twoStage)
+    public void Channel_decimator_equals_shift_filter_and_decimate_in_double(
+        bool complex,
+        int decimation,
+        int taps,
+        bool narrow,
+        bool twoStage
+    )
     {
         // narrow: the 256-bit filter sums even where 512-bit ones are available (both paths are checked here).
         // twoStage: the reference does each step on its own in double: shift, the half-band convolution,
         // every other output (those at odd input samples), the second convolution, one in M / 2.
-        VectorWidth.Run(narrow, () => DecimatorAgainstDouble(complex, decimation, taps, twoStage ? FirDesign.HalfBand(160e3, 2.4e6, 80) : null));
+        VectorWidth.Run(narrow, () =>
+            DecimatorAgainstDouble(complex, decimation, taps, twoStage ? FirDesign.HalfBand(160e3, 2.4e6, 80) : null)
+        );
     }
 
     [Theory]
@@ -103,20 +121,23 @@ public class FilterTests
         // by the DTFT (the definition): within 1e-4 (80 dB ripple, Kaiser's design) of 1 over
         // [0, edge] and at least 80 dB down over [fs/2 - edge, fs/2]; DC gain 1.
         double[] h = FirDesign.HalfBand(edge, fs, 80);
-        int n = h.Length, c = (n - 1) / 2;
+        int n = h.Length,
+            c = (n - 1) / 2;
         Assert.Equal(3, n % 4);
         Assert.Equal(0.5, h[c]);
         for (int k = 0; k < n; k++)
         {
             Assert.Equal(h[k], h[n - 1 - k]);
-            if (k != c && (k - c) % 2 == 0) Assert.Equal(0.0, h[k]);
+            if (k != c && (k - c) % 2 == 0)
+                Assert.Equal(0.0, h[k]);
         }
         Assert.NotEqual(0.0, h[0]);
         Near.Equal(1, h.Sum(), 1e-12, "DC gain");
         double Gain(double f)
         {
             Complex sum = 0;
-            for (int k = 0; k < n; k++) sum += h[k] * Complex.Exp(new Complex(0, -2 * Math.PI * f / fs * (k - c)));
+            for (int k = 0; k < n; k++)
+                sum += h[k] * Complex.Exp(new Complex(0, -2 * Math.PI * f / fs * (k - c)));
             return sum.Magnitude;
         }
         for (int i = 0; i <= 200; i++)
@@ -134,33 +155,44 @@ public class FilterTests
         // An output is the same sum whether eight, four or one were computed at a time, and a
         // restart (Reset) gives the outputs of a fresh plan.
         var rng = new Random(13);
-        double[] hb = FirDesign.HalfBand(142.5e3, 2.4e6, 80), h = FirDesign.LowPass(118e3, 1.2e6, 47e3, 80, 4095);
+        double[] hb = FirDesign.HalfBand(142.5e3, 2.4e6, 80),
+            h = FirDesign.LowPass(118e3, 1.2e6, 47e3, 80, 4095);
         double[] input = [.. Enumerable.Range(0, 2 * 30_000).Select(_ => rng.NextDouble() * 2 - 1)];
         (double[] Re, double[] Im) Run(int[] sizes, bool narrow, bool reset) => VectorWidth.Run(narrow, () =>
-        {
-            var dec = new ChannelDecimator(h, 6, -12_345.6, 2.4e6, true, hb);
-            if (reset)
             {
-                dec.Process(input.AsSpan(0, 2 * 777), new double[200], new double[200]);
-                dec.Reset();
-            }
-            return InPieces(dec, input, sizes);
-        });
+                var dec = new ChannelDecimator(h, 6, -12_345.6, 2.4e6, true, hb);
+                if (reset)
+                {
+                    dec.Process(input.AsSpan(0, 2 * 777), new double[200], new double[200]);
+                    dec.Reset();
+                }
+                return InPieces(dec, input, sizes);
+            });
         var whole = Run([30_000], false, false);
         Assert.Equal(5000, whole.Re.Length);
-        foreach (var other in new[] { Run([7, 13, 1, 5000, 11, 24_968], false, false), Run([3, 1024, 1, 2047, 26_925], true, false), Run([30_000], true, true) })
+        foreach (
+            var other in new[]
+            {
+                Run([7, 13, 1, 5000, 11, 24_968], false, false),
+                Run([3, 1024, 1, 2047, 26_925], true, false),
+                Run([30_000], true, true),
+            }
+        )
         {
             Assert.Equal(whole.Re, other.Re);
             Assert.Equal(whole.Im, other.Im);
         }
     }
 
-    /// <summary>The outputs of complex <paramref name="input"/> fed in pieces of the given sizes (the last runs to the end).</summary>
+    /// <summary>The outputs of complex <paramref name="input"/> fed in pieces of the given sizes (the last runs to the
+    /// end).</summary>
     private static (double[] Re, double[] Im) InPieces(ChannelDecimator dec, double[] input, int[] sizes)
     {
         int count = input.Length / 2;
-        double[] re = new double[count], im = new double[count];
-        int produced = 0, at = 0;
+        double[] re = new double[count],
+            im = new double[count];
+        int produced = 0,
+            at = 0;
         foreach (int size in sizes)
         {
             int len = Math.Min(size, count - at);
@@ -181,7 +213,8 @@ public class FilterTests
             var rng = new Random(11);
             double[] h = FirDesign.LowPass(100e3, 2.4e6, 60e3, 80, 255);
             double[] input = [.. Enumerable.Range(0, 2 * 30_000).Select(_ => rng.NextDouble() * 2 - 1)];
-            (double[] Re, double[] Im) Run(int[] sizes) => InPieces(new ChannelDecimator(h, 6, -12_345.6, 2.4e6, true), input, sizes);
+            (double[] Re, double[] Im) Run(int[] sizes) =>
+                InPieces(new ChannelDecimator(h, 6, -12_345.6, 2.4e6, true), input, sizes);
             var whole = Run([30_000]);
             var pieces = Run([7, 13, 1, 5000, 11, 24_968]);
             Assert.Equal(whole.Re, pieces.Re);
@@ -200,12 +233,15 @@ public class FilterTests
         input[777] = double.NaN;
         float[] inputF = [.. input.Select(v => (float)v)];
         (double[], double[], double[], double[]) Run(bool narrow) => VectorWidth.Run(narrow, () =>
-        {
-            double[] re = new double[4000], im = new double[4000], reF = new double[4000], imF = new double[4000];
-            new ChannelDecimator(h, 6, -12_345.6, 2.4e6, true).Process(input, re, im);
-            new ChannelDecimator(h, 6, -12_345.6, 2.4e6, true).Process(inputF, reF, imF);
-            return (re, im, reF, imF);
-        });
+            {
+                double[] re = new double[4000],
+                    im = new double[4000],
+                    reF = new double[4000],
+                    imF = new double[4000];
+                new ChannelDecimator(h, 6, -12_345.6, 2.4e6, true).Process(input, re, im);
+                new ChannelDecimator(h, 6, -12_345.6, 2.4e6, true).Process(inputF, reF, imF);
+                return (re, im, reF, imF);
+            });
         var wide = Run(false);
         var narrow = Run(true);
         Assert.Equal(narrow.Item1, wide.Item1);
@@ -216,38 +252,53 @@ public class FilterTests
 
     private static void DecimatorAgainstDouble(bool complex, int decimation, int taps, double[]? halfBand = null)
     {
-        const double fs = 2.4e6, shift = -12_345.6;
+        const double fs = 2.4e6,
+            shift = -12_345.6;
         var rng = new Random(taps);
         int count = 70_001;
         double[] h = FirDesign.LowPass(100e3, halfBand is null ? fs : fs / 2, 60e3, 80, taps);
         var input = new double[complex ? 2 * count : count];
-        for (int i = 0; i < input.Length; i++) input[i] = rng.NextDouble() * 2 - 1;
+        for (int i = 0; i < input.Length; i++)
+            input[i] = rng.NextDouble() * 2 - 1;
         // Reference: shift every sample, convolve I and Q, keep outputs at inputs (m + 1) M - 1.
         var sr = new double[count];
         var si = new double[count];
         for (int n = 0; n < count; n++)
         {
-            double a = 2 * Math.PI * shift * n / fs, xr = complex ? input[2 * n] : input[n], xi = complex ? input[2 * n + 1] : 0;
+            double a = 2 * Math.PI * shift * n / fs,
+                xr = complex ? input[2 * n] : input[n],
+                xi = complex ? input[2 * n + 1] : 0;
             sr[n] = xr * Math.Cos(a) - xi * Math.Sin(a);
             si[n] = xr * Math.Sin(a) + xi * Math.Cos(a);
         }
-        double[] yr, yi;
-        if (halfBand is null) (yr, yi) = (Convolve(h, sr), Convolve(h, si));
+        double[] yr,
+            yi;
+        if (halfBand is null)
+            (yr, yi) = (Convolve(h, sr), Convolve(h, si));
         else
         {
             // Half-band outputs at odd input samples, then the second filter at half the rate; its
             // output u lands at input 2u + 1, so output m ((m + 1) M / 2 - 1 at half rate) at (m + 1) M - 1.
-            double[] hr = Convolve(halfBand, sr), hi = Convolve(halfBand, si);
-            double[] ur = [.. Enumerable.Range(0, count / 2).Select(u => hr[2 * u + 1])], ui = [.. Enumerable.Range(0, count / 2).Select(u => hi[2 * u + 1])];
-            double[] vr = Convolve(h, ur), vi = Convolve(h, ui);
+            double[] hr = Convolve(halfBand, sr),
+                hi = Convolve(halfBand, si);
+            double[] ur = [.. Enumerable.Range(0, count / 2).Select(u => hr[2 * u + 1])],
+                ui = [.. Enumerable.Range(0, count / 2).Select(u => hi[2 * u + 1])];
+            double[] vr = Convolve(h, ur),
+                vi = Convolve(h, ui);
             yr = new double[count];
             yi = new double[count];
-            for (int u = 0; u < vr.Length; u++) { yr[2 * u + 1] = vr[u]; yi[2 * u + 1] = vi[u]; }
+            for (int u = 0; u < vr.Length; u++)
+            {
+                yr[2 * u + 1] = vr[u];
+                yi[2 * u + 1] = vi[u];
+            }
         }
         var dec = new ChannelDecimator(h, decimation, shift, fs, complex, halfBand);
         var outRe = new double[count / decimation + 4];
         var outIm = new double[count / decimation + 4];
-        int produced = 0, at = 0, vps = complex ? 2 : 1;
+        int produced = 0,
+            at = 0,
+            vps = complex ? 2 : 1;
         foreach (int size in new[] { 3, 1000, 65536, 1, 3000, int.MaxValue })
         {
             int len = Math.Min(size, count - at);
@@ -260,7 +311,10 @@ public class FilterTests
         for (int m = 0; m < produced; m++)
         {
             int n = (m + 1) * decimation - 1;
-            Assert.True(Math.Abs(outRe[m] - yr[n]) < 2e-6 && Math.Abs(outIm[m] - yi[n]) < 2e-6, $"output {m}: ({outRe[m]}, {outIm[m]}) vs ({yr[n]}, {yi[n]})");
+            Assert.True(
+                Math.Abs(outRe[m] - yr[n]) < 2e-6 && Math.Abs(outIm[m] - yi[n]) < 2e-6,
+                $"output {m}: ({outRe[m]}, {outIm[m]}) vs ({yr[n]}, {yi[n]})"
+            );
         }
     }
 
@@ -270,13 +324,20 @@ public class FilterTests
         double[] h = FirDesign.LowPass(0.1, 1, 0.05, 60, 101);
         var clean = new double[2 * 4000];
         var dirty = new double[2 * 4000];
-        for (int i = 0; i < clean.Length; i++) dirty[i] = clean[i] = Math.Sin(0.01 * i);
-        dirty[501] = double.NaN; clean[501] = 0;
-        dirty[2000] = double.PositiveInfinity; clean[2000] = 0;
+        for (int i = 0; i < clean.Length; i++)
+            dirty[i] = clean[i] = Math.Sin(0.01 * i);
+        dirty[501] = double.NaN;
+        clean[501] = 0;
+        dirty[2000] = double.PositiveInfinity;
+        clean[2000] = 0;
         var a = new ChannelDecimator(h, 4, 0.01, 1, true);
         var b = new ChannelDecimator(h, 4, 0.01, 1, true);
-        double[] ar = new double[1001], ai = new double[1001], br = new double[1001], bi = new double[1001];
-        int na = a.Process(clean, ar, ai), nb = b.Process(dirty, br, bi);
+        double[] ar = new double[1001],
+            ai = new double[1001],
+            br = new double[1001],
+            bi = new double[1001];
+        int na = a.Process(clean, ar, ai),
+            nb = b.Process(dirty, br, bi);
         Assert.Equal(na, nb);
         Assert.Equal(ar, br);
         Assert.Equal(ai, bi);
@@ -350,7 +411,8 @@ public class FilterTests
     public void Jittered_sampler_phases_are_spread_evenly()
     {
         var counts = new int[JitteredSampler.Phases];
-        for (long i = 0; i < 640_000; i++) counts[JitteredSampler.PhaseOf(i)]++;
+        for (long i = 0; i < 640_000; i++)
+            counts[JitteredSampler.PhaseOf(i)]++;
         // 10 000 expected per phase, drawn in groups of four samples: a standard deviation of about
         // 4 sqrt(2500) = 200, so within 1000 (5 standard deviations).
         Assert.All(counts, c => Assert.InRange(c, 9_000, 11_000));

@@ -41,8 +41,19 @@ public class WindowTests
     {
         // scipy.signal.get_window('hann', 8) (fftbins=True): 0, 0.1464, 0.5, 0.8536, 1, 0.8536, 0.5, 0.1464
         Window w = Window.Create(WindowKind.Hann, 8);
-        double[] want = [0, 0.14644660940672624, 0.5, 0.8535533905932737, 1, 0.8535533905932737, 0.5, 0.14644660940672624];
-        for (int i = 0; i < 8; i++) Near.Equal(want[i], w.Coefficients[i], 1e-15);
+        double[] want =
+        [
+            0,
+            0.14644660940672624,
+            0.5,
+            0.8535533905932737,
+            1,
+            0.8535533905932737,
+            0.5,
+            0.14644660940672624,
+        ];
+        for (int i = 0; i < 8; i++)
+            Near.Equal(want[i], w.Coefficients[i], 1e-15);
     }
 
     [Theory]

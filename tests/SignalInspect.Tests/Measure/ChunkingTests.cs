@@ -23,7 +23,10 @@ public class ChunkingTests
             CaptureSource src = CaptureSource.Open(path, new ReaderOptions { SampleRateHz = 2.4e6 });
             return Analyzer.Analyze(src, new AnalysisOptions { Threads = threads, Expect = expect });
         }
-        finally { DemodulationPass.ChunkOutputsForTests = null; }
+        finally
+        {
+            DemodulationPass.ChunkOutputsForTests = null;
+        }
     }
 
     private static string Capture(TempDir tmp, SignalSpec spec)
@@ -34,10 +37,10 @@ public class ChunkingTests
     }
 
     [Theory]
-    [InlineData(4_800_000L, 1200, 1 << 18)]    // 10 s at 480 kS/s: a sixteenth is 300 000, the power of two at or below it
-    [InlineData(28_800_000L, 1200, 1 << 20)]   // 60 s: capped
-    [InlineData(100_000L, 1200, 1 << 16)]      // short: the floor
-    [InlineData(4_800_000L, 60_000, 1 << 19)]  // a long high-pass settling: eight warm-ups
+    [InlineData(4_800_000L, 1200, 1 << 18)] // 10 s at 480 kS/s: a sixteenth is 300 000, the power of two at or below it
+    [InlineData(28_800_000L, 1200, 1 << 20)] // 60 s: capped
+    [InlineData(100_000L, 1200, 1 << 16)] // short: the floor
+    [InlineData(4_800_000L, 60_000, 1 << 19)] // a long high-pass settling: eight warm-ups
     public void Chunk_length_follows_the_stream_not_the_threads(long expected, int warmUp, int want)
     {
         int len = DemodulationPass.ChunkLength(expected, warmUp);
@@ -46,12 +49,18 @@ public class ChunkingTests
     }
 
     [Theory]
-    [InlineData(28_800_000L, 1 << 20, 1200, 35, 1 << 18)]   // 60 s at 480 kS/s: 25 whole chunks, the last 2.47 lengths in 10 quarters
-    [InlineData(4_800_000L, 1 << 18, 1200, 26, 1 << 16)]    // 10 s: 16 whole, 2.31 lengths in 10 quarters
-    [InlineData(4_800_000L, 1 << 16, 1200, 74, 1 << 16)]    // a quarter would fall below the floor: whole lengths throughout
-    [InlineData(4_800_000L, 1 << 19, 30_000, 12, 240_000)]  // pieces of eight warm-ups (above a quarter): 7 whole, 5 pieces
-    [InlineData(150_000L, 1 << 17, 1200, 1, 150_000)]       // at most 1.5 lengths: one chunk
-    public void Chunks_cover_the_stream_with_quarters_at_its_end(long expected, int length, int warmUp, int chunks, int tailPiece)
+    [InlineData(28_800_000L, 1 << 20, 1200, 35, 1 << 18)] // 60 s at 480 kS/s: 25 whole chunks, the last 2.47 lengths in 10 quarters
+    [InlineData(4_800_000L, 1 << 18, 1200, 26, 1 << 16)] // 10 s: 16 whole, 2.31 lengths in 10 quarters
+    [InlineData(4_800_000L, 1 << 16, 1200, 74, 1 << 16)] // a quarter would fall below the floor: whole lengths throughout
+    [InlineData(4_800_000L, 1 << 19, 30_000, 12, 240_000)] // pieces of eight warm-ups (above a quarter): 7 whole, 5 pieces
+    [InlineData(150_000L, 1 << 17, 1200, 1, 150_000)] // at most 1.5 lengths: one chunk
+    public void Chunks_cover_the_stream_with_quarters_at_its_end(
+        long expected,
+        int length,
+        int warmUp,
+        int chunks,
+        int tailPiece
+    )
     {
         // Internal consistency of the layout: contiguous from 0 to the end, whole lengths first,
         // then pieces no longer than the tail's (a quarter, at least MinChunk and eight warm-ups)
@@ -61,13 +70,16 @@ public class ChunkingTests
         Assert.Equal(0, b[0]);
         Assert.Equal(expected, b[^1]);
         int c = 0;
-        for (; c < b.Length - 1 && b[c + 1] - b[c] == length && expected - b[c + 1] >= 2L * length; c++) { }
+        for (; c < b.Length - 1 && b[c + 1] - b[c] == length && expected - b[c + 1] >= 2L * length; c++)
+        { }
         long tail = expected - b[c];
-        if (chunks > 1) Assert.InRange(tail, 2L * length, 3L * length - 1);
+        if (chunks > 1)
+            Assert.InRange(tail, 2L * length, 3L * length - 1);
         for (; c < b.Length - 1; c++)
         {
             Assert.InRange(b[c + 1] - b[c], 1, tailPiece);
-            if (c < b.Length - 2) Assert.Equal(tailPiece, b[c + 1] - b[c]);
+            if (c < b.Length - 2)
+                Assert.Equal(tailPiece, b[c + 1] - b[c]);
         }
     }
 
@@ -75,23 +87,73 @@ public class ChunkingTests
     public void FM_through_several_chunks_is_the_same_on_one_thread_and_two_and_close_to_one_run()
     {
         using var tmp = new TempDir();
-        string path = Capture(tmp, new SignalSpec { Kind = SignalKind.Fm, SampleRateHz = 2.4e6, DurationS = 1.5, PeakDeviationHz = 75e3, ModulatingFrequencyHz = 1e3, CarrierOffsetHz = 12.5e3, SnrDb = 40 });
-        AnalysisResult one = Run(path, 1 << 17, 1), two = Run(path, 1 << 17, 2), whole = Run(path, null, 2);
-        Assert.Equal(Encoding.UTF8.GetString(AnalysisJson.ToBytes(one)), Encoding.UTF8.GetString(AnalysisJson.ToBytes(two)));
-        Near.Equal(whole.Fm!.PeakDeviationHz.Value, one.Fm!.PeakDeviationHz.Value, 5e-4 * whole.Fm.PeakDeviationHz.Value, "peak deviation, chunked vs one run");
+        string path = Capture(
+            tmp,
+            new SignalSpec
+            {
+                Kind = SignalKind.Fm,
+                SampleRateHz = 2.4e6,
+                DurationS = 1.5,
+                PeakDeviationHz = 75e3,
+                ModulatingFrequencyHz = 1e3,
+                CarrierOffsetHz = 12.5e3,
+                SnrDb = 40,
+            }
+        );
+        AnalysisResult one = Run(path, 1 << 17, 1),
+            two = Run(path, 1 << 17, 2),
+            whole = Run(path, null, 2);
+        Assert.Equal(
+            Encoding.UTF8.GetString(AnalysisJson.ToBytes(one)),
+            Encoding.UTF8.GetString(AnalysisJson.ToBytes(two))
+        );
+        Near.Equal(
+            whole.Fm!.PeakDeviationHz.Value,
+            one.Fm!.PeakDeviationHz.Value,
+            5e-4 * whole.Fm.PeakDeviationHz.Value,
+            "peak deviation, chunked vs one run"
+        );
         Near.Equal(whole.Fm.RmsDeviationHz, one.Fm.RmsDeviationHz, 1e-6 * whole.Fm.RmsDeviationHz, "rms deviation");
-        Near.Equal(whole.Carrier!.FrequencyHz.Value, one.Carrier!.FrequencyHz.Value, 1e-6, "carrier (the phase carried across chunks)");
-        Near.Equal(whole.ModulatingFrequencyHz!.Value.Value, one.ModulatingFrequencyHz!.Value.Value, 0.05, "modulating frequency");
+        Near.Equal(
+            whole.Carrier!.FrequencyHz.Value,
+            one.Carrier!.FrequencyHz.Value,
+            1e-6,
+            "carrier (the phase carried across chunks)"
+        );
+        Near.Equal(
+            whole.ModulatingFrequencyHz!.Value.Value,
+            one.ModulatingFrequencyHz!.Value.Value,
+            0.05,
+            "modulating frequency"
+        );
     }
 
     [Fact]
     public void PM_phase_histogram_is_continuous_across_chunks()
     {
         using var tmp = new TempDir();
-        string path = Capture(tmp, new SignalSpec { Kind = SignalKind.Pm, SampleRateHz = 2.4e6, DurationS = 1.0, PeakPhaseRad = 1.0, ModulatingFrequencyHz = 1e3, CarrierOffsetHz = -20e3, SnrDb = 50 });
-        AnalysisResult chunked = Run(path, 1 << 17, 2, ModulationKind.Pm), whole = Run(path, null, 2, ModulationKind.Pm);
+        string path = Capture(
+            tmp,
+            new SignalSpec
+            {
+                Kind = SignalKind.Pm,
+                SampleRateHz = 2.4e6,
+                DurationS = 1.0,
+                PeakPhaseRad = 1.0,
+                ModulatingFrequencyHz = 1e3,
+                CarrierOffsetHz = -20e3,
+                SnrDb = 50,
+            }
+        );
+        AnalysisResult chunked = Run(path, 1 << 17, 2, ModulationKind.Pm),
+            whole = Run(path, null, 2, ModulationKind.Pm);
         // A phase not carried across a chunk edge would shift that chunk's phase by up to pi and smear the histogram.
-        Near.Equal(whole.Pm!.PeakDeviationRad.Value, chunked.Pm!.PeakDeviationRad.Value, 2e-3, "peak phase deviation, chunked vs one run");
+        Near.Equal(
+            whole.Pm!.PeakDeviationRad.Value,
+            chunked.Pm!.PeakDeviationRad.Value,
+            2e-3,
+            "peak phase deviation, chunked vs one run"
+        );
         Near.Equal(1.0, chunked.Pm.PeakDeviationRad.Value, 0.01, "peak phase deviation against the synthesised 1 rad");
     }
 }

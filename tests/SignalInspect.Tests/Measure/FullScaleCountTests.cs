@@ -21,10 +21,14 @@ public class FullScaleCountTests
         for (int i = 0; i < n; i++)
         {
             f[i] = (float)(2 * rng.NextDouble() - 1);
-            if (i % 97 == 3) f[i] = 0.9999f;
-            if (i % 131 == 5) f[i] = -1f;
-            if (i % 173 == 7) f[i] = float.NaN;
-            if (i % 211 == 9) f[i] = float.NegativeInfinity;
+            if (i % 97 == 3)
+                f[i] = 0.9999f;
+            if (i % 131 == 5)
+                f[i] = -1f;
+            if (i % 173 == 7)
+                f[i] = float.NaN;
+            if (i % 211 == 9)
+                f[i] = float.NegativeInfinity;
         }
         double[] d = [.. f.Select(v => (double)v)];
         const float limitF = 0.9999f;

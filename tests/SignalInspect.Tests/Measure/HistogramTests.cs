@@ -12,14 +12,25 @@ public class HistogramTests
     public void A_block_counts_exactly_what_values_one_by_one_count()
     {
         var rng = new Random(4);
-        double[] v = [.. Enumerable.Range(0, 10_007).Select(i => i % 97 == 0 ? double.NaN : i % 89 == 0 ? 5.0 : rng.NextDouble() * 2.4 - 1.2)];
+        double[] v =
+        [
+            .. Enumerable
+                .Range(0, 10_007)
+                .Select(i =>
+                    i % 97 == 0 ? double.NaN
+                    : i % 89 == 0 ? 5.0
+                    : rng.NextDouble() * 2.4 - 1.2
+                ),
+        ];
         var block = new Histogram(-1, 1, 1000);
         var single = new Histogram(-1, 1, 1000);
         block.Add(v);
-        foreach (double x in v) single.Add(x);
+        foreach (double x in v)
+            single.Add(x);
         Assert.Equal(single.Count, block.Count);
         Assert.Equal(v.Count(x => !double.IsNaN(x)), block.Count);
-        for (int b = 0; b < block.Bins; b++) Assert.Equal(single[b], block[b]);
+        for (int b = 0; b < block.Bins; b++)
+            Assert.Equal(single[b], block[b]);
     }
 
     [Fact]
@@ -31,7 +42,12 @@ public class HistogramTests
         h.Add(v);
         double[] sorted = [.. v.Order()];
         foreach (double p in new[] { 0.001, 0.5, 0.999 })
-            Near.Equal(sorted[(int)(p * (sorted.Length - 1))], h.Percentile(p), 2 * h.BinWidth + 1e-4, $"percentile {p}");
+            Near.Equal(
+                sorted[(int)(p * (sorted.Length - 1))],
+                h.Percentile(p),
+                2 * h.BinWidth + 1e-4,
+                $"percentile {p}"
+            );
     }
 
     [Fact]
@@ -40,7 +56,10 @@ public class HistogramTests
         // The histogram visits only the bins it has counted in when merging and ranking; checked
         // against one histogram fed every value and against the sorted values (the definition).
         var rng = new Random(6);
-        double[] a = [.. Enumerable.Range(0, 5003).Select(i => i % 101 == 0 ? double.NaN : 0.30 + 0.01 * rng.NextDouble())];
+        double[] a =
+        [
+            .. Enumerable.Range(0, 5003).Select(i => i % 101 == 0 ? double.NaN : 0.30 + 0.01 * rng.NextDouble()),
+        ];
         double[] b = [.. Enumerable.Range(0, 4001).Select(_ => -0.52 - 0.02 * rng.NextDouble())];
         var ha = new Histogram(-1, 1, 1 << 18);
         var hb = new Histogram(-1, 1, 1 << 18);
@@ -49,7 +68,8 @@ public class HistogramTests
         var all = new Histogram(-1, 1, 1 << 18);
         ha.Add(a);
         hb.Add(b.AsSpan(0, 3001));
-        foreach (double x in b.AsSpan(3001)) hb.Add(x);   // the one-value insert widens the range too
+        foreach (double x in b.AsSpan(3001))
+            hb.Add(x); // the one-value insert widens the range too
         nanOnly.Add([double.NaN, double.NaN, double.NaN, double.NaN, double.NaN]);
         all.Add(a);
         all.Add(b);
@@ -57,7 +77,8 @@ public class HistogramTests
         ha.Add(empty);
         ha.Add(nanOnly);
         Assert.Equal(all.Count, ha.Count);
-        for (int k = 0; k < all.Bins; k++) Assert.Equal(all[k], ha[k]);
+        for (int k = 0; k < all.Bins; k++)
+            Assert.Equal(all[k], ha[k]);
         double[] sorted = [.. a.Concat(b).Where(x => !double.IsNaN(x)).Order()];
         foreach (double p in new[] { 0.0, 0.001, 0.4, 0.5, 0.999, 1.0 })
         {
@@ -75,31 +96,45 @@ public class HistogramTests
         // that never move (the default limit holds 4e9 values) and against plain counting by the
         // definition, bin = floor((v - lo) / width) clamped, NaN ignored.
         var rng = new Random(7);
-        double[] v = [.. Enumerable.Range(0, 20_011).Select(i => i % 53 == 0 ? double.NaN : i % 7 == 0 ? 0.25 : rng.NextDouble() * 2.2 - 1.1)];
+        double[] v =
+        [
+            .. Enumerable
+                .Range(0, 20_011)
+                .Select(i =>
+                    i % 53 == 0 ? double.NaN
+                    : i % 7 == 0 ? 0.25
+                    : rng.NextDouble() * 2.2 - 1.1
+                ),
+        ];
         foreach (int limit in new[] { 37, 1000 })
         {
             var moved = new Histogram(-1, 1, 512) { HoldLimit = limit };
             var other = new Histogram(-1, 1, 512) { HoldLimit = limit };
             var plain = new Histogram(-1, 1, 512);
-            for (int at = 0; at < 12_000; at += 100) moved.Add(v.AsSpan(at, 100));
-            foreach (double x in v.AsSpan(12_000, 3_000)) moved.Add(x);
+            for (int at = 0; at < 12_000; at += 100)
+                moved.Add(v.AsSpan(at, 100));
+            foreach (double x in v.AsSpan(12_000, 3_000))
+                moved.Add(x);
             other.Add(v.AsSpan(15_000));
             moved.Add(other);
             plain.Add(v);
             var byDefinition = new long[512];
-            foreach (double x in v.Where(x => !double.IsNaN(x))) byDefinition[(int)Math.Clamp(Math.Floor((x + 1) / (2.0 / 512)), 0, 511)]++;
+            foreach (double x in v.Where(x => !double.IsNaN(x)))
+                byDefinition[(int)Math.Clamp(Math.Floor((x + 1) / (2.0 / 512)), 0, 511)]++;
             Assert.Equal(v.Count(x => !double.IsNaN(x)), moved.Count);
             for (int b = 0; b < 512; b++)
             {
                 Assert.Equal(byDefinition[b], moved[b]);
                 Assert.Equal(byDefinition[b], plain[b]);
             }
-            foreach (double p in new[] { 0.0, 0.01, 0.5, 0.93, 1.0 }) Assert.Equal(plain.Percentile(p), moved.Percentile(p));
+            foreach (double p in new[] { 0.0, 0.01, 0.5, 0.93, 1.0 })
+                Assert.Equal(plain.Percentile(p), moved.Percentile(p));
             Assert.Equal(plain.FractionBetween(0.2, 0.3), moved.FractionBetween(0.2, 0.3));
             // A histogram that never moved, merged with one that did.
             var fresh = new Histogram(-1, 1, 512);
             fresh.Add(moved);
-            for (int b = 0; b < 512; b++) Assert.Equal(byDefinition[b], fresh[b]);
+            for (int b = 0; b < 512; b++)
+                Assert.Equal(byDefinition[b], fresh[b]);
         }
     }
 }

@@ -19,7 +19,10 @@ public class LineSpectrumTests
         double[] a = [.. Enumerable.Range(0, n).Select(i => Math.Sin(0.05 * i) + 0.1 * (rng.NextDouble() - 0.5))];
         double[] b = [.. Enumerable.Range(0, n).Select(i => 3 + Math.Cos(0.31 * i) + 0.1 * (rng.NextDouble() - 0.5))];
         var ws = new LineSpectrum.Workspace(n);
-        LineSpectrum pa = new(n, 1000), pb = new(n, 1000), qa = new(n, 1000), qb = new(n, 1000);
+        LineSpectrum pa = new(n, 1000),
+            pb = new(n, 1000),
+            qa = new(n, 1000),
+            qb = new(n, 1000);
         pa.AddSegment(a, ws);
         pb.AddSegment(b, ws);
         LineSpectrum.AddSegments(qa, a, qb, b, ws);
@@ -46,7 +49,9 @@ public class LineSpectrumTests
         double[] b = [.. Enumerable.Range(0, n).Select(i => 1 + Math.Cos(0.7 * i) + rng.NextDouble() - 0.5)];
         var w = Window.Create(WindowKind.BlackmanHarris, n).Coefficients.ToArray();
         var ws = new LineSpectrum.Workspace(n);
-        LineSpectrum one = new(n, 1000), pa = new(n, 1000), pb = new(n, 1000);
+        LineSpectrum one = new(n, 1000),
+            pa = new(n, 1000),
+            pb = new(n, 1000);
         one.AddSegment(a, ws);
         LineSpectrum.AddSegments(pa, a, pb, b, ws);
         int step = Math.Max(1, n / 64);
@@ -54,7 +59,8 @@ public class LineSpectrumTests
         {
             double Direct(double[] x)
             {
-                double re = 0, im = 0;
+                double re = 0,
+                    im = 0;
                 for (int j = 0; j < n; j++)
                 {
                     double ph = -2 * Math.PI * ((long)k * j % n) / n;
@@ -63,7 +69,8 @@ public class LineSpectrumTests
                 }
                 return re * re + im * im;
             }
-            double da = Direct(a), db = Direct(b);
+            double da = Direct(a),
+                db = Direct(b);
             Assert.Equal(da, one.Power(k), 1e-9 * Math.Max(1, da));
             Assert.Equal(da, pa.Power(k), 1e-9 * Math.Max(1, da));
             Assert.Equal(db, pb.Power(k), 1e-9 * Math.Max(1, db));
@@ -78,12 +85,14 @@ public class LineSpectrumTests
         double[] a = [.. Enumerable.Range(0, n).Select(i => Math.Abs(Math.Sin(0.01 * i)) + rng.NextDouble())];
         double[] b = [.. Enumerable.Range(0, n).Select(i => Math.Abs(Math.Cos(0.02 * i)) + rng.NextDouble())];
         var ws = new LineSpectrum.Workspace(n);
-        LineSpectrum one = new(n, 1000), paired = new(n, 1000);
+        LineSpectrum one = new(n, 1000),
+            paired = new(n, 1000);
         one.AddSegment(a, ws);
         one.AddSegment(b, ws);
         LineSpectrum.AddSegments(paired, a, paired, b, ws);
         Assert.Equal(2, paired.Segments);
-        for (int k = 0; k <= n / 2; k++) Assert.Equal(one.Power(k), paired.Power(k), 1e-9 * Math.Max(1, one.Power(k)));
+        for (int k = 0; k <= n / 2; k++)
+            Assert.Equal(one.Power(k), paired.Power(k), 1e-9 * Math.Max(1, one.Power(k)));
     }
 
     [Theory]
@@ -96,9 +105,13 @@ public class LineSpectrumTests
         // Internal consistency: a ring buffer's two pieces, read in place, are the segment itself.
         const int n = 1024;
         var rng = new Random(split);
-        double[] a = [.. Enumerable.Range(0, n).Select(_ => rng.NextDouble())], b = [.. Enumerable.Range(0, n).Select(_ => rng.NextDouble())];
+        double[] a = [.. Enumerable.Range(0, n).Select(_ => rng.NextDouble())],
+            b = [.. Enumerable.Range(0, n).Select(_ => rng.NextDouble())];
         var ws = new LineSpectrum.Workspace(n);
-        LineSpectrum wa = new(n, 1000), wb = new(n, 1000), pa = new(n, 1000), pb = new(n, 1000);
+        LineSpectrum wa = new(n, 1000),
+            wb = new(n, 1000),
+            pa = new(n, 1000),
+            pb = new(n, 1000);
         LineSpectrum.AddSegments(wa, a, wb, b, ws);
         LineSpectrum.AddSegments(pa, a.AsSpan(0, split), a.AsSpan(split), pb, b.AsSpan(0, split), b.AsSpan(split), ws);
         for (int k = 0; k <= n / 2; k++)
@@ -106,7 +119,17 @@ public class LineSpectrumTests
             Assert.Equal(wa.Power(k), pa.Power(k));
             Assert.Equal(wb.Power(k), pb.Power(k));
         }
-        Assert.Throws<ArgumentException>(() => LineSpectrum.AddSegments(pa, a.AsSpan(0, split), a.AsSpan(split), pb, b.AsSpan(0, n - split), b.AsSpan(n - split), ws));
+        Assert.Throws<ArgumentException>(() =>
+            LineSpectrum.AddSegments(
+                pa,
+                a.AsSpan(0, split),
+                a.AsSpan(split),
+                pb,
+                b.AsSpan(0, n - split),
+                b.AsSpan(n - split),
+                ws
+            )
+        );
     }
 
     [Theory]
@@ -119,11 +142,23 @@ public class LineSpectrumTests
         // ring of N) transformed in place give the sums of the same segments in two pieces, bit for bit.
         const int n = 1024;
         var rng = new Random(startA + 3 * startB);
-        double[] ra = [.. Enumerable.Range(0, n).Select(_ => rng.NextDouble())], rb = [.. Enumerable.Range(0, n).Select(_ => 5 * rng.NextDouble())];
+        double[] ra = [.. Enumerable.Range(0, n).Select(_ => rng.NextDouble())],
+            rb = [.. Enumerable.Range(0, n).Select(_ => 5 * rng.NextDouble())];
         var ws = new LineSpectrum.Workspace(n);
-        LineSpectrum pa = new(n, 1000), pb = new(n, 1000), qa = new(n, 1000), qb = new(n, 1000);
+        LineSpectrum pa = new(n, 1000),
+            pb = new(n, 1000),
+            qa = new(n, 1000),
+            qb = new(n, 1000);
         double[] segB = [.. rb.AsSpan(startB), .. rb.AsSpan(0, startB)];
-        LineSpectrum.AddSegments(pa, ra.AsSpan(startA), ra.AsSpan(0, startA), pb, segB.AsSpan(0, n - startA), segB.AsSpan(n - startA), ws);
+        LineSpectrum.AddSegments(
+            pa,
+            ra.AsSpan(startA),
+            ra.AsSpan(0, startA),
+            pb,
+            segB.AsSpan(0, n - startA),
+            segB.AsSpan(n - startA),
+            ws
+        );
         LineSpectrum.AddRingSegments(qa, ra, startA, qb, rb, startB, ws);
         for (int k = 0; k <= n / 2; k++)
         {
@@ -150,7 +185,9 @@ public class LineSpectrumTests
         double[] bad = (double[])good.Clone();
         bad[17] = double.NaN;
         var ws = new LineSpectrum.Workspace(n);
-        LineSpectrum s = new(n, 1000), t = new(n, 1000), u = new(n, 1000);
+        LineSpectrum s = new(n, 1000),
+            t = new(n, 1000),
+            u = new(n, 1000);
         s.AddSegment(good, ws);
         s.AddSegment(bad, ws);
         LineSpectrum.AddSegments(t, bad, u, good, ws);
@@ -164,7 +201,8 @@ public class LineSpectrumTests
     public void A_tone_reads_at_its_frequency()
     {
         const int n = 8192;
-        const double fs = 48000, f = 1234.5;
+        const double fs = 48000,
+            f = 1234.5;
         var ws = new LineSpectrum.Workspace(n);
         var s = new LineSpectrum(n, fs);
         for (int seg = 0; seg < 4; seg++)

@@ -1,8 +1,8 @@
 using System.Runtime.InteropServices;
 using System.Text.Json.Nodes;
-using SignalInspect.Reporting;
 using SignalInspect.Capture;
 using SignalInspect.Measure;
+using SignalInspect.Reporting;
 using SignalInspect.Synthesis;
 
 namespace SignalInspect.Tests.Measure;
@@ -24,11 +24,25 @@ public class ReadPathTests
     public void A_cf32_capture_reads_as_its_exact_cf64_copy(SignalKind kind)
     {
         using var tmp = new TempDir();
-        string f32 = tmp.File("c.cf32"), f64 = tmp.File("c.cf64");
-        Synthesizer.Write(new SignalSpec { Kind = kind, SampleRateHz = 2.4e6, DurationS = 0.3, PeakDeviationHz = 50e3, AmDepth = 0.6, ModulatingFrequencyHz = 1e3, CarrierOffsetHz = 12.5e3, SnrDb = 35 },
-                          f32, SampleFormat.Parse("cf32_le"));
+        string f32 = tmp.File("c.cf32"),
+            f64 = tmp.File("c.cf64");
+        Synthesizer.Write(
+            new SignalSpec
+            {
+                Kind = kind,
+                SampleRateHz = 2.4e6,
+                DurationS = 0.3,
+                PeakDeviationHz = 50e3,
+                AmDepth = 0.6,
+                ModulatingFrequencyHz = 1e3,
+                CarrierOffsetHz = 12.5e3,
+                SnrDb = 35,
+            },
+            f32,
+            SampleFormat.Parse("cf32_le")
+        );
         float[] values = MemoryMarshal.Cast<byte, float>(File.ReadAllBytes(f32)).ToArray();
-        values[1001] = 1.0f;   // one full-scale component, counted on both paths
+        values[1001] = 1.0f; // one full-scale component, counted on both paths
         File.WriteAllBytes(f32, MemoryMarshal.AsBytes(values.AsSpan()).ToArray());
         File.WriteAllBytes(f64, MemoryMarshal.AsBytes(values.Select(v => (double)v).ToArray().AsSpan()).ToArray());
 
@@ -44,7 +58,8 @@ public class ReadPathTests
             o.Remove("capture");
             return o.ToJsonString();
         }
-        AnalysisResult a = Run(f32, "cf32_le"), b = Run(f64, "cf64_le");
+        AnalysisResult a = Run(f32, "cf32_le"),
+            b = Run(f64, "cf64_le");
         Assert.Equal(kind == SignalKind.Fm ? ModulationKind.Fm : ModulationKind.Am, a.Classification.Kind);
         double worst = Alike(JsonNode.Parse(Measurements(b)), JsonNode.Parse(Measurements(a)), "$");
         Assert.True(worst > 0, "the float transform rounds: some number should differ in its last digits");
@@ -54,8 +69,15 @@ public class ReadPathTests
         {
             MappedExtent.EnabledForTests.Value = map;
             MappedExtent.WindowBytesForTests.Value = window;
-            try { return Run(f32, "cf32_le"); }
-            finally { MappedExtent.EnabledForTests.Value = null; MappedExtent.WindowBytesForTests.Value = null; }
+            try
+            {
+                return Run(f32, "cf32_le");
+            }
+            finally
+            {
+                MappedExtent.EnabledForTests.Value = null;
+                MappedExtent.WindowBytesForTests.Value = null;
+            }
         }
         static string Json(AnalysisResult r) => System.Text.Encoding.UTF8.GetString(AnalysisJson.ToBytes(r));
         Assert.Equal(Json(a), Json(With(false, null)));
@@ -74,36 +96,41 @@ public class ReadPathTests
                 Assert.Null(actual);
                 return 0;
             case JsonObject eo:
-            {
-                JsonObject ao = Assert.IsType<JsonObject>(actual);
-                Assert.Equal(eo.Select(p => p.Key), ao.Select(p => p.Key));
-                return eo.Select(p => Alike(p.Value, ao[p.Key], $"{at}.{p.Key}")).DefaultIfEmpty(0).Max();
-            }
+                {
+                    JsonObject ao = Assert.IsType<JsonObject>(actual);
+                    Assert.Equal(eo.Select(p => p.Key), ao.Select(p => p.Key));
+                    return eo.Select(p => Alike(p.Value, ao[p.Key], $"{at}.{p.Key}")).DefaultIfEmpty(0).Max();
+                }
             case JsonArray ea:
-            {
-                JsonArray aa = Assert.IsType<JsonArray>(actual);
-                Assert.Equal(ea.Count, aa.Count);
-                return ea.Select((v, i) => Alike(v, aa[i], $"{at}[{i}]")).DefaultIfEmpty(0).Max();
-            }
+                {
+                    JsonArray aa = Assert.IsType<JsonArray>(actual);
+                    Assert.Equal(ea.Count, aa.Count);
+                    return ea.Select((v, i) => Alike(v, aa[i], $"{at}[{i}]")).DefaultIfEmpty(0).Max();
+                }
             default:
                 var ev = expected.AsValue();
                 if (ev.TryGetValue(out double e))
                 {
                     double v = actual!.AsValue().GetValue<double>();
-                    double d = Math.Abs(v - e), scale = Math.Max(Math.Abs(e), Math.Abs(v));
+                    double d = Math.Abs(v - e),
+                        scale = Math.Max(Math.Abs(e), Math.Abs(v));
                     Assert.True(d <= 1e-6 * scale + 1e-12, $"{at}: {v} against {e}");
                     return scale > 0 ? d / scale : 0;
                 }
-                // Strings alike with the numbers they print read the same way, a unit in their last printed place allowed.
-                string es = expected.ToJsonString(), acs = actual!.ToJsonString();
+                // Strings alike with the numbers they print read the same way, a unit in their last printed place
+                // allowed.
+                string es = expected.ToJsonString(),
+                    acs = actual!.ToJsonString();
                 var number = new System.Text.RegularExpressions.Regex(@"-?\d+(\.\d+)?");
                 Assert.Equal(number.Replace(es, "#"), number.Replace(acs, "#"));
                 double worst = 0;
                 foreach (var (m, n) in number.Matches(es).Zip(number.Matches(acs)))
                 {
-                    double e2 = double.Parse(m.Value, System.Globalization.CultureInfo.InvariantCulture), v2 = double.Parse(n.Value, System.Globalization.CultureInfo.InvariantCulture);
+                    double e2 = double.Parse(m.Value, System.Globalization.CultureInfo.InvariantCulture),
+                        v2 = double.Parse(n.Value, System.Globalization.CultureInfo.InvariantCulture);
                     int places = m.Groups[1].Success ? m.Groups[1].Value.Length - 1 : 0;
-                    double d = Math.Abs(v2 - e2), scale = Math.Max(Math.Abs(e2), Math.Abs(v2));
+                    double d = Math.Abs(v2 - e2),
+                        scale = Math.Max(Math.Abs(e2), Math.Abs(v2));
                     Assert.True(d <= 1e-6 * scale + Math.Pow(10, -places) + 1e-12, $"{at}: {acs} against {es}");
                     worst = Math.Max(worst, scale > 0 && d > Math.Pow(10, -places) ? d / scale : 0);
                 }

@@ -9,8 +9,10 @@ namespace SignalInspect.Tests.Measure;
 /// <summary>Checks against published values and bounds (sources named at each check).</summary>
 public class ReferenceTests
 {
-    /// <summary>Cramer-Rao bound for the frequency of one complex tone in white noise (Rife and Boorstyn 1974), cycles per sample.</summary>
-    internal static double CrbStdCyclesPerSample(double snr, int n) => Math.Sqrt(6 / (snr * n * ((double)n * n - 1))) / (2 * Math.PI);
+    /// <summary>Cramer-Rao bound for the frequency of one complex tone in white noise (Rife and Boorstyn 1974), cycles
+    /// per sample.</summary>
+    internal static double CrbStdCyclesPerSample(double snr, int n) =>
+        Math.Sqrt(6 / (snr * n * ((double)n * n - 1))) / (2 * Math.PI);
 
     [Fact]
     public void The_bound_formula_gives_the_reference_value()
@@ -23,16 +25,30 @@ public class ReferenceTests
     public void Carrier_estimate_spread_is_within_a_small_factor_of_the_Cramer_Rao_bound()
     {
         // 40 seeded trials of an unmodulated carrier, N = 8192, SNR 20 dB (A^2 / sigma^2, as the bound defines it).
-        const int n = 8192, trials = 40;
-        const double fs = 8192, f0 = 1000.3;
+        const int n = 8192,
+            trials = 40;
+        const double fs = 8192,
+            f0 = 1000.3;
         using var tmp = new TempDir();
         var errors = new List<double>();
         for (int seed = 1; seed <= trials; seed++)
         {
-            var spec = new SignalSpec { Kind = SignalKind.Cw, SampleRateHz = fs, DurationS = n / fs, CarrierOffsetHz = f0, Amplitude = 0.5, SnrDb = 20, Seed = seed };
+            var spec = new SignalSpec
+            {
+                Kind = SignalKind.Cw,
+                SampleRateHz = fs,
+                DurationS = n / fs,
+                CarrierOffsetHz = f0,
+                Amplitude = 0.5,
+                SnrDb = 20,
+                Seed = seed,
+            };
             string path = tmp.File($"crb{seed}.cf64");
             Synthesizer.Write(spec, path, SampleFormat.Parse("cf64_le"));
-            AnalysisResult r = Analyzer.Analyze(CaptureSource.Open(path, new ReaderOptions { SampleRateHz = fs }), new AnalysisOptions { Expect = ModulationKind.Cw });
+            AnalysisResult r = Analyzer.Analyze(
+                CaptureSource.Open(path, new ReaderOptions { SampleRateHz = fs }),
+                new AnalysisOptions { Expect = ModulationKind.Cw }
+            );
             errors.Add(r.Carrier!.OffsetHz - f0);
         }
         double mean = errors.Average();
@@ -48,14 +64,20 @@ public class ReferenceTests
     {
         string path = tmp.File($"s{Guid.NewGuid():N}.cf64");
         Synthesizer.Write(spec, path, SampleFormat.Parse("cf64_le"));
-        return WelchEstimator.Estimate(CaptureSource.Open(path, new ReaderOptions { SampleRateHz = spec.SampleRateHz }), new SpectrumSettings { FftSize = fft, Window = window }).Mean.In(SpectrumScaling.PowerPerBin);
+        return WelchEstimator
+            .Estimate(
+                CaptureSource.Open(path, new ReaderOptions { SampleRateHz = spec.SampleRateHz }),
+                new SpectrumSettings { FftSize = fft, Window = window }
+            )
+            .Mean.In(SpectrumScaling.PowerPerBin);
     }
 
     private static double LineDb(PowerSpectrum p, double hz)
     {
         int k = (int)Math.Round((hz - p.FrequenciesHz[0]) / p.BinWidthHz);
         double s = 0;
-        for (int i = k - 6; i <= k + 6; i++) s += p.Values[i];
+        for (int i = k - 6; i <= k + 6; i++)
+            s += p.Values[i];
         return 10 * Math.Log10(s);
     }
 
@@ -67,12 +89,23 @@ public class ReferenceTests
     {
         using var tmp = new TempDir();
         const double fm = 1000;
-        var nulled = new SignalSpec { Kind = SignalKind.Fm, SampleRateHz = 64000, DurationS = 1, PeakDeviationHz = beta * fm, ModulatingFrequencyHz = fm, CarrierOffsetHz = 0 };
+        var nulled = new SignalSpec
+        {
+            Kind = SignalKind.Fm,
+            SampleRateHz = 64000,
+            DurationS = 1,
+            PeakDeviationHz = beta * fm,
+            ModulatingFrequencyHz = fm,
+            CarrierOffsetHz = 0,
+        };
         var near = nulled with { PeakDeviationHz = (beta - 0.3) * fm };
         PowerSpectrum a = Spectrum(tmp, nulled, WindowKind.BlackmanHarris, 8192);
         PowerSpectrum b = Spectrum(tmp, near, WindowKind.BlackmanHarris, 8192);
         double firstSideband = LineDb(a, fm);
-        Assert.True(LineDb(a, 0) < firstSideband - 50, $"carrier {LineDb(a, 0):0.0} dB, first sideband {firstSideband:0.0} dB");
+        Assert.True(
+            LineDb(a, 0) < firstSideband - 50,
+            $"carrier {LineDb(a, 0):0.0} dB, first sideband {firstSideband:0.0} dB"
+        );
         Assert.True(LineDb(b, 0) > LineDb(b, fm) - 30, "0.3 away from the zero the carrier is back");
     }
 
@@ -84,7 +117,16 @@ public class ReferenceTests
     public void AM_sidebands_sit_at_20_log_m_over_2_dBc(double m, double dbc)
     {
         using var tmp = new TempDir();
-        var spec = new SignalSpec { Kind = SignalKind.Am, SampleRateHz = 32768, DurationS = 1, Amplitude = 0.4, AmDepth = m, ModulatingFrequencyHz = 2048, CarrierOffsetHz = 0 };
+        var spec = new SignalSpec
+        {
+            Kind = SignalKind.Am,
+            SampleRateHz = 32768,
+            DurationS = 1,
+            Amplitude = 0.4,
+            AmDepth = m,
+            ModulatingFrequencyHz = 2048,
+            CarrierOffsetHz = 0,
+        };
         PowerSpectrum p = Spectrum(tmp, spec, WindowKind.FlatTop, 4096);
         Near.Equal(dbc, LineDb(p, 2048) - LineDb(p, 0), 0.01, "upper sideband");
         Near.Equal(dbc, LineDb(p, -2048) - LineDb(p, 0), 0.01, "lower sideband");
@@ -96,10 +138,33 @@ public class ReferenceTests
         // Each sideband carries (m^2/4)/(1 + m^2/2) of the power [D]: below m = 0.142134 the 0.5 %
         // on each side is found inside the carrier line.
         using var tmp = new TempDir();
-        AnalysisResult deep = Measuring.Analyze(tmp, new SignalSpec { Kind = SignalKind.Am, SampleRateHz = 48000, DurationS = 1, AmDepth = 0.3, ModulatingFrequencyHz = 2000 });
-        AnalysisResult shallow = Measuring.Analyze(tmp, new SignalSpec { Kind = SignalKind.Am, SampleRateHz = 48000, DurationS = 1, AmDepth = 0.1, ModulatingFrequencyHz = 2000 });
+        AnalysisResult deep = Measuring.Analyze(
+            tmp,
+            new SignalSpec
+            {
+                Kind = SignalKind.Am,
+                SampleRateHz = 48000,
+                DurationS = 1,
+                AmDepth = 0.3,
+                ModulatingFrequencyHz = 2000,
+            }
+        );
+        AnalysisResult shallow = Measuring.Analyze(
+            tmp,
+            new SignalSpec
+            {
+                Kind = SignalKind.Am,
+                SampleRateHz = 48000,
+                DurationS = 1,
+                AmDepth = 0.1,
+                ModulatingFrequencyHz = 2000,
+            }
+        );
         Near.Equal(4000, deep.Bandwidth.OccupiedHz, 2 * deep.Method.RbwHz, "m = 0.3: 2 fm");
-        Assert.True(shallow.Bandwidth.OccupiedHz < 4 * shallow.Method.RbwHz, $"m = 0.1: {shallow.Bandwidth.OccupiedHz} Hz");
+        Assert.True(
+            shallow.Bandwidth.OccupiedHz < 4 * shallow.Method.RbwHz,
+            $"m = 0.1: {shallow.Bandwidth.OccupiedHz} Hz"
+        );
     }
 
     [Fact]
@@ -108,8 +173,23 @@ public class ReferenceTests
         // A flat PSD of width W has OBW99 = 0.99 W [D]. Complex white noise fills the whole band fs.
         using var tmp = new TempDir();
         string path = tmp.File("n.cf64");
-        Synthesizer.Write(new SignalSpec { Kind = SignalKind.Noise, SampleRateHz = 100000, DurationS = 2, Amplitude = 0.3 }, path, SampleFormat.Parse("cf64_le"));
-        PowerSpectrum p = WelchEstimator.Estimate(CaptureSource.Open(path, new ReaderOptions { SampleRateHz = 100000 }), new SpectrumSettings { FftSize = 1024 }).Mean;
+        Synthesizer.Write(
+            new SignalSpec
+            {
+                Kind = SignalKind.Noise,
+                SampleRateHz = 100000,
+                DurationS = 2,
+                Amplitude = 0.3,
+            },
+            path,
+            SampleFormat.Parse("cf64_le")
+        );
+        PowerSpectrum p = WelchEstimator
+            .Estimate(
+                CaptureSource.Open(path, new ReaderOptions { SampleRateHz = 100000 }),
+                new SpectrumSettings { FftSize = 1024 }
+            )
+            .Mean;
         BandwidthResult b = BandwidthMeasurement.Measure(p, 0.01, 26, NoiseFloorTreatment.Keep);
         Near.Equal(99000, b.OccupiedHz, 0.005 * 99000, "OBW");
     }
@@ -125,7 +205,15 @@ public class CoverageTests
         // bandwidth spans both sidebands (2 fm plus the window's main lobe), and the 10 dB bandwidth
         // holds only the carrier line (SM.443 Annex 2 definition: outermost points x dB down).
         using var tmp = new TempDir();
-        var spec = new SignalSpec { Kind = SignalKind.Am, SampleRateHz = 48000, DurationS = 1, AmDepth = 0.5, ModulatingFrequencyHz = 2000, SnrDb = 50 };
+        var spec = new SignalSpec
+        {
+            Kind = SignalKind.Am,
+            SampleRateHz = 48000,
+            DurationS = 1,
+            AmDepth = 0.5,
+            ModulatingFrequencyHz = 2000,
+            SnrDb = 50,
+        };
         AnalysisResult x26 = Measuring.Analyze(tmp, spec);
         AnalysisResult x10 = Measuring.Analyze(tmp, spec, new AnalysisOptions { Xdb = 10 });
         double rbw = x26.Method.RbwHz;
@@ -141,7 +229,18 @@ public class CoverageTests
         // high (the noise floor is the 10th percentile of the averaged PSD bins, below their mean);
         // hence the 1.5 dB tolerance.
         using var tmp = new TempDir();
-        AnalysisResult r = Measuring.Analyze(tmp, new SignalSpec { Kind = SignalKind.Fm, SampleRateHz = 48000, DurationS = 1.5, PeakDeviationHz = 2500, SnrDb = 25, Seed = 8 });
+        AnalysisResult r = Measuring.Analyze(
+            tmp,
+            new SignalSpec
+            {
+                Kind = SignalKind.Fm,
+                SampleRateHz = 48000,
+                DurationS = 1.5,
+                PeakDeviationHz = 2500,
+                SnrDb = 25,
+                Seed = 8,
+            }
+        );
         double expected = 25 + 10 * Math.Log10(48000 / r.Bandwidth.OccupiedHz);
         Near.Equal(expected, r.ChannelSnrDb, 1.5, "SNR in the occupied bandwidth");
     }
@@ -151,7 +250,18 @@ public class CoverageTests
     {
         // h = 2D / R = shift / symbol rate (common practice): 1000 Hz at 1200 Bd -> 0.833.
         using var tmp = new TempDir();
-        AnalysisResult r = Measuring.Analyze(tmp, new SignalSpec { Kind = SignalKind.Fsk, SampleRateHz = 48000, DurationS = 1.5, FskShiftHz = 1000, SymbolRateBd = 1200, SnrDb = 30 });
+        AnalysisResult r = Measuring.Analyze(
+            tmp,
+            new SignalSpec
+            {
+                Kind = SignalKind.Fsk,
+                SampleRateHz = 48000,
+                DurationS = 1.5,
+                FskShiftHz = 1000,
+                SymbolRateBd = 1200,
+                SnrDb = 30,
+            }
+        );
         Near.Equal(1000.0 / 1200, r.Fsk!.ModulationIndex!.Value, 0.02, "h");
     }
 }

@@ -15,7 +15,12 @@ public class SinePeakTests
     [Fact]
     public void Without_noise_the_arcsine_law()
     {
-        Near.Equal(1 / Math.Cos(Math.PI * 0.001), SinePeak.FromPercentile(1.0, 0), 1e-12, "peak from the 99.9th percentile of a unit sine");
+        Near.Equal(
+            1 / Math.Cos(Math.PI * 0.001),
+            SinePeak.FromPercentile(1.0, 0),
+            1e-12,
+            "peak from the 99.9th percentile of a unit sine"
+        );
     }
 
     [Theory]
@@ -27,7 +32,15 @@ public class SinePeakTests
     {
         double d = SinePeak.FromPercentile(level, sigma);
         // P(D sin(theta) + n > level), theta uniform on [0, 2 pi): (1/pi) int_0^pi Q((level - D cos phi) / sigma) dphi.
-        double p = Integrate.GaussKronrod(phi => 1 - Normal.CDF(0, 1, (level - d * Math.Cos(phi)) / sigma), 0, Math.PI, 1e-12, 20, 61) / Math.PI;
+        double p =
+            Integrate.GaussKronrod(
+                phi => 1 - Normal.CDF(0, 1, (level - d * Math.Cos(phi)) / sigma),
+                0,
+                Math.PI,
+                1e-12,
+                20,
+                61
+            ) / Math.PI;
         Near.Equal(0.001, p, 2e-9, $"exceedance of the level {level} by the returned peak {d}");
     }
 

@@ -18,7 +18,8 @@ public class ReliabilityTests
         int n = kind == "short" ? 20 : 20000;
         float fill = kind == "nan" ? float.NaN : 0;
         var bytes = new byte[n * 8];
-        for (int i = 0; i < 2 * n; i++) BitConverter.TryWriteBytes(bytes.AsSpan(4 * i), fill);
+        for (int i = 0; i < 2 * n; i++)
+            BitConverter.TryWriteBytes(bytes.AsSpan(4 * i), fill);
         File.WriteAllBytes(path, bytes);
         var (code, _, stderr) = CliRunner.Run("analyze", path, "--sample-rate", "48k");
         Assert.Equal(2, code);
@@ -30,17 +31,36 @@ public class ReliabilityTests
     {
         using var tmp = new TempDir();
         string root = TestData.Path();
-        var files = Directory.GetFiles(root, "*", SearchOption.AllDirectories).Where(f => !f.EndsWith(".py") && !f.EndsWith(".sh") && !f.EndsWith(".md")).ToList();
+        var files = Directory
+            .GetFiles(root, "*", SearchOption.AllDirectories)
+            .Where(f => !f.EndsWith(".py") && !f.EndsWith(".sh") && !f.EndsWith(".md"))
+            .ToList();
         var before = files.ToDictionary(f => f, TestData.Sha256);
         var times = files.ToDictionary(f => f, File.GetLastWriteTimeUtc);
-        foreach (string f in new[] { TestData.Path("measure", "nbfm-151625.sigmf-meta"), TestData.Path("wav", "sox-stereo-f32.wav"), TestData.Path("sigmf", "wbfm-archive.sigmf") })
+        foreach (
+            string f in new[]
+            {
+                TestData.Path("measure", "nbfm-151625.sigmf-meta"),
+                TestData.Path("wav", "sox-stereo-f32.wav"),
+                TestData.Path("sigmf", "wbfm-archive.sigmf"),
+            }
+        )
         {
             CliRunner.Run("info", f);
             CliRunner.Run("spectrum", f, "--fft", "256", "--csv", tmp.File(Guid.NewGuid() + ".csv"));
             CliRunner.Run("analyze", f, "--json", tmp.File(Guid.NewGuid() + ".json"));
         }
-        foreach (string f in Directory.GetFiles(TestData.Path("bad"))) CliRunner.Run("info", f);
-        CliRunner.Run("batch", TestData.Path("measure"), TestData.Path("bad"), "--out", tmp.File("batch"), "--sample-rate", "1.024M");
+        foreach (string f in Directory.GetFiles(TestData.Path("bad")))
+            CliRunner.Run("info", f);
+        CliRunner.Run(
+            "batch",
+            TestData.Path("measure"),
+            TestData.Path("bad"),
+            "--out",
+            tmp.File("batch"),
+            "--sample-rate",
+            "1.024M"
+        );
         foreach (string f in files)
         {
             Assert.Equal(before[f], TestData.Sha256(f));
@@ -92,17 +112,34 @@ public class ReliabilityTests
             Directory.CreateDirectory(dir);
             string path = Path.Combine(dir, name);
             File.WriteAllBytes(path, mutated);
-            if (pair) File.Copy(Path.ChangeExtension(src, ".sigmf-data"), Path.ChangeExtension(path, ".sigmf-data"));
+            if (pair)
+                File.Copy(Path.ChangeExtension(src, ".sigmf-data"), Path.ChangeExtension(path, ".sigmf-data"));
             try
             {
-                CaptureSource s = CaptureSource.Open(path, new ReaderOptions { Datatype = name.EndsWith(".iq") ? "ci16_le" : null, SampleRateHz = name.EndsWith(".iq") ? 1e6 : null, VerifyChecksum = c % 2 == 0 });
+                CaptureSource s = CaptureSource.Open(
+                    path,
+                    new ReaderOptions
+                    {
+                        Datatype = name.EndsWith(".iq") ? "ci16_le" : null,
+                        SampleRateHz = name.EndsWith(".iq") ? 1e6 : null,
+                        VerifyChecksum = c % 2 == 0,
+                    }
+                );
                 using CaptureReader r = s.OpenReader();
                 var buf = new double[4096];
                 long total = 0;
                 int got;
-                while ((got = r.Read(buf)) > 0) total += got;
+                while ((got = r.Read(buf)) > 0)
+                    total += got;
                 Assert.True(total <= s.Info.SampleCount);
-                Assert.True(s.Info.SampleCount * 1L <= Math.Max(mutated.Length, new FileInfo(path).Length + (pair ? new FileInfo(Path.ChangeExtension(path, ".sigmf-data")).Length : 0)));
+                Assert.True(
+                    s.Info.SampleCount * 1L
+                        <= Math.Max(
+                            mutated.Length,
+                            new FileInfo(path).Length
+                                + (pair ? new FileInfo(Path.ChangeExtension(path, ".sigmf-data")).Length : 0)
+                        )
+                );
             }
             catch (CaptureException e)
             {
@@ -120,17 +157,29 @@ public class ReliabilityTests
         {
             switch (rng.Next(json ? 6 : 5))
             {
-                case 0: d[rng.Next(d.Count)] = (byte)rng.Next(256); break;
-                case 1: d = d.Take(rng.Next(d.Count + 1)).ToList(); break;
-                case 2: d.InsertRange(rng.Next(d.Count), Enumerable.Range(0, 1 + rng.Next(16)).Select(_ => (byte)rng.Next(256))); break;
+                case 0:
+                    d[rng.Next(d.Count)] = (byte)rng.Next(256);
+                    break;
+                case 1:
+                    d = d.Take(rng.Next(d.Count + 1)).ToList();
+                    break;
+                case 2:
+                    d.InsertRange(
+                        rng.Next(d.Count),
+                        Enumerable.Range(0, 1 + rng.Next(16)).Select(_ => (byte)rng.Next(256))
+                    );
+                    break;
                 case 3:
                     // Overwrite a 4-byte field near the start (sizes live there) with a large or odd value.
                     int at = rng.Next(Math.Min(d.Count, 96));
                     uint[] nasty = [0xFFFFFFFF, 0x7FFFFFFF, 0, 1, 0x80000000, (uint)rng.Next()];
                     byte[] v = BitConverter.GetBytes(nasty[rng.Next(nasty.Length)]);
-                    for (int i = 0; i < 4 && at + i < d.Count; i++) d[at + i] = v[i];
+                    for (int i = 0; i < 4 && at + i < d.Count; i++)
+                        d[at + i] = v[i];
                     break;
-                case 4: d[rng.Next(d.Count)] ^= (byte)(1 << rng.Next(8)); break;
+                case 4:
+                    d[rng.Next(d.Count)] ^= (byte)(1 << rng.Next(8));
+                    break;
                 default:
                     // JSON: swap in a value of the wrong type or a huge number.
                     string[] words = ["null", "\"x\"", "[]", "{}", "1e308", "-1", "99999999999999999999", "true"];
@@ -139,7 +188,8 @@ public class ReliabilityTests
                     if (pos > 0)
                     {
                         int end = pos + 1;
-                        while (end < d.Count && d[end] != (byte)',' && d[end] != (byte)'}') end++;
+                        while (end < d.Count && d[end] != (byte)',' && d[end] != (byte)'}')
+                            end++;
                         d.RemoveRange(pos + 1, end - pos - 1);
                         d.InsertRange(pos + 1, w);
                     }
@@ -153,16 +203,25 @@ public class ReliabilityTests
     public void Mutated_profiles_fail_only_with_one_line_errors()
     {
         using var tmp = new TempDir();
-        string text = File.ReadAllText(Path.Combine(Path.GetDirectoryName(TestData.Path("x"))!, "..", "profiles", "land-mobile-12k5-vhf.json"));
+        string text = File.ReadAllText(
+            Path.Combine(Path.GetDirectoryName(TestData.Path("x"))!, "..", "profiles", "land-mobile-12k5-vhf.json")
+        );
         var rng = new Random(5);
         for (int c = 0; c < 300; c++)
         {
             char[] chars = text.ToCharArray();
-            for (int k = 0; k < 1 + rng.Next(3); k++) chars[rng.Next(chars.Length)] = "{}[]:,\"0-9ae \n"[rng.Next(14)];
+            for (int k = 0; k < 1 + rng.Next(3); k++)
+                chars[rng.Next(chars.Length)] = "{}[]:,\"0-9ae \n"[rng.Next(14)];
             string path = tmp.File($"p{c}.json");
             File.WriteAllText(path, new string(chars));
-            try { LimitProfile.Load(path); }
-            catch (CaptureException e) { Assert.DoesNotContain('\n', e.Message); }
+            try
+            {
+                LimitProfile.Load(path);
+            }
+            catch (CaptureException e)
+            {
+                Assert.DoesNotContain('\n', e.Message);
+            }
         }
     }
 }
@@ -175,11 +234,21 @@ public class WarningTests
     {
         using var tmp = new TempDir();
         // FM at +5 kHz plus a constant offset of 0.05 (a DC spike), then a clipped copy.
-        var spec = new SignalInspect.Synthesis.SignalSpec { Kind = SignalInspect.Synthesis.SignalKind.Fm, SampleRateHz = 48000, DurationS = 1, CarrierOffsetHz = 5000, PeakDeviationHz = 2000, SnrDb = 40 };
+        var spec = new SignalInspect.Synthesis.SignalSpec
+        {
+            Kind = SignalInspect.Synthesis.SignalKind.Fm,
+            SampleRateHz = 48000,
+            DurationS = 1,
+            CarrierOffsetHz = 5000,
+            PeakDeviationHz = 2000,
+            SnrDb = 40,
+        };
         var x = new double[spec.SampleCount * 2];
         new SignalInspect.Synthesis.SignalGenerator(spec).Generate(x);
-        for (int i = 0; i < x.Length; i += 2) x[i] += 0.05;
-        string dc = tmp.File("dc.cf64"), clip = tmp.File("clip.cf64");
+        for (int i = 0; i < x.Length; i += 2)
+            x[i] += 0.05;
+        string dc = tmp.File("dc.cf64"),
+            clip = tmp.File("clip.cf64");
         File.WriteAllBytes(dc, x.SelectMany(BitConverter.GetBytes).ToArray());
         File.WriteAllBytes(clip, x.Select(v => Math.Clamp(v * 2.5, -1, 1)).SelectMany(BitConverter.GetBytes).ToArray());
         var (_, _, e1) = CliRunner.Run("analyze", dc, "--sample-rate", "48k", "--datatype", "cf64_le");
@@ -195,7 +264,22 @@ public class WarningTests
     {
         using var tmp = new TempDir();
         string path = tmp.File("wide.sigmf");
-        CliRunner.Run("synth", path, "--kind", "fm", "--sample-rate", "24k", "--deviation", "9k", "--tone", "2k", "--duration", "1", "--snr", "40");
+        CliRunner.Run(
+            "synth",
+            path,
+            "--kind",
+            "fm",
+            "--sample-rate",
+            "24k",
+            "--deviation",
+            "9k",
+            "--tone",
+            "2k",
+            "--duration",
+            "1",
+            "--snr",
+            "40"
+        );
         var (_, _, stderr) = CliRunner.Run("analyze", path);
         Assert.Contains("sample rate", stderr);
     }

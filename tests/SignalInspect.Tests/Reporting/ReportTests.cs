@@ -6,7 +6,8 @@ namespace SignalInspect.Tests.Reporting;
 /// <summary>The PDF report read back with PdfPig: values with units, verdicts and the hash are in its text.</summary>
 public class ReportTests
 {
-    private static string ProfilePath(string name) => Path.Combine(Path.GetDirectoryName(TestData.Path("x"))!, "..", "profiles", name);
+    private static string ProfilePath(string name) =>
+        Path.Combine(Path.GetDirectoryName(TestData.Path("x"))!, "..", "profiles", name);
 
     private static string PdfText(string path)
     {
@@ -20,8 +21,22 @@ public class ReportTests
         using var tmp = new TempDir();
         string pdf = tmp.File("nbfm.pdf");
         string capture = TestData.Path("measure", "nbfm-151625.sigmf-meta");
-        var (code, stdout, stderr) = CliRunner.Run("analyze", capture, "--report", pdf, "--limits", ProfilePath("land-mobile-12k5-vhf.json"),
-            "--operator", "A. Mensah", "--equipment", "Reference generator", "--title", "NBFM reference check", "--paper", "letter");
+        var (code, stdout, stderr) = CliRunner.Run(
+            "analyze",
+            capture,
+            "--report",
+            pdf,
+            "--limits",
+            ProfilePath("land-mobile-12k5-vhf.json"),
+            "--operator",
+            "A. Mensah",
+            "--equipment",
+            "Reference generator",
+            "--title",
+            "NBFM reference check",
+            "--paper",
+            "letter"
+        );
         Assert.True(code is 0 or 1, stderr);
         Assert.Contains("verdict", stdout);
         string text = PdfText(pdf);
@@ -43,7 +58,8 @@ public class ReportTests
         Assert.Contains(obw.ToString("0.###", System.Globalization.CultureInfo.InvariantCulture), text);
         JsonElement[] checks = [.. model.GetProperty("checks").EnumerateArray()];
         Assert.Equal(4, checks.Length); // tolerance, deviation, OBW, mask
-        foreach (JsonElement c in checks) Assert.Contains(c.GetProperty("verdict").GetString()!, text);
+        foreach (JsonElement c in checks)
+            Assert.Contains(c.GetProperty("verdict").GetString()!, text);
         Assert.Contains(model.GetProperty("report").GetProperty("id").GetString()!, text);
         Assert.Equal(2, Directory.GetFiles(tmp.Path).Length); // the PDF and its JSON, no temporary file left
     }
@@ -53,7 +69,27 @@ public class ReportTests
     {
         using var tmp = new TempDir();
         string capture = tmp.File("over.sigmf");
-        Assert.Equal(0, CliRunner.Run("synth", capture, "--kind", "fm", "--deviation", "3.2k", "--sample-rate", "48k", "--duration", "1", "--snr", "40", "--center-frequency", "155.3125M").Code);
+        Assert.Equal(
+            0,
+            CliRunner
+                .Run(
+                    "synth",
+                    capture,
+                    "--kind",
+                    "fm",
+                    "--deviation",
+                    "3.2k",
+                    "--sample-rate",
+                    "48k",
+                    "--duration",
+                    "1",
+                    "--snr",
+                    "40",
+                    "--center-frequency",
+                    "155.3125M"
+                )
+                .Code
+        );
         var (code, stdout, _) = CliRunner.Run("analyze", capture, "--limits", ProfilePath("land-mobile-12k5-vhf.json"));
         Assert.Equal(1, code);
         Assert.Contains("FAIL", stdout);
@@ -85,7 +121,14 @@ public class ReportTests
         using var tmp = new TempDir();
         string profile = tmp.File("bad.json");
         File.WriteAllText(profile, "{\"name\": \"x\", \"maxPeakDeviationHz\": \"wide\"}");
-        var (code, _, stderr) = CliRunner.Run("analyze", TestData.Path("measure", "cw-462.sigmf-meta"), "--limits", profile, "--report", tmp.File("r.pdf"));
+        var (code, _, stderr) = CliRunner.Run(
+            "analyze",
+            TestData.Path("measure", "cw-462.sigmf-meta"),
+            "--limits",
+            profile,
+            "--report",
+            tmp.File("r.pdf")
+        );
         Assert.Equal(2, code);
         Assert.Contains("bad.json: maxPeakDeviationHz must be a number", stderr);
         Assert.Single(Directory.GetFiles(tmp.Path));
@@ -99,7 +142,7 @@ public class ReportTests
         Assert.True(code == 0, stderr);
         string[] pdfs = Directory.GetFiles(Path.Combine(tmp.Path, "demo"), "*.pdf");
         Assert.Equal(3, pdfs.Length);
-        Assert.Contains("FAIL", stdout);   // the handheld over-deviates (3.1 kHz against 2.5 kHz)
+        Assert.Contains("FAIL", stdout); // the handheld over-deviates (3.1 kHz against 2.5 kHz)
         Assert.Contains("PASS", stdout);
         string handheld = PdfText(pdfs.Single(p => p.Contains("handheld")));
         Assert.Contains("FAIL", handheld);

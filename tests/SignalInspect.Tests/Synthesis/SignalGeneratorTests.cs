@@ -16,7 +16,14 @@ public class SignalGeneratorTests
     [Fact]
     public void Carrier_is_A_exp_j_2pi_f0_t()
     {
-        var spec = new SignalSpec { Kind = SignalKind.Cw, SampleRateHz = 10000, DurationS = 0.2, CarrierOffsetHz = 1234.5, Amplitude = 0.3 };
+        var spec = new SignalSpec
+        {
+            Kind = SignalKind.Cw,
+            SampleRateHz = 10000,
+            DurationS = 0.2,
+            CarrierOffsetHz = 1234.5,
+            Amplitude = 0.3,
+        };
         Complex[] z = Complexes(spec);
         for (int n = 0; n < z.Length; n++)
             Assert.True((z[n] - Complex.FromPolarCoordinates(0.3, 2 * Math.PI * 1234.5 * n / 10000)).Magnitude < 1e-12);
@@ -25,12 +32,23 @@ public class SignalGeneratorTests
     [Fact]
     public void FM_phase_is_D_over_fm_sin_2pi_fm_t()
     {
-        var spec = new SignalSpec { Kind = SignalKind.Fm, SampleRateHz = 48000, DurationS = 0.1, CarrierOffsetHz = 300, PeakDeviationHz = 2500, ModulatingFrequencyHz = 1000 };
+        var spec = new SignalSpec
+        {
+            Kind = SignalKind.Fm,
+            SampleRateHz = 48000,
+            DurationS = 0.1,
+            CarrierOffsetHz = 300,
+            PeakDeviationHz = 2500,
+            ModulatingFrequencyHz = 1000,
+        };
         Complex[] z = Complexes(spec);
         for (int n = 0; n < z.Length; n++)
         {
             double t = n / 48000.0;
-            Complex want = Complex.FromPolarCoordinates(0.5, 2 * Math.PI * 300 * t + 2.5 * Math.Sin(2 * Math.PI * 1000 * t));
+            Complex want = Complex.FromPolarCoordinates(
+                0.5,
+                2 * Math.PI * 300 * t + 2.5 * Math.Sin(2 * Math.PI * 1000 * t)
+            );
             Assert.True((z[n] - want).Magnitude < 1e-9);
         }
     }
@@ -38,7 +56,15 @@ public class SignalGeneratorTests
     [Fact]
     public void AM_envelope_is_A_1_plus_m_cos()
     {
-        var spec = new SignalSpec { Kind = SignalKind.Am, SampleRateHz = 8000, DurationS = 0.1, Amplitude = 0.4, AmDepth = 0.8, ModulatingFrequencyHz = 500 };
+        var spec = new SignalSpec
+        {
+            Kind = SignalKind.Am,
+            SampleRateHz = 8000,
+            DurationS = 0.1,
+            Amplitude = 0.4,
+            AmDepth = 0.8,
+            ModulatingFrequencyHz = 500,
+        };
         Complex[] z = Complexes(spec);
         for (int n = 0; n < z.Length; n++)
             Assert.Equal(0.4 * (1 + 0.8 * Math.Cos(2 * Math.PI * 500 * n / 8000.0)), z[n].Magnitude, 12);
@@ -47,13 +73,22 @@ public class SignalGeneratorTests
     [Fact]
     public void FSK_steps_by_plus_or_minus_half_the_shift_with_continuous_phase()
     {
-        var spec = new SignalSpec { Kind = SignalKind.Fsk, SampleRateHz = 48000, DurationS = 0.1, CarrierOffsetHz = 200, FskShiftHz = 1000, SymbolRateBd = 1200 };
+        var spec = new SignalSpec
+        {
+            Kind = SignalKind.Fsk,
+            SampleRateHz = 48000,
+            DurationS = 0.1,
+            CarrierOffsetHz = 200,
+            FskShiftHz = 1000,
+            SymbolRateBd = 1200,
+        };
         Complex[] z = Complexes(spec);
         int[] seen = new int[2];
         for (int n = 0; n + 1 < z.Length; n++)
         {
             double f = (z[n + 1] * Complex.Conjugate(z[n])).Phase * 48000 / (2 * Math.PI);
-            bool upper = Math.Abs(f - 700) < 1e-6, lower = Math.Abs(f + 300) < 1e-6;
+            bool upper = Math.Abs(f - 700) < 1e-6,
+                lower = Math.Abs(f + 300) < 1e-6;
             Assert.True(upper || lower, $"step {n}: {f} Hz");
             seen[upper ? 1 : 0]++;
         }
@@ -63,9 +98,16 @@ public class SignalGeneratorTests
     [Fact]
     public void Noise_power_follows_the_SNR_over_the_sampled_bandwidth()
     {
-        var clean = new SignalSpec { Kind = SignalKind.Fm, SampleRateHz = 100000, DurationS = 2, PeakDeviationHz = 5000 };
+        var clean = new SignalSpec
+        {
+            Kind = SignalKind.Fm,
+            SampleRateHz = 100000,
+            DurationS = 2,
+            PeakDeviationHz = 5000,
+        };
         var noisy = clean with { SnrDb = 10, Seed = 42 };
-        Complex[] a = Complexes(clean), b = Complexes(noisy);
+        Complex[] a = Complexes(clean),
+            b = Complexes(noisy);
         double noise = a.Zip(b, (x, y) => (y - x).Magnitude * (y - x).Magnitude).Average();
         double signal = a.Average(x => x.Magnitude * x.Magnitude);
         // 200 000 complex Gaussian draws: the power estimate has a relative spread of 1/sqrt(200000) = 0.22 %.
@@ -77,14 +119,22 @@ public class SignalGeneratorTests
     [Fact]
     public void Output_does_not_depend_on_block_size()
     {
-        var spec = new SignalSpec { Kind = SignalKind.Fsk, SampleRateHz = 24000, DurationS = 0.3, SnrDb = 20, Seed = 9 };
+        var spec = new SignalSpec
+        {
+            Kind = SignalKind.Fsk,
+            SampleRateHz = 24000,
+            DurationS = 0.3,
+            SnrDb = 20,
+            Seed = 9,
+        };
         var whole = new double[spec.SampleCount * 2];
         new SignalGenerator(spec).Generate(whole);
         var gen = new SignalGenerator(spec);
         var parts = new List<double>();
         var block = new double[2 * 77];
         int n;
-        while ((n = gen.Generate(block)) > 0) parts.AddRange(block[..(2 * n)]);
+        while ((n = gen.Generate(block)) > 0)
+            parts.AddRange(block[..(2 * n)]);
         Assert.Equal(whole, parts);
     }
 

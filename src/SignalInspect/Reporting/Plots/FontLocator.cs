@@ -19,19 +19,26 @@ public static class FontLocator
 
     private static readonly string[] Folders =
     [
-        "/usr/share/fonts", "/usr/local/share/fonts", "/usr/share/fonts/truetype",
+        "/usr/share/fonts",
+        "/usr/local/share/fonts",
+        "/usr/share/fonts/truetype",
         Path.Combine(Environment.GetFolderPath(Environment.SpecialFolder.UserProfile), ".fonts"),
         Path.Combine(Environment.GetFolderPath(Environment.SpecialFolder.UserProfile), ".local", "share", "fonts"),
-        "/Library/Fonts", "/System/Library/Fonts", Environment.GetFolderPath(Environment.SpecialFolder.Fonts),
+        "/Library/Fonts",
+        "/System/Library/Fonts",
+        Environment.GetFolderPath(Environment.SpecialFolder.Fonts),
     ];
 
     private static readonly Lazy<(string Regular, string Bold, string Family)?> Found = new(Search);
 
     /// <summary>The regular and bold font files and the family name.</summary>
-    /// <exception cref="InvalidOperationException">No font was found (a one-line message saying what to install).</exception>
+    /// <exception cref="InvalidOperationException">No font was found (a one-line message saying what to
+    /// install).</exception>
     public static (string RegularPath, string BoldPath, string Family) Require() =>
-        Found.Value ?? throw new InvalidOperationException(
-            "no TrueType font found for plots and reports (looked for DejaVu Sans, Liberation Sans, Noto Sans, Arial in the system font folders): install one, e.g. 'apt-get install fonts-dejavu-core'");
+        Found.Value
+        ?? throw new InvalidOperationException(
+            "no TrueType font found for plots and reports (looked for DejaVu Sans, Liberation Sans, Noto Sans, Arial in the system font folders): install one, e.g. 'apt-get install fonts-dejavu-core'"
+        );
 
     private static (string, string, string)? Search()
     {
@@ -40,7 +47,8 @@ public static class FontLocator
             foreach (string folder in Folders.Where(f => !string.IsNullOrEmpty(f) && Directory.Exists(f)))
             {
                 string? r = Find(folder, regular);
-                if (r is null) continue;
+                if (r is null)
+                    continue;
                 string b = Find(folder, bold) ?? r;
                 return (r, b, family);
             }
@@ -52,7 +60,18 @@ public static class FontLocator
     {
         try
         {
-            return Directory.EnumerateFiles(folder, file, new EnumerationOptions { RecurseSubdirectories = true, IgnoreInaccessible = true, MaxRecursionDepth = 4 }).FirstOrDefault();
+            return Directory
+                .EnumerateFiles(
+                    folder,
+                    file,
+                    new EnumerationOptions
+                    {
+                        RecurseSubdirectories = true,
+                        IgnoreInaccessible = true,
+                        MaxRecursionDepth = 4,
+                    }
+                )
+                .FirstOrDefault();
         }
         catch (IOException)
         {

@@ -6,10 +6,12 @@ namespace SignalInspect.Reporting.Plots;
 /// <summary>Renders a power spectrum (dB against frequency) as a PNG image.</summary>
 public static class SpectrumPlot
 {
-    /// <summary>Marks drawn over the spectrum: vertical lines (e.g. occupied-bandwidth edges) and a limit trace.</summary>
+    /// <summary>Marks drawn over the spectrum: vertical lines (e.g. occupied-bandwidth edges) and a limit
+    /// trace.</summary>
     public sealed record Marks
     {
-        /// <summary>Vertical lines at frequencies in Hz on the plot's axis (absolute RF when the plot is absolute, else offsets), with labels.</summary>
+        /// <summary>Vertical lines at frequencies in Hz on the plot's axis (absolute RF when the plot is absolute, else
+        /// offsets), with labels.</summary>
         public IReadOnlyList<(double FrequencyHz, string Label)> Lines { get; init; } = [];
 
         /// <summary>A limit trace (e.g. an emission mask) as (frequency, dB) points, null for none.</summary>
@@ -28,7 +30,16 @@ public static class SpectrumPlot
     /// <param name="marks">Optional lines and limit trace.</param>
     /// <param name="absolute">Label the axis with absolute RF frequency in MHz when the centre is known.</param>
     /// <param name="compact">A thumbnail without axis labels or legend.</param>
-    public static byte[] RenderPng(PowerSpectrum spectrum, string title, int widthPx = 1200, int heightPx = 600, double scale = 1, Marks? marks = null, bool absolute = false, bool compact = false)
+    public static byte[] RenderPng(
+        PowerSpectrum spectrum,
+        string title,
+        int widthPx = 1200,
+        int heightPx = 600,
+        double scale = 1,
+        Marks? marks = null,
+        bool absolute = false,
+        bool compact = false
+    )
     {
         Plot plot = PlotStyle.NewPlot();
         plot.ScaleFactor = scale;
@@ -45,7 +56,8 @@ public static class SpectrumPlot
         var trace = plot.Add.ScatterLine(xs, ys, PlotStyle.Trace);
         trace.LineWidth = 1;
         trace.LegendText = spectrum.Averaging == SpectrumAveraging.MaxHold ? "max hold" : "mean (Welch)";
-        double top = ys.Max(), floor = Percentile(ys, 0.05);
+        double top = ys.Max(),
+            floor = Percentile(ys, 0.05);
         plot.Axes.SetLimitsY(Math.Max(floor - 15, top - 140), top + 8);
         plot.Axes.SetLimitsX(xs[0], xs[^1]);
         if (marks is not null)
@@ -57,7 +69,11 @@ public static class SpectrumPlot
             }
             if (marks.Limit is { Count: > 1 } limit)
             {
-                var l = plot.Add.ScatterLine(limit.Select(p => p.FrequencyHz / div).ToArray(), limit.Select(p => p.Db).ToArray(), PlotStyle.Limit);
+                var l = plot.Add.ScatterLine(
+                    limit.Select(p => p.FrequencyHz / div).ToArray(),
+                    limit.Select(p => p.Db).ToArray(),
+                    PlotStyle.Limit
+                );
                 l.LineWidth = 1.5f;
                 l.LegendText = marks.LimitLabel;
             }
@@ -65,7 +81,11 @@ public static class SpectrumPlot
         }
         string cal = spectrum.Settings.CalibrationDb != 0 ? "dBm" : "dBFS";
         plot.YLabel(spectrum.Scaling == SpectrumScaling.DensityPerHz ? $"PSD ({cal}/Hz)" : $"power per bin ({cal})");
-        plot.XLabel(abs ? $"frequency ({unit})" : spectrum.IsOneSided ? $"frequency ({unit})" : $"offset from centre ({unit})");
+        plot.XLabel(
+            abs ? $"frequency ({unit})"
+            : spectrum.IsOneSided ? $"frequency ({unit})"
+            : $"offset from centre ({unit})"
+        );
         plot.Title(title);
         if (compact)
         {
@@ -81,7 +101,8 @@ public static class SpectrumPlot
     internal static (double Divisor, string Unit) AxisUnit(PowerSpectrum s, bool absolute)
     {
         double span = absolute ? s.CenterFrequencyHz!.Value + s.SampleRateHz : s.SampleRateHz;
-        if (absolute && span >= 1e6) return (1e6, "MHz");
+        if (absolute && span >= 1e6)
+            return (1e6, "MHz");
         return s.SampleRateHz >= 20e3 ? (1e3, "kHz") : (1, "Hz");
     }
 

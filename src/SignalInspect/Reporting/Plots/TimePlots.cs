@@ -7,7 +7,14 @@ namespace SignalInspect.Reporting.Plots;
 public static class TimePlots
 {
     /// <summary>Spectrogram: time down, frequency across, colour in dBFS/Hz.</summary>
-    public static byte[] SpectrogramPng(Spectrogram g, double? centreHz, string title, int widthPx, int heightPx, double scale)
+    public static byte[] SpectrogramPng(
+        Spectrogram g,
+        double? centreHz,
+        string title,
+        int widthPx,
+        int heightPx,
+        double scale
+    )
     {
         Plot plot = PlotStyle.NewPlot();
         plot.ScaleFactor = scale;
@@ -17,12 +24,14 @@ public static class TimePlots
             for (int c = 0; c < g.Columns; c++)
             {
                 data[r, c] = g.Db(r, c);
-                if (data[r, c] > max) max = data[r, c];
+                if (data[r, c] > max)
+                    max = data[r, c];
             }
         for (int r = 0; r < g.Rows; r++)
             for (int c = 0; c < g.Columns; c++)
                 data[r, c] = Math.Max(data[r, c], max - 80);
-        double f0 = g.ColumnFrequenciesHz[0], f1 = g.ColumnFrequenciesHz[^1];
+        double f0 = g.ColumnFrequenciesHz[0],
+            f1 = g.ColumnFrequenciesHz[^1];
         (double div, string unit) = Math.Max(Math.Abs(f0), Math.Abs(f1)) >= 20e3 ? (1e3, "kHz") : (1, "Hz");
         double t1 = g.RowTimesS[^1] + (g.Rows > 1 ? g.RowTimesS[1] - g.RowTimesS[0] : 0) / 2;
         var hm = plot.Add.Heatmap(data);
@@ -30,7 +39,9 @@ public static class TimePlots
         hm.Colormap = new ScottPlot.Colormaps.Viridis();
         var bar = plot.Add.ColorBar(hm);
         bar.Label = g.CalibrationDb != 0 ? "dBm/Hz" : "dBFS/Hz";
-        plot.XLabel(centreHz is { } centre ? $"offset from {centre / 1e6:0.######} MHz ({unit})" : $"frequency ({unit})");
+        plot.XLabel(
+            centreHz is { } centre ? $"offset from {centre / 1e6:0.######} MHz ({unit})" : $"frequency ({unit})"
+        );
         plot.YLabel("time (s)");
         plot.Title(title);
         plot.Axes.SetLimits(f0 / div, f1 / div, t1, 0);
@@ -38,8 +49,16 @@ public static class TimePlots
     }
 
     /// <summary>A line plot of (time, value) points.</summary>
-    public static byte[] SeriesPng(IReadOnlyList<(double TimeS, double Value)> points, string title, string yLabel, int widthPx, int heightPx, double scale,
-                                   IReadOnlyList<(double Value, string Label)>? levels = null, IReadOnlyList<(double TimeS, double Value)>? second = null)
+    public static byte[] SeriesPng(
+        IReadOnlyList<(double TimeS, double Value)> points,
+        string title,
+        string yLabel,
+        int widthPx,
+        int heightPx,
+        double scale,
+        IReadOnlyList<(double Value, string Label)>? levels = null,
+        IReadOnlyList<(double TimeS, double Value)>? second = null
+    )
     {
         Plot plot = PlotStyle.NewPlot();
         plot.ScaleFactor = scale;
@@ -49,7 +68,11 @@ public static class TimePlots
         line.LineWidth = 1.2f;
         if (second is { Count: > 1 })
         {
-            var low = plot.Add.ScatterLine(second.Select(p => p.TimeS * 1e3).ToArray(), second.Select(p => p.Value).ToArray(), PlotStyle.Trace);
+            var low = plot.Add.ScatterLine(
+                second.Select(p => p.TimeS * 1e3).ToArray(),
+                second.Select(p => p.Value).ToArray(),
+                PlotStyle.Trace
+            );
             low.LineWidth = 1.2f;
         }
         if (levels is not null)
@@ -59,7 +82,8 @@ public static class TimePlots
                 var h = plot.Add.HorizontalLine(value, 1, PlotStyle.Limit, LinePattern.Dashed);
                 h.LegendText = label;
             }
-            if (levels.Count > 0) plot.ShowLegend(Alignment.UpperRight);
+            if (levels.Count > 0)
+                plot.ShowLegend(Alignment.UpperRight);
         }
         plot.XLabel("time (ms)");
         plot.YLabel(yLabel);
