@@ -3,7 +3,6 @@ using System.Diagnostics;
 using System.Globalization;
 using SignalInspect.Batch;
 using SignalInspect.Compliance;
-using SignalInspect.Measure;
 
 namespace SignalInspect.Cli;
 

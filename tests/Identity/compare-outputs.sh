@@ -38,6 +38,7 @@ cases=(
   "testdata/measure/nbfm-151625.sigmf-meta"
   "testdata/measure/nbfm-151625.sigmf-meta --nominal 151.625M --rbw 50 --start 0.2 --duration 1"
   "testdata/measure/cw-462.sigmf-meta"
+  "testdata/measure/cw-462.sigmf-meta --window kaiser:7.5 --fft 2048"
   "testdata/measure/fsk-433.sigmf-meta"
   "testdata/measure/fsk-433.sigmf-meta --expect fm --window blackmanharris"
   "testdata/sigmf/nbfm-ci16.sigmf-meta"

@@ -1,5 +1,4 @@
 using System.Globalization;
-using MathNet.Numerics;
 
 namespace SignalInspect.Dsp;
 
@@ -117,8 +116,7 @@ public sealed class Window
                     + 0.277263158 * c2
                     - 0.083578947 * c3
                     + 0.006947368 * c4,
-                _ => SpecialFunctions.BesselI0(kaiserBeta * Math.Sqrt(Math.Max(0, 1 - Math.Pow(2.0 * n / m - 1, 2))))
-                    / SpecialFunctions.BesselI0(kaiserBeta),
+                _ => Kaiser.Taper(kaiserBeta, Math.Pow(2.0 * n / m - 1, 2)) / Kaiser.Peak(kaiserBeta),
             };
         }
         return new Window(kind, kind == WindowKind.Kaiser ? kaiserBeta : double.NaN, w);

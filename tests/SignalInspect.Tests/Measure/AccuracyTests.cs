@@ -1,6 +1,5 @@
 using MathNet.Numerics;
 using SignalInspect.Measure;
-using SignalInspect.Spectrum;
 using SignalInspect.Synthesis;
 
 namespace SignalInspect.Tests.Measure;
