@@ -258,7 +258,7 @@ static void Kernels(bool smoke)
     Console.WriteLine(
         $"| jittered sampler (64-phase interpolation at one instant per sample) | {tUp / (blocks * m) * 1e9:0.00} ns per decimated sample |"
     );
-    var h = new SignalInspect.Measure.Histogram(-0.5, 0.5, 1 << 18);
+    var h = new SignalInspect.Dsp.Histogram(-0.5, 0.5, 1 << 18);
     double tHist = Time(3, () =>
     {
         for (int b = 0; b < blocks; b++)
@@ -272,7 +272,7 @@ static void Kernels(bool smoke)
     var flat = new double[m];
     for (int i = 0; i < m; i++)
         flat[i] = 0.3 + 1e-6 * (rng.NextDouble() - 0.5);
-    var hEnv = new SignalInspect.Measure.Histogram(0, 1, 1 << 16);
+    var hEnv = new SignalInspect.Dsp.Histogram(0, 1, 1 << 16);
     double tFlat = Time(3, () =>
     {
         for (int b = 0; b < blocks; b++)
@@ -282,7 +282,7 @@ static void Kernels(bool smoke)
     var sine = new double[m];
     for (int i = 0; i < m; i++)
         sine[i] = 75e3 * Math.Sin(2 * Math.PI * 1000 * i / (fs / d));
-    var hF = new SignalInspect.Measure.Histogram(-fs / d / 2, fs / d / 2, 1 << 18);
+    var hF = new SignalInspect.Dsp.Histogram(-fs / d / 2, fs / d / 2, 1 << 18);
     double tSine = Time(3, () =>
     {
         for (int b = 0; b < blocks; b++)
@@ -299,16 +299,16 @@ static void Kernels(bool smoke)
     int pairs = smoke ? 2 : 64;
     string LinePair(bool rings)
     {
-        var ws = new SignalInspect.Measure.LineSpectrum.Workspace(ln);
-        SignalInspect.Measure.LineSpectrum sa = new(ln, fs / d),
+        var ws = new SignalInspect.Spectrum.LineSpectrum.Workspace(ln);
+        SignalInspect.Spectrum.LineSpectrum sa = new(ln, fs / d),
             sb = new(ln, fs / d);
         double t = Time(3, () =>
         {
             for (int p = 0; p < pairs; p++)
                 if (rings)
-                    SignalInspect.Measure.LineSpectrum.AddRingSegments(sa, la, ln / 2, sb, lf, ln / 2, ws);
+                    SignalInspect.Spectrum.LineSpectrum.AddRingSegments(sa, la, ln / 2, sb, lf, ln / 2, ws);
                 else
-                    SignalInspect.Measure.LineSpectrum.AddSegments(
+                    SignalInspect.Spectrum.LineSpectrum.AddSegments(
                         sa,
                         la.AsSpan(ln / 2),
                         la.AsSpan(0, ln / 2),

@@ -1,6 +1,7 @@
 using System.Diagnostics;
 using System.Globalization;
 using SignalInspect.Capture;
+using SignalInspect.Demodulation;
 using SignalInspect.Dsp;
 using SignalInspect.Spectrum;
 

@@ -6,7 +6,8 @@ using System.Runtime.Intrinsics.X86;
 
 namespace SignalInspect.Dsp;
 
-// FftPlan, part 3: the radix-2^2 butterflies and passes on 256- and 512-bit vectors, the fused |X|^2 destinations and the vector loads.
+// FftPlan, part 3: the radix-2^2 butterflies and passes on 256- and 512-bit vectors, the fused |X|^2 destinations and
+// the vector loads.
 public sealed partial class FftPlan
 {
     /// <summary>

@@ -6,7 +6,8 @@ using System.Runtime.Intrinsics.X86;
 
 namespace SignalInspect.Dsp;
 
-// FftPlan, part 2: the scrambled-order transforms (decimation in frequency, bins left in bit-reversed order) and the pair and bit-reversed entry points.
+// FftPlan, part 2: the scrambled-order transforms (decimation in frequency, bins left in bit-reversed order) and the
+// pair and bit-reversed entry points.
 public sealed partial class FftPlan
 {
     /// <summary>True when <see cref="ForwardWindowedScrambled"/> is available (powers of two from 4).</summary>

@@ -4,7 +4,8 @@ using System.Runtime.Intrinsics;
 
 namespace SignalInspect.Dsp;
 
-// ChannelDecimator, part 2: the mixer and the filter's sums on 256- and 512-bit vectors (each wide kernel does the same operations per value as its 256-bit twin).
+// ChannelDecimator, part 2: the mixer and the filter's sums on 256- and 512-bit vectors (each wide kernel does the same
+// operations per value as its 256-bit twin).
 public sealed partial class ChannelDecimator
 {
     /// <summary>Shifts <paramref name="piece"/> samples (oscillator table index k0 onwards) into <paramref

@@ -1,7 +1,7 @@
 using SignalInspect.Dsp;
-using SignalInspect.Measure;
+using SignalInspect.Spectrum;
 
-namespace SignalInspect.Tests.Measure;
+namespace SignalInspect.Tests.Spectrum;
 
 /// <summary>
 /// The demodulated-stream spectra: two real streams in one complex transform give the same sums

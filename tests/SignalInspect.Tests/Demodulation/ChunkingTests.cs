@@ -1,10 +1,11 @@
 using System.Text;
 using SignalInspect.Capture;
+using SignalInspect.Demodulation;
 using SignalInspect.Measure;
 using SignalInspect.Reporting;
 using SignalInspect.Synthesis;
 
-namespace SignalInspect.Tests.Measure;
+namespace SignalInspect.Tests.Demodulation;
 
 /// <summary>
 /// The demodulation pass cuts long captures into chunks that the threads share. Properties of the
@@ -17,7 +18,7 @@ public class ChunkingTests
 {
     private static AnalysisResult Run(string path, int? chunk, int threads, ModulationKind? expect = null)
     {
-        DemodulationPass.ChunkOutputsForTests = chunk;
+        ChunkSchedule.ChunkOutputsForTests = chunk;
         try
         {
             CaptureSource src = CaptureSource.Open(path, new ReaderOptions { SampleRateHz = 2.4e6 });
@@ -25,7 +26,7 @@ public class ChunkingTests
         }
         finally
         {
-            DemodulationPass.ChunkOutputsForTests = null;
+            ChunkSchedule.ChunkOutputsForTests = null;
         }
     }
 
@@ -43,9 +44,9 @@ public class ChunkingTests
     [InlineData(4_800_000L, 60_000, 1 << 19)] // a long high-pass settling: eight warm-ups
     public void Chunk_length_follows_the_stream_not_the_threads(long expected, int warmUp, int want)
     {
-        int len = DemodulationPass.ChunkLength(expected, warmUp);
+        int len = ChunkSchedule.ChunkLength(expected, warmUp);
         Assert.Equal(want, len);
-        Assert.True(len >= DemodulationPass.MinChunk && len <= DemodulationPass.MaxChunk);
+        Assert.True(len >= ChunkSchedule.MinChunk && len <= ChunkSchedule.MaxChunk);
     }
 
     [Theory]
@@ -65,7 +66,7 @@ public class ChunkingTests
         // Internal consistency of the layout: contiguous from 0 to the end, whole lengths first,
         // then pieces no longer than the tail's (a quarter, at least MinChunk and eight warm-ups)
         // over the last two to three lengths, so that two threads end within a piece of each other.
-        long[] b = DemodulationPass.ChunkBounds(expected, length, warmUp);
+        long[] b = ChunkSchedule.ChunkBounds(expected, length, warmUp);
         Assert.Equal(chunks, b.Length - 1);
         Assert.Equal(0, b[0]);
         Assert.Equal(expected, b[^1]);

@@ -2,7 +2,7 @@ using System.Numerics;
 using System.Runtime.CompilerServices;
 using System.Runtime.InteropServices;
 
-namespace SignalInspect.Measure;
+namespace SignalInspect.Dsp;
 
 /// <summary>
 /// A fixed-range histogram of a stream of values with bounded memory, for percentiles of long

@@ -1,6 +1,6 @@
-using SignalInspect.Measure;
+using SignalInspect.Dsp;
 
-namespace SignalInspect.Tests.Measure;
+namespace SignalInspect.Tests.Dsp;
 
 /// <summary>
 /// The histogram's block insert against its one-value insert (the definition: bin = floor((v - lo) / width),

@@ -1,6 +1,6 @@
-using SignalInspect.Measure;
+using SignalInspect.Demodulation;
 
-namespace SignalInspect.Tests.Measure;
+namespace SignalInspect.Tests.Demodulation;
 
 /// <summary>
 /// The count of sample components at full scale (for the clipping warning), against counting by its

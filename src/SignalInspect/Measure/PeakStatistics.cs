@@ -1,0 +1,147 @@
+using SignalInspect.Spectrum;
+
+namespace SignalInspect.Measure;
+
+/// <summary>Variance estimates from a <see cref="LineSpectrum"/>: how much of a stream is a tone and how much is
+/// noise.</summary>
+public static class LineSpectrumVariance
+{
+    /// <summary>
+    /// Variance of the stream between <paramref name="minHz"/> and <paramref name="maxHz"/>, split into
+    /// the part in the lines at the harmonics of <paramref name="toneHz"/> (within +/- guard bins) and
+    /// the rest, the noise; the noise in the guarded bins is filled in from the mean of the others.
+    /// For a windowed periodogram, variance = 2 / (N sum w^2) x the sum of one-sided |X|^2.
+    /// The guard of 6 bins covers the Blackman-Harris main lobe (+/-4 bins) and its first sidelobes.
+    /// </summary>
+    public static (double Tone, double Noise) Split(
+        this LineSpectrum s,
+        double toneHz,
+        double minHz,
+        double maxHz,
+        int guard = 6
+    )
+    {
+        int n = s.FftSize;
+        double sumW2 = s.WindowSumOfSquares;
+        // Bins within the guard of 0 Hz hold the leakage of the mean (for an envelope, the carrier): left out.
+        int k0 = Math.Max(guard + 1, (int)Math.Ceiling(minHz / s.BinWidthHz)),
+            k1 = Math.Min(n / 2 - 1, (int)Math.Floor(maxHz / s.BinWidthHz));
+        double tone = 0,
+            noise = 0;
+        int noiseBins = 0,
+            all = 0;
+        for (int k = k0; k <= k1; k++)
+        {
+            all++;
+            double f = k * s.BinWidthHz;
+            bool near =
+                toneHz > 0
+                && Math.Abs(f - Math.Round(f / toneHz) * toneHz) <= guard * s.BinWidthHz
+                && Math.Round(f / toneHz) >= 1;
+            if (near)
+                tone += s.Power(k);
+            else
+            {
+                noise += s.Power(k);
+                noiseBins++;
+            }
+        }
+        double scale = 2.0 / (n * sumW2);
+        double noisePerBin = noiseBins > 0 ? noise / noiseBins : 0;
+        double guardedNoise = noisePerBin * (all - noiseBins);
+        return (Math.Max(0, tone - guardedNoise) * scale, (noise + guardedNoise) * scale);
+    }
+}
+
+/// <summary>The peak of a sine from a high percentile when Gaussian noise is added to it.</summary>
+public static class SinePeak
+{
+    /// <summary>
+    /// The peak D of a sine such that D sin(theta) + n, theta uniform and n Gaussian of standard
+    /// deviation <paramref name="sigma"/>, exceeds <paramref name="level"/> a fraction
+    /// <paramref name="tail"/> of the time. With sigma = 0 this is level / cos(pi tail) (the
+    /// arcsine law). Used to read a tone's peak from the 99.9th percentile without the noise that
+    /// raises the percentile.
+    /// </summary>
+    public static double FromPercentile(double level, double sigma, double tail = 0.001)
+    {
+        if (!(level > 0))
+            return level;
+        if (!(sigma > 0))
+            return level / Math.Cos(Math.PI * tail);
+        // P = (1/pi) int_0^pi Q((level - d cos phi) / sigma) dphi, integrated only where the
+        // integrand is not negligible (d cos phi above level - 9 sigma), by the midpoint rule. The
+        // integrand is even about phi = 0 and dies away at the upper end, so the rule converges
+        // far faster than its h^2 (Euler-Maclaurin): checked against scipy.integrate.quad for
+        // sigma / level from 1e-5 to 2 and d across the search's bracket, 512 steps were within
+        // 2e-11 relative (4000 before: the same to 1e-11, eight times the erfc calls).
+        double Exceed(double d)
+        {
+            double c = (level - 9 * sigma) / d;
+            double phiMax =
+                c <= -1 ? Math.PI
+                : c >= 1 ? 0
+                : Math.Acos(c);
+            if (phiMax <= 0)
+                return 0;
+            const int steps = 512;
+            double s = 0,
+                h = phiMax / steps;
+            for (int i = 0; i < steps; i++)
+                s += UpperTail((level - d * Math.Cos((i + 0.5) * h)) / sigma);
+            return s * h / Math.PI;
+        }
+        double lo = Math.Max(0, level - 6 * sigma),
+            hi = level / Math.Cos(Math.PI * tail) + 1e-12;
+        // The root of ln(exceedance / tail), increasing in d and close to a straight line where the
+        // tail's exponential has been taken out, bracketed to 1e-10 of the bracket's top by the
+        // Illinois method (false position, the value of an end kept twice in a row halved; a halving
+        // while an end's value is not finite): 9 to 16 integrations where bisection took 35.
+        double flo = Math.Log(Exceed(lo) / tail);
+        if (flo > 0)
+            return lo;
+        double fhi = Math.Log(Exceed(hi) / tail);
+        if (!(fhi > 0))
+            return hi;
+        int kept = 0; // +1: the top was kept last time, -1: the bottom
+        for (int it = 0; it < 100 && hi - lo > 1e-10 * hi; it++)
+        {
+            double x = lo - flo * (hi - lo) / (fhi - flo);
+            if (!(x > lo && x < hi) || !double.IsFinite(flo))
+                x = (lo + hi) / 2;
+            double fx = Math.Log(Exceed(x) / tail);
+            if (fx == 0)
+                return x;
+            if (fx < 0)
+            {
+                lo = x;
+                flo = fx;
+                if (kept == 1)
+                    fhi /= 2;
+                kept = 1;
+            }
+            else
+            {
+                hi = x;
+                fhi = fx;
+                if (kept == -1)
+                    flo /= 2;
+                kept = -1;
+            }
+        }
+        return (lo + hi) / 2;
+    }
+
+    /// <summary>
+    /// <see cref="FromPercentile"/> of an upper and a lower excursion with the same noise, the two
+    /// computed side by side (each integrates the tail a few hundred thousand times).
+    /// </summary>
+    public static (double Upper, double Lower) FromPercentiles(double upper, double lower, double sigma)
+    {
+        Task<double> up = Task.Run(() => FromPercentile(upper, sigma));
+        double low = FromPercentile(lower, sigma);
+        return (up.Result, low);
+    }
+
+    private static double UpperTail(double z) => 0.5 * MathNet.Numerics.SpecialFunctions.Erfc(z / Math.Sqrt(2));
+}
