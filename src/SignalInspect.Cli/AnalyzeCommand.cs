@@ -4,6 +4,7 @@ using SignalInspect.Capture;
 using SignalInspect.Compliance;
 using SignalInspect.Measure;
 using SignalInspect.Reporting;
+using SignalInspect.Spectrum;
 
 namespace SignalInspect.Cli;
 
@@ -267,7 +268,7 @@ internal static class AnalyzeCommand
         var b = r.Bandwidth;
         Row(
             $"occupied bw ({F(100 * (1 - b.Beta), "0.#")} %)",
-            $"{F(b.OccupiedHz, "0.#")} Hz +/- {F(r.OccupiedUncertaintyHz, "0.#")} Hz, edges {F(Analyzer.AxisToReport(r.Capture, b.LowerEdgeHz), "0.#")} to {F(Analyzer.AxisToReport(r.Capture, b.UpperEdgeHz), "0.#")} Hz"
+            $"{F(b.OccupiedHz, "0.#")} Hz +/- {F(r.OccupiedUncertaintyHz, "0.#")} Hz, edges {F(FrequencyAxis.Of(r.Capture).ToReported(b.LowerEdgeHz), "0.#")} to {F(FrequencyAxis.Of(r.Capture).ToReported(b.UpperEdgeHz), "0.#")} Hz"
         );
         Row(
             $"{F(b.Xdb, "0.#")} dB bandwidth",

@@ -66,7 +66,7 @@ public static class Judgement
         if ((p.FrequencyTolerancePpm is not null || p.FrequencyToleranceHz is not null) && r.Carrier is { } car)
         {
             double? nominal = p.NominalFrequencyHz ?? r.Capture.CenterFrequencyHz;
-            bool absolute = r.Capture.IsComplex && r.Capture.CenterFrequencyHz is not null;
+            bool absolute = FrequencyAxis.Of(r.Capture).IsAbsolute;
             double offset = absolute && p.NominalFrequencyHz is { } nom ? car.FrequencyHz.Value - nom : car.OffsetHz;
             double? tolHz = p.FrequencyToleranceHz
                 ?? (nominal is { } n && p.FrequencyTolerancePpm is { } ppm ? ppm * n / 1e6 : null);
@@ -210,8 +210,7 @@ public static class Judgement
         PowerSpectrum hold = r.Spectrum.MaxHold;
         PowerSpectrum mean = r.Spectrum.Mean;
         double total = mean.TotalPower();
-        double carrierAxis =
-            r.Carrier!.FrequencyHz.Value - (r.Capture.IsComplex && r.Capture.CenterFrequencyHz is { } cf ? cf : 0);
+        double carrierAxis = FrequencyAxis.Of(r.Capture).ToAxis(r.Carrier!.FrequencyHz.Value);
         double floor = r.Bandwidth.NoiseFloorDensity;
         double worst = double.PositiveInfinity,
             worstAt = 0;

@@ -1,6 +1,6 @@
 using System.Diagnostics;
+using SignalInspect.Diagnostics;
 using SignalInspect.Dsp;
-using SignalInspect.Measure;
 using SignalInspect.Spectrum;
 
 namespace SignalInspect.Demodulation;
@@ -8,10 +8,10 @@ namespace SignalInspect.Demodulation;
 /// <summary>
 /// One pass over the capture: shift, channel filter, decimate, then envelope, phase and
 /// instantaneous frequency, into running sums, histograms and line spectra. The decimated stream
-/// is cut into chunks (<see cref="ChunkSchedule.ChunkLength"/>, the last ones smaller: <see cref="ChunkSchedule.ChunkBounds"/>) that the worker
-/// threads take in turn; each chunk starts its reader early enough that every filter has settled (a warm-up whose
-/// outputs are dropped), so a chunk's samples are those of one long run. The chunks' sums are
-/// combined in chunk order, and the unwrapped phase is carried from chunk to chunk through its
+/// is cut into chunks (<see cref="ChunkSchedule.ChunkLength"/>, the last ones smaller: <see
+/// cref="ChunkSchedule.ChunkBounds"/>) that the worker threads take in turn; each chunk starts its reader early enough
+/// that every filter has settled (a warm-up whose outputs are dropped), so a chunk's samples are those of one long run.
+/// The chunks' sums are combined in chunk order, and the unwrapped phase is carried from chunk to chunk through its
 /// value just before each chunk's first sample, so the results do not depend on the thread count.
 /// Memory does not grow with the capture.
 /// </summary>
@@ -101,7 +101,8 @@ internal static partial class DemodulationPass
         PassPlan p,
         (double Intercept, double Slope)? fit,
         double[]? offsets,
-        CancellationToken cancel
+        CancellationToken cancel,
+        StageTimer? timer = null
     )
     {
         double[] lpTaps =
@@ -211,7 +212,7 @@ internal static partial class DemodulationPass
             if (r.Phase is not null)
                 r.Phase.Add(workers[w].Phase!);
         }
-        Profile.Note(
+        timer?.Note(
             $"line spectra: {workers.Sum(w => w.LineTicks) * 1e3 / Stopwatch.Frequency:0.0} ms over {threads} threads, {merged.Env.Segments} segments of {s.DemodFft}, {chunks} chunks, {setsMade} partial sets"
         );
         // Chunk sums in order, each chunk's phase moved to the capture's unwrapped phase.

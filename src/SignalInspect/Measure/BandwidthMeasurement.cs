@@ -160,4 +160,28 @@ public static class BandwidthMeasurement
         double t = b - a > 0 ? (l - a) / (b - a) : 1;
         return fOut + Math.Clamp(t, 0, 1) * (fIn - fOut);
     }
+
+    /// <summary>SNR reported when no noise is measured, and the most any reading reports, dB.</summary>
+    public const double MaxSnrDb = 200;
+
+    /// <summary>
+    /// Signal-to-noise ratio in the occupied bandwidth, dB: the signal power summed by
+    /// <see cref="Measure"/> over the noise floor's density times the occupied bandwidth (at least one
+    /// RBW); at most <see cref="MaxSnrDb"/>.
+    /// </summary>
+    public static double SnrDb(PowerSpectrum psd, BandwidthResult bw)
+    {
+        double noiseInBand = bw.NoiseFloorDensity * Math.Max(bw.OccupiedHz, psd.RbwHz);
+        return noiseInBand > 0
+            ? Math.Min(MaxSnrDb, 10 * Math.Log10(Math.Max(bw.SignalPower, 1e-300) / noiseInBand))
+            : MaxSnrDb;
+    }
+
+    /// <summary>
+    /// Standard uncertainty of the occupied bandwidth, Hz: the larger of RBW / sqrt(3) (an edge anywhere
+    /// inside one resolution bandwidth, a rectangular distribution: GUM 4.3.7) and
+    /// <see cref="TypeB.OccupiedFraction"/> of the reading.
+    /// </summary>
+    public static double OccupiedUncertaintyHz(PowerSpectrum psd, BandwidthResult bw) =>
+        Math.Max(psd.RbwHz / Math.Sqrt(3), TypeB.OccupiedFraction * bw.OccupiedHz);
 }

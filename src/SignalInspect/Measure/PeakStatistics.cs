@@ -145,3 +145,54 @@ public static class SinePeak
 
     private static double UpperTail(double z) => 0.5 * MathNet.Numerics.SpecialFunctions.Erfc(z / Math.Sqrt(2));
 }
+
+/// <summary>
+/// The noise correction of peak readings, written once for the AM and FM measurements: applied
+/// only when one tone carries nearly all of the demodulated signal's power in the searched band;
+/// and the peak statistic's description for the method record.
+/// </summary>
+internal static class TonePeaks
+{
+    /// <summary>Share of the band's power the tone's lines must hold for the correction to apply.</summary>
+    public const double OneToneShare = 0.8;
+
+    /// <summary>
+    /// Replaces <paramref name="up"/> and <paramref name="down"/> (peaks about the mean, both positive)
+    /// by the sine's peaks (<see cref="SinePeak.FromPercentiles"/>) when the tone at
+    /// <paramref name="toneHz"/> holds at least <see cref="OneToneShare"/> of the power of
+    /// <paramref name="spectrum"/> between <paramref name="minHz"/> and <paramref name="maxHz"/>; the
+    /// rest is the noise. Returns whether it did.
+    /// </summary>
+    public static bool TryCorrect(
+        LineSpectrum spectrum,
+        double toneHz,
+        double minHz,
+        double maxHz,
+        ref double up,
+        ref double down
+    )
+    {
+        var (tone, noise) = spectrum.Split(toneHz, minHz, maxHz);
+        if (!(tone >= OneToneShare * (tone + noise)))
+            return false;
+        (up, down) = SinePeak.FromPercentiles(up, down, Math.Sqrt(noise));
+        return true;
+    }
+
+    /// <summary>The method record's words for the peak statistic of a measurement of <paramref name="kind"/>.</summary>
+    public static string Describe(ModulationKind kind, Demodulation.PassResult pass, bool corrected)
+    {
+        bool freq = kind is ModulationKind.Fm or ModulationKind.Fsk;
+        bool jitter = freq ? pass.JitterFrequency : pass.JitterEnvelope;
+        string cutoff = freq ? "the post-detection cutoff" : "the channel filter's cutoff";
+        string how = jitter
+            ? "read at a pseudo-random instant in each sample interval (64-phase band-limited interpolation; "
+                + $"fewer than 30 samples per period at {cutoff}); "
+            : $"taken at the samples (30 or more per period at {cutoff}); ";
+        return "positive peak = 99.9th percentile, negative peak = 0.1th percentile of the post-detection signal, "
+            + how
+            + (
+                corrected ? "tone peaks corrected for the measured noise (sine-plus-Gaussian model)" : "raw percentiles"
+            );
+    }
+}

@@ -1,5 +1,6 @@
 using System.Text.Json;
 using SignalInspect.Measure;
+using SignalInspect.Spectrum;
 
 namespace SignalInspect.Reporting;
 
@@ -26,8 +27,9 @@ public static class AnalysisJson
     public static void Write(Utf8JsonWriter w, AnalysisResult r)
     {
         var info = r.Capture;
-        bool abs = info.IsComplex && info.CenterFrequencyHz is not null;
-        double Abs(double axisHz) => Analyzer.AxisToReport(info, axisHz);
+        var axis = FrequencyAxis.Of(info);
+        bool abs = axis.IsAbsolute;
+        double Abs(double axisHz) => axis.ToReported(axisHz);
         w.WriteStartObject();
         w.WriteString("schemaVersion", SchemaVersion);
         w.WriteString("software", "SignalInspect " + Version);

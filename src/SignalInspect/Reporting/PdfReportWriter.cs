@@ -5,6 +5,7 @@ using PdfSharp.Pdf;
 using SignalInspect.Compliance;
 using SignalInspect.Measure;
 using SignalInspect.Reporting.Plots;
+using SignalInspect.Spectrum;
 
 namespace SignalInspect.Reporting;
 
@@ -237,7 +238,7 @@ public static class PdfReportWriter
         l.Text("Plots", l.H2);
         double w = l.ContentWidth;
         var psd = a.Spectrum.Mean;
-        bool abs = a.Capture.IsComplex && a.Capture.CenterFrequencyHz is not null;
+        bool abs = FrequencyAxis.Of(a.Capture).IsAbsolute;
         double shift = abs ? a.Capture.CenterFrequencyHz!.Value : 0;
         var lines = new List<(double, string)>
         {

@@ -1,0 +1,72 @@
+namespace SignalInspect.Measure;
+
+/// <summary>FM measurements from the post-detection instantaneous frequency.</summary>
+public sealed record FmResult
+{
+    /// <summary>Peak deviation: the larger of the positive and negative peaks, Hz.</summary>
+    public required Measured PeakDeviationHz { get; init; }
+
+    /// <summary>Positive peak (99.9th percentile of the deviation), Hz.</summary>
+    public required double PositivePeakHz { get; init; }
+
+    /// <summary>Negative peak (0.1th percentile, as a positive number), Hz.</summary>
+    public required double NegativePeakHz { get; init; }
+
+    /// <summary>Half the peak-to-peak deviation, Hz.</summary>
+    public required double HalfPeakToPeakHz { get; init; }
+
+    /// <summary>RMS deviation about the carrier, Hz.</summary>
+    public required double RmsDeviationHz { get; init; }
+
+    /// <summary>Modulation index D / fm, null without a modulating frequency.</summary>
+    public double? ModulationIndex { get; init; }
+}
+
+/// <summary>
+/// FM peak deviation from the post-detection instantaneous frequency: its 99.9th and 0.1th
+/// percentiles about the mean (the carrier), corrected for the noise when one tone dominates.
+/// </summary>
+internal static class FmMeasurement
+{
+    /// <summary>Measures an FM signal.</summary>
+    public static (FmResult Result, MeasurementExtras Extras) Measure(MeasurementInputs m)
+    {
+        DemodulatedFeatures f = m.Features;
+        double pPos = f.PositivePeakHz,
+            pNeg = f.NegativePeakHz;
+        bool corrected =
+            m.Tone is { } tone
+            && TonePeaks.TryCorrect(
+                m.Pass.ToneSpectrum,
+                tone.Value,
+                m.MinToneHz,
+                m.Channel.PostLowPassHz,
+                ref pPos,
+                ref pNeg
+            );
+        double peak = Math.Max(pPos, pNeg);
+        var result = new FmResult
+        {
+            PeakDeviationHz = Measured.FromBudget(
+                peak,
+                new UncertaintyComponent(
+                    "peak statistic",
+                    TypeB.FmPeakFraction * peak * m.NoiseGrowth,
+                    "TypeB.FmPeakFraction x TypeB.NoiseGrowth"
+                ),
+                new UncertaintyComponent(
+                    "histogram resolution",
+                    m.Pass.Freq.BinWidth,
+                    "one bin of the deviation histogram"
+                )
+            ),
+            PositivePeakHz = pPos,
+            NegativePeakHz = pNeg,
+            HalfPeakToPeakHz = (pPos + pNeg) / 2,
+            RmsDeviationHz = m.Pass.FreqRms,
+            ModulationIndex = m.Tone is { } t ? peak / t.Value : null,
+        };
+        double? necessary = m.Tone is { } mt ? EmissionDesignator.AngleModulationBandwidthHz(mt.Value, peak) : null;
+        return (result, new MeasurementExtras(necessary, corrected));
+    }
+}

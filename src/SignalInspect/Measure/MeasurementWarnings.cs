@@ -1,0 +1,108 @@
+using System.Globalization;
+using SignalInspect.Capture;
+using SignalInspect.Spectrum;
+
+namespace SignalInspect.Measure;
+
+/// <summary>
+/// The warnings that protect the reader from a wrong number, one line each, in the order the
+/// analysis meets them.
+/// </summary>
+internal static class MeasurementWarnings
+{
+    /// <summary>Below this SNR in the occupied bandwidth (dB) readings are flagged as unreliable.</summary>
+    public const double UnreliableSnrDb = 10;
+
+    /// <summary>Fewer periods of the modulating tone than this in the window are flagged.</summary>
+    public const double MinTonePeriods = 10;
+
+    /// <summary>More full-scale sample values than this (and than 1e-5 of the window) mean clipping.</summary>
+    public const long ClippedValues = 3;
+
+    /// <summary>Share of the Nyquist frequency beyond which a signal reaches the band's edge.</summary>
+    public const double BandEdge = 0.9;
+
+    /// <summary>Share of the sampled band an occupied bandwidth may fill before it is flagged.</summary>
+    public const double BandFill = 0.8;
+
+    public const string MirrorKept =
+        "the carrier sits close to 0 Hz or to half the sample rate for its bandwidth: the analytic signal keeps some "
+        + "of the mirror image";
+
+    /// <summary>The low-SNR warning, or null.</summary>
+    public static string? LowSnr(double snrDb, ModulationKind kind) =>
+        snrDb < UnreliableSnrDb && kind != ModulationKind.Noise
+            ? string.Create(CultureInfo.InvariantCulture, $"SNR in the occupied bandwidth is about {snrDb:0.#} dB: ")
+                + "readings are unreliable and the classification uncertain"
+            : null;
+
+    /// <summary>The short-capture warning, or null.</summary>
+    public static string? FewTonePeriods(Measured? tone, double windowS) =>
+        tone is { } t && windowS < MinTonePeriods / t.Value
+            ? string.Create(
+                CultureInfo.InvariantCulture,
+                $"the capture holds fewer than 10 periods of the {t.Value:0.#} Hz modulating frequency"
+            )
+            : null;
+
+    /// <summary>The warnings about the band, clipping, a DC spike and unreadable segments.</summary>
+    public static IEnumerable<string> AfterMeasuring(
+        CaptureInfo info,
+        ModulationKind kind,
+        BandwidthResult bw,
+        PowerSpectrum psd,
+        double carrierAxisHz,
+        long nearFullScale,
+        long count,
+        bool suppressDc,
+        long nonFiniteSegments
+    )
+    {
+        double fs = info.SampleRateHz;
+        double nyquist = fs / 2;
+        if (
+            kind != ModulationKind.Noise
+            && (
+                info.IsComplex
+                    ? Math.Max(Math.Abs(bw.LowerEdgeHz), Math.Abs(bw.UpperEdgeHz)) > BandEdge * nyquist
+                    : bw.UpperEdgeHz > BandEdge * nyquist
+            )
+        )
+            yield return "the signal reaches the edge of the sampled band: the sample rate may be too low for its "
+                + "bandwidth, and the bandwidth reads low";
+        if (kind != ModulationKind.Noise && bw.OccupiedHz > BandFill * (info.IsComplex ? fs : nyquist))
+            yield return "the occupied bandwidth fills most of the sampled band: the sample rate is too low for this "
+                + "signal, or it is noise";
+        if (nearFullScale > Math.Max(ClippedValues, 1e-5 * count))
+            yield return string.Create(CultureInfo.InvariantCulture, $"{nearFullScale} sample value(s) at full scale: ")
+                + "the capture is probably clipped, and levels, depth and bandwidth read wrong";
+        if (info.IsComplex && !suppressDc && HasDcSpike(psd, carrierAxisHz, bw.NoiseFloorDensity))
+            yield return "a narrow spike sits at 0 Hz apart from the carrier (the receiver's DC offset or LO leakage): "
+                + "it can bias bandwidth and classification; --suppress-dc removes it";
+        if (nonFiniteSegments > 0)
+            yield return $"{nonFiniteSegments} spectrum segment(s) held NaN or infinite samples (taken as 0)";
+    }
+
+    /// <summary>A line at exactly 0 Hz, 10 dB above its surroundings and the floor, away from the carrier: a
+    /// receiver's DC spike.</summary>
+    private static bool HasDcSpike(PowerSpectrum psd, double carrierAxisHz, double floor)
+    {
+        int centre = Array.IndexOf(psd.FrequenciesHz.ToArray(), 0.0);
+        int hw = psd.Window.MainLobeHalfWidthBins;
+        if (centre < 0 || Math.Abs(carrierAxisHz) < 4 * hw * psd.BinWidthHz)
+            return false;
+        var around = new List<double>();
+        for (int k = 3 * hw; k <= 8 * hw; k++)
+        {
+            if (centre - k >= 0)
+                around.Add(psd.Values[centre - k]);
+            if (centre + k < psd.Count)
+                around.Add(psd.Values[centre + k]);
+        }
+        if (around.Count == 0)
+            return false;
+        around.Sort();
+        double med = around[around.Count / 2];
+        return psd.Values[centre] > 10 * med && psd.Values[centre] > 10 * floor;
+    }
+}

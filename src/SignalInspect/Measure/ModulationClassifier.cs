@@ -1,0 +1,122 @@
+using System.Globalization;
+
+namespace SignalInspect.Measure;
+
+/// <summary>Classification for triage.</summary>
+/// <param name="Kind">The modulation used for the measurements (the --expect kind when given).</param>
+/// <param name="Detected">What the classifier found.</param>
+/// <param name="Confidence">Confidence of the classifier, 0 to 1.</param>
+/// <param name="Expected">True when --expect chose the kind.</param>
+/// <param name="Reason">One line on why.</param>
+public sealed record Classification(
+    ModulationKind Kind,
+    ModulationKind Detected,
+    double Confidence,
+    bool Expected,
+    string Reason
+);
+
+/// <summary>
+/// The modulation classifier for triage: decides on the SNR, the envelope's depth, the phase's spread
+/// about the fitted carrier and how much of the time the instantaneous frequency dwells on two tones.
+/// </summary>
+internal static class ModulationClassifier
+{
+    /// <summary>Below this SNR in the occupied bandwidth (dB) nothing is taken as a signal.</summary>
+    public const double NoiseBelowSnrDb = 3;
+
+    /// <summary>Phase rms (rad) below which the phase is steady: AM or an unmodulated carrier.</summary>
+    public const double SteadyPhaseRad = 0.15;
+
+    /// <summary>Envelope depth above which a steady-phase signal is AM.</summary>
+    public const double AmDepth = 0.03;
+
+    /// <summary>Share of time on two tones above which angle modulation is FSK.</summary>
+    public const double FskDwell = 0.6;
+
+    /// <summary>Below this SNR (dB) the confidence is scaled down.</summary>
+    public const double ConfidentSnrDb = 15;
+
+    /// <summary>Classifies; with <paramref name="expect"/> the kind measured is the one given, and the reason says
+    /// what the classifier found.</summary>
+    public static Classification Classify(
+        double snrDb,
+        double envelopeDepth,
+        double phaseRmsRad,
+        double dwell,
+        ModulationKind? expect
+    )
+    {
+        double mEnv = envelopeDepth,
+            sigmaPhase = phaseRmsRad;
+        ModulationKind detected;
+        double conf;
+        string why;
+        CultureInfo c = CultureInfo.InvariantCulture;
+        if (snrDb < NoiseBelowSnrDb)
+        {
+            detected = ModulationKind.Noise;
+            conf = Math.Clamp(0.6 + (NoiseBelowSnrDb - snrDb) / 10, 0.5, 0.95);
+            why = string.Create(c, $"no signal stands above the noise floor (SNR in band {snrDb:0.#} dB)");
+        }
+        else if (sigmaPhase < SteadyPhaseRad)
+        {
+            if (mEnv > AmDepth)
+            {
+                detected = ModulationKind.Am;
+                conf = Math.Clamp(0.6 + 4 * (mEnv - AmDepth) + (SteadyPhaseRad - sigmaPhase), 0.5, 0.99);
+                why = string.Create(
+                    c,
+                    $"steady phase (rms {sigmaPhase:0.###} rad) with an envelope that varies (depth {100 * mEnv:0.#} %)"
+                );
+            }
+            else
+            {
+                detected = ModulationKind.Cw;
+                conf = Math.Clamp(0.7 + (AmDepth - mEnv) * 5 + (SteadyPhaseRad - sigmaPhase), 0.5, 0.99);
+                why = string.Create(
+                    c,
+                    $"steady phase (rms {sigmaPhase:0.###} rad) and envelope (depth {100 * mEnv:0.##} %): an unmodulated carrier"
+                );
+            }
+        }
+        else if (dwell > FskDwell)
+        {
+            detected = ModulationKind.Fsk;
+            conf = Math.Clamp(0.5 + (dwell - FskDwell) * 1.5, 0.5, 0.99);
+            why = string.Create(
+                c,
+                $"the instantaneous frequency dwells on discrete tones ({100 * dwell:0} % of the time)"
+            );
+        }
+        else if (sigmaPhase * Math.Sqrt(2) <= Math.PI / 2)
+        {
+            detected = ModulationKind.Pm;
+            conf = 0.55;
+            why = string.Create(
+                c,
+                $"angle modulation of small peak phase (about {sigmaPhase * Math.Sqrt(2):0.##} rad): read as PM; a tone cannot tell PM from FM, give --expect fm if it is FM"
+            );
+        }
+        else
+        {
+            detected = ModulationKind.Fm;
+            conf = Math.Clamp(0.6 + (sigmaPhase * Math.Sqrt(2) - Math.PI / 2) / 4 + (FskDwell - dwell) / 2, 0.5, 0.97);
+            why = string.Create(
+                c,
+                $"angle modulation (peak phase about {sigmaPhase * Math.Sqrt(2):0.#} rad) with a continuous instantaneous frequency"
+            );
+        }
+        if (snrDb < ConfidentSnrDb && detected != ModulationKind.Noise)
+            conf *= Math.Clamp((snrDb - NoiseBelowSnrDb) / (ConfidentSnrDb - NoiseBelowSnrDb), 0.3, 1);
+        return expect is { } e
+            ? new Classification(
+                e,
+                detected,
+                conf,
+                true,
+                $"measured as {e.Name()} (--expect); the classifier found {detected.Name()}: {why}"
+            )
+            : new Classification(detected, detected, conf, false, why);
+    }
+}
