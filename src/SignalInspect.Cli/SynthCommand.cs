@@ -180,10 +180,10 @@ internal static class SynthCommand
             return f;
         }
         if (
-            Synthesizer.ContainerFor(path) == CaptureContainer.Raw
-            && SampleFormat.FromFileExtension(path) is { } byName
+            CaptureFormats.ContainerForWriting(path) == CaptureContainer.Raw
+            && CaptureFormats.DatatypeOfEnding(path) is { } byName
         )
-            return byName;
+            return SampleFormat.Parse(byName);
         return SampleFormat.Parse(isReal ? "rf32_le" : "cf32_le");
     }
 }

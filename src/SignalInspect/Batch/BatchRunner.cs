@@ -1,6 +1,5 @@
 using System.Collections.Concurrent;
 using System.Text;
-using System.Text.Json;
 using SignalInspect.Capture;
 using SignalInspect.Compliance;
 using SignalInspect.Measure;
@@ -66,31 +65,6 @@ public sealed record BatchInput(string Path, string Key, ReaderOptions Options, 
 /// </summary>
 public static class BatchRunner
 {
-    /// <summary>Name of a raw capture's sidecar: the capture's file name plus this ending.</summary>
-    public const string SidecarSuffix = ".si.json";
-
-    private static readonly string[] CaptureEndings =
-    [
-        ".wav",
-        ".rf64",
-        ".bw64",
-        ".sigmf",
-        ".sigmf-meta",
-        ".cu8",
-        ".cs8",
-        ".ci8",
-        ".cs16",
-        ".ci16",
-        ".cs32",
-        ".cf32",
-        ".cfile",
-        ".fc32",
-        ".cf64",
-        ".ru8",
-        ".rs16",
-        ".rf32",
-    ];
-
     /// <summary>Finds the captures named by folders (searched recursively), files and globs (* and ? in the file
     /// name).</summary>
     /// <exception cref="CaptureException">An input names nothing.</exception>
@@ -113,7 +87,7 @@ public static class BatchRunner
                         }
                     )
                 )
-                    if (LooksLikeCapture(f))
+                    if (CaptureFormats.IsCaptureName(f))
                         Add(found, f, Path.GetRelativePath(input, f), defaults);
             }
             else if (File.Exists(input))
@@ -126,7 +100,7 @@ public static class BatchRunner
                 if (!Directory.Exists(dir))
                     throw CaptureException.ForFile(input, "the folder of this pattern does not exist");
                 foreach (string f in Directory.EnumerateFiles(dir, Path.GetFileName(input)))
-                    if (!f.EndsWith(SidecarSuffix, StringComparison.Ordinal))
+                    if (!f.EndsWith(CaptureFormats.SidecarSuffix, StringComparison.Ordinal))
                         Add(found, f, Path.GetFileName(f), defaults);
             }
             else
@@ -137,76 +111,20 @@ public static class BatchRunner
         return [.. found.Values];
     }
 
-    private static bool LooksLikeCapture(string f)
-    {
-        string l = f.ToLowerInvariant();
-        if (l.EndsWith(SidecarSuffix, StringComparison.Ordinal))
-            return false;
-        if (l.EndsWith(".sigmf-data", StringComparison.Ordinal))
-            return !File.Exists(f[..^".sigmf-data".Length] + ".sigmf-meta");
-        return CaptureEndings.Any(e => l.EndsWith(e, StringComparison.Ordinal)) || File.Exists(f + SidecarSuffix);
-    }
-
     private static void Add(SortedDictionary<string, BatchInput> found, string path, string key, ReaderOptions defaults)
     {
         string full = Path.GetFullPath(path);
-        if (
-            full.EndsWith(".sigmf-data", StringComparison.OrdinalIgnoreCase) && File.Exists(full[..^11] + ".sigmf-meta")
-        )
-            full = full[..^11] + ".sigmf-meta";
+        if (IsPairHalf(full, CaptureFormats.SigMfDataEnding) && File.Exists(CaptureFormats.MetaOf(full)))
+            full = CaptureFormats.MetaOf(full);
         if (found.ContainsKey(full))
             return;
-        long bytes =
-            new FileInfo(full).Length
-            + (
-                full.EndsWith(".sigmf-meta", StringComparison.OrdinalIgnoreCase)
-                && File.Exists(full[..^11] + ".sigmf-data")
-                    ? new FileInfo(full[..^11] + ".sigmf-data").Length
-                    : 0
-            );
+        string data = IsPairHalf(full, CaptureFormats.SigMfMetaEnding) ? CaptureFormats.DataOf(full) : "";
+        long bytes = new FileInfo(full).Length + (data.Length > 0 && File.Exists(data) ? new FileInfo(data).Length : 0);
         found[full] = new BatchInput(path, key.Replace('\\', '/'), defaults, bytes);
     }
 
-    /// <summary>Reads a raw capture's sidecar (datatype, sampleRateHz, centerFrequencyHz) over the defaults.</summary>
-    /// <exception cref="CaptureException">The sidecar is malformed.</exception>
-    public static ReaderOptions WithSidecar(string capture, ReaderOptions defaults)
-    {
-        string side = capture + SidecarSuffix;
-        if (!File.Exists(side))
-            return defaults;
-        try
-        {
-            using JsonDocument doc = JsonDocument.Parse(File.ReadAllText(side));
-            JsonElement e = doc.RootElement;
-            if (e.ValueKind != JsonValueKind.Object)
-                throw CaptureException.ForFile(side, "a sidecar must be a JSON object");
-            string? dt = e.TryGetProperty("datatype", out JsonElement d)
-                ? (
-                    d.ValueKind == JsonValueKind.String
-                        ? d.GetString()
-                        : throw CaptureException.ForFile(side, "datatype must be a string")
-                )
-                : null;
-            double? Num(string k) =>
-                e.TryGetProperty(k, out JsonElement v)
-                    ? (
-                        v.ValueKind == JsonValueKind.Number
-                            ? v.GetDouble()
-                            : throw CaptureException.ForFile(side, $"{k} must be a number")
-                    )
-                    : null;
-            return defaults with
-            {
-                Datatype = dt ?? defaults.Datatype,
-                SampleRateHz = Num("sampleRateHz") ?? defaults.SampleRateHz,
-                CenterFrequencyHz = Num("centerFrequencyHz") ?? defaults.CenterFrequencyHz,
-            };
-        }
-        catch (JsonException)
-        {
-            throw CaptureException.ForFile(side, "sidecar is not valid JSON");
-        }
-    }
+    private static bool IsPairHalf(string path, string ending) =>
+        path.EndsWith(ending, StringComparison.OrdinalIgnoreCase);
 
     /// <summary>The shard (0-based) of a capture: FNV-1a 64 of its key, modulo the shard count. Stable across machines
     /// and runs.</summary>
@@ -224,9 +142,7 @@ public static class BatchRunner
     /// <summary>SHA-256 of a capture's content: the file, and for a SigMF pair its data file too.</summary>
     public static string ContentHash(string path)
     {
-        string data = path.EndsWith(".sigmf-meta", StringComparison.OrdinalIgnoreCase)
-            ? path[..^11] + ".sigmf-data"
-            : "";
+        string data = IsPairHalf(path, CaptureFormats.SigMfMetaEnding) ? CaptureFormats.DataOf(path) : "";
         return data.Length > 0 && File.Exists(data) ? FileHash.Sha256(path, data) : FileHash.Sha256(path);
     }
 
@@ -317,7 +233,7 @@ public static class BatchRunner
         string file = input.Path;
         try
         {
-            CaptureSource source = CaptureSource.Open(file, WithSidecar(file, input.Options));
+            CaptureSource source = CaptureSource.Open(file, CaptureFormats.WithSidecar(file, input.Options));
             AnalysisResult r = Analyzer.Analyze(
                 source,
                 o.Analysis with

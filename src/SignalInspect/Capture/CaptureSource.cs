@@ -72,24 +72,17 @@ public sealed class CaptureSource
     private static CaptureSource OpenKnown(string path, ReaderOptions options)
     {
         long size = new FileInfo(path).Length;
-        string lower = path.ToLowerInvariant();
-        if (
-            lower.EndsWith(".sigmf-meta", StringComparison.Ordinal)
-            || lower.EndsWith(".sigmf-data", StringComparison.Ordinal)
-        )
+        CaptureFileKind kind = CaptureFormats.KindOf(path);
+        if (kind == CaptureFileKind.SigMfPair)
             return SigMfReader.OpenPair(path, options);
         if (size == 0)
             throw CaptureException.ForFile(path, "file is empty");
-        if (lower.EndsWith(".sigmf", StringComparison.Ordinal))
+        if (kind == CaptureFileKind.SigMfArchive)
             return SigMfReader.OpenArchive(path, options);
         string magic = ReadMagic(path);
         if (magic is "RIFF" or "RF64" or "BW64")
             return WavReader.Open(path, options);
-        if (
-            lower.EndsWith(".wav", StringComparison.Ordinal)
-            || lower.EndsWith(".rf64", StringComparison.Ordinal)
-            || lower.EndsWith(".bw64", StringComparison.Ordinal)
-        )
+        if (kind == CaptureFileKind.Wav)
             throw CaptureException.ForFile(path, "not a WAV file (no RIFF, RF64 or BW64 header)");
         return RawReader.Open(path, options);
     }

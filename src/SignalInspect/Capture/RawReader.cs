@@ -17,9 +17,9 @@ internal static class RawReader
             if (!SampleFormat.TryParse(word, out format, out string error))
                 throw CaptureException.ForFile(path, "--datatype: " + error);
         }
-        else if (SampleFormat.FromFileExtension(path) is { } guessed)
+        else if (CaptureFormats.DatatypeOfEnding(path) is { } ending)
         {
-            format = guessed;
+            format = SampleFormat.Parse(ending);
             notes.Add($"datatype {format.Name} taken from the file ending (give --datatype to change it)");
         }
         else

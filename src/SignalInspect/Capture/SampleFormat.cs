@@ -165,27 +165,4 @@ public readonly record struct SampleFormat(
     /// <exception cref="CaptureException">The word is not a SigMF datatype.</exception>
     public static SampleFormat Parse(string datatype) =>
         TryParse(datatype, out SampleFormat f, out string error) ? f : throw new CaptureException(error);
-
-    /// <summary>
-    /// The datatype a raw file's name suggests (<c>.cu8</c>, <c>.cs8</c>, <c>.cs16</c>, <c>.cf32</c>, <c>.cfile</c>
-    /// ...), or null. A full SigMF word as the extension (e.g. <c>.ci16_le</c>) is taken as it is.
-    /// </summary>
-    public static SampleFormat? FromFileExtension(string path)
-    {
-        string ext = Path.GetExtension(path).TrimStart('.').ToLowerInvariant();
-        string? word = ext switch
-        {
-            "cu8" => "cu8",
-            "cs8" or "ci8" => "ci8",
-            "cs16" or "ci16" => "ci16_le",
-            "cs32" or "ci32" => "ci32_le",
-            "cf32" or "cfile" or "fc32" => "cf32_le",
-            "cf64" => "cf64_le",
-            "ru8" => "ru8",
-            "rs16" or "ri16" => "ri16_le",
-            "rf32" => "rf32_le",
-            _ => TryParse(ext, out _, out _) ? ext : null,
-        };
-        return word is null ? null : Parse(word);
-    }
 }

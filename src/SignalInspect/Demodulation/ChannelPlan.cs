@@ -34,7 +34,8 @@ public sealed record ChannelPlan
     /// <summary>Rate after decimation, Hz.</summary>
     public double DecimatedRateHz => SampleRateHz / Decimation;
 
-    /// <summary>Low-pass taps (at half the input rate when <see cref="HalfBand"/> is set); [1] without a filter.</summary>
+    /// <summary>Low-pass taps (at half the input rate when <see cref="HalfBand"/> is set); [1] without a
+    /// filter.</summary>
     public required double[] Taps { get; init; }
 
     /// <summary>The half-band first stage's taps, or null for one stage.</summary>

@@ -34,7 +34,8 @@ internal static class CarrierMeasurement
     /// <summary>Share of the signal power the strongest line must hold to be taken as the carrier.</summary>
     public const double LineShare = 0.3;
 
-    /// <summary>The first estimate on the capture's axis: the strongest line, or the centroid of the occupied band.</summary>
+    /// <summary>The first estimate on the capture's axis: the strongest line, or the centroid of the occupied
+    /// band.</summary>
     public static double Coarse(PowerSpectrum psd, BandwidthResult bw)
     {
         (double lineHz, double lineFraction) = StrongestLine(psd, bw);

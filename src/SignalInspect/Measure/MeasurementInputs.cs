@@ -28,7 +28,8 @@ internal sealed record MeasurementInputs
     /// <summary>SNR in the occupied bandwidth, dB.</summary>
     public required double SnrDb { get; init; }
 
-    /// <summary>Lowest modulating frequency searched, Hz: three line-spectrum bins, and two cycles in the window.</summary>
+    /// <summary>Lowest modulating frequency searched, Hz: three line-spectrum bins, and two cycles in the
+    /// window.</summary>
     public required double MinToneHz { get; init; }
 
     /// <summary>The modulating frequency found, or null.</summary>

@@ -9,7 +9,8 @@ namespace SignalInspect.Measure;
 /// </summary>
 internal static class ModulatingTone
 {
-    /// <summary>The tone of a signal of <paramref name="kind"/>, or null when none stands out or the kind has none.</summary>
+    /// <summary>The tone of a signal of <paramref name="kind"/>, or null when none stands out or the kind has
+    /// none.</summary>
     public static Measured? Find(
         ModulationKind kind,
         PassResult pass,

@@ -5,7 +5,8 @@ namespace SignalInspect.Measure;
 /// <summary>The stretches of the demodulated signal that the report plots: a short waveform and a trend.</summary>
 internal static class PlotTraces
 {
-    /// <summary>A few periods of the tone (20 ms of FSK) of the envelope or the deviation, at most 2000 points.</summary>
+    /// <summary>A few periods of the tone (20 ms of FSK) of the envelope or the deviation, at most 2000
+    /// points.</summary>
     public static (double[] T, double[] V, string Label) Waveform(
         PassResult b,
         ModulationKind kind,

@@ -14,20 +14,6 @@ public static class Synthesizer
 {
     private const int BlockSamples = 1 << 16;
 
-    /// <summary>Chooses the container from an output file name: .wav, .sigmf, .sigmf-meta/.sigmf-data, anything else
-    /// raw.</summary>
-    public static CaptureContainer ContainerFor(string path)
-    {
-        string p = path.ToLowerInvariant();
-        if (p.EndsWith(".wav", StringComparison.Ordinal) || p.EndsWith(".rf64", StringComparison.Ordinal))
-            return CaptureContainer.Wav;
-        if (p.EndsWith(".sigmf", StringComparison.Ordinal))
-            return CaptureContainer.SigMfArchive;
-        if (p.EndsWith(".sigmf-meta", StringComparison.Ordinal) || p.EndsWith(".sigmf-data", StringComparison.Ordinal))
-            return CaptureContainer.SigMf;
-        return CaptureContainer.Raw;
-    }
-
     /// <summary>A one-line description of the spec, written into SigMF metadata.</summary>
     public static string Describe(SignalSpec s)
     {
@@ -92,7 +78,7 @@ public static class Synthesizer
         };
         using var writer = new CaptureWriter(
             path,
-            container ?? ContainerFor(path),
+            container ?? CaptureFormats.ContainerForWriting(path),
             format,
             meta,
             spec.SampleCount,

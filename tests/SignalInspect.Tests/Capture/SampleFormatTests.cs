@@ -69,13 +69,13 @@ public class SampleFormatTests
     [InlineData("x.ci16_be", "ci16_be")]
     public void File_endings_suggest_a_datatype(string file, string word)
     {
-        Assert.Equal(word, SampleFormat.FromFileExtension(file)?.Name);
+        Assert.Equal(word, CaptureFormats.DatatypeOfEnding(file));
     }
 
     [Fact]
     public void Unknown_endings_suggest_nothing()
     {
-        Assert.Null(SampleFormat.FromFileExtension("capture.bin"));
-        Assert.Null(SampleFormat.FromFileExtension("capture"));
+        Assert.Null(CaptureFormats.DatatypeOfEnding("capture.bin"));
+        Assert.Null(CaptureFormats.DatatypeOfEnding("capture"));
     }
 }
