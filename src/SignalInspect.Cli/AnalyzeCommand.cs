@@ -133,16 +133,7 @@ internal static class AnalyzeCommand
             var (kind, beta) = spec.WindowKindOf(r);
             ModulationKind? expected = null;
             if (r.GetValue(expect) is { } e)
-            {
-                try
-                {
-                    expected = ModulationKindNames.Parse(e);
-                }
-                catch (ArgumentException ex)
-                {
-                    throw new UsageException(ex.Message);
-                }
-            }
+                expected = ModulationKindNames.Parse(e);
             var options = new AnalysisOptions
             {
                 NominalHz = r.GetValue(nominal) ?? profile?.NominalFrequencyHz,

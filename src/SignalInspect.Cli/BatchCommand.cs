@@ -86,6 +86,7 @@ internal static class BatchCommand
                 Resume = r.GetValue(resume),
                 ShardIndex = index,
                 ShardCount = count,
+                DescribeError = e => Cli.UserMessage(e) ?? e.Message,
             };
             int mine = found.Count(f => BatchRunner.ShardOf(f.Key, count) == index - 1);
             long bytes = found.Where(f => BatchRunner.ShardOf(f.Key, count) == index - 1).Sum(f => f.Bytes);

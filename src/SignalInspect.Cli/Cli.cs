@@ -55,10 +55,14 @@ public static class Cli
     internal static string? UserMessage(Exception e) =>
         e switch
         {
-            CaptureException c => OneLine(c.Message),
+            SettingException s => (s.File is { } f ? Path.GetFileName(f) + ": " : string.Empty)
+                + $"{OptionNames.For(s.Setting)}: {OneLine(s.Message)}"
+                + (s.Value is { } v ? $" (got {v})" : string.Empty),
+            OutputException { AlreadyExists: true } o => OneLine(o.Message) + " (use --force to replace it)",
+            CaptureException { OverriddenBy: { } setting } c => OneLine(c.Message)
+                + $" ({OptionNames.For(setting)} reads it anyway)",
+            UserInputException u => OneLine(u.Message),
             UsageException u => OneLine(u.Message),
-            ArgumentOutOfRangeException a when a.ParamName?.StartsWith("--", StringComparison.Ordinal) == true =>
-                $"{a.ParamName}: {OneLine(a.Message.Split(" (Parameter", 2)[0])} (got {a.ActualValue})",
             _ => null,
         };
 

@@ -18,6 +18,10 @@ internal static class TestData
 
     public static string Path(params string[] parts) => System.IO.Path.Combine([RootDir.Value, .. parts]);
 
+    /// <summary>A path in the repository (the folder that holds SignalInspect.sln).</summary>
+    public static string Repo(params string[] parts) =>
+        System.IO.Path.Combine([System.IO.Path.GetDirectoryName(RootDir.Value)!, .. parts]);
+
     /// <summary>Reads a raw little-endian float64 file (sox's -t f64 output).</summary>
     public static double[] ReadF64(string path)
     {

@@ -35,6 +35,10 @@ public sealed record BatchOptions
     /// <summary>Skip captures already in the output folder's summary (matched by content hash).</summary>
     public bool Resume { get; init; }
 
+    /// <summary>How a user error becomes a record's error text (the command line names its options); null for the
+    /// message as it is.</summary>
+    public Func<UserInputException, string>? DescribeError { get; init; }
+
     /// <summary>This shard (1-based) of <see cref="ShardCount"/>.</summary>
     public int ShardIndex { get; init; } = 1;
 
@@ -296,12 +300,9 @@ public static class BatchRunner
                 Thumbnail = thumbRel.Replace('\\', '/'),
             };
         }
-        catch (Exception e)
-            when (e is CaptureException or ArgumentOutOfRangeException or IOException or UnauthorizedAccessException)
+        catch (Exception e) when (e is UserInputException or IOException or UnauthorizedAccessException)
         {
-            string message = e is ArgumentOutOfRangeException a
-                ? $"{a.ParamName}: {a.Message.Split(" (Parameter", 2)[0]}"
-                : e.Message;
+            string message = e is UserInputException u && o.DescribeError is { } describe ? describe(u) : e.Message;
             return new BatchRecord
             {
                 File = file,

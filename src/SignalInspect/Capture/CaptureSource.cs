@@ -118,16 +118,18 @@ public sealed class CaptureSource
     /// </summary>
     /// <param name="startS">Start time in seconds, 0 or more and less than the duration.</param>
     /// <param name="durationS">Length in seconds, null for "to the end".</param>
-    /// <exception cref="CaptureException">The window lies outside the capture.</exception>
+    /// <exception cref="SettingException">The window lies outside the capture.</exception>
     public (long First, long Count) WindowSamples(double startS, double? durationS)
     {
         if (!double.IsFinite(startS) || startS < 0 || (startS > 0 && startS >= Info.DurationS))
-            throw CaptureException.ForFile(
-                Info.Path,
-                $"--start {startS:R} s lies outside the capture (0 to {Info.DurationS:0.######} s)"
+            throw new SettingException(
+                "StartS",
+                startS,
+                $"lies outside the capture (0 to {Info.DurationS:0.######} s)",
+                Info.Path
             );
         if (durationS is { } d && (!double.IsFinite(d) || d <= 0))
-            throw CaptureException.ForFile(Info.Path, $"--duration {d:R} s must be positive");
+            throw new SettingException("DurationS", d, "must be a positive number of seconds", Info.Path);
         long first = (long)Math.Round(startS * Info.SampleRateHz);
         long count = durationS is { } dur ? (long)Math.Round(dur * Info.SampleRateHz) : Info.SampleCount - first;
         return (first, Math.Min(count, Info.SampleCount - first));
@@ -135,7 +137,7 @@ public sealed class CaptureSource
 
     /// <summary>Opens a reader over a window given in seconds from the capture's first sample (see <see
     /// cref="WindowSamples"/>).</summary>
-    /// <exception cref="CaptureException">The window lies outside the capture.</exception>
+    /// <exception cref="SettingException">The window lies outside the capture.</exception>
     public CaptureReader OpenReader(double startS, double? durationS)
     {
         var (first, count) = WindowSamples(startS, durationS);
@@ -149,9 +151,11 @@ public sealed class CaptureSource
     public CaptureSource ForSegment(int index)
     {
         if (index < 0 || index >= Info.Segments.Count)
-            throw CaptureException.ForFile(
-                Info.Path,
-                $"--segment {index}: the recording has {Info.Segments.Count} capture segment(s), numbered from 0"
+            throw new SettingException(
+                nameof(ReaderOptions.Segment),
+                index,
+                $"the recording has {Info.Segments.Count} capture segment(s), numbered from 0",
+                Info.Path
             );
         CaptureSegment seg = Info.Segments[index];
         long first = Info.Segments.Take(index).Sum(s => s.SampleCount);
@@ -184,9 +188,11 @@ public sealed class CaptureSource
         int Check(int ch)
         {
             if (ch < 0 || ch >= channels)
-                throw CaptureException.ForFile(
-                    path,
-                    $"--channel {ch}: the file has {channels} channel(s), numbered from 0"
+                throw new SettingException(
+                    nameof(ReaderOptions.Channels),
+                    ch,
+                    $"the file has {channels} channel(s), numbered from 0",
+                    path
                 );
             return ch;
         }
@@ -200,15 +206,19 @@ public sealed class CaptureSource
                         or ChannelSelection.Right
                 && channels == 1
             )
-                throw CaptureException.ForFile(
-                    path,
-                    "--channel iq/qi/left/right applies to real two-channel files; this file is already complex"
+                throw new SettingException(
+                    nameof(ReaderOptions.Channels),
+                    options.Channels.ToString().ToLowerInvariant(),
+                    "iq, qi, left and right apply to real two-channel files; this file is already complex",
+                    path
                 );
             int ch = options.Channels == ChannelSelection.Index ? Check(options.ChannelIndex) : 0;
             if (channels > 1 && options.Channels != ChannelSelection.Index)
-                throw CaptureException.ForFile(
-                    path,
-                    $"the file has {channels} complex channels: pick one with --channel N (0 to {channels - 1})"
+                throw new SettingException(
+                    nameof(ReaderOptions.Channels),
+                    null,
+                    $"the file has {channels} complex channels: pick one by number (0 to {channels - 1})",
+                    path
                 );
             return (
                 [2 * ch, 2 * ch + 1],
@@ -225,9 +235,11 @@ public sealed class CaptureSource
             case ChannelSelection.QI when channels == 2:
                 return ([1, 0], true, "I = channel 1, Q = channel 0 (swapped)");
             case ChannelSelection.IQ or ChannelSelection.QI:
-                throw CaptureException.ForFile(
-                    path,
-                    $"--channel iq/qi needs exactly two channels; the file has {channels}"
+                throw new SettingException(
+                    nameof(ReaderOptions.Channels),
+                    options.Channels.ToString().ToLowerInvariant(),
+                    $"iq and qi need exactly two channels; the file has {channels}",
+                    path
                 );
             case ChannelSelection.Left:
                 return ([0], false, $"channel 0 (left) of {channels}, as a real signal");
@@ -241,12 +253,17 @@ public sealed class CaptureSource
                     $"channel {options.ChannelIndex} of {channels}, as a real signal"
                 );
             default:
-                throw CaptureException.ForFile(
-                    path,
-                    $"the file has {channels} channels: pick one with --channel N (0 to {channels - 1})"
+                throw new SettingException(
+                    nameof(ReaderOptions.Channels),
+                    null,
+                    $"the file has {channels} channels: pick one by number (0 to {channels - 1})",
+                    path
                 );
         }
     }
+
+    /// <summary>The origin of a rate the user gave (a setting, not the file).</summary>
+    internal const string UserGiven = "the rate given";
 
     /// <summary>Validates a sample rate from a file or an option.</summary>
     /// <param name="path">File, for the message.</param>
@@ -255,7 +272,9 @@ public sealed class CaptureSource
     internal static double CheckRate(string path, double? rateHz, string origin)
     {
         if (rateHz is not { } r)
-            throw CaptureException.ForFile(path, $"sample rate missing ({origin}): give --sample-rate HZ");
+            throw new SettingException(nameof(ReaderOptions.SampleRateHz), null, $"needed ({origin})", path);
+        if (origin == UserGiven && (!double.IsFinite(r) || r <= 0))
+            throw new SettingException(nameof(ReaderOptions.SampleRateHz), r, "must be a positive number of Hz", path);
         if (!double.IsFinite(r) || r <= 0)
             throw CaptureException.ForFile(path, $"sample rate {r:R} Hz from {origin} must be a positive number");
         return r;

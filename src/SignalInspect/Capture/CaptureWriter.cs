@@ -113,7 +113,7 @@ public sealed class CaptureWriter : IDisposable
         }
         foreach (string p in OutputPaths)
             if (File.Exists(p) && !overwrite)
-                throw CaptureException.ForFile(p, "already exists (use --force to replace it)");
+                throw OutputException.Exists(p);
         string? dir = Path.GetDirectoryName(_dataPath);
         if (dir is not null && !Directory.Exists(dir))
             throw CaptureException.ForFile(_dataPath, $"output folder {dir} does not exist");

@@ -1,7 +1,7 @@
 namespace SignalInspect.Capture;
 
 /// <summary>
-/// Headerless raw sample files. The datatype comes from <c>--datatype</c> or the file ending
+/// Headerless raw sample files. The datatype comes from the reader options or the file ending
 /// (<c>.cu8</c>, <c>.cs16</c>, <c>.cf32</c> ...); the sample rate must be given. A tail shorter
 /// than one sample is ignored with a warning.
 /// </summary>
@@ -15,7 +15,7 @@ internal static class RawReader
         if (options.Datatype is { } word)
         {
             if (!SampleFormat.TryParse(word, out format, out string error))
-                throw CaptureException.ForFile(path, "--datatype: " + error);
+                throw new SettingException(nameof(ReaderOptions.Datatype), word, error, path);
         }
         else if (CaptureFormats.DatatypeOfEnding(path) is { } ending)
         {
@@ -24,15 +24,18 @@ internal static class RawReader
         }
         else
         {
-            throw CaptureException.ForFile(
-                path,
-                "not a WAV or SigMF file, and the datatype of a raw file is unknown: give --datatype (e.g. cu8, ci16_le, cf32_le) and --sample-rate HZ"
+            throw new SettingException(
+                nameof(ReaderOptions.Datatype),
+                null,
+                "needed: not a WAV or SigMF file, and a raw file's ending names no datatype (e.g. cu8, ci16_le, "
+                    + "cf32_le; the sample rate is needed too)",
+                path
             );
         }
         double rate = CaptureSource.CheckRate(
             path,
             options.SampleRateHz,
-            options.SampleRateHz is null ? "a raw file has no header" : "--sample-rate"
+            options.SampleRateHz is null ? "a raw file has no header" : CaptureSource.UserGiven
         );
         var warnings = new List<string>();
         long tail = size % format.BytesPerSample;

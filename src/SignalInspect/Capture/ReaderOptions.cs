@@ -56,7 +56,7 @@ public sealed record ReaderOptions
 
     /// <summary>Parses a channel selection word: <c>iq</c>, <c>qi</c>, <c>left</c>, <c>right</c> or a channel
     /// number.</summary>
-    /// <exception cref="CaptureException">The word is none of these.</exception>
+    /// <exception cref="SettingException">The word is none of these.</exception>
     public static (ChannelSelection Selection, int Index) ParseChannel(string word)
     {
         string w = word.Trim().ToLowerInvariant();
@@ -73,7 +73,7 @@ public sealed record ReaderOptions
                     System.Globalization.CultureInfo.InvariantCulture,
                     out int n
                 ) => (ChannelSelection.Index, n),
-            _ => throw new CaptureException($"--channel: '{word}' is not iq, qi, left, right or a channel number"),
+            _ => throw new SettingException(nameof(Channels), word, "is not iq, qi, left, right or a channel number"),
         };
     }
 }

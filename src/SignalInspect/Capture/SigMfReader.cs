@@ -149,7 +149,7 @@ internal static class SigMfReader
             double rate;
             if (options.SampleRateHz is { } userRate)
             {
-                rate = CaptureSource.CheckRate(metaPath, userRate, "--sample-rate");
+                rate = CaptureSource.CheckRate(metaPath, userRate, CaptureSource.UserGiven);
                 notes.Add(
                     fileRate is { } fr
                         ? $"sample rate {rate:R} Hz from --sample-rate overrides core:sample_rate {fr:R} Hz"
@@ -281,9 +281,15 @@ internal static class SigMfReader
                 {
                     string actual = Sha512Hex(dataPath, dataOffset, dataLength);
                     if (!string.Equals(actual, sha.Trim(), StringComparison.OrdinalIgnoreCase))
-                        throw m.Error(
-                            $"core:sha512 does not match the data (metadata {Short(sha)}, data {Short(actual)}): the data is damaged or belongs to another recording (--no-verify reads it anyway)"
-                        );
+                        throw new CaptureException(
+                            m.Error(
+                                $"core:sha512 does not match the data (metadata {Short(sha)}, data {Short(actual)}): "
+                                    + "the data is damaged or belongs to another recording"
+                            ).Message
+                        )
+                        {
+                            OverriddenBy = nameof(ReaderOptions.VerifyChecksum),
+                        };
                     checksum = "verified";
                 }
             }

@@ -54,7 +54,7 @@ internal static class WavReader
         double rateHz = rate;
         if (options.SampleRateHz is { } r)
         {
-            rateHz = CaptureSource.CheckRate(path, r, "--sample-rate");
+            rateHz = CaptureSource.CheckRate(path, r, CaptureSource.UserGiven);
             notes.Add($"sample rate {rateHz:R} Hz from --sample-rate overrides the file's {rate} Hz");
         }
         else

@@ -97,14 +97,14 @@ public sealed record LimitProfile
     public double CoverageFactor { get; init; } = 2;
 
     /// <summary>Reads a profile file.</summary>
-    /// <exception cref="Capture.CaptureException">The file is missing or malformed; the message names the
+    /// <exception cref="ProfileException">The file is missing or malformed; the message names the
     /// field.</exception>
     public static LimitProfile Load(string path)
     {
         if (!File.Exists(path))
-            throw Capture.CaptureException.ForFile(path, "limit profile not found");
+            throw ProfileException.ForFile(path, "limit profile not found");
         if (new FileInfo(path).Length > 1 << 20)
-            throw Capture.CaptureException.ForFile(path, "limit profile larger than 1 MiB");
+            throw ProfileException.ForFile(path, "limit profile larger than 1 MiB");
         try
         {
             return Parse(File.ReadAllText(path), path);
@@ -114,7 +114,7 @@ public sealed record LimitProfile
             string where = e.LineNumber is { } l
                 ? $" at line {l + 1}, column {(e.BytePositionInLine ?? 0) + 1}"
                 : string.Empty;
-            throw Capture.CaptureException.ForFile(path, $"limit profile is not valid JSON{where}");
+            throw ProfileException.ForFile(path, $"limit profile is not valid JSON{where}");
         }
     }
 
@@ -131,7 +131,7 @@ public sealed record LimitProfile
             }
         );
         JsonElement root = doc.RootElement;
-        Exception Bad(string field, string problem) => Capture.CaptureException.ForFile(path, $"{field} {problem}");
+        Exception Bad(string field, string problem) => ProfileException.ForFile(path, $"{field} {problem}");
         if (root.ValueKind != JsonValueKind.Object)
             throw Bad("the profile", "must be a JSON object");
         var known = new HashSet<string>

@@ -56,20 +56,20 @@ public sealed record AnalysisOptions
     public void Validate()
     {
         if (!(ObwPercent > 0 && ObwPercent < 100))
-            throw new ArgumentOutOfRangeException("--obw-percent", ObwPercent, "must lie between 0 and 100");
+            throw new SettingException(nameof(ObwPercent), ObwPercent, "must lie between 0 and 100");
         if (!(Xdb > 0 && Xdb < 200))
-            throw new ArgumentOutOfRangeException("--xdb", Xdb, "must lie between 0 and 200 dB");
+            throw new SettingException(nameof(Xdb), Xdb, "must lie between 0 and 200 dB");
         if (PostLowPassHz is { } lp && !(lp > 0))
-            throw new ArgumentOutOfRangeException("--post-lowpass", lp, "must be a positive number of Hz");
+            throw new SettingException(nameof(PostLowPassHz), lp, "must be a positive number of Hz");
         if (PostHighPassHz is { } hp && !(hp > 0))
-            throw new ArgumentOutOfRangeException("--post-highpass", hp, "must be a positive number of Hz");
+            throw new SettingException(nameof(PostHighPassHz), hp, "must be a positive number of Hz");
         if (DeEmphasisUs is { } de && !(de > 0 && de < 1e6))
-            throw new ArgumentOutOfRangeException("--deemphasis", de, "must be a positive number of microseconds");
+            throw new SettingException(nameof(DeEmphasisUs), de, "must be a positive number of microseconds");
         if (NominalHz is { } nom && !double.IsFinite(nom))
-            throw new ArgumentOutOfRangeException("--nominal", nom, "must be a number of Hz");
+            throw new SettingException(nameof(NominalHz), nom, "must be a number of Hz");
         if (!(StartS >= 0 && double.IsFinite(StartS)))
-            throw new ArgumentOutOfRangeException("--start", StartS, "must be 0 or more seconds");
+            throw new SettingException(nameof(StartS), StartS, "must be 0 or more seconds");
         if (DurationS is { } d && !(d > 0 && double.IsFinite(d)))
-            throw new ArgumentOutOfRangeException("--duration", d, "must be a positive number of seconds");
+            throw new SettingException(nameof(DurationS), d, "must be a positive number of seconds");
     }
 }

@@ -26,7 +26,7 @@ public static class Analyzer
     /// <param name="cancel">Stops the passes.</param>
     /// <param name="timer">Stage timings for profiling; null for none.</param>
     /// <exception cref="CaptureException">The capture is too short or cannot be read.</exception>
-    /// <exception cref="ArgumentOutOfRangeException">An option is out of range (named).</exception>
+    /// <exception cref="SettingException">A setting is out of range (named by its property).</exception>
     public static AnalysisResult Analyze(
         CaptureSource source,
         AnalysisOptions? options = null,

@@ -67,9 +67,13 @@ public static class BandwidthMeasurement
     )
     {
         if (!(beta > 0 && beta < 1))
-            throw new ArgumentOutOfRangeException("--obw-percent", (1 - beta) * 100, "must lie between 0 and 100");
+            throw new SettingException(
+                nameof(AnalysisOptions.ObwPercent),
+                (1 - beta) * 100,
+                "must lie between 0 and 100"
+            );
         if (!(xdb > 0 && double.IsFinite(xdb)))
-            throw new ArgumentOutOfRangeException("--xdb", xdb, "must be a positive number of dB");
+            throw new SettingException(nameof(AnalysisOptions.Xdb), xdb, "must be a positive number of dB");
         if (psd.Scaling != SpectrumScaling.DensityPerHz)
             psd = psd.In(SpectrumScaling.DensityPerHz);
         int n = psd.Count;

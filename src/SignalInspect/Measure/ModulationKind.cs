@@ -29,11 +29,11 @@ public static class ModulationKindNames
     public static string Name(this ModulationKind k) => k.ToString().ToLowerInvariant();
 
     /// <summary>Parses a name.</summary>
-    /// <exception cref="ArgumentException">Not one of the names.</exception>
+    /// <exception cref="SettingException">Not one of the names.</exception>
     public static ModulationKind Parse(string name) =>
         Enum.TryParse(name.Trim(), ignoreCase: true, out ModulationKind k)
         && Enum.IsDefined(k)
         && !int.TryParse(name, out _)
             ? k
-            : throw new ArgumentException($"--expect: '{name}' is not one of am, fm, pm, fsk, cw, noise");
+            : throw new SettingException("Expect", name, "is not one of am, fm, pm, fsk, cw, noise");
 }

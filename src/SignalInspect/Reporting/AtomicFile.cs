@@ -19,24 +19,24 @@ public static class AtomicFile
 
     /// <summary>Checks that <paramref name="path"/> may be written: its folder exists and it does not exist unless
     /// <paramref name="overwrite"/>.</summary>
-    /// <exception cref="Capture.CaptureException">The file exists, or its folder does not.</exception>
+    /// <exception cref="OutputException">The file exists, or its folder does not.</exception>
     public static void CheckWritable(string path, bool overwrite)
     {
         string full = Path.GetFullPath(path);
         if (Directory.Exists(full))
-            throw Capture.CaptureException.ForFile(path, "is a folder; give a file name");
+            throw OutputException.ForFile(path, "is a folder; give a file name");
         if (File.Exists(full) && !overwrite)
-            throw Capture.CaptureException.ForFile(path, "already exists (use --force to replace it)");
+            throw OutputException.Exists(path);
         string? dir = Path.GetDirectoryName(full);
         if (dir is not null && !Directory.Exists(dir))
-            throw Capture.CaptureException.ForFile(path, $"output folder {dir} does not exist");
+            throw OutputException.ForFile(path, $"output folder {dir} does not exist");
     }
 
     /// <summary>Writes a file atomically.</summary>
     /// <param name="path">Target file.</param>
     /// <param name="overwrite">Replace an existing file.</param>
     /// <param name="write">Writes the content to the stream given.</param>
-    /// <exception cref="Capture.CaptureException">The file exists and <paramref name="overwrite"/> is false, or its
+    /// <exception cref="OutputException">The file exists and <paramref name="overwrite"/> is false, or its
     /// folder does not exist.</exception>
     public static void Write(string path, bool overwrite, Action<Stream> write)
     {

@@ -51,17 +51,17 @@ public sealed record SpectrumSettings
     public int OverlapSamples => FftSize - StepSamples;
 
     /// <summary>Checks every setting; the message names it and its range.</summary>
-    /// <exception cref="ArgumentOutOfRangeException">A setting is out of range.</exception>
+    /// <exception cref="SettingException">A setting is out of range (named by its property).</exception>
     public void Validate()
     {
         if (FftSize is < 16 or > 1 << 20)
-            throw new ArgumentOutOfRangeException("--fft", FftSize, "must be from 16 to 1048576 points");
+            throw new SettingException(nameof(FftSize), FftSize, "must be from 16 to 1048576 points");
         if (!double.IsFinite(OverlapFraction) || OverlapFraction < 0 || OverlapFraction > 0.95)
-            throw new ArgumentOutOfRangeException("--overlap", OverlapFraction * 100, "must be from 0 to 95 percent");
+            throw new SettingException(nameof(OverlapFraction), OverlapFraction * 100, "must be from 0 to 95 percent");
         if (Window == WindowKind.Kaiser && (!double.IsFinite(KaiserBeta) || KaiserBeta < 0))
-            throw new ArgumentOutOfRangeException("--window", KaiserBeta, "the Kaiser beta must be 0 or more");
+            throw new SettingException(nameof(KaiserBeta), KaiserBeta, "the Kaiser beta must be 0 or more");
         if (!double.IsFinite(CalibrationDb))
-            throw new ArgumentOutOfRangeException("--calibration", CalibrationDb, "must be a number of dB");
+            throw new SettingException(nameof(CalibrationDb), CalibrationDb, "must be a number of dB");
         if (SpectrogramRows is < 1 or > 4096)
             throw new ArgumentOutOfRangeException(nameof(SpectrogramRows), SpectrogramRows, "must be from 1 to 4096");
         if (SpectrogramColumns is < 16 or > 65536)
@@ -71,7 +71,7 @@ public sealed record SpectrumSettings
                 "must be from 16 to 65536"
             );
         if (Threads is < 1 or > 64)
-            throw new ArgumentOutOfRangeException("--threads", Threads, "must be from 1 to 64");
+            throw new SettingException(nameof(Threads), Threads, "must be from 1 to 64");
     }
 
     /// <summary>
@@ -81,7 +81,7 @@ public sealed record SpectrumSettings
     public static int FftSizeForRbw(double rbwHz, double sampleRateHz, WindowKind window, double kaiserBeta = 8.6)
     {
         if (!double.IsFinite(rbwHz) || rbwHz <= 0)
-            throw new ArgumentOutOfRangeException("--rbw", rbwHz, "must be a positive number of Hz");
+            throw new SettingException("RbwHz", rbwHz, "must be a positive number of Hz");
         double enbw = Dsp.Window.Create(window, 1024, kaiserBeta).EnbwBins;
         double n = enbw * sampleRateHz / rbwHz;
         int p = (int)Math.Round(Math.Log2(Math.Max(n, 1)));

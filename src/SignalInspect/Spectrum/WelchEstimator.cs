@@ -30,7 +30,7 @@ public static class WelchEstimator
     /// <param name="progress">Called now and then with the samples processed so far (from worker threads).</param>
     /// <param name="cancel">Stops the pass between segments.</param>
     /// <exception cref="CaptureException">The window holds fewer samples than one segment.</exception>
-    /// <exception cref="ArgumentOutOfRangeException">A setting is out of range.</exception>
+    /// <exception cref="SettingException">A setting is out of range (named by its property).</exception>
     public static SpectrumResult Estimate(
         CaptureSource source,
         SpectrumSettings settings,
@@ -47,9 +47,11 @@ public static class WelchEstimator
         long count = Math.Min(sampleCount ?? long.MaxValue, info.SampleCount - firstSample);
         long segments = count >= n ? (count - n) / step + 1 : 0;
         if (segments == 0)
-            throw CaptureException.ForFile(
-                info.Path,
-                $"holds {Math.Max(count, 0)} samples, fewer than one FFT segment of {n}: use a smaller --fft"
+            throw new SettingException(
+                nameof(SpectrumSettings.FftSize),
+                n,
+                $"the window holds {Math.Max(count, 0)} samples, fewer than one FFT segment of {n}: use a smaller size",
+                info.Path
             );
         Window window = Window.Create(settings.Window, n, settings.KaiserBeta);
         bool complex = info.IsComplex;

@@ -17,7 +17,7 @@ public sealed class SignalGenerator
     private double? _spareGaussian;
 
     /// <summary>Creates a generator at sample 0.</summary>
-    /// <exception cref="ArgumentOutOfRangeException">The spec is invalid.</exception>
+    /// <exception cref="SettingException">The spec is invalid (named by its property).</exception>
     public SignalGenerator(SignalSpec spec)
     {
         spec.Validate();

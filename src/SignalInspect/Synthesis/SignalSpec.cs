@@ -107,54 +107,50 @@ public sealed record SignalSpec
     }
 
     /// <summary>Checks every parameter; the message names the parameter and its allowed range.</summary>
-    /// <exception cref="ArgumentOutOfRangeException">A parameter is out of range.</exception>
+    /// <exception cref="SettingException">A parameter is out of range (named by its property).</exception>
     public void Validate()
     {
         static void Positive(double v, string name)
         {
             if (!double.IsFinite(v) || v <= 0)
-                throw new ArgumentOutOfRangeException(name, v, "must be a positive number");
+                throw new SettingException(name, v, "must be a positive number");
         }
-        Positive(SampleRateHz, "--sample-rate");
-        Positive(DurationS, "--duration");
+        Positive(SampleRateHz, nameof(SampleRateHz));
+        Positive(DurationS, nameof(DurationS));
         if (SampleCount < 1)
-            throw new ArgumentOutOfRangeException("--duration", DurationS, "gives no sample at this rate");
+            throw new SettingException(nameof(DurationS), DurationS, "gives no sample at this rate");
         if (!double.IsFinite(Amplitude) || Amplitude < 0 || Amplitude > 1)
-            throw new ArgumentOutOfRangeException("--amplitude", Amplitude, "must be from 0 to 1 (full scale)");
+            throw new SettingException(nameof(Amplitude), Amplitude, "must be from 0 to 1 (full scale)");
         if (!double.IsFinite(CarrierOffsetHz) || Math.Abs(CarrierOffsetHz) >= SampleRateHz / 2)
-            throw new ArgumentOutOfRangeException(
-                "--offset",
+            throw new SettingException(
+                nameof(CarrierOffsetHz),
                 CarrierOffsetHz,
                 "must lie inside +/- half the sample rate"
             );
         if (!IsComplex && CarrierOffsetHz <= 0)
-            throw new ArgumentOutOfRangeException(
-                "--offset",
+            throw new SettingException(
+                nameof(CarrierOffsetHz),
                 CarrierOffsetHz,
                 "a real signal needs a positive carrier frequency"
             );
         if (Kind is SignalKind.Am or SignalKind.Fm or SignalKind.Pm)
-            Positive(ModulatingFrequencyHz, "--tone");
+            Positive(ModulatingFrequencyHz, nameof(ModulatingFrequencyHz));
         if (Kind == SignalKind.Am && (!double.IsFinite(AmDepth) || AmDepth < 0 || AmDepth > 1))
-            throw new ArgumentOutOfRangeException("--depth", AmDepth, "must be from 0 to 1");
+            throw new SettingException(nameof(AmDepth), AmDepth, "must be from 0 to 1");
         if (Kind == SignalKind.Am && Amplitude * (1 + AmDepth) > 1)
-            throw new ArgumentOutOfRangeException(
-                "--amplitude",
-                Amplitude,
-                "x (1 + depth) must not exceed full scale (1.0)"
-            );
+            throw new SettingException(nameof(Amplitude), Amplitude, "x (1 + depth) must not exceed full scale (1.0)");
         if (Kind == SignalKind.Fm)
-            Positive(PeakDeviationHz, "--deviation");
+            Positive(PeakDeviationHz, nameof(PeakDeviationHz));
         if (Kind == SignalKind.Pm)
-            Positive(PeakPhaseRad, "--phase-deviation");
+            Positive(PeakPhaseRad, nameof(PeakPhaseRad));
         if (Kind == SignalKind.Fsk)
         {
-            Positive(FskShiftHz, "--shift");
-            Positive(SymbolRateBd, "--symbol-rate");
+            Positive(FskShiftHz, nameof(FskShiftHz));
+            Positive(SymbolRateBd, nameof(SymbolRateBd));
         }
         if (!double.IsFinite(DriftHzPerS))
-            throw new ArgumentOutOfRangeException("--drift", DriftHzPerS, "must be a number");
+            throw new SettingException(nameof(DriftHzPerS), DriftHzPerS, "must be a number");
         if (SnrDb is { } s && !double.IsFinite(s))
-            throw new ArgumentOutOfRangeException("--snr", s, "must be a number in dB");
+            throw new SettingException(nameof(SnrDb), s, "must be a number in dB");
     }
 }

@@ -52,7 +52,7 @@ public static class Synthesizer
     }
 
     /// <summary>Generates <paramref name="spec"/> and writes it.</summary>
-    /// <exception cref="ArgumentOutOfRangeException">The spec is invalid.</exception>
+    /// <exception cref="SettingException">The spec is invalid (named by its property).</exception>
     /// <exception cref="CaptureException">The output cannot be written as asked.</exception>
     public static SynthesisResult Write(
         SignalSpec spec,

@@ -12,8 +12,9 @@ public class RawAndSigMfTests
     public void Raw_cu8_is_read_with_its_rate_given_and_its_datatype_taken_from_the_ending()
     {
         string path = TestData.Path("raw", "tone-100k-2048k.cu8");
-        var e = Assert.Throws<CaptureException>(() => CaptureSource.Open(path));
-        Assert.Contains("sample rate missing", e.Message);
+        var e = Assert.Throws<SettingException>(() => CaptureSource.Open(path));
+        Assert.Equal(nameof(ReaderOptions.SampleRateHz), e.Setting);
+        Assert.Contains("a raw file has no header", e.Message);
         CaptureSource source = CaptureSource.Open(
             path,
             new ReaderOptions { SampleRateHz = 2.048e6, CenterFrequencyHz = 433.92e6 }
@@ -35,7 +36,12 @@ public class RawAndSigMfTests
     public void Raw_file_with_an_unhelpful_ending_takes_datatype_and_rate_from_options()
     {
         string path = TestData.Path("raw", "tone-m50k-1M.iq");
-        Assert.Throws<CaptureException>(() => CaptureSource.Open(path, new ReaderOptions { SampleRateHz = 1e6 }));
+        Assert.Equal(
+            nameof(ReaderOptions.Datatype),
+            Assert
+                .Throws<SettingException>(() => CaptureSource.Open(path, new ReaderOptions { SampleRateHz = 1e6 }))
+                .Setting
+        );
         CaptureSource source = CaptureSource.Open(path, new ReaderOptions { Datatype = "ci16_le", SampleRateHz = 1e6 });
         Assert.Equal(4000, source.Info.SampleCount);
         double[] iq = TestData.ReadAll(source);
@@ -106,14 +112,17 @@ public class RawAndSigMfTests
         CaptureSource viaOption = CaptureSource.Open(path, new ReaderOptions { Segment = 2 });
         Assert.Equal(1500, viaOption.Info.SampleCount);
         Assert.Equal(all[10000..], TestData.ReadAll(viaOption));
-        Assert.Throws<CaptureException>(() => whole.ForSegment(3));
+        Assert.Equal(nameof(ReaderOptions.Segment), Assert.Throws<SettingException>(() => whole.ForSegment(3)).Setting);
     }
 
     [Fact]
     public void SigMF_two_channels_interleave_sample_by_sample()
     {
         string path = TestData.Path("sigmf", "twoch-cf32.sigmf-meta");
-        Assert.Throws<CaptureException>(() => CaptureSource.Open(path));
+        Assert.Equal(
+            nameof(ReaderOptions.Channels),
+            Assert.Throws<SettingException>(() => CaptureSource.Open(path)).Setting
+        );
         double[] ch1 = TestData.ReadAll(
             CaptureSource.Open(path, new ReaderOptions { Channels = ChannelSelection.Index, ChannelIndex = 1 })
         );

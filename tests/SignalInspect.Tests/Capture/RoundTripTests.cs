@@ -135,7 +135,7 @@ public class RoundTripTests
         string path = tmp.File("keep.cf32");
         File.WriteAllText(path, "precious");
         var spec = new SignalSpec { SampleRateHz = 1000, DurationS = 0.01 };
-        var e = Assert.Throws<CaptureException>(() => Synthesizer.Write(spec, path, SampleFormat.Parse("cf32_le")));
+        var e = Assert.Throws<OutputException>(() => Synthesizer.Write(spec, path, SampleFormat.Parse("cf32_le")));
         Assert.Contains("already exists", e.Message);
         Assert.Equal("precious", File.ReadAllText(path));
         Synthesizer.Write(spec, path, SampleFormat.Parse("cf32_le"), overwrite: true);

@@ -92,8 +92,9 @@ public class WavReaderTests
     public void Extensible_three_channel_file_needs_a_channel_and_gives_it()
     {
         string file = TestData.Path("wav", "sox-3ch-s16.wav");
-        var e = Assert.Throws<CaptureException>(() => CaptureSource.Open(file));
-        Assert.Contains("3 channels: pick one with --channel N", e.Message);
+        var e = Assert.Throws<SettingException>(() => CaptureSource.Open(file));
+        Assert.Equal(nameof(ReaderOptions.Channels), e.Setting);
+        Assert.Contains("3 channels: pick one by number", e.Message);
         double[] sox = TestData.ReadF64(TestData.Path("wav", "sox-3ch-s16.f64"));
         for (int ch = 0; ch < 3; ch++)
         {
@@ -104,7 +105,7 @@ public class WavReaderTests
             for (int n = 0; n < 400; n++)
                 Assert.Equal(sox[3 * n + ch], x[n]);
         }
-        Assert.Throws<CaptureException>(() =>
+        Assert.Throws<SettingException>(() =>
             CaptureSource.Open(file, new ReaderOptions { Channels = ChannelSelection.Index, ChannelIndex = 3 })
         );
     }
@@ -184,8 +185,14 @@ public class WavReaderTests
         Assert.Equal(40, reader.Read(buf));
         Assert.Equal(all[80..120], buf[..40]);
         Assert.Equal(0, reader.Read(buf));
-        Assert.Throws<CaptureException>(() => source.OpenReader(startS: 1.0, durationS: null));
-        Assert.Throws<CaptureException>(() => source.OpenReader(startS: 0, durationS: -1));
+        Assert.Equal(
+            "StartS",
+            Assert.Throws<SettingException>(() => source.OpenReader(startS: 1.0, durationS: null)).Setting
+        );
+        Assert.Equal(
+            "DurationS",
+            Assert.Throws<SettingException>(() => source.OpenReader(startS: 0, durationS: -1)).Setting
+        );
     }
 
     internal static byte[] Rf64Header(long dataBytes, int channels, int rate, int bits)

@@ -13,13 +13,13 @@ public class BadInputTests
     [InlineData("text-named.wav", "not a WAV file")]
     [InlineData("zero-channels.wav", "zero channels")]
     [InlineData("fmt-size-lies.wav", "more than the file holds")]
-    [InlineData("noise.cu8", "sample rate missing")]
-    [InlineData("odd-length.cs16", "sample rate missing")]
-    [InlineData("unknown-ending.bin", "give --datatype")]
+    [InlineData("noise.cu8", "noise.cu8: --sample-rate: needed (a raw file has no header)")]
+    [InlineData("odd-length.cs16", "--sample-rate: needed")]
+    [InlineData("unknown-ending.bin", "unknown-ending.bin: --datatype: needed")]
     [InlineData("syntax-error.sigmf-meta", "not valid JSON at line 4, column 31")]
     [InlineData("rate-is-string.sigmf-meta", "global.core:sample_rate must be a number, not a string")]
     [InlineData("unknown-datatype.sigmf-meta", "unknown datatype 'cf16_xx'")]
-    [InlineData("rate-missing.sigmf-meta", "sample rate missing")]
+    [InlineData("rate-missing.sigmf-meta", "--sample-rate: needed (no global.core:sample_rate in the metadata)")]
     [InlineData("rate-zero.sigmf-meta", "must be a positive number")]
     [InlineData(
         "rate-negative.sigmf-meta",

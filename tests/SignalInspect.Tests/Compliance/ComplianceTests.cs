@@ -1,4 +1,3 @@
-using SignalInspect.Capture;
 using SignalInspect.Compliance;
 
 namespace SignalInspect.Tests.Compliance;
@@ -93,7 +92,7 @@ public class ComplianceTests
         using var tmp = new TempDir();
         string path = tmp.File("p.json");
         File.WriteAllText(path, json);
-        var e = Assert.Throws<CaptureException>(() => LimitProfile.Load(path));
+        var e = Assert.Throws<ProfileException>(() => LimitProfile.Load(path));
         Assert.Contains(message, e.Message);
         Assert.DoesNotContain('\n', e.Message);
     }
@@ -104,7 +103,7 @@ public class ComplianceTests
         using var tmp = new TempDir();
         string path = tmp.File("p.json");
         File.WriteAllText(path, "{\n \"name\": \"x\",\n \"maxPeakDeviationHz\" 2500\n}");
-        var e = Assert.Throws<CaptureException>(() => LimitProfile.Load(path));
+        var e = Assert.Throws<ProfileException>(() => LimitProfile.Load(path));
         Assert.Contains("line 3", e.Message);
     }
 }

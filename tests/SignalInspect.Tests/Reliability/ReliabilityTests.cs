@@ -141,7 +141,7 @@ public class ReliabilityTests
                         )
                 );
             }
-            catch (CaptureException e)
+            catch (UserInputException e)
             {
                 Assert.DoesNotContain('\n', e.Message);
             }
@@ -218,7 +218,7 @@ public class ReliabilityTests
             {
                 LimitProfile.Load(path);
             }
-            catch (CaptureException e)
+            catch (ProfileException e)
             {
                 Assert.DoesNotContain('\n', e.Message);
             }

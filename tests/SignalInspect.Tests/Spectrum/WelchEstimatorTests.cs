@@ -393,7 +393,7 @@ public class WelchEstimatorTests
     {
         using var tmp = new TempDir();
         CaptureSource src = Synth(tmp, new SignalSpec { SampleRateHz = 1000, DurationS = 0.1 });
-        var e = Assert.Throws<CaptureException>(() =>
+        var e = Assert.Throws<SettingException>(() =>
             WelchEstimator.Estimate(src, new SpectrumSettings { FftSize = 256 })
         );
         Assert.Contains("fewer than one FFT segment of 256", e.Message);

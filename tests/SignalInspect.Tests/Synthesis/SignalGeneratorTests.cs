@@ -139,20 +139,20 @@ public class SignalGeneratorTests
     }
 
     [Theory]
-    [InlineData("--amplitude")]
-    [InlineData("--sample-rate")]
-    [InlineData("--offset")]
-    [InlineData("--depth")]
-    public void Invalid_parameters_name_the_option(string option)
+    [InlineData(nameof(SignalSpec.Amplitude))]
+    [InlineData(nameof(SignalSpec.SampleRateHz))]
+    [InlineData(nameof(SignalSpec.CarrierOffsetHz))]
+    [InlineData(nameof(SignalSpec.AmDepth))]
+    public void Invalid_parameters_name_the_setting(string setting)
     {
-        SignalSpec bad = option switch
+        SignalSpec bad = setting switch
         {
-            "--amplitude" => new SignalSpec { Amplitude = 1.5 },
-            "--sample-rate" => new SignalSpec { SampleRateHz = -1 },
-            "--offset" => new SignalSpec { SampleRateHz = 1000, CarrierOffsetHz = 600 },
+            nameof(SignalSpec.Amplitude) => new SignalSpec { Amplitude = 1.5 },
+            nameof(SignalSpec.SampleRateHz) => new SignalSpec { SampleRateHz = -1 },
+            nameof(SignalSpec.CarrierOffsetHz) => new SignalSpec { SampleRateHz = 1000, CarrierOffsetHz = 600 },
             _ => new SignalSpec { Kind = SignalKind.Am, AmDepth = 1.5 },
         };
-        var e = Assert.Throws<ArgumentOutOfRangeException>(() => new SignalGenerator(bad));
-        Assert.Equal(option, e.ParamName);
+        var e = Assert.Throws<SettingException>(() => new SignalGenerator(bad));
+        Assert.Equal(setting, e.Setting);
     }
 }

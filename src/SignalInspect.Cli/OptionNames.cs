@@ -1,0 +1,52 @@
+namespace SignalInspect.Cli;
+
+/// <summary>
+/// The command line's spelling of each setting the core names in a <see cref="SettingException"/>
+/// (by its settings property): the one map from core settings to options.
+/// </summary>
+internal static class OptionNames
+{
+    /// <summary>Setting (property name) to option.</summary>
+    public static IReadOnlyDictionary<string, string> BySetting { get; } =
+        new Dictionary<string, string>(StringComparer.Ordinal)
+        {
+            // Reading (ReaderOptions) and the window (AnalysisOptions, SignalSpec)
+            ["SampleRateHz"] = "--sample-rate",
+            ["CenterFrequencyHz"] = "--center-frequency",
+            ["Datatype"] = "--datatype",
+            ["Channels"] = "--channel",
+            ["Segment"] = "--segment",
+            ["VerifyChecksum"] = "--no-verify",
+            ["StartS"] = "--start",
+            ["DurationS"] = "--duration",
+            // Spectrum (SpectrumSettings)
+            ["FftSize"] = "--fft",
+            ["RbwHz"] = "--rbw",
+            ["OverlapFraction"] = "--overlap",
+            ["KaiserBeta"] = "--window",
+            ["CalibrationDb"] = "--calibration",
+            ["Threads"] = "--threads",
+            // Measuring (AnalysisOptions)
+            ["NominalHz"] = "--nominal",
+            ["Expect"] = "--expect",
+            ["ObwPercent"] = "--obw-percent",
+            ["Xdb"] = "--xdb",
+            ["PostLowPassHz"] = "--post-lowpass",
+            ["PostHighPassHz"] = "--post-highpass",
+            ["DeEmphasisUs"] = "--deemphasis",
+            // Synthesis (SignalSpec)
+            ["Amplitude"] = "--amplitude",
+            ["CarrierOffsetHz"] = "--offset",
+            ["ModulatingFrequencyHz"] = "--tone",
+            ["AmDepth"] = "--depth",
+            ["PeakDeviationHz"] = "--deviation",
+            ["PeakPhaseRad"] = "--phase-deviation",
+            ["FskShiftHz"] = "--shift",
+            ["SymbolRateBd"] = "--symbol-rate",
+            ["DriftHzPerS"] = "--drift",
+            ["SnrDb"] = "--snr",
+        };
+
+    /// <summary>The option for a setting (the setting's own name when the command line has none).</summary>
+    public static string For(string setting) => BySetting.TryGetValue(setting, out string? o) ? o : setting;
+}
