@@ -1,10 +1,9 @@
 using System.CommandLine;
-using System.Globalization;
 using SignalInspect.Capture;
 using SignalInspect.Compliance;
+using SignalInspect.Inspection;
 using SignalInspect.Measure;
 using SignalInspect.Reporting;
-using SignalInspect.Spectrum;
 
 namespace SignalInspect.Cli;
 
@@ -125,7 +124,7 @@ internal static class AnalyzeCommand
                 if (!pdfOut.EndsWith(".pdf", StringComparison.OrdinalIgnoreCase))
                     throw new UsageException($"--report: '{pdfOut}' should end in .pdf");
                 AtomicFile.CheckWritable(pdfOut, overwrite);
-                AtomicFile.CheckWritable(Path.ChangeExtension(pdfOut, ".json"), overwrite);
+                AtomicFile.CheckWritable(CaptureInspection.ModelPathFor(pdfOut), overwrite);
             }
             string? profilePath = r.GetValue(limits);
             LimitProfile? profile = profilePath is null ? null : LimitProfile.Load(profilePath);
@@ -136,7 +135,7 @@ internal static class AnalyzeCommand
                 expected = ModulationKindNames.Parse(e);
             var options = new AnalysisOptions
             {
-                NominalHz = r.GetValue(nominal) ?? profile?.NominalFrequencyHz,
+                NominalHz = r.GetValue(nominal),
                 Expect = expected,
                 ObwPercent = r.GetValue(obw),
                 Xdb = r.GetValue(xdb),
@@ -157,40 +156,39 @@ internal static class AnalyzeCommand
                 Threads = r.GetValue(spec.Threads),
                 KeepSpectrogram = pdfOut is not null,
             };
-            long total = source.Info.SampleCount;
-            AnalysisResult result = CliProgress.Run(stderr, "analyze", total, report =>
-                Analyzer.Analyze(source, options, report)
+            var settings = new InspectionSettings
+            {
+                Analysis = options,
+                Profile = profile,
+                ProfilePath = profilePath,
+                Header = new ReportHeader
+                {
+                    Title = r.GetValue(title),
+                    Operator = r.GetValue(op),
+                    Equipment = r.GetValue(eut),
+                    Notes = r.GetValue(notes),
+                    Paper = r.GetValue(paper) == "letter" ? PaperSize.Letter : PaperSize.A4,
+                    CommandLine =
+                        "signalinspect " + string.Join(' ', Environment.GetCommandLineArgs().Skip(1).Select(Quote)),
+                },
+            };
+            MeasurementReport model = CliProgress.Run(stderr, "analyze", source.Info.SampleCount, report =>
+                CaptureInspection.Inspect(source, settings, report, timer: Diagnostics.TimerFor(stderr))
             );
             bool toStdout = jsonOut == "-";
             TextWriter summary = toStdout ? stderr : stdout;
-            WriteSummary(summary, result);
-            foreach (string w in result.Warnings)
+            ConsoleReport.WriteSummary(summary, model);
+            foreach (string w in model.Analysis.Warnings)
                 stderr.WriteLine($"signalinspect: warning: {w}");
-            MeasurementReport model = MeasurementReport.Create(
-                result,
-                profile,
-                profilePath,
-                r.GetValue(title) ?? $"Measurement of {Path.GetFileName(source.Info.Path)}"
-            ) with
-            {
-                Operator = r.GetValue(op),
-                Equipment = r.GetValue(eut),
-                Notes = r.GetValue(notes),
-                Paper = r.GetValue(paper) == "letter" ? PaperSize.Letter : PaperSize.A4,
-                CommandLine =
-                    "signalinspect " + string.Join(' ', Environment.GetCommandLineArgs().Skip(1).Select(Quote)),
-            };
-            Verdict? overall = model.Overall;
-            if (profile is not null)
-                WriteVerdicts(summary, profile, model.Checks, overall!.Value);
+            ConsoleReport.WriteVerdicts(summary, model);
             if (pdfOut is not null)
             {
-                WriteReport(model, pdfOut, overwrite);
-                summary.WriteLine($"wrote {pdfOut} and {Path.ChangeExtension(pdfOut, ".json")}");
+                CaptureInspection.WriteReport(model, pdfOut, overwrite);
+                summary.WriteLine($"wrote {pdfOut} and {CaptureInspection.ModelPathFor(pdfOut)}");
             }
             if (jsonOut is not null)
             {
-                byte[] bytes = AnalysisJson.ToBytes(result);
+                byte[] bytes = AnalysisJson.ToBytes(model.Analysis);
                 if (toStdout)
                     stdout.WriteLine(System.Text.Encoding.UTF8.GetString(bytes));
                 else
@@ -199,107 +197,10 @@ internal static class AnalyzeCommand
                     summary.WriteLine($"wrote {jsonOut}");
                 }
             }
-            return overall == Verdict.Fail ? ExitCodes.LimitFailed : ExitCodes.Success;
+            return ExitCodes.ForVerdict(model.Overall);
         });
         return cmd;
     }
 
     private static string Quote(string a) => a.Contains(' ') ? $"\"{a}\"" : a;
-
-    /// <summary>Writes the PDF and its JSON model, each atomically.</summary>
-    internal static void WriteReport(MeasurementReport model, string pdfOut, bool overwrite)
-    {
-        AtomicFile.Write(Path.ChangeExtension(pdfOut, ".json"), overwrite, s => s.Write(ReportJson.ToBytes(model)));
-        AtomicFile.Write(pdfOut, overwrite, s => PdfReportWriter.Write(model, s));
-    }
-
-    internal static void WriteVerdicts(
-        TextWriter o,
-        LimitProfile profile,
-        IReadOnlyList<LimitCheck> checks,
-        Verdict overall
-    )
-    {
-        CultureInfo c = CultureInfo.InvariantCulture;
-        o.WriteLine($"limits                {profile.Name}");
-        foreach (LimitCheck k in checks)
-            o.WriteLine(
-                string.Create(
-                    c,
-                    $"  {k.Verdict.ToString().ToUpperInvariant(),-13} {k.Measurement}: {k.Value:0.###} {k.Unit} (U {k.ExpandedUncertainty:0.###}), limit {k.LimitText}, margin {k.Margin:+0.###;-0.###}"
-                )
-            );
-        o.WriteLine($"verdict               {overall.ToString().ToUpperInvariant()}");
-    }
-
-    internal static void WriteSummary(TextWriter o, AnalysisResult r)
-    {
-        CultureInfo c = CultureInfo.InvariantCulture;
-        void Row(string k, string v) => o.WriteLine($"{k,-22}{v}");
-        string F(double v, string fmt = "0.###") => v.ToString(fmt, c);
-        Row("file", r.Capture.Path);
-        Row(
-            "modulation",
-            $"{r.Classification.Kind.Name()} (confidence {F(r.Classification.Confidence, "0.00")}{(r.Classification.Expected ? ", as --expect said" : string.Empty)}): {r.Classification.Reason}"
-        );
-        Row("SNR in band", F(r.ChannelSnrDb, "0.0") + " dB");
-        if (r.Carrier is { } car)
-        {
-            Row(
-                "carrier",
-                $"{F(car.FrequencyHz.Value, "0.###")} Hz +/- {F(car.FrequencyHz.StandardUncertainty, "0.###")} Hz (k=1)"
-            );
-            Row(
-                "offset",
-                $"{F(car.OffsetHz, "0.###")} Hz"
-                    + (car.OffsetPpm is { } ppm ? $" ({F(ppm, "0.####")} ppm)" : string.Empty)
-                    + $" from {car.OffsetReference}"
-            );
-        }
-        var b = r.Bandwidth;
-        Row(
-            $"occupied bw ({F(100 * (1 - b.Beta), "0.#")} %)",
-            $"{F(b.OccupiedHz, "0.#")} Hz +/- {F(r.OccupiedUncertaintyHz, "0.#")} Hz, edges {F(FrequencyAxis.Of(r.Capture).ToReported(b.LowerEdgeHz), "0.#")} to {F(FrequencyAxis.Of(r.Capture).ToReported(b.UpperEdgeHz), "0.#")} Hz"
-        );
-        Row(
-            $"{F(b.Xdb, "0.#")} dB bandwidth",
-            $"{F(b.XdbHz, "0.#")} Hz (RBW {F(r.Method.RbwHz, "0.##")} Hz, noise floor {(b.Treatment == NoiseFloorTreatment.Subtract ? "subtracted" : "kept")})"
-        );
-        if (r.Am is { } am)
-            Row(
-                "AM depth",
-                $"{F(am.DepthPercent.Value, "0.00")} % (+peak {F(am.PositivePeakPercent, "0.00")} %, -peak {F(am.NegativePeakPercent, "0.00")} %)"
-                    + (am.SidebandDepthPercent is { } sb ? $", sidebands give {F(sb, "0.00")} %" : string.Empty)
-            );
-        if (r.Fm is { } fm)
-            Row(
-                "FM deviation",
-                $"peak {F(fm.PeakDeviationHz.Value, "0.#")} Hz (+{F(fm.PositivePeakHz, "0.#")} / -{F(fm.NegativePeakHz, "0.#")} Hz), rms {F(fm.RmsDeviationHz, "0.#")} Hz"
-                    + (fm.ModulationIndex is { } mi ? $", index {F(mi, "0.###")}" : string.Empty)
-            );
-        if (r.Pm is { } pm)
-            Row("PM deviation", $"peak {F(pm.PeakDeviationRad.Value, "0.####")} rad");
-        if (r.Fsk is { } fsk)
-            Row(
-                "FSK",
-                $"tones {string.Join(", ", fsk.ToneFrequenciesHz.Select(t => F(t, "0.#")))} Hz, shift {F(fsk.ShiftHz.Value, "0.#")} Hz"
-                    + (
-                        fsk.SymbolRateBd is { } sr
-                            ? $", {F(sr.Value, "0.##")} Bd, h = {F(fsk.ModulationIndex!.Value, "0.###")}"
-                            : ", symbol rate not found"
-                    )
-            );
-        if (r.ModulatingFrequencyHz is { } mf)
-            Row("modulating frequency", F(mf.Value, "0.##") + " Hz");
-        if (r.EmissionDesignator is { } d)
-            Row(
-                "emission designator",
-                d
-                    + (
-                        r.NecessaryBandwidthHz is { } nb
-                            ? $" (necessary bandwidth {F(nb, "0.#")} Hz, 47 CFR 2.202; measured occupied {F(b.OccupiedHz, "0.#")} Hz)"
-                            : string.Empty
-                    )
-            );
-    }
 }

@@ -1,7 +1,7 @@
 using System.CommandLine;
-using System.Globalization;
 using SignalInspect.Capture;
 using SignalInspect.Compliance;
+using SignalInspect.Inspection;
 using SignalInspect.Measure;
 using SignalInspect.Reporting;
 using SignalInspect.Synthesis;
@@ -129,35 +129,34 @@ internal static class DemoCommand
                     new ReaderOptions { CenterFrequencyHz = wav ? spec.CenterFrequencyHz : null }
                 );
                 LimitProfile profile = EmbeddedProfile(profileName);
-                AnalysisResult result = Analyzer.Analyze(
-                    source,
-                    new AnalysisOptions { NominalHz = spec.CenterFrequencyHz }
-                );
-                MeasurementReport model = MeasurementReport.Create(
-                    result,
-                    profile,
-                    "profiles/" + profileName,
-                    "Harbour Water Authority radio shop: " + equipment
-                ) with
+                var settings = new InspectionSettings
                 {
-                    Operator = "demo (synthesised recording)",
-                    Equipment = equipment,
-                    Notes =
-                        "Demonstration: the recording was synthesised by 'signalinspect demo' ("
-                        + Synthesizer.Describe(spec)
-                        + ").",
-                    CommandLine = "signalinspect demo",
+                    Analysis = new AnalysisOptions { NominalHz = spec.CenterFrequencyHz },
+                    Profile = profile,
+                    ProfilePath = "profiles/" + profileName,
+                    Header = new ReportHeader
+                    {
+                        Title = "Harbour Water Authority radio shop: " + equipment,
+                        Operator = "demo (synthesised recording)",
+                        Equipment = equipment,
+                        Notes =
+                            "Demonstration: the recording was synthesised by 'signalinspect demo' ("
+                            + Synthesizer.Describe(spec)
+                            + ").",
+                        CommandLine = "signalinspect demo",
+                    },
                 };
+                MeasurementReport model = CaptureInspection.Inspect(source, settings);
                 Verdict overall = model.Overall!.Value;
                 string pdf = Path.Combine(
                     dir,
                     Path.GetFileNameWithoutExtension(file.Replace(".sigmf-meta", string.Empty)) + ".pdf"
                 );
-                AnalyzeCommand.WriteReport(model, pdf, overwrite: true);
+                CaptureInspection.WriteReport(model, pdf, overwrite: true);
                 rows.Add([
                     file,
-                    result.Classification.Kind.Name(),
-                    KeyReading(result),
+                    model.Analysis.Classification.Kind.Name(),
+                    ConsoleReport.Headline(model),
                     overall.ToString().ToUpperInvariant(),
                     pdf,
                 ]);
@@ -184,27 +183,5 @@ internal static class DemoCommand
             return ExitCodes.Success;
         });
         return cmd;
-    }
-
-    private static string KeyReading(AnalysisResult r)
-    {
-        CultureInfo c = CultureInfo.InvariantCulture;
-        string offset = r.Carrier is { } car ? string.Create(c, $", offset {car.OffsetHz:+0.#;-0.#} Hz") : string.Empty;
-        return r.Classification.Kind switch
-        {
-            ModulationKind.Fm => string.Create(
-                c,
-                $"peak deviation {r.Fm!.PeakDeviationHz.Value:0} Hz, OBW {r.Bandwidth.OccupiedHz:0} Hz{offset}"
-            ),
-            ModulationKind.Am => string.Create(
-                c,
-                $"depth {r.Am!.DepthPercent.Value:0.0} % (+{r.Am.PositivePeakPercent:0.0} / -{r.Am.NegativePeakPercent:0.0} %){offset}"
-            ),
-            ModulationKind.Fsk => string.Create(
-                c,
-                $"shift {r.Fsk!.ShiftHz.Value:0} Hz at {r.Fsk.SymbolRateBd?.Value ?? 0:0} Bd{offset}"
-            ),
-            _ => string.Create(c, $"OBW {r.Bandwidth.OccupiedHz:0} Hz{offset}"),
-        };
     }
 }

@@ -14,4 +14,9 @@ public static class ExitCodes
 
     /// <summary>An internal error (a bug in SignalInspect): please report it.</summary>
     public const int InternalError = 3;
+
+    /// <summary>The exit code of a judged capture: <see cref="LimitFailed"/> when a limit failed, else
+    /// <see cref="Success"/> (no profile, PASS or INCONCLUSIVE).</summary>
+    public static int ForVerdict(Compliance.Verdict? overall) =>
+        overall == Compliance.Verdict.Fail ? LimitFailed : Success;
 }

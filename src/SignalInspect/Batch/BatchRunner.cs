@@ -2,6 +2,7 @@ using System.Collections.Concurrent;
 using System.Text;
 using SignalInspect.Capture;
 using SignalInspect.Compliance;
+using SignalInspect.Inspection;
 using SignalInspect.Measure;
 using SignalInspect.Reporting;
 using SignalInspect.Reporting.Plots;
@@ -238,24 +239,15 @@ public static class BatchRunner
         try
         {
             CaptureSource source = CaptureSource.Open(file, CaptureFormats.WithSidecar(file, input.Options));
-            AnalysisResult r = Analyzer.Analyze(
-                source,
-                o.Analysis with
-                {
-                    Threads = 1,
-                    KeepSpectrogram = o.Reports,
-                    NominalHz = o.Analysis.NominalHz ?? o.Profile?.NominalFrequencyHz,
-                }
-            );
-            MeasurementReport model = MeasurementReport.Create(
-                r,
-                o.Profile,
-                o.ProfilePath,
-                "Measurement of " + Path.GetFileName(file)
-            ) with
+            var settings = new InspectionSettings
             {
-                CommandLine = "signalinspect batch",
+                Analysis = o.Analysis with { Threads = 1, KeepSpectrogram = o.Reports },
+                Profile = o.Profile,
+                ProfilePath = o.ProfilePath,
+                Header = new ReportHeader { CommandLine = "signalinspect batch" },
             };
+            MeasurementReport model = CaptureInspection.Inspect(source, settings);
+            AnalysisResult r = model.Analysis;
             Verdict? overall = model.Overall;
             string stem = (hash ?? r.Sha256)[..16];
             string thumbRel = Path.Combine("thumbs", stem + ".png");
@@ -274,8 +266,7 @@ public static class BatchRunner
                 );
                 Directory.CreateDirectory(Path.Combine(o.OutDir, "reports"));
                 string pdf = Path.Combine(o.OutDir, reportRel);
-                AtomicFile.Write(Path.ChangeExtension(pdf, ".json"), true, s => s.Write(ReportJson.ToBytes(model)));
-                AtomicFile.Write(pdf, true, s => PdfReportWriter.Write(model, s));
+                CaptureInspection.WriteReport(model, pdf, overwrite: true);
             }
             return new BatchRecord
             {

@@ -140,95 +140,32 @@ public static class PdfReportWriter
         );
     }
 
+    /// <summary>The results table's cells, one array per row of <see cref="ResultRows"/>.</summary>
     private static List<string[]> Rows(MeasurementReport r)
     {
-        AnalysisResult a = r.Analysis;
-        double k = r.Profile?.CoverageFactor ?? 2;
-        var rows = new List<string[]>();
         string F(double v, string f) => double.IsFinite(v) ? v.ToString(f, C) : "-";
-        foreach (LimitCheck c in r.Checks)
-            rows.Add([
-                c.Measurement,
-                F(c.Value, "0.###"),
-                c.Unit,
-                F(c.ExpandedUncertainty, "0.###"),
-                c.LimitText,
-                F(c.Margin, "+0.##;-0.##"),
-                c.Verdict.ToString().ToUpperInvariant(),
+        var cells = new List<string[]>();
+        foreach (ResultRow row in ResultRows.For(r.Analysis, r.Checks, r.Profile?.CoverageFactor ?? 2))
+        {
+            string u =
+                row.ExpandedUncertainty is { } x ? F(x, "0.###")
+                : row.Text is not null && row.Unit.Length == 0 ? ""
+                : "-";
+            string last =
+                row.Verdict is { } v ? v.ToString().ToUpperInvariant()
+                : row.Text is not null ? row.Note ?? "-"
+                : "-";
+            cells.Add([
+                row.Quantity,
+                row.Verdict is null ? row.ValueText : F(row.Value ?? double.NaN, "0.###"),
+                row.Unit,
+                u,
+                row.LimitText ?? "-",
+                row.Margin is { } m ? F(m, "+0.##;-0.##") : "-",
+                last,
             ]);
-        // Values already judged above are not repeated as information rows.
-        var judged = r.Checks.Select(c => c.Measurement).ToList();
-        void Info(string what, double value, string unit, double u, string fmt = "0.###")
-        {
-            if (judged.Any(j => j == what || j.StartsWith(what + " (", StringComparison.Ordinal)))
-                return;
-            rows.Add([what, F(value, fmt), unit, double.IsNaN(u) ? "-" : F(k * u, "0.###"), "-", "-", "-"]);
         }
-        rows.Add([
-            "modulation",
-            a.Classification.Kind.Name().ToUpperInvariant(),
-            "",
-            "",
-            "-",
-            "-",
-            string.Create(C, $"conf. {a.Classification.Confidence:0.00}"),
-        ]);
-        if (a.Carrier is { } car)
-        {
-            Info("carrier frequency", car.FrequencyHz.Value, "Hz", car.FrequencyHz.StandardUncertainty);
-            Info("carrier offset", car.OffsetHz, "Hz", car.FrequencyHz.StandardUncertainty);
-            if (car.OffsetPpm is { } ppm)
-                Info("carrier offset", ppm, "ppm", double.NaN, "0.####");
-        }
-        Info(
-            $"occupied bandwidth ({100 * (1 - a.Bandwidth.Beta):0.#} %)",
-            a.Bandwidth.OccupiedHz,
-            "Hz",
-            a.OccupiedUncertaintyHz,
-            "0.#"
-        );
-        Info($"{a.Bandwidth.Xdb:0.#} dB bandwidth", a.Bandwidth.XdbHz, "Hz", a.Method.RbwHz / Math.Sqrt(3), "0.#");
-        if (a.Fm is { } fm)
-        {
-            Info("FM peak deviation", fm.PeakDeviationHz.Value, "Hz", fm.PeakDeviationHz.StandardUncertainty, "0.#");
-            rows.Add(["FM +peak / -peak", "", "Hz", "-", "-", "-", "-"]);
-            rows[^1][1] = $"{fm.PositivePeakHz.ToString("0.#", C)} / {fm.NegativePeakHz.ToString("0.#", C)}";
-            Info("FM rms deviation", fm.RmsDeviationHz, "Hz", double.NaN, "0.#");
-        }
-        if (a.Am is { } am)
-        {
-            Info("AM depth", am.DepthPercent.Value, "%", am.DepthPercent.StandardUncertainty, "0.##");
-            rows.Add(["AM +peak / -peak", "", "%", "-", "-", "-", "-"]);
-            rows[^1][1] =
-                $"{am.PositivePeakPercent.ToString("0.##", C)} / {am.NegativePeakPercent.ToString("0.##", C)}";
-        }
-        if (a.Pm is { } pm)
-            Info(
-                "PM peak phase deviation",
-                pm.PeakDeviationRad.Value,
-                "rad",
-                pm.PeakDeviationRad.StandardUncertainty,
-                "0.####"
-            );
-        if (a.Fsk is { } fsk)
-        {
-            Info("FSK shift", fsk.ShiftHz.Value, "Hz", fsk.ShiftHz.StandardUncertainty, "0.#");
-            if (fsk.SymbolRateBd is { } sr)
-                Info("FSK symbol rate", sr.Value, "Bd", sr.StandardUncertainty, "0.##");
-        }
-        if (a.ModulatingFrequencyHz is { } mf)
-            Info("modulating frequency", mf.Value, "Hz", mf.StandardUncertainty, "0.##");
-        if (a.EmissionDesignator is { } d)
-            rows.Add([
-                "emission designator",
-                d,
-                "",
-                "",
-                "-",
-                "-",
-                a.NecessaryBandwidthHz is { } nb ? $"Bn {nb.ToString("0", C)} Hz" : "-",
-            ]);
-        return rows;
+        return cells;
     }
 
     private static void PlotPage(Layout l, MeasurementReport r)

@@ -148,7 +148,7 @@ public class AnalyzeCommandTests
         string json = tmp.File("r.json");
         var (code, stdout, stderr) = CliRunner.Run("analyze", M("cw-462.sigmf-meta"), "--json", json);
         Assert.True(code == 0, stderr);
-        Assert.Contains("modulation            cw", stdout);
+        Assert.Matches(@"(?m)^modulation +cw \(confidence", stdout);
         Assert.Contains("wrote", stdout);
         Assert.Equal(
             "cw",

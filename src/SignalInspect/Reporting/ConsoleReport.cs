@@ -1,0 +1,108 @@
+using System.Globalization;
+using SignalInspect.Measure;
+using SignalInspect.Spectrum;
+
+namespace SignalInspect.Reporting;
+
+/// <summary>
+/// The console rendering of a report: what was read and how it was classed, then one line per
+/// result row (<see cref="ResultRows"/>), then, with a profile, one line per check and the verdict.
+/// </summary>
+public static class ConsoleReport
+{
+    private static readonly CultureInfo C = CultureInfo.InvariantCulture;
+    private const int LabelWidth = 30;
+
+    /// <summary>Writes the summary of <paramref name="report"/>.</summary>
+    public static void WriteSummary(TextWriter o, MeasurementReport report)
+    {
+        AnalysisResult a = report.Analysis;
+        double k = report.Profile?.CoverageFactor ?? 2;
+        void Line(string label, string text) => o.WriteLine($"{label,-LabelWidth}{text}");
+        Line("file", a.Capture.Path);
+        Classification cls = a.Classification;
+        Line(
+            "modulation",
+            string.Create(C, $"{cls.Kind.Name()} (confidence {cls.Confidence:0.00}")
+                + (cls.Expected ? ", as asked" : string.Empty)
+                + $"): {cls.Reason}"
+        );
+        Line("SNR in band", a.ChannelSnrDb.ToString("0.0", C) + " dB");
+        foreach (ResultRow row in ResultRows.For(a, [], k))
+        {
+            if (row.Key == "modulation")
+                continue;
+            string u = row.ExpandedUncertainty is { } x
+                ? string.Create(C, $" +/- {x.ToString(row.Format, C)} {row.Unit} (U, k = {k:0.##})")
+                : string.Empty;
+            string unit = row.Unit.Length > 0 ? " " + row.Unit : string.Empty;
+            string note = row.Note is { } n && n != "-" ? $" ({n})" : string.Empty;
+            Line(row.Quantity, row.ValueText + unit + u + note + Detail(a, row.Key));
+        }
+    }
+
+    /// <summary>What the console adds to a row: edges, references, the method's settings.</summary>
+    private static string Detail(AnalysisResult a, string key)
+    {
+        BandwidthResult b = a.Bandwidth;
+        var axis = FrequencyAxis.Of(a.Capture);
+        return key switch
+        {
+            "carrier.offset" => $", from {a.Carrier!.OffsetReference}",
+            "bandwidth.occupied" => string.Create(
+                C,
+                $", edges {axis.ToReported(b.LowerEdgeHz):0.#} to {axis.ToReported(b.UpperEdgeHz):0.#} Hz"
+            ),
+            "bandwidth.xdb" => string.Create(C, $", RBW {a.Method.RbwHz:0.##} Hz, noise floor ")
+                + (b.Treatment == NoiseFloorTreatment.Subtract ? "subtracted" : "kept"),
+            "am.depth" when a.Am!.SidebandDepthPercent is { } sb => string.Create(C, $", sidebands give {sb:0.00} %"),
+            "fm.peakDeviation" when a.Fm!.ModulationIndex is { } mi => string.Create(C, $", index {mi:0.###}"),
+            "fsk.shift" => ", tones "
+                + string.Join(", ", a.Fsk!.ToneFrequenciesHz.Select(t => t.ToString("0.#", C)))
+                + " Hz"
+                + (a.Fsk.SymbolRateBd is null ? ", symbol rate not found" : string.Empty),
+            "emissionDesignator" when a.NecessaryBandwidthHz is not null => " (47 CFR 2.202)",
+            _ => string.Empty,
+        };
+    }
+
+    /// <summary>Writes one line per limit check and the overall verdict (nothing without a profile).</summary>
+    public static void WriteVerdicts(TextWriter o, MeasurementReport report)
+    {
+        if (report.Profile is not { } profile)
+            return;
+        o.WriteLine($"{"limits",-LabelWidth}{profile.Name}");
+        foreach (ResultRow row in ResultRows.For(report.Analysis, report.Checks, profile.CoverageFactor))
+        {
+            if (row.Verdict is not { } v)
+                continue;
+            o.WriteLine(
+                string.Create(
+                    C,
+                    $"  {v.ToString().ToUpperInvariant(),-13} {row.Quantity}: {row.Value:0.###} {row.Unit} "
+                )
+                    + string.Create(
+                        C,
+                        $"(U {row.ExpandedUncertainty:0.###}), limit {row.LimitText}, margin {row.Margin:+0.###;-0.###}"
+                    )
+            );
+        }
+        o.WriteLine($"{"verdict",-LabelWidth}{report.Overall?.ToString().ToUpperInvariant()}");
+    }
+
+    /// <summary>The demo's one-line reading of a capture: its headline rows, then the offset.</summary>
+    public static string Headline(MeasurementReport report)
+    {
+        IReadOnlyList<ResultRow> all = ResultRows.For(report.Analysis, [], 2);
+        IEnumerable<ResultRow> rows = all.Where(r => r.Headline && r.Key != "carrier.offset")
+            .Concat(all.Where(r => r.Headline && r.Key == "carrier.offset"));
+        return string.Join(
+            ", ",
+            rows.Select(r =>
+                r.Key == "carrier.offset"
+                    ? $"offset {r.Value!.Value.ToString("+0.#;-0.#", C)} {r.Unit}"
+                    : $"{r.HeadlineLabel} {r.Value!.Value.ToString(r.Format, C)} {r.Unit}"
+            )
+        );
+    }
+}

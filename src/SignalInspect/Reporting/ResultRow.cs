@@ -1,0 +1,247 @@
+using System.Globalization;
+using SignalInspect.Compliance;
+using SignalInspect.Measure;
+
+namespace SignalInspect.Reporting;
+
+/// <summary>
+/// One line of a report's results: a quantity, its value (a number, or words such as a class or a
+/// designator), unit, uncertainty and, when a limit judged it, the limit, margin, verdict and the
+/// reason. The console summary, the PDF table and the demo's table all render these rows; no
+/// renderer looks at the modulation itself.
+/// </summary>
+public sealed record ResultRow
+{
+    /// <summary>A stable identifier (e.g. <c>fm.peakDeviation</c>) for renderers that pick rows.</summary>
+    public required string Key { get; init; }
+
+    /// <summary>What the row states, as printed ("FM peak deviation").</summary>
+    public required string Quantity { get; init; }
+
+    /// <summary>The value, or null when the row is words (<see cref="Text"/>).</summary>
+    public double? Value { get; init; }
+
+    /// <summary>The value in words, when it is not one number ("FM", "3100.2 / 3099.8", "11K0F3E").</summary>
+    public string? Text { get; init; }
+
+    /// <summary>Unit of the value and the uncertainty.</summary>
+    public string Unit { get; init; } = "";
+
+    /// <summary>Format of the value and uncertainty in the PDF and console (invariant culture).</summary>
+    public string Format { get; init; } = "0.###";
+
+    /// <summary>Standard uncertainty (k = 1), or null when none is stated.</summary>
+    public double? StandardUncertainty { get; init; }
+
+    /// <summary>Expanded uncertainty U = k u, or null.</summary>
+    public double? ExpandedUncertainty { get; init; }
+
+    /// <summary>The limit as written, when a limit judged this row.</summary>
+    public string? LimitText { get; init; }
+
+    /// <summary>Margin to the limit (positive: inside), same unit.</summary>
+    public double? Margin { get; init; }
+
+    /// <summary>The verdict, when a limit judged this row.</summary>
+    public Verdict? Verdict { get; init; }
+
+    /// <summary>A short note for the last column of an unjudged row ("conf. 0.93", "Bn 11000 Hz").</summary>
+    public string? Note { get; init; }
+
+    /// <summary>True for the one or two rows that sum up a capture in a table of many (the demo's).</summary>
+    public bool Headline { get; init; }
+
+    /// <summary>Short label for a headline ("peak deviation", "depth").</summary>
+    public string? HeadlineLabel { get; init; }
+
+    /// <summary>The value as printed: <see cref="Text"/>, or the number in <see cref="Format"/> ("-" when not
+    /// finite).</summary>
+    public string ValueText =>
+        Text ?? (Value is { } v && double.IsFinite(v) ? v.ToString(Format, CultureInfo.InvariantCulture) : "-");
+}
+
+/// <summary>Builds the rows of a report from an analysis and its limit checks.</summary>
+public static class ResultRows
+{
+    private static readonly CultureInfo C = CultureInfo.InvariantCulture;
+
+    /// <summary>
+    /// The rows: first one per limit check (in the profile's order), then every measurement not
+    /// already judged, in a fixed order (class, carrier, bandwidths, the modulation's own, tone,
+    /// designator). Uncertainties are expanded with <paramref name="coverageFactor"/>.
+    /// </summary>
+    public static IReadOnlyList<ResultRow> For(
+        AnalysisResult a,
+        IReadOnlyList<LimitCheck> checks,
+        double coverageFactor
+    )
+    {
+        double k = coverageFactor;
+        var rows = new List<ResultRow>();
+        foreach (LimitCheck c in checks)
+            rows.Add(
+                new ResultRow
+                {
+                    Key = "check",
+                    Quantity = c.Measurement,
+                    Value = c.Value,
+                    Unit = c.Unit,
+                    ExpandedUncertainty = c.ExpandedUncertainty,
+                    LimitText = c.LimitText,
+                    Margin = c.Margin,
+                    Verdict = c.Verdict,
+                    Note = c.Basis,
+                }
+            );
+        // Values already judged above are not repeated as information rows.
+        var judged = checks.Select(c => c.Measurement).ToList();
+        bool Judged(string what) => judged.Any(j => j == what || j.StartsWith(what + " (", StringComparison.Ordinal));
+        void Info(
+            string key,
+            string what,
+            double value,
+            string unit,
+            double? u,
+            string fmt = "0.###",
+            string? headline = null
+        )
+        {
+            if (Judged(what))
+                return;
+            rows.Add(
+                new ResultRow
+                {
+                    Key = key,
+                    Quantity = what,
+                    Value = value,
+                    Unit = unit,
+                    Format = fmt,
+                    StandardUncertainty = u,
+                    ExpandedUncertainty = u is { } s ? k * s : null,
+                    Headline = headline is not null,
+                    HeadlineLabel = headline,
+                }
+            );
+        }
+        void Words(string key, string what, string text, string unit, string? note = null) =>
+            rows.Add(
+                new ResultRow
+                {
+                    Key = key,
+                    Quantity = what,
+                    Text = text,
+                    Unit = unit,
+                    Note = note,
+                }
+            );
+
+        Words(
+            "modulation",
+            "modulation",
+            a.Classification.Kind.Name().ToUpperInvariant(),
+            "",
+            string.Create(C, $"conf. {a.Classification.Confidence:0.00}")
+        );
+        if (a.Carrier is { } car)
+        {
+            Info(
+                "carrier.frequency",
+                "carrier frequency",
+                car.FrequencyHz.Value,
+                "Hz",
+                car.FrequencyHz.StandardUncertainty
+            );
+            Info(
+                "carrier.offset",
+                "carrier offset",
+                car.OffsetHz,
+                "Hz",
+                car.FrequencyHz.StandardUncertainty,
+                headline: "offset"
+            );
+            if (car.OffsetPpm is { } ppm)
+                Info("carrier.offsetPpm", "carrier offset", ppm, "ppm", null, "0.####");
+        }
+        Info(
+            "bandwidth.occupied",
+            $"occupied bandwidth ({100 * (1 - a.Bandwidth.Beta):0.#} %)",
+            a.Bandwidth.OccupiedHz,
+            "Hz",
+            a.OccupiedUncertaintyHz,
+            "0.#",
+            a.Am is null && a.Fsk is null ? "OBW" : null
+        );
+        Info(
+            "bandwidth.xdb",
+            $"{a.Bandwidth.Xdb:0.#} dB bandwidth",
+            a.Bandwidth.XdbHz,
+            "Hz",
+            a.Method.RbwHz / Math.Sqrt(3),
+            "0.#"
+        );
+        if (a.Fm is { } fm)
+        {
+            Info(
+                "fm.peakDeviation",
+                "FM peak deviation",
+                fm.PeakDeviationHz.Value,
+                "Hz",
+                fm.PeakDeviationHz.StandardUncertainty,
+                "0.#",
+                "peak deviation"
+            );
+            Words(
+                "fm.peaks",
+                "FM +peak / -peak",
+                $"{fm.PositivePeakHz.ToString("0.#", C)} / {fm.NegativePeakHz.ToString("0.#", C)}",
+                "Hz"
+            );
+            Info("fm.rmsDeviation", "FM rms deviation", fm.RmsDeviationHz, "Hz", null, "0.#");
+        }
+        if (a.Am is { } am)
+        {
+            Info(
+                "am.depth",
+                "AM depth",
+                am.DepthPercent.Value,
+                "%",
+                am.DepthPercent.StandardUncertainty,
+                "0.##",
+                "depth"
+            );
+            Words(
+                "am.peaks",
+                "AM +peak / -peak",
+                $"{am.PositivePeakPercent.ToString("0.##", C)} / {am.NegativePeakPercent.ToString("0.##", C)}",
+                "%"
+            );
+        }
+        if (a.Pm is { } pm)
+            Info(
+                "pm.peakPhase",
+                "PM peak phase deviation",
+                pm.PeakDeviationRad.Value,
+                "rad",
+                pm.PeakDeviationRad.StandardUncertainty,
+                "0.####",
+                "peak phase"
+            );
+        if (a.Fsk is { } fsk)
+        {
+            Info("fsk.shift", "FSK shift", fsk.ShiftHz.Value, "Hz", fsk.ShiftHz.StandardUncertainty, "0.#", "shift");
+            if (fsk.SymbolRateBd is { } sr)
+                Info("fsk.symbolRate", "FSK symbol rate", sr.Value, "Bd", sr.StandardUncertainty, "0.##", "rate");
+        }
+        if (a.ModulatingFrequencyHz is { } mf)
+            Info("modulatingFrequency", "modulating frequency", mf.Value, "Hz", mf.StandardUncertainty, "0.##");
+        if (a.EmissionDesignator is { } d)
+            Words(
+                "emissionDesignator",
+                "emission designator",
+                d,
+                "",
+                a.NecessaryBandwidthHz is { } nb ? $"Bn {nb.ToString("0", C)} Hz" : "-"
+            );
+        return rows;
+    }
+}
