@@ -207,46 +207,18 @@ public static class Judgement
     /// </summary>
     private static LimitCheck MaskCheck(AnalysisResult r, EmissionMask mask)
     {
-        PowerSpectrum hold = r.Spectrum.MaxHold;
-        PowerSpectrum mean = r.Spectrum.Mean;
-        double total = mean.TotalPower();
         double carrierAxis = FrequencyAxis.Of(r.Capture).ToAxis(r.Carrier!.FrequencyHz.Value);
-        double floor = r.Bandwidth.NoiseFloorDensity;
-        double worst = double.PositiveInfinity,
-            worstAt = 0;
-        bool floorLimited = false;
-        // Power in the reference bandwidth around each bin: the density summed over the bins within
-        // +/- B/2 (right for lines and for continuous spectra alike).
-        int halfBins = Math.Max(0, (int)Math.Round(mask.ReferenceBandwidthHz / hold.BinWidthHz / 2));
-        var prefix = new double[hold.Count + 1];
-        for (int i = 0; i < hold.Count; i++)
-            prefix[i + 1] = prefix[i] + hold.Values[i] * hold.BinWidthHz;
-        for (int i = 0; i < hold.Count; i++)
-        {
-            double fd = hold.FrequenciesHz[i] - carrierAxis;
-            double req = mask.RequiredAttenuationDb(fd);
-            if (req <= 0)
-                continue;
-            int a = Math.Max(0, i - halfBins),
-                b = Math.Min(hold.Count - 1, i + halfBins);
-            double inRef =
-                (prefix[b + 1] - prefix[a]) * Math.Min(1, mask.ReferenceBandwidthHz / ((b - a + 1) * hold.BinWidthHz));
-            double att = 10 * Math.Log10(total / Math.Max(inRef, 1e-300));
-            double margin = att - req;
-            // A bin whose mean level is within 5 dB of the noise floor shows the capture, not the emission.
-            bool atFloor = mean.Values[i] <= 3 * floor;
-            if (atFloor)
-            {
-                if (margin < MaskUncertaintyDb)
-                    floorLimited = true;
-                continue;
-            }
-            if (margin < worst)
-            {
-                worst = margin;
-                worstAt = fd;
-            }
-        }
+        MaskMarginResult m = MaskMargin.Measure(
+            r.Spectrum,
+            r.Bandwidth.NoiseFloorDensity,
+            carrierAxis,
+            mask.ReferenceBandwidthHz,
+            mask.RequiredAttenuationDb,
+            MaskUncertaintyDb
+        );
+        double worst = m.WorstMarginDb,
+            worstAt = m.WorstOffsetHz;
+        bool floorLimited = m.FloorLimited;
         string name = mask.Name;
         string basis = string.Create(
             CultureInfo.InvariantCulture,
