@@ -15,7 +15,8 @@ internal static class AnalyzeCommand
         var capture = new Argument<string>("capture") { Description = "The capture file (see 'info')." };
         var nominal = Units.SiOption(
             "--nominal",
-            "Nominal (assigned) carrier frequency in Hz: offsets and ppm are taken from it (absolute RF when the centre is known)."
+            "Nominal (assigned) carrier frequency in Hz: offsets and ppm are taken from it (absolute RF when the "
+                + "centre is known)."
         );
         var expect = new Option<string?>("--expect")
         {
@@ -48,7 +49,8 @@ internal static class AnalyzeCommand
         obwNoise.AcceptOnlyFromAmong("subtract", "keep");
         var lp = Units.SiOption(
             "--post-lowpass",
-            "Post-detection low-pass cutoff in Hz (default: the channel filter's width, so every modulating frequency the occupied bandwidth allows passes)."
+            "Post-detection low-pass cutoff in Hz (default: the channel filter's width, so every modulating frequency "
+                + "the occupied bandwidth allows passes)."
         );
         var hp = Units.SiOption("--post-highpass", "Post-detection high-pass corner in Hz (default off).");
         var deemph = new Option<double?>("--deemphasis")
@@ -66,7 +68,8 @@ internal static class AnalyzeCommand
         var limits = new Option<string?>("--limits")
         {
             Description =
-                "Limit profile (JSON, see profiles/README.md): verdicts PASS / FAIL / INCONCLUSIVE for each limit; exit code 1 when any fails.",
+                "Limit profile (JSON, see profiles/README.md): verdicts PASS / FAIL / INCONCLUSIVE for each limit; "
+                + "exit code 1 when any fails.",
             HelpName = "PROFILE",
         };
         var title = new Option<string?>("--title") { Description = "Report title.", HelpName = "TEXT" };
@@ -88,7 +91,8 @@ internal static class AnalyzeCommand
         var spec = new SpectrumCommand.SpectrumOptionSet();
         var cmd = new Command(
             "analyze",
-            "Measure a capture: modulation type, carrier frequency and offset (Hz, ppm), occupied and x-dB bandwidth, AM depth, FM/PM deviation, FSK shift and rate, modulating frequency, emission designator."
+            "Measure a capture: modulation type, carrier frequency and offset (Hz, ppm), occupied and x-dB bandwidth, "
+                + "AM depth, FM/PM deviation, FSK shift and rate, modulating frequency, emission designator."
         )
         {
             capture,

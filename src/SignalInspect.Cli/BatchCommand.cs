@@ -15,7 +15,8 @@ internal static class BatchCommand
         var inputs = new Argument<string[]>("inputs")
         {
             Description =
-                "Folders (searched recursively), files or patterns (*.wav) of captures. Raw files need --datatype/--sample-rate, or a sidecar FILE.si.json.",
+                "Folders (searched recursively), files or patterns (*.wav) of captures. Raw files need "
+                + "--datatype/--sample-rate, or a sidecar FILE.si.json.",
             Arity = ArgumentArity.OneOrMore,
         };
         var outDir = new Option<string>("--out")
@@ -47,13 +48,16 @@ internal static class BatchCommand
         var shard = new Option<string?>("--shard")
         {
             Description =
-                "Analyse only shard I of N (1-based; inputs split by a hash of their path), for running shards under a scheduler; join them with 'batch merge'.",
+                "Analyse only shard I of N (1-based; inputs split by a hash of their path), for running shards under "
+                + "a scheduler; join them with 'batch merge'.",
             HelpName = "I/N",
         };
         var reader = new ReaderOptionSet();
         var cmd = new Command(
             "batch",
-            "Triage many captures: analyse each (in parallel, bounded memory), one bad file becomes an error row, and write one summary (CSV, JSON Lines, PDF with spectrum thumbnails). Exit code 2 when a capture could not be read, else 1 when one failed a limit, else 0."
+            "Triage many captures: analyse each (in parallel, bounded memory), one bad file becomes an error row, and "
+                + "write one summary (CSV, JSON Lines, PDF with spectrum thumbnails). Exit code 2 when a capture could "
+                + "not be read, else 1 when one failed a limit, else 0."
         )
         {
             inputs,
@@ -93,7 +97,8 @@ internal static class BatchCommand
             stderr.WriteLine(
                 string.Create(
                     CultureInfo.InvariantCulture,
-                    $"batch: {found.Count} capture(s) found, {mine} in shard {index}/{count} ({bytes / 1e6:0.#} MB), {j} job(s)"
+                    $"batch: {found.Count} capture(s) found, {mine} in shard {index}/{count} ({bytes / 1e6:0.#} MB), "
+                        + $"{j} job(s)"
                 )
             );
             using var cts = new CancellationTokenSource();
@@ -102,7 +107,8 @@ internal static class BatchCommand
                 e.Cancel = true;
                 cts.Cancel();
                 stderr.WriteLine(
-                    "batch: stopping after the captures in progress; the summary keeps what is done (use --resume to go on)"
+                    "batch: stopping after the captures in progress; the summary keeps what is done (use --resume to "
+                        + "go on)"
                 );
             };
             Console.CancelKeyPress += onCancel;
@@ -128,7 +134,8 @@ internal static class BatchCommand
                         stderr.WriteLine(
                             string.Create(
                                 CultureInfo.InvariantCulture,
-                                $"batch: [{doneFiles}/{mine}] {Path.GetFileName(rec.File)}: {what} ({mbs:0.#} MB/s, about {left:0} s left)"
+                                $"batch: [{doneFiles}/{mine}] {Path.GetFileName(rec.File)}: {what} ({mbs:0.#} MB/s, "
+                                    + $"about {left:0} s left)"
                             )
                         );
                     },
@@ -141,7 +148,9 @@ internal static class BatchCommand
             }
             WriteCounts(stdout, outcome.Records);
             stdout.WriteLine(
-                $"analysed {outcome.Analysed}, skipped {outcome.Skipped} (already in the summary){(outcome.Cancelled ? ", stopped before the end" : string.Empty)}; wrote {Path.Combine(options.OutDir, "summary.csv")}, summary.jsonl, summary.pdf"
+                $"analysed {outcome.Analysed}, skipped {outcome.Skipped} (already in the summary)"
+                    + (outcome.Cancelled ? ", stopped before the end" : string.Empty)
+                    + $"; wrote {Path.Combine(options.OutDir, "summary.csv")}, summary.jsonl, summary.pdf"
             );
             return ExitCode(outcome.Records);
         });
@@ -201,7 +210,8 @@ internal static class BatchCommand
     private static void WriteCounts(TextWriter o, IReadOnlyList<BatchRecord> records)
     {
         o.WriteLine(
-            $"captures              {records.Count} ({records.Count(r => r.Status == "ok")} ok, {records.Count(r => r.Status == "error")} could not be read)"
+            $"captures              {records.Count} ({records.Count(r => r.Status == "ok")} ok, "
+                + $"{records.Count(r => r.Status == "error")} could not be read)"
         );
         o.WriteLine(
             "by modulation         "

@@ -73,9 +73,11 @@ public static class Cli
             ?.InformationalVersion.Split('+')[0]
             ?? "0";
         var root = new RootCommand(
-            $"SignalInspect {version}: offline measurements of radio signal recordings (WAV/RF64 audio or IQ, raw IQ, SigMF).\n"
+            $"SignalInspect {version}: offline measurements of radio signal recordings (WAV/RF64 audio or IQ, raw IQ, "
+                + "SigMF).\n"
                 + "Exit codes: 0 success, 1 a limit failed, 2 bad input or usage, 3 internal error.\n"
-                + "Captures are read through a memory map; SIGNALINSPECT_NO_MAP=1 reads them with copies (for files another program may truncate meanwhile)."
+                + "Captures are read through a memory map; SIGNALINSPECT_NO_MAP=1 reads them with copies (for files "
+                + "another program may truncate meanwhile)."
         )
         {
             InfoCommand.Create(stdout, stderr),

@@ -107,7 +107,8 @@ internal static class DemoCommand
         };
         var cmd = new Command(
             "demo",
-            "Run the built-in scenario: synthesise the Harbour Water Authority's three recordings, measure each against a limit profile and write a PDF report for each into DIR/demo/."
+            "Run the built-in scenario: synthesise the Harbour Water Authority's three recordings, measure each "
+                + "against a limit profile and write a PDF report for each into DIR/demo/."
         )
         {
             outDir,
@@ -173,11 +174,13 @@ internal static class DemoCommand
                     ),
             ];
             stdout.WriteLine(
-                $"{"capture".PadRight(w[0])}  {"kind".PadRight(w[1])}  {"reading".PadRight(w[2])}  {"verdict".PadRight(w[3])}  report"
+                $"{"capture".PadRight(w[0])}  {"kind".PadRight(w[1])}  "
+                    + $"{"reading".PadRight(w[2])}  {"verdict".PadRight(w[3])}  report"
             );
             foreach (string[] row in rows)
                 stdout.WriteLine(
-                    $"{row[0].PadRight(w[0])}  {row[1].PadRight(w[1])}  {row[2].PadRight(w[2])}  {row[3].PadRight(w[3])}  {row[4]}"
+                    $"{row[0].PadRight(w[0])}  {row[1].PadRight(w[1])}  {row[2].PadRight(w[2])}  "
+                        + $"{row[3].PadRight(w[3])}  {row[4]}"
                 );
             stdout.WriteLine($"reports and captures are in {dir}");
             return ExitCodes.Success;

@@ -23,7 +23,8 @@ internal static class InfoCommand
         var reader = new ReaderOptionSet();
         var cmd = new Command(
             "info",
-            "Show what a capture holds: sample rate, centre frequency, real or complex, samples, duration, datatype, channels, segments, annotations."
+            "Show what a capture holds: sample rate, centre frequency, real or complex, samples, duration, datatype, "
+                + "channels, segments, annotations."
         )
         {
             capture,

@@ -10,7 +10,8 @@ internal sealed class ReaderOptionSet
         new("--datatype")
         {
             Description =
-                "Datatype of a headerless raw file, in SigMF words: cu8, ci8, ci16_le, ci16_be, ci32_le, cf32_le, cf32_be, cf64_le, or the real r... forms. A file ending such as .cu8, .cs16, .cf32 suggests one.",
+                "Datatype of a headerless raw file, in SigMF words: cu8, ci8, ci16_le, ci16_be, ci32_le, cf32_le, "
+                + "cf32_be, cf64_le, or the real r... forms. A file ending such as .cu8, .cs16, .cf32 suggests one.",
             HelpName = "WORD",
         };
 
@@ -30,7 +31,8 @@ internal sealed class ReaderOptionSet
         new("--channel")
         {
             Description =
-                "Which channels make the signal: iq (two channels as I/Q, I on channel 0: the default for two channels), qi (swapped), left, right (one channel as real audio), or a channel number.",
+                "Which channels make the signal: iq (two channels as I/Q, I on channel 0: the default for two "
+                + "channels), qi (swapped), left, right (one channel as real audio), or a channel number.",
             HelpName = "iq|qi|left|right|N",
         };
 

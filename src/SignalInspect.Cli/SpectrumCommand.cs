@@ -21,13 +21,15 @@ internal static class SpectrumCommand
             new("--fft")
             {
                 Description =
-                    $"FFT (segment) size in points, 16 to 1048576 (default {SpectrumSettings.DefaultFftSize}); powers of two are fastest.",
+                    $"FFT (segment) size in points, 16 to 1048576 (default {SpectrumSettings.DefaultFftSize}); powers "
+                    + "of two are fastest.",
                 HelpName = "N",
             };
         public Option<double?> Rbw { get; } =
             Units.SiOption(
                 "--rbw",
-                "Resolution bandwidth wanted, in Hz: the FFT size is rounded to the nearest power of two and the RBW obtained is reported. Overrides --fft."
+                "Resolution bandwidth wanted, in Hz: the FFT size is rounded to the nearest power of two and the RBW "
+                    + "obtained is reported. Overrides --fft."
             );
         public Option<string> Window { get; } =
             new("--window")
@@ -47,13 +49,15 @@ internal static class SpectrumCommand
             new("--suppress-dc")
             {
                 Description =
-                    "Interpolate over the bins around 0 Hz of an IQ capture (a receiver's DC spike); the output says so.",
+                    "Interpolate over the bins around 0 Hz of an IQ capture (a receiver's DC spike); the output says "
+                    + "so.",
             };
         public Option<double> Calibration { get; } =
             new("--calibration")
             {
                 Description =
-                    "Offset in dB added to every level (e.g. to read dBm at a calibrated receiver input); default 0 (dBFS).",
+                    "Offset in dB added to every level (e.g. to read dBm at a calibrated receiver input); default 0 "
+                    + "(dBFS).",
                 DefaultValueFactory = _ => 0,
                 HelpName = "DB",
             };
@@ -121,7 +125,10 @@ internal static class SpectrumCommand
         var csv = new Option<string?>("--csv")
         {
             Description =
-                "Write the PSD as CSV: header frequencyHz,psdDbfsPerHz (psdDbmPerHz with --calibration), one row per bin in ascending frequency; frequency is the offset from the centre for IQ input, the audio frequency for real input. '-' writes it to standard output (the summary then goes to standard error).",
+                "Write the PSD as CSV: header frequencyHz,psdDbfsPerHz (psdDbmPerHz with --calibration), one row per "
+                + "bin in ascending frequency; frequency is the offset from the centre for IQ input, the audio "
+                + "frequency for real input. '-' writes it to standard output (the summary then goes to standard "
+                + "error).",
             HelpName = "OUT",
         };
         var png = new Option<string?>("--png")
@@ -141,7 +148,8 @@ internal static class SpectrumCommand
         var spectrum = new SpectrumOptionSet();
         var cmd = new Command(
             "spectrum",
-            "Estimate the power spectral density (Welch's method, calibrated in dBFS/Hz) of a capture; print a summary and optionally write CSV and PNG."
+            "Estimate the power spectral density (Welch's method, calibrated in dBFS/Hz) of a capture; print a "
+                + "summary and optionally write CSV and PNG."
         )
         {
             capture,
@@ -178,7 +186,8 @@ internal static class SpectrumCommand
                 stderr.WriteLine($"signalinspect: warning: {Path.GetFileName(source.Info.Path)}: {w}");
             if (result.NonFiniteSegments > 0)
                 stderr.WriteLine(
-                    $"signalinspect: warning: {result.NonFiniteSegments} segment(s) held NaN or infinite samples, taken as 0"
+                    $"signalinspect: warning: {result.NonFiniteSegments} segment(s) held NaN or infinite samples, "
+                        + "taken as 0"
                 );
             if (csvToStdout)
             {
@@ -227,16 +236,15 @@ internal static class SpectrumCommand
         Row("file", info.Path);
         Row(
             "spectrum",
-            string.Create(
-                c,
-                $"{(psd.IsOneSided ? "one-sided (real input)" : "two-sided (IQ input), offsets from the centre")}, {psd.Averaging.ToString().ToLowerInvariant()} of {psd.Segments} segments"
-            )
+            (psd.IsOneSided ? "one-sided (real input)" : "two-sided (IQ input), offsets from the centre")
+                + string.Create(c, $", {psd.Averaging.ToString().ToLowerInvariant()} of {psd.Segments} segments")
         );
         Row(
             "window",
             string.Create(
                 c,
-                $"{psd.Window.Name}, FFT {psd.Settings.FftSize}, overlap {psd.Settings.OverlapSamples} samples ({100.0 * psd.Settings.OverlapSamples / psd.Settings.FftSize:0.#} %)"
+                $"{psd.Window.Name}, FFT {psd.Settings.FftSize}, overlap {psd.Settings.OverlapSamples} samples "
+                    + $"({100.0 * psd.Settings.OverlapSamples / psd.Settings.FftSize:0.#} %)"
             )
         );
         Row(
@@ -250,7 +258,8 @@ internal static class SpectrumCommand
             "analysed",
             string.Create(
                 c,
-                $"{result.SamplesAnalysed} samples from sample {result.FirstSample} ({result.SamplesAnalysed / info.SampleRateHz:0.######} s)"
+                $"{result.SamplesAnalysed} samples from sample {result.FirstSample} "
+                    + $"({result.SamplesAnalysed / info.SampleRateHz:0.######} s)"
             )
         );
         Row(
@@ -274,7 +283,9 @@ internal static class SpectrumCommand
             "time",
             string.Create(
                 c,
-                $"{elapsed.TotalSeconds:0.###} s, {result.SamplesAnalysed / Math.Max(elapsed.TotalSeconds, 1e-9) / 1e6:0.#} MS/s on {result.Threads} thread(s)"
+                $"{elapsed.TotalSeconds:0.###} s, "
+                    + $"{result.SamplesAnalysed / Math.Max(elapsed.TotalSeconds, 1e-9) / 1e6:0.#} MS/s on "
+                    + $"{result.Threads} thread(s)"
             )
         );
     }

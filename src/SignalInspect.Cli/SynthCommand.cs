@@ -13,7 +13,8 @@ internal static class SynthCommand
         var output = new Argument<string>("output")
         {
             Description =
-                "File to write. The ending picks the container: .wav (RF64 above 4 GiB), .sigmf (archive), .sigmf-meta/.sigmf-data (pair), anything else raw.",
+                "File to write. The ending picks the container: .wav (RF64 above 4 GiB), .sigmf (archive), "
+                + ".sigmf-meta/.sigmf-data (pair), anything else raw.",
         };
         var kind = new Option<string>("--kind")
         {
@@ -59,7 +60,8 @@ internal static class SynthCommand
         var snr = new Option<double?>("--snr")
         {
             Description =
-                "Signal-to-noise ratio in dB over the whole sampled bandwidth (signal mean power / noise mean power); omit for no noise.",
+                "Signal-to-noise ratio in dB over the whole sampled bandwidth (signal mean power / noise mean power); "
+                + "omit for no noise.",
             HelpName = "DB",
         };
         var seed = new Option<int>("--seed")
@@ -74,7 +76,9 @@ internal static class SynthCommand
         var datatype = new Option<string?>("--datatype")
         {
             Description =
-                "Sample datatype in SigMF words (default cf32_le, or rf32_le with --real); for WAV: ci16_le, ci24_le, ci32_le, cf32_le, cf64_le, cu8 (and r... forms). A raw file's ending (.cu8, .cs16, .cf32) also sets it.",
+                "Sample datatype in SigMF words (default cf32_le, or rf32_le with --real); for WAV: ci16_le, ci24_le, "
+                + "ci32_le, cf32_le, cf64_le, cu8 (and r... forms). A raw file's ending (.cu8, .cs16, .cf32) also "
+                + "sets it.",
             HelpName = "WORD",
         };
         var time = new Option<string?>("--start-time")
@@ -89,7 +93,8 @@ internal static class SynthCommand
         var force = new Option<bool>("--force") { Description = "Replace an existing output file." };
         var cmd = new Command(
             "synth",
-            "Write a capture of known parameters: carrier, AM, FM, PM or 2-FSK, with carrier offset, drift, white noise at a given SNR and a seed. The signal formulas are in the README."
+            "Write a capture of known parameters: carrier, AM, FM, PM or 2-FSK, with carrier offset, drift, white "
+                + "noise at a given SNR and a seed. The signal formulas are in the README."
         )
         {
             output,
@@ -160,7 +165,8 @@ internal static class SynthCommand
             stdout.WriteLine($"{result.Samples} samples, {format.Name}, {Synthesizer.Describe(spec)}");
             if (result.ClippedValues > 0)
                 stderr.WriteLine(
-                    $"signalinspect: warning: {result.ClippedValues} sample value(s) clipped at full scale (lower --amplitude or raise --snr)"
+                    $"signalinspect: warning: {result.ClippedValues} sample value(s) clipped at full scale (lower "
+                        + "--amplitude or raise --snr)"
                 );
             return ExitCodes.Success;
         });

@@ -60,7 +60,8 @@ static void Fft(bool smoke)
         pr = new double[m];
     double tp = Time(smoke ? 50 : 5000, () => p4096.ForwardPowerScrambled(seg, true, win, wr, wi, ps, pm, pr, false));
     Console.WriteLine(
-        $"ForwardPowerScrambled 4096 complex (the Welch inner step with its sums): {tp * 1e6:0.00} us ({tp / m * 2e9:0.00} ns per input sample at 50 % overlap)"
+        $"ForwardPowerScrambled 4096 complex (the Welch inner step with its sums): {tp * 1e6:0.00} us "
+            + $"({tp / m * 2e9:0.00} ns per input sample at 50 % overlap)"
     );
     // The line-spectrum step: a pair of real 65 536-point segments in one windowed, scrambled transform.
     var (pair, bh, br, bi, p65536) = Segment(65536, WindowKind.BlackmanHarris, 0.011);
@@ -140,7 +141,8 @@ static void Welch(string? capture, bool smoke)
         { }
     }
     Console.WriteLine(
-        $"| read + decode only | 1 | {read.Elapsed.TotalSeconds:0.00} | {src.Info.SampleCount / read.Elapsed.TotalSeconds / 1e6:0} |"
+        $"| read + decode only | 1 | {read.Elapsed.TotalSeconds:0.00} | "
+            + $"{src.Info.SampleCount / read.Elapsed.TotalSeconds / 1e6:0} |"
     );
     foreach (int threads in new[] { 1, 2 })
     {
@@ -194,7 +196,8 @@ static void Kernels(bool smoke)
             dec2.Process(iq, re, im);
     });
     Console.WriteLine(
-        $"| channel decimator, two stages (half-band {hb.Length} taps, then {taps2.Length} taps at half the rate, /{d} in all) | {tDec2 / (blocks * 65536.0) * 1e9:0.00} ns per input sample |"
+        $"| channel decimator, two stages (half-band {hb.Length} taps, then {taps2.Length} taps at half the rate, "
+            + $"/{d} in all) | {tDec2 / (blocks * 65536.0) * 1e9:0.00} ns per input sample |"
     );
     var mixOnly = new ChannelDecimator(taps, 60000, -12545.8, fs, true);
     double tMix = Time(3, () =>
@@ -203,7 +206,8 @@ static void Kernels(bool smoke)
             mixOnly.Process(iq, re, im);
     });
     Console.WriteLine(
-        $"| of which shifting (decimation 60000: no outputs to speak of) | {tMix / (blocks * 65536.0) * 1e9:0.00} ns per input sample |"
+        $"| of which shifting (decimation 60000: no outputs to speak of) | {tMix / (blocks * 65536.0) * 1e9:0.00} ns "
+            + "per input sample |"
     );
     int m = 65536 / d;
     var y = new double[m];
@@ -226,7 +230,8 @@ static void Kernels(bool smoke)
                 o[i] = Math.Atan2(y[i], x[i]);
     });
     Console.WriteLine(
-        $"| atan2, vector / Math.Atan2 | {tAtan / (blocks * m) * 1e9:0.00} / {tAtanScalar / (blocks * m) * 1e9:0.00} ns per decimated sample |"
+        $"| atan2, vector / Math.Atan2 | {tAtan / (blocks * m) * 1e9:0.00} / {tAtanScalar / (blocks * m) * 1e9:0.00} "
+            + "ns per decimated sample |"
     );
     double[] lpTaps = FirDesign.LowPass(106887, fs / d, 10689, 70, 1023);
     var lp = new BlockFir(lpTaps);
@@ -236,7 +241,8 @@ static void Kernels(bool smoke)
             lp.Process(y, o);
     });
     Console.WriteLine(
-        $"| post-detection low-pass ({lpTaps.Length} taps, fast convolution) | {tLp / (blocks * m) * 1e9:0.00} ns per decimated sample |"
+        $"| post-detection low-pass ({lpTaps.Length} taps, fast convolution) | {tLp / (blocks * m) * 1e9:0.00} ns per "
+            + "decimated sample |"
     );
     double[] lp15 = FirDesign.LowPass(15000, fs / d, 1500, 70, 1023);
     var lpNarrow = new BlockFir(lp15);
@@ -246,7 +252,8 @@ static void Kernels(bool smoke)
             lpNarrow.Process(y, o);
     });
     Console.WriteLine(
-        $"| post-detection low-pass 15 kHz ({lp15.Length} taps, fast convolution) | {tLp15 / (blocks * m) * 1e9:0.00} ns per decimated sample |"
+        $"| post-detection low-pass 15 kHz ({lp15.Length} taps, fast convolution) | {tLp15 / (blocks * m) * 1e9:0.00} "
+            + "ns per decimated sample |"
     );
     var up = new JitteredSampler();
     var ub = new double[m];
@@ -256,7 +263,8 @@ static void Kernels(bool smoke)
             up.Process(y, b * (long)m, ub);
     });
     Console.WriteLine(
-        $"| jittered sampler (64-phase interpolation at one instant per sample) | {tUp / (blocks * m) * 1e9:0.00} ns per decimated sample |"
+        $"| jittered sampler (64-phase interpolation at one instant per sample) | {tUp / (blocks * m) * 1e9:0.00} ns "
+            + "per decimated sample |"
     );
     var h = new SignalInspect.Dsp.Histogram(-0.5, 0.5, 1 << 18);
     double tHist = Time(3, () =>
@@ -289,7 +297,8 @@ static void Kernels(bool smoke)
             hF.Add(sine);
     });
     Console.WriteLine(
-        $"| histogram of a nearly constant value (an FM envelope); of a sine (an FM tone's frequency) | {tFlat / (blocks * m) * 1e9:0.00}; {tSine / (blocks * m) * 1e9:0.00} ns per decimated sample |"
+        "| histogram of a nearly constant value (an FM envelope); of a sine (an FM tone's frequency) | "
+            + $"{tFlat / (blocks * m) * 1e9:0.00}; {tSine / (blocks * m) * 1e9:0.00} ns per decimated sample |"
     );
     // Line spectra: a pair of 65 536-point segments (the envelope and the frequency) in one
     // transform, read out of the rings as the demodulation pass adds them, and copied out first.
@@ -321,7 +330,8 @@ static void Kernels(bool smoke)
         return $"{t / pairs * 1e3:0.000}";
     }
     Console.WriteLine(
-        $"| line spectra: a pair of {ln}-point segments in one transform, read out of the rings / copied out first | {LinePair(true)} / {LinePair(false)} ms per pair |"
+        $"| line spectra: a pair of {ln}-point segments in one transform, read out of the rings / copied out first | "
+            + $"{LinePair(true)} / {LinePair(false)} ms per pair |"
     );
     // The peak deviation's noise correction at the end of an analysis (both excursions, side by side).
     double tPeak = Time(3, () => SignalInspect.Measure.SinePeak.FromPercentiles(75110, 75095, 250));

@@ -93,7 +93,8 @@ internal static class Near
     {
         Assert.True(
             Math.Abs(expected - actual) <= tolerance,
-            $"{what ?? "value"}: expected {expected:R} +/- {tolerance:R}, got {actual:R} (off by {Math.Abs(expected - actual):G3})"
+            $"{what ?? "value"}: expected {expected:R} +/- {tolerance:R}, got {actual:R} "
+                + $"(off by {Math.Abs(expected - actual):G3})"
         );
     }
 }

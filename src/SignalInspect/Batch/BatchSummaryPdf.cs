@@ -15,7 +15,7 @@ public static class BatchSummaryPdf
         CultureInfo c = CultureInfo.InvariantCulture;
         var doc = new PdfDocument();
         doc.Info.Title = "SignalInspect batch summary";
-        var l = new PdfReportWriter.Layout(doc, PaperSize.A4);
+        var l = new PdfLayout(doc, PaperSize.A4);
         l.NewPage();
         l.Text("Batch summary", l.H1);
         l.Text(

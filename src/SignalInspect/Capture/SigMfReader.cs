@@ -91,7 +91,8 @@ internal static class SigMfReader
         {
             var notes = source
                 .Info.Notes.Append(
-                    $"the archive holds {metas.Count} recordings; {meta.Name} is read ({string.Join(", ", metas.Skip(1).Select(m => m.Name))} are not)"
+                    $"the archive holds {metas.Count} recordings; {meta.Name} is read "
+                        + $"({string.Join(", ", metas.Skip(1).Select(m => m.Name))} are not)"
                 )
                 .ToList();
             source = source.WithInfo(source.Info with { Notes = notes });
@@ -194,7 +195,8 @@ internal static class SigMfReader
                         throw m.Error($"{where}.core:sample_start {start} is before global.core:offset {indexOffset}");
                     if (caps.Count > 0 && start < caps[^1].Start)
                         throw m.Error(
-                            $"{where}.core:sample_start {start} is out of order (captures must be sorted by core:sample_start)"
+                            $"{where}.core:sample_start {start} is out of order (captures must be sorted by "
+                                + "core:sample_start)"
                         );
                     caps.Add((start - indexOffset, freq, time, header));
                     i++;
@@ -216,7 +218,8 @@ internal static class SigMfReader
                 long byteStart = headerSum + caps[i].Start * (long)frameBytes;
                 if (byteStart > dataLength)
                     throw m.Error(
-                        $"captures[{i}] starts at byte {byteStart} (core:header_bytes and core:sample_start), beyond the {dataLength}-byte data file"
+                        $"captures[{i}] starts at byte {byteStart} (core:header_bytes and core:sample_start), beyond "
+                            + $"the {dataLength}-byte data file"
                     );
                 long count;
                 if (i + 1 < caps.Count)
@@ -230,7 +233,8 @@ internal static class SigMfReader
                     long rest = dataLength - byteStart;
                     if (rest % frameBytes != 0)
                         warnings.Add(
-                            $"data file length is not a whole number of {format.Name} x {channels} samples: the last {rest % frameBytes} byte(s) are ignored"
+                            $"data file length is not a whole number of {format.Name} x {channels} samples: the last "
+                                + $"{rest % frameBytes} byte(s) are ignored"
                         );
                     count = rest / frameBytes;
                 }

@@ -39,7 +39,8 @@ internal static class WavReader
         else if (dataBytes > available)
         {
             warnings.Add(
-                $"data chunk declares {dataBytes} bytes but the file holds {available} after its start: the recording looks truncated; the bytes present are read"
+                $"data chunk declares {dataBytes} bytes but the file holds {available} after its start: the recording "
+                    + "looks truncated; the bytes present are read"
             );
             dataBytes = available;
         }
@@ -155,7 +156,8 @@ internal static class WavReader
         if (enc is null)
             throw CaptureException.ForFile(
                 path,
-                $"unsupported WAV encoding (format code {code}, {bits} bits): PCM 8/16/24/32-bit and IEEE float 32/64-bit are read"
+                $"unsupported WAV encoding (format code {code}, {bits} bits): PCM 8/16/24/32-bit and IEEE float "
+                    + "32/64-bit are read"
             );
         var stored = new SampleFormat(false, enc.Value, false, enc == ComponentEncoding.UInt8 ? 128.0 : 0.0);
         if (fmt.BlockAlign != stored.BytesPerComponent * fmt.Channels)
@@ -213,7 +215,8 @@ internal static class WavReader
                 if (bodyAt + size > fileSize)
                     throw CaptureException.ForFile(
                         path,
-                        $"truncated or damaged WAV header: the fmt chunk declares {size} bytes, more than the file holds"
+                        $"truncated or damaged WAV header: the fmt chunk declares {size} bytes, more than the file "
+                            + "holds"
                     );
                 int want = (int)Math.Min(size, 40);
                 fs.ReadAtLeast(body[..want], want, throwOnEndOfStream: false);

@@ -50,7 +50,9 @@ public static class Judgement
 {
     /// <summary>The decision rule, as the report states it.</summary>
     public const string DecisionRule =
-        "Guarded acceptance and rejection, guard band w = U (expanded uncertainty, coverage factor k): PASS if the measured value plus U is within the limit; FAIL if the value minus U is beyond it; INCONCLUSIVE otherwise (a guard-banded decision rule as described in ILAC-G8:09/2019).";
+        "Guarded acceptance and rejection, guard band w = U (expanded uncertainty, coverage factor k): PASS if the "
+        + "measured value plus U is within the limit; FAIL if the value minus U is beyond it; INCONCLUSIVE otherwise "
+        + "(a guard-banded decision rule as described in ILAC-G8:09/2019).";
 
     /// <summary>The expanded uncertainty the emission-mask check uses, dB (type B: Welch estimate spread and window
     /// scalloping).</summary>
@@ -97,7 +99,8 @@ public static class Judgement
                         p.ToleranceText ?? "",
                         double.NaN,
                         Verdict.Inconclusive,
-                        "the RF frequency is unknown (no centre frequency and no nominal): a ppm tolerance cannot be applied"
+                        "the RF frequency is unknown (no centre frequency and no nominal): a ppm tolerance cannot be "
+                            + "applied"
                     )
                 );
             }
@@ -222,7 +225,8 @@ public static class Judgement
         string name = mask.Name;
         string basis = string.Create(
             CultureInfo.InvariantCulture,
-            $"{name}; max-hold PSD in {mask.ReferenceBandwidthHz:0.#} Hz against the mean total power; U = {MaskUncertaintyDb:0.#} dB (type B)"
+            $"{name}; max-hold PSD in {mask.ReferenceBandwidthHz:0.#} Hz against the mean total power; U = "
+                + $"{MaskUncertaintyDb:0.#} dB (type B)"
         );
         if (double.IsPositiveInfinity(worst))
             worst = floorLimited ? double.NaN : 99;
@@ -235,7 +239,8 @@ public static class Judgement
         {
             v = Verdict.Inconclusive;
             basis +=
-                "; the capture's noise floor is above the mask at some offsets (not enough dynamic range to show compliance there)";
+                "; the capture's noise floor is above the mask at some offsets (not enough dynamic range to show "
+                + "compliance there)";
         }
         else if (!double.IsNaN(worst) && worst < 99)
         {

@@ -213,7 +213,8 @@ internal static partial class DemodulationPass
                 r.Phase.Add(workers[w].Phase!);
         }
         timer?.Note(
-            $"line spectra: {workers.Sum(w => w.LineTicks) * 1e3 / Stopwatch.Frequency:0.0} ms over {threads} threads, {merged.Env.Segments} segments of {s.DemodFft}, {chunks} chunks, {setsMade} partial sets"
+            $"line spectra: {workers.Sum(w => w.LineTicks) * 1e3 / Stopwatch.Frequency:0.0} ms over {threads} "
+                + $"threads, {merged.Env.Segments} segments of {s.DemodFft}, {chunks} chunks, {setsMade} partial sets"
         );
         // Chunk sums in order, each chunk's phase moved to the capture's unwrapped phase.
         double sw = 0,

@@ -47,10 +47,12 @@ public sealed class StageTimer
     public static string Memory() =>
         string.Create(
             CultureInfo.InvariantCulture,
-            $"allocated {GC.GetTotalAllocatedBytes() / 1e6,6:0.0} MB, working set {Environment.WorkingSet / 1e6,6:0.0} MB"
+            $"allocated {GC.GetTotalAllocatedBytes() / 1e6,6:0.0} MB, working set "
+                + $"{Environment.WorkingSet / 1e6,6:0.0} MB"
         )
         + string.Create(
             CultureInfo.InvariantCulture,
-            $", collections {GC.CollectionCount(0)}/{GC.CollectionCount(1)}/{GC.CollectionCount(2)}, paused {GC.GetTotalPauseDuration().TotalMilliseconds:0.0} ms"
+            $", collections {GC.CollectionCount(0)}/{GC.CollectionCount(1)}/{GC.CollectionCount(2)}, paused "
+                + $"{GC.GetTotalPauseDuration().TotalMilliseconds:0.0} ms"
         );
 }

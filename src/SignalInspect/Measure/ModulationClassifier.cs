@@ -74,10 +74,11 @@ internal static class ModulationClassifier
             {
                 detected = ModulationKind.Cw;
                 conf = Math.Clamp(0.7 + (AmDepth - mEnv) * 5 + (SteadyPhaseRad - sigmaPhase), 0.5, 0.99);
-                why = string.Create(
-                    c,
-                    $"steady phase (rms {sigmaPhase:0.###} rad) and envelope (depth {100 * mEnv:0.##} %): an unmodulated carrier"
-                );
+                why =
+                    string.Create(
+                        c,
+                        $"steady phase (rms {sigmaPhase:0.###} rad) and envelope (depth {100 * mEnv:0.##} %): an "
+                    ) + "unmodulated carrier";
             }
         }
         else if (dwell > FskDwell)
@@ -93,19 +94,21 @@ internal static class ModulationClassifier
         {
             detected = ModulationKind.Pm;
             conf = 0.55;
-            why = string.Create(
-                c,
-                $"angle modulation of small peak phase (about {sigmaPhase * Math.Sqrt(2):0.##} rad): read as PM; a tone cannot tell PM from FM, give --expect fm if it is FM"
-            );
+            why =
+                string.Create(
+                    c,
+                    $"angle modulation of small peak phase (about {sigmaPhase * Math.Sqrt(2):0.##} rad): read as PM; a "
+                ) + "tone cannot tell PM from FM, give --expect fm if it is FM";
         }
         else
         {
             detected = ModulationKind.Fm;
             conf = Math.Clamp(0.6 + (sigmaPhase * Math.Sqrt(2) - Math.PI / 2) / 4 + (FskDwell - dwell) / 2, 0.5, 0.97);
-            why = string.Create(
-                c,
-                $"angle modulation (peak phase about {sigmaPhase * Math.Sqrt(2):0.#} rad) with a continuous instantaneous frequency"
-            );
+            why =
+                string.Create(
+                    c,
+                    $"angle modulation (peak phase about {sigmaPhase * Math.Sqrt(2):0.#} rad) with a continuous "
+                ) + "instantaneous frequency";
         }
         if (snrDb < ConfidentSnrDb && detected != ModulationKind.Noise)
             conf *= Math.Clamp((snrDb - NoiseBelowSnrDb) / (ConfidentSnrDb - NoiseBelowSnrDb), 0.3, 1);

@@ -96,12 +96,18 @@ public sealed record MeasurementReport
     /// <summary>The cautions every report and the README carry.</summary>
     public static readonly IReadOnlyList<string> Cautions =
     [
-        "RF exposure: keep clear of antennas in use and follow the exposure limits that apply to the transmitter and its site.",
-        "Receiver protection: put a dummy load and enough attenuation between a transmitter and any receiver, SDR or analyser input; a direct connection destroys it.",
-        "Transmit only where and how you are licensed to; testing on the air needs the authority the local rules require.",
+        "RF exposure: keep clear of antennas in use and follow the exposure limits that apply to the transmitter and "
+            + "its site.",
+        "Receiver protection: put a dummy load and enough attenuation between a transmitter and any receiver, SDR or "
+            + "analyser input; a direct connection destroys it.",
+        "Transmit only where and how you are licensed to; testing on the air needs the authority the local rules "
+            + "require.",
     ];
 
     /// <summary>The disclaimer every report carries.</summary>
     public const string Disclaimer =
-        "The results in this report are informative. Whether a transmitter complies is decided by the applicable regulations, accredited laboratories and licensed practice, not by this software. The uncertainties stated cover the estimation from the recording only: they do not include the receiver's or recorder's calibration, frequency reference or front-end effects, which the user must add.";
+        "The results in this report are informative. Whether a transmitter complies is decided by the applicable "
+        + "regulations, accredited laboratories and licensed practice, not by this software. The uncertainties stated "
+        + "cover the estimation from the recording only: they do not include the receiver's or recorder's "
+        + "calibration, frequency reference or front-end effects, which the user must add.";
 }

@@ -17,7 +17,6 @@ namespace SignalInspect.Reporting;
 /// </summary>
 public static class PdfReportWriter
 {
-    private const double Margin = 46;
     private const double Dpi = 300;
     private static readonly object FontGate = new();
     private static bool _fontsReady;
@@ -50,7 +49,7 @@ public static class PdfReportWriter
         doc.Info.Title = report.Title;
         doc.Info.Subject = "Measurement report " + report.ReportId;
         doc.Info.Creator = "SignalInspect " + AnalysisJson.Version;
-        var ctx = new Layout(doc, report.Paper);
+        var ctx = new PdfLayout(doc, report.Paper);
         FirstPage(ctx, report);
         PlotPage(ctx, report);
         MethodPage(ctx, report);
@@ -63,7 +62,7 @@ public static class PdfReportWriter
     private static string Hz(double? v) =>
         v is { } x ? x.ToString(Math.Abs(x) >= 1e6 ? "#,0.###" : "0.###", C) + " Hz" : "unknown";
 
-    private static void FirstPage(Layout l, MeasurementReport r)
+    private static void FirstPage(PdfLayout l, MeasurementReport r)
     {
         AnalysisResult a = r.Analysis;
         l.NewPage();
@@ -98,7 +97,9 @@ public static class PdfReportWriter
                 "Duration",
                 string.Create(
                     C,
-                    $"{info.DurationS:0.######} s ({info.SampleCount:#,0} samples); analysed {a.Window.Count / info.SampleRateHz:0.######} s from {a.Window.First / info.SampleRateHz:0.######} s"
+                    $"{info.DurationS:0.######} s ({info.SampleCount:#,0} samples); analysed "
+                        + $"{a.Window.Count / info.SampleRateHz:0.######} s from "
+                        + $"{a.Window.First / info.SampleRateHz:0.######} s"
                 )
             ),
             (
@@ -120,8 +121,8 @@ public static class PdfReportWriter
         l.Text(
             string.Create(
                 C,
-                $"U: expanded uncertainty, k = {r.Profile?.CoverageFactor ?? 2:0.#}. Margin: limit minus value (positive = inside the limit). Decision rule: see Method."
-            ),
+                $"U: expanded uncertainty, k = {r.Profile?.CoverageFactor ?? 2:0.#}. Margin: limit minus value "
+            ) + "(positive = inside the limit). Decision rule: see Method.",
             l.Small,
             XBrushes.DimGray
         );
@@ -134,7 +135,8 @@ public static class PdfReportWriter
         }
         l.Gap(8);
         l.Text(
-            "Cautions: RF exposure, receiver protection and licensing, and the standing of these results, are on the last page.",
+            "Cautions: RF exposure, receiver protection and licensing, and the standing of these results, are on the "
+                + "last page.",
             l.Small,
             XBrushes.DimGray
         );
@@ -168,7 +170,7 @@ public static class PdfReportWriter
         return cells;
     }
 
-    private static void PlotPage(Layout l, MeasurementReport r)
+    private static void PlotPage(PdfLayout l, MeasurementReport r)
     {
         AnalysisResult a = r.Analysis;
         l.NewPage();
@@ -279,7 +281,7 @@ public static class PdfReportWriter
 
     private static int Px(double pt) => (int)Math.Round(pt / 72 * Dpi);
 
-    private static void MethodPage(Layout l, MeasurementReport r)
+    private static void MethodPage(PdfLayout l, MeasurementReport r)
     {
         AnalysisResult a = r.Analysis;
         MethodRecord m = a.Method;
@@ -290,18 +292,29 @@ public static class PdfReportWriter
         {
             (
                 "Reader",
-                $"{info.Container}; datatype {info.Datatype}; {info.ChannelUse}; full scale = amplitude 1.0; checksum {info.ChecksumStatus}"
+                $"{info.Container}; datatype {info.Datatype}; {info.ChannelUse}; full scale = amplitude 1.0; checksum "
+                    + $"{info.ChecksumStatus}"
             ),
             (
                 "Spectrum",
-                string.Create(
-                    C,
-                    $"Welch's method, {psd(a).Window.Name} window (periodic), FFT {m.Spectrum.FftSize}, overlap {100.0 * m.Spectrum.OverlapSamples / m.Spectrum.FftSize:0.#} %, {a.Spectrum.Mean.Segments} segments averaged (mean; max-hold for the mask), no detrending, density scaling; RBW {m.RbwHz:0.###} Hz (window ENBW){(a.Spectrum.DcBinsSuppressed > 0 ? $"; {a.Spectrum.DcBinsSuppressed} bins around 0 Hz interpolated (DC spike)" : string.Empty)}"
-                )
+                string.Create(C, $"Welch's method, {psd(a).Window.Name} window (periodic), FFT {m.Spectrum.FftSize}, ")
+                    + string.Create(C, $"overlap {100.0 * m.Spectrum.OverlapSamples / m.Spectrum.FftSize:0.#} %, ")
+                    + string.Create(C, $"{a.Spectrum.Mean.Segments} segments averaged (mean; max-hold for the mask), ")
+                    + string.Create(C, $"no detrending, density scaling; RBW {m.RbwHz:0.###} Hz (window ENBW)")
+                    + (
+                        a.Spectrum.DcBinsSuppressed > 0
+                            ? $"; {a.Spectrum.DcBinsSuppressed} bins around 0 Hz interpolated (DC spike)"
+                            : string.Empty
+                    )
             ),
             (
                 "Occupied bandwidth",
-                $"beta-% method, ITU Radio Regulations No. 1.153, ITU-R SM.328 and SM.443 Annex 1; noise floor {(m.ObwNoise == NoiseFloorTreatment.Subtract ? "subtracted (10th percentile of the PSD bins)" : "kept")}"
+                "beta-% method, ITU Radio Regulations No. 1.153, ITU-R SM.328 and SM.443 Annex 1; noise floor "
+                    + (
+                        m.ObwNoise == NoiseFloorTreatment.Subtract
+                            ? "subtracted (10th percentile of the PSD bins)"
+                            : "kept"
+                    )
             ),
             (
                 "x-dB bandwidth",
@@ -310,10 +323,11 @@ public static class PdfReportWriter
             ("Channel filter", m.ChannelFilter),
             (
                 "Demodulation",
-                string.Create(
-                    C,
-                    $"at {m.DemodRateHz:0.###} Hz: envelope |z|, unwrapped phase, instantaneous frequency from phase differences; post-detection low-pass {m.PostLowPassHz:0.#} Hz{(m.PostHighPassHz is { } hp ? $", high-pass {hp:0.#} Hz" : string.Empty)}{(m.DeEmphasisUs is { } de ? $", de-emphasis {de:0.#} us" : string.Empty)}"
-                )
+                string.Create(C, $"at {m.DemodRateHz:0.###} Hz: envelope |z|, unwrapped phase, ")
+                    + "instantaneous frequency from phase differences; "
+                    + string.Create(C, $"post-detection low-pass {m.PostLowPassHz:0.#} Hz")
+                    + (m.PostHighPassHz is { } hp ? string.Create(C, $", high-pass {hp:0.#} Hz") : string.Empty)
+                    + (m.DeEmphasisUs is { } de ? string.Create(C, $", de-emphasis {de:0.#} us") : string.Empty)
             ),
             ("Peaks", m.PeakStatistic),
             ("Carrier", a.Carrier is { } c ? $"{c.Method}; offset from {c.OffsetReference}" : "no carrier (noise)"),
@@ -323,11 +337,15 @@ public static class PdfReportWriter
             ),
             (
                 "Emission designator",
-                "necessary bandwidth from the measured values by 47 CFR 2.202 / ITU Radio Regulations Appendix 1; code by 47 CFR 2.202(b)(3)"
+                "necessary bandwidth from the measured values by 47 CFR 2.202 / ITU Radio Regulations Appendix 1; "
+                    + "code by 47 CFR 2.202(b)(3)"
             ),
             (
                 "Uncertainty",
-                "standard uncertainties: carrier from the least-squares fit (statistical); deviation, depth, phase and shift type-B from validation against synthesised signals, growing below 30 dB SNR; bandwidths from the resolution bandwidth; expanded with the coverage factor shown. Not included: the recorder's calibration and frequency reference."
+                "standard uncertainties: carrier from the least-squares fit (statistical); deviation, depth, phase "
+                    + "and shift type-B from validation against synthesised signals, growing below 30 dB SNR; "
+                    + "bandwidths from the resolution bandwidth; expanded with the coverage factor shown. "
+                    + "Not included: the recorder's calibration and frequency reference."
             ),
             ("Decision rule", Judgement.DecisionRule),
         };
@@ -355,343 +373,5 @@ public static class PdfReportWriter
         l.Text("Standing of these results", l.H2);
         l.Text(MeasurementReport.Disclaimer, l.Body);
         static Spectrum.PowerSpectrum psd(AnalysisResult x) => x.Spectrum.Mean;
-    }
-
-    /// <summary>A cursor over pages with the house fonts, wrapping text and simple tables.</summary>
-    internal sealed class Layout
-    {
-        private readonly PdfDocument _doc;
-        private readonly PaperSize _paper;
-        private XGraphics? _g;
-        private double _y;
-
-        public Layout(PdfDocument doc, PaperSize paper)
-        {
-            _doc = doc;
-            _paper = paper;
-            H1 = new XFont("SI", 17, XFontStyleEx.Bold);
-            H2 = new XFont("SI", 11.5, XFontStyleEx.Bold);
-            Body = new XFont("SI", 8.6, XFontStyleEx.Regular);
-            Bold = new XFont("SI", 8.6, XFontStyleEx.Bold);
-            Small = new XFont("SI", 7.2, XFontStyleEx.Regular);
-        }
-
-        public XFont H1 { get; }
-        public XFont H2 { get; }
-        public XFont Body { get; }
-        public XFont Bold { get; }
-        public XFont Small { get; }
-        private double PageWidth => _paper == PaperSize.A4 ? 595.28 : 612;
-        private double PageHeight => _paper == PaperSize.A4 ? 841.89 : 792;
-        public double ContentWidth => PageWidth - 2 * Margin;
-        private double Bottom => PageHeight - Margin - 18;
-
-        public void NewPage()
-        {
-            _g?.Dispose();
-            PdfPage page = _doc.AddPage();
-            page.Width = XUnit.FromPoint(PageWidth);
-            page.Height = XUnit.FromPoint(PageHeight);
-            _g = XGraphics.FromPdfPage(page);
-            _y = Margin;
-        }
-
-        private void Need(double h)
-        {
-            if (_y + h > Bottom)
-                NewPage();
-        }
-
-        public void Gap(double h) => _y += h;
-
-        private List<string> Wrap(string text, XFont font, double width)
-        {
-            var lines = new List<string>();
-            foreach (string para in text.Split('\n'))
-            {
-                string line = string.Empty;
-                foreach (string word in para.Split(' '))
-                {
-                    string candidate = line.Length == 0 ? word : line + " " + word;
-                    if (_g!.MeasureString(candidate, font).Width <= width || line.Length == 0)
-                    {
-                        // A single word wider than the column (a hash) is cut where it must be.
-                        if (line.Length == 0 && _g.MeasureString(candidate, font).Width > width)
-                        {
-                            string rest = candidate;
-                            while (_g.MeasureString(rest, font).Width > width)
-                            {
-                                int cut = rest.Length - 1;
-                                while (cut > 1 && _g.MeasureString(rest[..cut], font).Width > width)
-                                    cut--;
-                                lines.Add(rest[..cut]);
-                                rest = rest[cut..];
-                            }
-                            line = rest;
-                        }
-                        else
-                            line = candidate;
-                    }
-                    else
-                    {
-                        lines.Add(line);
-                        line = word;
-                    }
-                }
-                lines.Add(line);
-            }
-            return lines;
-        }
-
-        private double LineHeight(XFont f) => f.Size * 1.32;
-
-        public void Text(string text, XFont font, XBrush? brush = null)
-        {
-            foreach (string line in Wrap(text, font, ContentWidth))
-            {
-                Need(LineHeight(font));
-                _g!.DrawString(
-                    line,
-                    font,
-                    brush ?? XBrushes.Black,
-                    new XRect(Margin, _y, ContentWidth, LineHeight(font)),
-                    XStringFormats.TopLeft
-                );
-                _y += LineHeight(font);
-            }
-        }
-
-        public void VerdictBanner(Verdict? v, string? profile)
-        {
-            Need(30);
-            (XColor colour, string word) = v switch
-            {
-                Verdict.Pass => (XColor.FromArgb(46, 125, 50), "PASS"),
-                Verdict.Fail => (XColor.FromArgb(192, 0, 0), "FAIL"),
-                Verdict.Inconclusive => (XColor.FromArgb(191, 120, 0), "INCONCLUSIVE"),
-                _ => (XColor.FromArgb(110, 110, 110), "NO LIMITS APPLIED"),
-            };
-            var rect = new XRect(Margin, _y, ContentWidth, 26);
-            _g!.DrawRectangle(new XSolidBrush(colour), rect);
-            string text = v is null ? word : $"Overall verdict: {word}";
-            _g.DrawString(
-                text,
-                H2,
-                XBrushes.White,
-                new XRect(Margin + 8, _y, ContentWidth - 16, 26),
-                XStringFormats.CenterLeft
-            );
-            _y += 28;
-            if (profile is not null)
-                Text("against the limit profile: " + profile, Body, XBrushes.DimGray);
-        }
-
-        public void KeyValueTable(IReadOnlyList<(string Key, string Value)> rows, double keyWidth = 120)
-        {
-            double valueWidth = ContentWidth - keyWidth - 6;
-            foreach (var (key, value) in rows)
-            {
-                XFont vf = value.Length == 64 && value.All(Uri.IsHexDigit) ? Small : Body;
-                var lines = Wrap(value, vf, valueWidth);
-                double h = Math.Max(1, lines.Count) * LineHeight(vf) + 2;
-                Need(h);
-                _g!.DrawLine(
-                    new XPen(XColor.FromArgb(225, 225, 225), 0.5),
-                    Margin,
-                    _y + h,
-                    Margin + ContentWidth,
-                    _y + h
-                );
-                _g.DrawString(
-                    key,
-                    Bold,
-                    XBrushes.Black,
-                    new XRect(Margin, _y + 1, keyWidth, LineHeight(Body)),
-                    XStringFormats.TopLeft
-                );
-                double y = _y + 1;
-                foreach (string line in lines)
-                {
-                    _g.DrawString(
-                        line,
-                        vf,
-                        XBrushes.Black,
-                        new XRect(Margin + keyWidth + 6, y, valueWidth, LineHeight(vf)),
-                        XStringFormats.TopLeft
-                    );
-                    y += LineHeight(vf);
-                }
-                _y += h;
-            }
-        }
-
-        public void ResultsTable(IReadOnlyList<string[]> rows)
-        {
-            string[] head = ["Measurement", "Value", "Unit", "U", "Limit", "Margin", "Verdict"];
-            double[] frac = [0.25, 0.13, 0.07, 0.08, 0.19, 0.11, 0.17];
-            double[] widths = [.. frac.Select(f => f * ContentWidth)];
-            void Row(string[] cells, XFont font, XBrush? fill, bool verdictColours)
-            {
-                var wrapped = cells.Select((c, i) => Wrap(c, font, widths[i] - 6)).ToArray();
-                double h = wrapped.Max(w => w.Count) * LineHeight(font) + 4;
-                Need(h);
-                if (fill is not null)
-                    _g!.DrawRectangle(fill, new XRect(Margin, _y, ContentWidth, h));
-                double x = Margin;
-                for (int i = 0; i < cells.Length; i++)
-                {
-                    XBrush brush = XBrushes.Black;
-                    XFont f = font;
-                    if (verdictColours && i == cells.Length - 1)
-                    {
-                        (brush, f) = cells[i] switch
-                        {
-                            "PASS" => (new XSolidBrush(XColor.FromArgb(46, 125, 50)), Bold),
-                            "FAIL" => (new XSolidBrush(XColor.FromArgb(192, 0, 0)), Bold),
-                            "INCONCLUSIVE" => (new XSolidBrush(XColor.FromArgb(191, 120, 0)), Bold),
-                            _ => (XBrushes.Black, font),
-                        };
-                    }
-                    double y = _y + 2;
-                    foreach (string line in wrapped[i])
-                    {
-                        _g!.DrawString(
-                            line,
-                            f,
-                            brush,
-                            new XRect(x + 3, y, widths[i] - 6, LineHeight(font)),
-                            XStringFormats.TopLeft
-                        );
-                        y += LineHeight(font);
-                    }
-                    x += widths[i];
-                }
-                _y += h;
-                _g!.DrawLine(new XPen(XColor.FromArgb(210, 210, 210), 0.5), Margin, _y, Margin + ContentWidth, _y);
-            }
-            Row(head, Bold, new XSolidBrush(XColor.FromArgb(232, 238, 245)), false);
-            foreach (string[] r in rows)
-                Row(r, Body, null, true);
-        }
-
-        /// <summary>A table whose first column is a small image (a spectrum thumbnail); the last column coloured by
-        /// verdict.</summary>
-        public void ThumbnailTable(
-            string[] head,
-            double[] frac,
-            IReadOnlyList<(byte[]? Png, string[] Cells)> rows,
-            double thumbHeight
-        )
-        {
-            double[] widths = [.. frac.Select(f => f * ContentWidth)];
-            double headH = LineHeight(Bold) + 4;
-            void Head()
-            {
-                Need(headH);
-                _g!.DrawRectangle(
-                    new XSolidBrush(XColor.FromArgb(232, 238, 245)),
-                    new XRect(Margin, _y, ContentWidth, headH)
-                );
-                double hx = Margin;
-                for (int i = 0; i < head.Length; i++)
-                {
-                    _g.DrawString(
-                        head[i],
-                        Bold,
-                        XBrushes.Black,
-                        new XRect(hx + 3, _y + 2, widths[i] - 6, headH),
-                        XStringFormats.TopLeft
-                    );
-                    hx += widths[i];
-                }
-                _y += headH;
-            }
-            Head();
-            foreach (var (png, cells) in rows)
-            {
-                var wrapped = cells
-                    .Select((c, i) => Wrap(c, i == cells.Length - 1 ? Bold : Small, widths[i + 1] - 6))
-                    .ToArray();
-                double h = Math.Max(thumbHeight + 4, wrapped.Max(w => w.Count) * LineHeight(Small) + 4);
-                if (_y + h > Bottom)
-                {
-                    NewPage();
-                    Head();
-                }
-                if (png is not null)
-                {
-                    using var ms = new MemoryStream(png);
-                    using XImage img = XImage.FromStream(ms);
-                    _g!.DrawImage(img, Margin + 2, _y + 2, widths[0] - 4, thumbHeight);
-                }
-                double x = Margin + widths[0];
-                for (int i = 0; i < cells.Length; i++)
-                {
-                    bool last = i == cells.Length - 1;
-                    XBrush brush = last
-                        ? cells[i] switch
-                        {
-                            "FAIL" or "ERROR" => new XSolidBrush(XColor.FromArgb(192, 0, 0)),
-                            "PASS" => new XSolidBrush(XColor.FromArgb(46, 125, 50)),
-                            "INCONCLUSIVE" => new XSolidBrush(XColor.FromArgb(191, 120, 0)),
-                            _ => XBrushes.Black,
-                        }
-                        : XBrushes.Black;
-                    double y = _y + 2;
-                    foreach (string line in wrapped[i])
-                    {
-                        _g!.DrawString(
-                            line,
-                            last ? Bold : Small,
-                            brush,
-                            new XRect(x + 3, y, widths[i + 1] - 6, LineHeight(Small)),
-                            XStringFormats.TopLeft
-                        );
-                        y += LineHeight(Small);
-                    }
-                    x += widths[i + 1];
-                }
-                _y += h;
-                _g!.DrawLine(new XPen(XColor.FromArgb(210, 210, 210), 0.5), Margin, _y, Margin + ContentWidth, _y);
-            }
-        }
-
-        public void Image(byte[] png, double width, double height)
-        {
-            Need(height);
-            using var ms = new MemoryStream(png);
-            using XImage img = XImage.FromStream(ms);
-            _g!.DrawImage(img, Margin, _y, width, height);
-            _y += height;
-        }
-
-        public void Finish(MeasurementReport r) => Finish(r.ReportId);
-
-        public void Finish(string id)
-        {
-            _g?.Dispose();
-            _g = null;
-            int n = _doc.PageCount;
-            for (int i = 0; i < n; i++)
-            {
-                using XGraphics g = XGraphics.FromPdfPage(_doc.Pages[i], XGraphicsPdfPageOptions.Append);
-                string left =
-                    $"SignalInspect {AnalysisJson.Version}  |  {id}  |  informative results, see the last page";
-                g.DrawString(
-                    left,
-                    Small,
-                    XBrushes.DimGray,
-                    new XRect(Margin, PageHeight - Margin + 4, ContentWidth, 10),
-                    XStringFormats.TopLeft
-                );
-                g.DrawString(
-                    $"page {i + 1} of {n}",
-                    Small,
-                    XBrushes.DimGray,
-                    new XRect(Margin, PageHeight - Margin + 4, ContentWidth, 10),
-                    XStringFormats.TopRight
-                );
-            }
-        }
     }
 }

@@ -15,7 +15,9 @@ public sealed class LineSpectrum
 {
     private readonly int _n;
     private readonly double _fs;
-    private readonly double[] _sum; // in the folded order of the transform (see ScrambledFold); _fold.SlotOf[k] is bin k's
+
+    // In the folded order of the transform (see ScrambledFold); _fold.SlotOf[k] is bin k's slot.
+    private readonly double[] _sum;
     private readonly ScrambledFold _fold;
     private readonly Window _window;
     private long _segments;

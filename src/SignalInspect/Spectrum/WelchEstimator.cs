@@ -479,7 +479,8 @@ public static class WelchEstimator
                 _fft.ForwardPowerScrambled(Clean(samples), complex, _w, _re, _im, _rowSum, Max, row, _l.RowMax);
                 return;
             }
-            ReadOnlySpan<double> x = MemoryMarshal.Cast<T, double>(samples); // float staging only with the scrambled transform
+            // Float staging only with the scrambled transform.
+            ReadOnlySpan<double> x = MemoryMarshal.Cast<T, double>(samples);
             if (!double.IsFinite(_fft.ForwardWindowed(x, complex, _w, _re, _im)))
             {
                 NonFiniteSegments++;

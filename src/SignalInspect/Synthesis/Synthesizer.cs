@@ -66,7 +66,8 @@ public static class Synthesizer
     {
         if (format.IsComplex != spec.IsComplex)
             throw new CaptureException(
-                $"datatype {format.Name} is {(format.IsComplex ? "complex" : "real")} but the signal is {(spec.IsComplex ? "complex" : "real")}"
+                $"datatype {format.Name} is {(format.IsComplex ? "complex" : "real")} "
+                    + $"but the signal is {(spec.IsComplex ? "complex" : "real")}"
             );
         var gen = new SignalGenerator(spec);
         var meta = new CaptureMetadata

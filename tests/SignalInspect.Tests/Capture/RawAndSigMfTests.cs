@@ -90,7 +90,8 @@ public class RawAndSigMfTests
         CaptureInfo info = whole.Info;
         Assert.Null(info.CenterFrequencyHz); // three different frequencies
         Assert.Contains(info.Notes, n => n.Contains("--segment"));
-        Assert.Equal([1000L, 3000L, 6000L], info.Segments.Select(s => s.SampleStart)); // absolute indices (core:offset 1000)
+        // Absolute indices (core:offset 1000).
+        Assert.Equal([1000L, 3000L, 6000L], info.Segments.Select(s => s.SampleStart));
         Assert.Equal([2000L, 3000L, 1500L], info.Segments.Select(s => s.SampleCount));
         Assert.Equal([433.92e6, 434.00e6, 434.10e6], info.Segments.Select(s => s.FrequencyHz!.Value));
         Assert.Equal([0L, 64L, 0L], info.Segments.Select(s => s.HeaderBytes));

@@ -51,7 +51,8 @@ public class PipelineSmokeTests(ITestOutputHelper output)
             refDev = reference.GetProperty("peakDeviationHz").GetDouble();
         long samples = reference.GetProperty("samples").GetInt64();
         output.WriteLine(
-            $"analyze: {seconds:0.000} s, {samples / seconds / 1e6:0.0} MS/s (in-process, includes first-call compilation); "
+            $"analyze: {seconds:0.000} s, {samples / seconds / 1e6:0.0} MS/s (in-process, includes first-call "
+                + "compilation); "
                 + $"OBW {obw:0.0} vs {refObw:0.0} Hz, peak deviation {dev:0.0} vs {refDev:0.0} Hz"
         );
         Near.Equal(refObw, obw, 1e-3 * refObw, "occupied bandwidth (0.1 %)");

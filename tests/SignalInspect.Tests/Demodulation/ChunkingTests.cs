@@ -50,10 +50,13 @@ public class ChunkingTests
     }
 
     [Theory]
-    [InlineData(28_800_000L, 1 << 20, 1200, 35, 1 << 18)] // 60 s at 480 kS/s: 25 whole chunks, the last 2.47 lengths in 10 quarters
+    // 60 s at 480 kS/s: 25 whole chunks, the last 2.47 lengths in 10 quarters
+    [InlineData(28_800_000L, 1 << 20, 1200, 35, 1 << 18)]
     [InlineData(4_800_000L, 1 << 18, 1200, 26, 1 << 16)] // 10 s: 16 whole, 2.31 lengths in 10 quarters
-    [InlineData(4_800_000L, 1 << 16, 1200, 74, 1 << 16)] // a quarter would fall below the floor: whole lengths throughout
-    [InlineData(4_800_000L, 1 << 19, 30_000, 12, 240_000)] // pieces of eight warm-ups (above a quarter): 7 whole, 5 pieces
+    // A quarter would fall below the floor: whole lengths throughout
+    [InlineData(4_800_000L, 1 << 16, 1200, 74, 1 << 16)]
+    // Pieces of eight warm-ups (above a quarter): 7 whole, 5 pieces
+    [InlineData(4_800_000L, 1 << 19, 30_000, 12, 240_000)]
     [InlineData(150_000L, 1 << 17, 1200, 1, 150_000)] // at most 1.5 lengths: one chunk
     public void Chunks_cover_the_stream_with_quarters_at_its_end(
         long expected,

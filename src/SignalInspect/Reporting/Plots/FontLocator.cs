@@ -37,7 +37,8 @@ public static class FontLocator
     public static (string RegularPath, string BoldPath, string Family) Require() =>
         Found.Value
         ?? throw new InvalidOperationException(
-            "no TrueType font found for plots and reports (looked for DejaVu Sans, Liberation Sans, Noto Sans, Arial in the system font folders): install one, e.g. 'apt-get install fonts-dejavu-core'"
+            "no TrueType font found for plots and reports (looked for DejaVu Sans, Liberation Sans, Noto Sans, Arial "
+                + "in the system font folders): install one, e.g. 'apt-get install fonts-dejavu-core'"
         );
 
     private static (string, string, string)? Search()
