@@ -61,8 +61,13 @@ public class ReadPathTests
         AnalysisResult a = Run(f32, "cf32_le"),
             b = Run(f64, "cf64_le");
         Assert.Equal(kind == SignalKind.Fm ? ModulationKind.Fm : ModulationKind.Am, a.Classification.Kind);
-        double worst = Alike(JsonNode.Parse(Measurements(b)), JsonNode.Parse(Measurements(a)), "$");
-        Assert.True(worst > 0, "the float transform rounds: some number should differ in its last digits");
+        double worst = JsonAlike.Compare(JsonNode.Parse(Measurements(b)), JsonNode.Parse(Measurements(a)), "$");
+        // With AVX2 the Welch step runs in float, whose rounding shows in the last digits; without it
+        // both captures take the double transform and must agree bit for bit.
+        if (Hardware.HasAvx2)
+            Assert.True(worst > 0, "the float transform rounds: some number should differ in its last digits");
+        else
+            Assert.Equal(0, worst);
         // Read with copies instead of through the memory map, and mapped in windows that the
         // passes' blocks and segments cross: the same results, and the same file hash.
         AnalysisResult With(bool map, int? window)
@@ -88,53 +93,4 @@ public class ReadPathTests
     /// Asserts two JSON trees alike: the same shape and strings, every number within 1e-6 of its
     /// value (1e-12 absolute near zero). Returns the largest relative difference seen.
     /// </summary>
-    private static double Alike(JsonNode? expected, JsonNode? actual, string at)
-    {
-        switch (expected)
-        {
-            case null:
-                Assert.Null(actual);
-                return 0;
-            case JsonObject eo:
-                {
-                    JsonObject ao = Assert.IsType<JsonObject>(actual);
-                    Assert.Equal(eo.Select(p => p.Key), ao.Select(p => p.Key));
-                    return eo.Select(p => Alike(p.Value, ao[p.Key], $"{at}.{p.Key}")).DefaultIfEmpty(0).Max();
-                }
-            case JsonArray ea:
-                {
-                    JsonArray aa = Assert.IsType<JsonArray>(actual);
-                    Assert.Equal(ea.Count, aa.Count);
-                    return ea.Select((v, i) => Alike(v, aa[i], $"{at}[{i}]")).DefaultIfEmpty(0).Max();
-                }
-            default:
-                var ev = expected.AsValue();
-                if (ev.TryGetValue(out double e))
-                {
-                    double v = actual!.AsValue().GetValue<double>();
-                    double d = Math.Abs(v - e),
-                        scale = Math.Max(Math.Abs(e), Math.Abs(v));
-                    Assert.True(d <= 1e-6 * scale + 1e-12, $"{at}: {v} against {e}");
-                    return scale > 0 ? d / scale : 0;
-                }
-                // Strings alike with the numbers they print read the same way, a unit in their last printed place
-                // allowed.
-                string es = expected.ToJsonString(),
-                    acs = actual!.ToJsonString();
-                var number = new System.Text.RegularExpressions.Regex(@"-?\d+(\.\d+)?");
-                Assert.Equal(number.Replace(es, "#"), number.Replace(acs, "#"));
-                double worst = 0;
-                foreach (var (m, n) in number.Matches(es).Zip(number.Matches(acs)))
-                {
-                    double e2 = double.Parse(m.Value, System.Globalization.CultureInfo.InvariantCulture),
-                        v2 = double.Parse(n.Value, System.Globalization.CultureInfo.InvariantCulture);
-                    int places = m.Groups[1].Success ? m.Groups[1].Value.Length - 1 : 0;
-                    double d = Math.Abs(v2 - e2),
-                        scale = Math.Max(Math.Abs(e2), Math.Abs(v2));
-                    Assert.True(d <= 1e-6 * scale + Math.Pow(10, -places) + 1e-12, $"{at}: {acs} against {es}");
-                    worst = Math.Max(worst, scale > 0 && d > Math.Pow(10, -places) ? d / scale : 0);
-                }
-                return worst;
-        }
-    }
 }

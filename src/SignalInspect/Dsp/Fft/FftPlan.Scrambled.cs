@@ -128,9 +128,13 @@ public sealed partial class FftPlan
         (-(x * hd + y * hc)).StoreUnsafe(ref p, (nuint)at);
     }
 
-    /// <summary>Whether the scrambled transform's last pass runs on 4 x 4 transposed blocks (AVX, 16 points or
-    /// more).</summary>
-    private bool TransposedTail => _n >= 16 && Avx.IsSupported;
+    /// <summary>
+    /// Whether the scrambled transform's last pass runs on 4 x 4 transposed blocks: 16 points or more,
+    /// AVX, and the passes before it on four-lane vectors (<see cref="Vector{T}"/> of four doubles, which
+    /// needs AVX2). A CPU with AVX but not AVX2 runs the passes on two lanes, which end in natural order:
+    /// there the tail must not be transposed, or <see cref="ScrambledIndex"/> would point at the wrong bins.
+    /// </summary>
+    private bool TransposedTail => _n >= 16 && Avx.IsSupported && Vector<double>.Count == 4;
 
     /// <summary>
     /// Forward transform of a windowed segment, X = DFT(w[n] x[n]), with the bins left in

@@ -222,7 +222,7 @@ public class FilterTests
         });
     }
 
-    [Fact]
+    [WideVectorFact]
     public void Channel_decimator_gives_the_same_outputs_on_512_and_256_bit_vectors()
     {
         // With 255 taps both widths pad to 256 alike, so the mixer and the sums must agree bit for bit
