@@ -34,7 +34,8 @@ public sealed class Avx2TheoryAttribute : TheoryAttribute
     }
 }
 
-/// <summary>A fact comparing the 512-bit kernels with the 256-bit ones: skipped where there are no 512-bit vectors.</summary>
+/// <summary>A fact comparing the 512-bit kernels with the 256-bit ones: skipped where there are no 512-bit
+/// vectors.</summary>
 public sealed class WideVectorFactAttribute : FactAttribute
 {
     public WideVectorFactAttribute()
