@@ -3,6 +3,8 @@ using System.Diagnostics;
 using System.Globalization;
 using SignalInspect.Batch;
 using SignalInspect.Compliance;
+using SignalInspect.Inspection;
+using SignalInspect.Reporting;
 
 namespace SignalInspect.Cli;
 
@@ -83,8 +85,12 @@ internal static class BatchCommand
             {
                 OutDir = r.GetValue(outDir)!,
                 Reader = reader.Read(r),
-                Profile = profile,
-                ProfilePath = profilePath,
+                Inspection = new InspectionSettings
+                {
+                    Profile = profile,
+                    ProfilePath = profilePath,
+                    Header = new ReportHeader { CommandLine = "signalinspect batch" },
+                },
                 Jobs = j,
                 Reports = r.GetValue(reports),
                 Resume = r.GetValue(resume),

@@ -18,14 +18,9 @@ public sealed record BatchOptions
     /// <summary>Reader options used as defaults (a sidecar overrides them per file).</summary>
     public ReaderOptions Reader { get; init; } = ReaderOptions.Default;
 
-    /// <summary>Analysis options.</summary>
-    public AnalysisOptions Analysis { get; init; } = new();
-
-    /// <summary>Limit profile, null for none.</summary>
-    public LimitProfile? Profile { get; init; }
-
-    /// <summary>Path of the profile, for the reports.</summary>
-    public string? ProfilePath { get; init; }
+    /// <summary>What to measure, the limits and the report header, as for one capture (batch runs each with one
+    /// thread).</summary>
+    public InspectionSettings Inspection { get; init; } = new();
 
     /// <summary>Captures analysed at once (1 or more).</summary>
     public int Jobs { get; init; } = Math.Max(1, Environment.ProcessorCount);
@@ -229,7 +224,7 @@ public static class BatchRunner
                 .OrderBy(r => r.File, StringComparer.Ordinal)
                 .ThenBy(r => r.ContentSha256, StringComparer.Ordinal),
         ];
-        WriteOutputs(options.OutDir, all, options.Profile?.Name);
+        WriteOutputs(options.OutDir, all, options.Inspection.Profile?.Name);
         return new BatchOutcome(all, analysed, skipped, cancelled);
     }
 
@@ -239,12 +234,9 @@ public static class BatchRunner
         try
         {
             CaptureSource source = CaptureSource.Open(file, CaptureFormats.WithSidecar(file, input.Options));
-            var settings = new InspectionSettings
+            InspectionSettings settings = o.Inspection with
             {
-                Analysis = o.Analysis with { Threads = 1, KeepSpectrogram = o.Reports },
-                Profile = o.Profile,
-                ProfilePath = o.ProfilePath,
-                Header = new ReportHeader { CommandLine = "signalinspect batch" },
+                Analysis = o.Inspection.Analysis with { Threads = 1, KeepSpectrogram = o.Reports },
             };
             MeasurementReport model = CaptureInspection.Inspect(source, settings);
             AnalysisResult r = model.Analysis;

@@ -126,9 +126,7 @@ internal static class SigMfReader
         }
         catch (JsonException e)
         {
-            string where = e.LineNumber is { } l
-                ? $" at line {l + 1}, column {(e.BytePositionInLine ?? 0) + 1}"
-                : string.Empty;
+            string where = JsonErrors.Where(e);
             throw CaptureException.ForFile(metaPath, $"metadata is not valid JSON{where}: {FirstSentence(e.Message)}");
         }
         using (doc)

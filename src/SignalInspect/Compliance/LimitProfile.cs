@@ -111,9 +111,7 @@ public sealed record LimitProfile
         }
         catch (JsonException e)
         {
-            string where = e.LineNumber is { } l
-                ? $" at line {l + 1}, column {(e.BytePositionInLine ?? 0) + 1}"
-                : string.Empty;
+            string where = JsonErrors.Where(e);
             throw ProfileException.ForFile(path, $"limit profile is not valid JSON{where}");
         }
     }

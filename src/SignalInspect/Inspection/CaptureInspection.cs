@@ -6,28 +6,6 @@ using SignalInspect.Reporting;
 
 namespace SignalInspect.Inspection;
 
-/// <summary>Who and what a report names besides the measurements.</summary>
-public sealed record ReportHeader
-{
-    /// <summary>Report title; null for "Measurement of FILE".</summary>
-    public string? Title { get; init; }
-
-    /// <summary>Who measured.</summary>
-    public string? Operator { get; init; }
-
-    /// <summary>Equipment under test.</summary>
-    public string? Equipment { get; init; }
-
-    /// <summary>Free notes.</summary>
-    public string? Notes { get; init; }
-
-    /// <summary>Paper size of the PDF.</summary>
-    public PaperSize Paper { get; init; } = PaperSize.A4;
-
-    /// <summary>The command that made the report, for reproduction.</summary>
-    public string? CommandLine { get; init; }
-}
-
 /// <summary>What <see cref="CaptureInspection.Inspect"/> asks for besides the capture.</summary>
 public sealed record InspectionSettings
 {
@@ -76,11 +54,7 @@ public static class CaptureInspection
             h.Title ?? $"Measurement of {Path.GetFileName(source.Info.Path)}"
         ) with
         {
-            Operator = h.Operator,
-            Equipment = h.Equipment,
-            Notes = h.Notes,
-            Paper = h.Paper,
-            CommandLine = h.CommandLine,
+            Header = h,
         };
     }
 

@@ -14,6 +14,28 @@ public enum PaperSize
     Letter,
 }
 
+/// <summary>Who and what a report names besides the measurements.</summary>
+public sealed record ReportHeader
+{
+    /// <summary>Report title asked for; null for "Measurement of FILE".</summary>
+    public string? Title { get; init; }
+
+    /// <summary>Who measured.</summary>
+    public string? Operator { get; init; }
+
+    /// <summary>Equipment under test.</summary>
+    public string? Equipment { get; init; }
+
+    /// <summary>Free notes.</summary>
+    public string? Notes { get; init; }
+
+    /// <summary>Paper size of the PDF.</summary>
+    public PaperSize Paper { get; init; } = PaperSize.A4;
+
+    /// <summary>The command that made the report, for reproduction.</summary>
+    public string? CommandLine { get; init; }
+}
+
 /// <summary>
 /// Everything a measurement report states: who, what, when, the analysis, the limits and the
 /// verdicts. The JSON and PDF writers only render this record.
@@ -29,14 +51,8 @@ public sealed record MeasurementReport
     /// <summary>Title.</summary>
     public required string Title { get; init; }
 
-    /// <summary>Who measured.</summary>
-    public string? Operator { get; init; }
-
-    /// <summary>Equipment under test.</summary>
-    public string? Equipment { get; init; }
-
-    /// <summary>Free notes.</summary>
-    public string? Notes { get; init; }
+    /// <summary>Who measured, on what, with which notes, paper and command.</summary>
+    public ReportHeader Header { get; init; } = new();
 
     /// <summary>The analysis.</summary>
     public required AnalysisResult Analysis { get; init; }
@@ -53,15 +69,9 @@ public sealed record MeasurementReport
     /// <summary>Overall verdict, null without a profile.</summary>
     public Verdict? Overall { get; init; }
 
-    /// <summary>Paper size.</summary>
-    public PaperSize Paper { get; init; } = PaperSize.A4;
-
-    /// <summary>The command that made the report, for reproduction.</summary>
-    public string? CommandLine { get; init; }
-
     /// <summary>
     /// The report of an analysis: judges it against the profile (when given) and fills the id and
-    /// time; the caller adds operator, equipment, notes, paper and command line with <c>with</c>.
+    /// time; the caller adds the header with <c>with</c>.
     /// </summary>
     public static MeasurementReport Create(
         AnalysisResult analysis,

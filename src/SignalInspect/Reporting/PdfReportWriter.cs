@@ -49,7 +49,7 @@ public static class PdfReportWriter
         doc.Info.Title = report.Title;
         doc.Info.Subject = "Measurement report " + report.ReportId;
         doc.Info.Creator = "SignalInspect " + AnalysisJson.Version;
-        var ctx = new PdfLayout(doc, report.Paper);
+        var ctx = new PdfLayout(doc, report.Header.Paper);
         FirstPage(ctx, report);
         PlotPage(ctx, report);
         MethodPage(ctx, report);
@@ -78,8 +78,8 @@ public static class PdfReportWriter
         {
             ("Report ID", r.ReportId),
             ("Date", r.Created.UtcDateTime.ToString("yyyy-MM-dd HH:mm 'UTC'", C)),
-            ("Operator", r.Operator ?? "not given"),
-            ("Equipment under test", r.Equipment ?? "not given"),
+            ("Operator", r.Header.Operator ?? "not given"),
+            ("Equipment under test", r.Header.Equipment ?? "not given"),
             (
                 "Capture file",
                 Path.GetFileName(info.Path)
@@ -360,9 +360,9 @@ public static class PdfReportWriter
             );
         foreach (string n in info.Notes)
             items.Add(("Reader note", n));
-        if (r.Notes is { } notes)
+        if (r.Header.Notes is { } notes)
             items.Add(("Notes", notes));
-        if (r.CommandLine is { } cmd)
+        if (r.Header.CommandLine is { } cmd)
             items.Add(("Command", cmd));
         l.KeyValueTable(items, keyWidth: 105);
         l.Gap(10);

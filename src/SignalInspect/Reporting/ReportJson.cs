@@ -22,10 +22,10 @@ public static class ReportJson
                 report.Created.UtcDateTime.ToString("yyyy-MM-dd'T'HH:mm:ss'Z'", CultureInfo.InvariantCulture)
             );
             w.WriteString("title", report.Title);
-            w.WriteString("operator", report.Operator);
-            w.WriteString("equipment", report.Equipment);
-            w.WriteString("notes", report.Notes);
-            w.WriteString("commandLine", report.CommandLine);
+            w.WriteString("operator", report.Header.Operator);
+            w.WriteString("equipment", report.Header.Equipment);
+            w.WriteString("notes", report.Header.Notes);
+            w.WriteString("commandLine", report.Header.CommandLine);
             w.WriteString("software", "SignalInspect " + AnalysisJson.Version);
             w.WriteEndObject();
             w.WritePropertyName("analysis");

@@ -6,8 +6,8 @@ namespace SignalInspect.Dsp;
 
 /// <summary>
 /// The scrambled transform's order, folded: where an accumulator of the powers of real segments
-/// (<c>Spectrum.LineSpectrum</c>) keeps its sums: in the order the scrambled transform leaves its bins, folded, so that
-/// adding a transform reads it front to back and writes the sums in order. The bins k = i N/16
+/// (the line spectra of the Spectrum stage) keeps its sums: in the order the scrambled transform leaves its bins,
+/// folded, so that adding a transform reads it front to back and writes the sums in order. The bins k = i N/16
 /// (i = 0 .. 8) lie in the transform's first 16 places and are kept in slots 0 .. 7 and N/2. Every
 /// later block of places [h, 2h) (h = 16, 32 .. N/2) holds pairs of bins k and N - k at places
 /// h + r and 2h - 1 - r (r &lt; h/2; bit reversal maps N - k to the complement of k's place within
