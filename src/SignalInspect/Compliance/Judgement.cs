@@ -145,32 +145,25 @@ public static class Judgement
                 )
             );
         if (r.Am is { } am)
-        {
-            if (p.MaxAmPositivePeakPercent is { } pos)
-                checks.Add(
-                    Upper(
-                        "AM positive-peak modulation",
-                        am.PositivePeakPercent,
-                        "%",
-                        k * am.DepthPercent.StandardUncertainty,
-                        pos,
-                        string.Create(c, $"<= {pos:0.##} %"),
-                        src
-                    )
-                );
-            if (p.MaxAmNegativePeakPercent is { } neg)
-                checks.Add(
-                    Upper(
-                        "AM negative-peak modulation",
-                        am.NegativePeakPercent,
-                        "%",
-                        k * am.DepthPercent.StandardUncertainty,
-                        neg,
-                        string.Create(c, $"<= {neg:0.##} %"),
-                        src
-                    )
-                );
-        }
+            foreach (
+                var (what, value, limit) in new[]
+                {
+                    ("AM positive-peak modulation", am.PositivePeakPercent, p.MaxAmPositivePeakPercent),
+                    ("AM negative-peak modulation", am.NegativePeakPercent, p.MaxAmNegativePeakPercent),
+                }
+            )
+                if (limit is { } max)
+                    checks.Add(
+                        Upper(
+                            what,
+                            value,
+                            "%",
+                            k * am.DepthPercent.StandardUncertainty,
+                            max,
+                            string.Create(c, $"<= {max:0.##} %"),
+                            src
+                        )
+                    );
         if (p.Mask is { } mask && r.Carrier is not null)
             checks.Add(MaskCheck(r, mask));
         return checks;

@@ -49,16 +49,7 @@ internal static class FmMeasurement
         {
             PeakDeviationHz = Measured.FromBudget(
                 peak,
-                new UncertaintyComponent(
-                    "peak statistic",
-                    TypeB.FmPeakFraction * peak * m.NoiseGrowth,
-                    "TypeB.FmPeakFraction x TypeB.NoiseGrowth"
-                ),
-                new UncertaintyComponent(
-                    "histogram resolution",
-                    m.Pass.Freq.BinWidth,
-                    "one bin of the deviation histogram"
-                )
+                PeakBudget.Of(peak, TypeB.FmPeakFraction, m.NoiseGrowth, m.Pass.Freq.BinWidth, "TypeB.FmPeakFraction")
             ),
             PositivePeakHz = pPos,
             NegativePeakHz = pNeg,

@@ -69,15 +69,12 @@ internal static class FskMeasurement
             ToneFrequenciesHz = [.. onAxis.Select(axis.ToReported)],
             ShiftHz = Measured.FromBudget(
                 shift,
-                new UncertaintyComponent(
-                    "peak statistic",
-                    TypeB.FskShiftFraction * shift * m.NoiseGrowth,
-                    "TypeB.FskShiftFraction x TypeB.NoiseGrowth"
-                ),
-                new UncertaintyComponent(
-                    "histogram resolution",
+                PeakBudget.Of(
+                    shift,
+                    TypeB.FskShiftFraction,
+                    m.NoiseGrowth,
                     m.Pass.Freq.BinWidth,
-                    "one bin of the deviation histogram"
+                    "TypeB.FskShiftFraction"
                 )
             ),
             DeviationHz = shift / 2,

@@ -6,6 +6,26 @@ namespace SignalInspect.Measure;
 /// <param name="Source">Where the figure comes from: a formula, a named constant of <see cref="TypeB"/>.</param>
 public sealed record UncertaintyComponent(string Name, double StandardUncertainty, string Source);
 
+/// <summary>The budget of a peak read from a histogram: the statistic's type-B share and one histogram bin.</summary>
+internal static class PeakBudget
+{
+    /// <summary>
+    /// [peak statistic: <paramref name="fraction"/> x value x growth (named <paramref name="source"/>),
+    /// histogram resolution: one bin of <paramref name="binWidth"/>].
+    /// </summary>
+    public static UncertaintyComponent[] Of(
+        double value,
+        double fraction,
+        double growth,
+        double binWidth,
+        string source
+    ) =>
+        [
+            new("peak statistic", fraction * value * growth, source + " x TypeB.NoiseGrowth"),
+            new("histogram resolution", binWidth, "one bin of the deviation histogram"),
+        ];
+}
+
 /// <summary>
 /// A measured value with its standard uncertainty (k = 1) and the budget it was combined from.
 /// </summary>

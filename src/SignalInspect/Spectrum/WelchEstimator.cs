@@ -358,8 +358,7 @@ public static class WelchEstimator
             int n = _l.N,
                 step = _l.Step,
                 vps = reader.ValuesPerSample;
-            long seg0 = r * _l.PerRow,
-                seg1 = Math.Min(_l.Segments, (r + 1) * _l.PerRow);
+            var (seg0, seg1) = SegmentsOf(r);
             long segment = seg0;
             Array.Clear(_row);
             for (; segment < seg1; segment++)
@@ -373,6 +372,9 @@ public static class WelchEstimator
             }
             EndRow(r, segment - seg0, gram, total);
         }
+
+        /// <summary>The segments of row r: the first, and one past the last.</summary>
+        private (long First, long End) SegmentsOf(int r) => (r * _l.PerRow, Math.Min(_l.Segments, (r + 1) * _l.PerRow));
 
         private void EndRow(int r, long segments, double[]? gram, InOrder<double[]> total)
         {
@@ -395,8 +397,7 @@ public static class WelchEstimator
             int n = _l.N,
                 step = _l.Step,
                 vps = reader.ValuesPerSample;
-            long seg0 = r * _l.PerRow,
-                seg1 = Math.Min(_l.Segments, (r + 1) * _l.PerRow);
+            var (seg0, seg1) = SegmentsOf(r);
             reader.Seek(seg0 * step);
             long left = (seg1 - seg0 - 1) * step + n; // samples this row needs
             int filled = 0,
