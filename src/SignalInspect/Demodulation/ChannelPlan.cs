@@ -18,6 +18,30 @@ public sealed record ChannelPlan
     /// <summary>Most taps of the channel low-pass.</summary>
     public const int MaxTaps = 4095;
 
+    /// <summary>The channel reaches this many times the occupied bandwidth's farthest edge from the carrier.</summary>
+    public const double OccupiedReach = 1.2;
+
+    /// <summary>Parts of the spectrum this far below its peak (60 dB, as a power ratio) and 10 dB above the floor
+    /// still widen the channel.</summary>
+    public const double ReachBelowPeak = 1e-6,
+        ReachAboveFloor = 10;
+
+    /// <summary>Pass edge: the reach plus this many spectrum bins, and at least <see cref="MinPassBins"/>.</summary>
+    public const double PassEdgeBins = 4,
+        MinPassBins = 25;
+
+    /// <summary>A channel filter is used when 1.25 x the pass edge stays below 0.9 of the usable band.</summary>
+    public const double FilterRoom = 1.25,
+        UsableShare = 0.9;
+
+    /// <summary>The decimated rate is at least this many times the low-pass's stop edge (on the one side).</summary>
+    public const double RateOverStopEdge = 2.5;
+
+    /// <summary>Default post-detection cutoff as a share of the channel's width; never above
+    /// <see cref="MaxPostLowPassShare"/> of the decimated rate.</summary>
+    public const double PostLowPassShare = 0.9,
+        MaxPostLowPassShare = 0.45;
+
     /// <summary>Input sample rate, Hz.</summary>
     public required double SampleRateHz { get; init; }
 
@@ -80,15 +104,15 @@ public sealed record ChannelPlan
         double fs = psd.SampleRateHz;
         double bin = psd.BinWidthHz;
         double coarse = carrierHz;
-        double reach = Math.Max(Math.Max(upperEdgeHz - coarse, coarse - lowerEdgeHz), 0) * 1.2;
+        double reach = Math.Max(Math.Max(upperEdgeHz - coarse, coarse - lowerEdgeHz), 0) * OccupiedReach;
         reach = Math.Max(reach, SpectralReach(psd, coarse, noiseFloorDensity));
-        double passEdge = Math.Max(reach + 4 * bin, 25 * bin);
+        double passEdge = Math.Max(reach + PassEdgeBins * bin, MinPassBins * bin);
         double nyquist = fs / 2;
         double usable = complex ? nyquist : Math.Min(coarse, nyquist - coarse);
-        bool filter = 1.25 * passEdge < 0.9 * usable;
-        double transition = filter ? Math.Min(0.5 * passEdge, 0.9 * usable - passEdge) : 0;
+        bool filter = FilterRoom * passEdge < UsableShare * usable;
+        double transition = filter ? Math.Min(0.5 * passEdge, UsableShare * usable - passEdge) : 0;
         double half = passEdge + transition / 2;
-        int decimation = filter ? Math.Max(1, (int)Math.Floor(fs / (2.5 * (half + transition / 2)))) : 1;
+        int decimation = filter ? Math.Max(1, (int)Math.Floor(fs / (RateOverStopEdge * (half + transition / 2)))) : 1;
         double fsd = fs / decimation;
         // An even decimation of 4 or more starts with a half-band stage (flat to the low-pass's stop
         // edge, 80 dB down where the halved rate folds onto it): the same band kept, the long
@@ -116,8 +140,8 @@ public sealed record ChannelPlan
                 + string.Create(c, $" ({taps.Length} taps, 80 dB), decimation {decimation} to {fsd:0.###} Hz");
         // Default post-detection bandwidth: the channel's, so that every modulating frequency the
         // occupied bandwidth allows passes (a fixed 15 kHz would halve a 15 kHz broadcast tone).
-        double postLp = postLowPassHz ?? 0.9 * Math.Min(half, fsd / 2);
-        postLp = Math.Min(postLp, 0.45 * fsd);
+        double postLp = postLowPassHz ?? PostLowPassShare * Math.Min(half, fsd / 2);
+        postLp = Math.Min(postLp, MaxPostLowPassShare * fsd);
         return new ChannelPlan
         {
             SampleRateHz = fs,
@@ -140,7 +164,7 @@ public sealed record ChannelPlan
     private static double SpectralReach(PowerSpectrum psd, double centreHz, double floor)
     {
         ReadOnlySpan<double> v = psd.Values;
-        double threshold = Math.Max(v[psd.PeakIndex()] * 1e-6, floor * 10);
+        double threshold = Math.Max(v[psd.PeakIndex()] * ReachBelowPeak, floor * ReachAboveFloor);
         double reach = 0;
         for (int i = 0; i < v.Length; i++)
             if (v[i] > threshold)

@@ -40,18 +40,20 @@ public static class ReportJson
                 w.WriteString("decisionRule", Judgement.DecisionRule);
                 w.WriteEndObject();
                 w.WriteStartArray("checks");
-                foreach (LimitCheck c in report.Checks)
+                foreach (ResultRow c in ResultRows.For(report.Analysis, report.Checks, p.CoverageFactor))
                 {
+                    if (c.Verdict is not { } verdict)
+                        continue;
                     w.WriteStartObject();
-                    w.WriteString("measurement", c.Measurement);
-                    Num(w, "value", c.Value);
+                    w.WriteString("measurement", c.Quantity);
+                    Num(w, "value", c.Value!.Value);
                     w.WriteString("unit", c.Unit);
-                    Num(w, "expandedUncertainty", c.ExpandedUncertainty);
-                    Num(w, "limit", c.Limit);
+                    Num(w, "expandedUncertainty", c.ExpandedUncertainty!.Value);
+                    Num(w, "limit", c.Limit!.Value);
                     w.WriteString("limitText", c.LimitText);
-                    Num(w, "margin", c.Margin);
-                    w.WriteString("verdict", c.Verdict.ToString().ToUpperInvariant());
-                    w.WriteString("basis", c.Basis);
+                    Num(w, "margin", c.Margin!.Value);
+                    w.WriteString("verdict", verdict.ToString().ToUpperInvariant());
+                    w.WriteString("basis", c.Note);
                     w.WriteEndObject();
                 }
                 w.WriteEndArray();

@@ -39,6 +39,10 @@ public sealed record ResultRow
     /// <summary>The limit as written, when a limit judged this row.</summary>
     public string? LimitText { get; init; }
 
+    /// <summary>The limit as a number in <see cref="Unit"/> (NaN when it could not be applied), when a limit judged
+    /// this row.</summary>
+    public double? Limit { get; init; }
+
     /// <summary>Margin to the limit (positive: inside), same unit.</summary>
     public double? Margin { get; init; }
 
@@ -88,6 +92,7 @@ public static class ResultRows
                     Unit = c.Unit,
                     ExpandedUncertainty = c.ExpandedUncertainty,
                     LimitText = c.LimitText,
+                    Limit = c.Limit,
                     Margin = c.Margin,
                     Verdict = c.Verdict,
                     Note = c.Basis,
