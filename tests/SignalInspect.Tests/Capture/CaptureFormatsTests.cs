@@ -31,16 +31,13 @@ public class CaptureFormatsTests
     /// <summary>Every ending of the registry: the short raw ones, each full datatype word, WAV and SigMF.</summary>
     public static TheoryData<string> Endings()
     {
-        var endings = new TheoryData<string>();
-        foreach (string e in CaptureFormats.RawEndings.Keys)
-            endings.Add(e);
-        foreach (string word in Words())
-            endings.Add("." + word);
-        foreach (string e in CaptureFormats.WavEndings)
-            endings.Add(e);
+        var endings = new SortedSet<string>(StringComparer.Ordinal);
+        endings.UnionWith(CaptureFormats.RawEndings.Keys);
+        endings.UnionWith(Words().Select(w => "." + w));
+        endings.UnionWith(CaptureFormats.WavEndings);
         endings.Add(CaptureFormats.SigMfMetaEnding);
         endings.Add(CaptureFormats.SigMfArchiveEnding);
-        return endings;
+        return [.. endings];
     }
 
     [Theory]
