@@ -45,6 +45,9 @@ internal static class OptionNames
             ["SymbolRateBd"] = "--symbol-rate",
             ["DriftHzPerS"] = "--drift",
             ["SnrDb"] = "--snr",
+            ["ExtraTones"] = "--add-tone",
+            ["Spurs"] = "--spur",
+            ["ImageDbc"] = "--image",
         };
 
     /// <summary>The option for a setting (the setting's own name when the command line has none).</summary>

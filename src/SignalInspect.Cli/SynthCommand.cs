@@ -18,11 +18,13 @@ internal static class SynthCommand
         };
         var kind = new Option<string>("--kind")
         {
-            Description = "Signal: cw (unmodulated carrier), am, fm, pm, fsk (binary, continuous phase) or noise.",
+            Description =
+                "Signal: cw (unmodulated carrier), am, fm, pm, fsk (binary, continuous phase), ook (carrier keyed "
+                + "on and off by random bits at --symbol-rate) or noise.",
             DefaultValueFactory = _ => "cw",
-            HelpName = "cw|am|fm|pm|fsk|noise",
+            HelpName = "cw|am|fm|pm|fsk|ook|noise",
         };
-        kind.AcceptOnlyFromAmong("cw", "am", "fm", "pm", "fsk", "noise");
+        kind.AcceptOnlyFromAmong("cw", "am", "fm", "pm", "fsk", "ook", "noise");
         var rate = Units.SiOption("--sample-rate", "Sample rate in Hz.", 48_000, "HZ");
         var duration = Units.SiOption("--duration", "Duration in seconds.", 1.0, "S");
         var centre = Units.SiOption(
@@ -43,7 +45,7 @@ internal static class SynthCommand
         var tone = Units.SiOption("--tone", "Modulating tone frequency in Hz (am, fm, pm).", 1000, "HZ");
         var depth = new Option<double>("--depth")
         {
-            Description = "AM depth in percent (0 to 100).",
+            Description = "AM depth in percent (0 to 400; above 100 the envelope is cut off at zero: overmodulation).",
             DefaultValueFactory = _ => 50,
             HelpName = "PERCENT",
         };
@@ -57,6 +59,26 @@ internal static class SynthCommand
         var shift = Units.SiOption("--shift", "FSK shift (distance between the two tones) in Hz.", 1000, "HZ");
         var symbolRate = Units.SiOption("--symbol-rate", "FSK symbol rate in baud.", 1200, "BD");
         var drift = Units.SiOption("--drift", "Linear carrier drift in Hz per second.", 0, "HZ_PER_S");
+        var addTone = new Option<string[]>("--add-tone")
+        {
+            Description =
+                "One more modulating tone, HZ:AMOUNT (repeatable): the amount is a depth in percent (am), a peak "
+                + "deviation in Hz (fm) or a peak phase in rad (pm); e.g. --add-tone 118.8:600 for a sub-audible tone.",
+            HelpName = "HZ:AMOUNT",
+            AllowMultipleArgumentsPerToken = false,
+        };
+        var spur = new Option<string[]>("--spur")
+        {
+            Description =
+                "An unmodulated carrier beside the signal, OFFSET:DBC (repeatable): its offset from the signal's "
+                + "carrier in Hz and its level in dB relative to it; e.g. --spur 21.5k:-12.",
+            HelpName = "OFFSET:DBC",
+        };
+        var image = new Option<double?>("--image")
+        {
+            Description = "An IQ image (the receiver's I/Q imbalance) this many dB below the signal, e.g. -28.",
+            HelpName = "DBC",
+        };
         var snr = new Option<double?>("--snr")
         {
             Description =
@@ -111,6 +133,9 @@ internal static class SynthCommand
             shift,
             symbolRate,
             drift,
+            addTone,
+            spur,
+            image,
             snr,
             seed,
             real,
@@ -141,6 +166,16 @@ internal static class SynthCommand
                 DriftHzPerS = r.GetValue(drift),
                 SnrDb = r.GetValue(snr),
                 Seed = r.GetValue(seed),
+                ExtraTones =
+                [
+                    .. (r.GetValue(addTone) ?? []).Select(t =>
+                    {
+                        var (hz, amount) = Pair("--add-tone", t);
+                        return new ExtraTone(hz, r.GetValue(kind) == "am" ? amount / 100 : amount);
+                    }),
+                ],
+                Spurs = [.. (r.GetValue(spur) ?? []).Select(t => Pair("--spur", t)).Select(p => new Spur(p.A, p.B))],
+                ImageDbc = r.GetValue(image),
             };
             SampleFormat format = ChooseFormat(path, r.GetValue(datatype), isReal);
             DateTimeOffset? start = null;
@@ -191,5 +226,14 @@ internal static class SynthCommand
         )
             return SampleFormat.Parse(byName);
         return SampleFormat.Parse(isReal ? "rf32_le" : "cf32_le");
+    }
+
+    /// <summary>Parses "A:B", each a number with an optional SI suffix.</summary>
+    private static (double A, double B) Pair(string option, string text)
+    {
+        string[] p = text.Split(':');
+        if (p.Length == 2 && Units.TryParseSi(p[0], out double a) && Units.TryParseSi(p[1], out double b))
+            return (a, b);
+        throw new UsageException($"{option}: '{text}' is not two numbers as A:B (e.g. 118.8:600)");
     }
 }

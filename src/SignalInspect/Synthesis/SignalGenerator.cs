@@ -48,17 +48,33 @@ public sealed class SignalGenerator
             double phi = 0;
             switch (s.Kind)
             {
-                case SignalKind.Am:
+                case SignalKind.Am when s.ExtraTones.Count == 0 && s.AmDepth <= 1:
                     a *= 1 + s.AmDepth * Math.Cos(2 * Math.PI * Frac(s.ModulatingFrequencyHz * _n / fs));
+                    break;
+                case SignalKind.Am:
+                    a *= s.Envelope(_n);
                     break;
                 case SignalKind.Fm:
                     phi =
                         s.PeakDeviationHz
                         / s.ModulatingFrequencyHz
                         * Math.Sin(2 * Math.PI * Frac(s.ModulatingFrequencyHz * _n / fs));
+                    foreach (ExtraTone x in s.ExtraTones)
+                        phi += x.Amount / x.FrequencyHz * Math.Sin(2 * Math.PI * Frac(x.FrequencyHz * _n / fs));
                     break;
                 case SignalKind.Pm:
                     phi = s.PeakPhaseRad * Math.Sin(2 * Math.PI * Frac(s.ModulatingFrequencyHz * _n / fs));
+                    foreach (ExtraTone x in s.ExtraTones)
+                        phi += x.Amount * Math.Sin(2 * Math.PI * Frac(x.FrequencyHz * _n / fs));
+                    break;
+                case SignalKind.Ook:
+                    long symbol = (long)Math.Floor(_n * s.SymbolRateBd / fs);
+                    while (_symbol < symbol)
+                    {
+                        _bit = _random.Next(2);
+                        _symbol++;
+                    }
+                    a *= _bit;
                     break;
                 case SignalKind.Fsk:
                     long k = (long)Math.Floor(_n * s.SymbolRateBd / fs);
@@ -75,6 +91,20 @@ public sealed class SignalGenerator
                     break;
             }
             double theta = 2 * Math.PI * cycles + phi;
+            double zi = a * Math.Cos(theta),
+                zq = a * Math.Sin(theta);
+            foreach (Spur sp in s.Spurs)
+            {
+                double g = s.Amplitude * Math.Pow(10, sp.LevelDbc / 20);
+                double th = 2 * Math.PI * (cycles + Frac(sp.OffsetHz * _n / fs));
+                zi += g * Math.Cos(th);
+                zq += g * Math.Sin(th);
+            }
+            if (s.ImageDbc is { } image)
+            {
+                double g = Math.Pow(10, image / 20);
+                (zi, zq) = (zi + g * zi, zq - g * zq); // z + g conj(z)
+            }
             if (s.IsComplex)
             {
                 double ni = 0,
@@ -84,12 +114,12 @@ public sealed class SignalGenerator
                     ni = Gaussian() * _noiseSigma / Math.Sqrt(2);
                     nq = Gaussian() * _noiseSigma / Math.Sqrt(2);
                 }
-                destination[2 * i] = a * Math.Cos(theta) + ni;
-                destination[2 * i + 1] = a * Math.Sin(theta) + nq;
+                destination[2 * i] = zi + ni;
+                destination[2 * i + 1] = zq + nq;
             }
             else
             {
-                destination[i] = a * Math.Cos(theta) + (_noiseSigma > 0 ? Gaussian() * _noiseSigma : 0);
+                destination[i] = zi + (_noiseSigma > 0 ? Gaussian() * _noiseSigma : 0);
             }
         }
         return count;

@@ -20,15 +20,35 @@ public enum SignalKind
 
     /// <summary>Noise only (no carrier).</summary>
     Noise,
+
+    /// <summary>On-off keying: the carrier on for a 1 bit and off for a 0, random bits at the symbol rate.</summary>
+    Ook,
 }
+
+/// <summary>One more modulating tone (AM, FM, PM), added to the main one.</summary>
+/// <param name="FrequencyHz">Its frequency, Hz.</param>
+/// <param name="Amount">Its share of the modulation: depth m_i (AM), peak deviation D_i in Hz (FM), peak phase
+/// P_i in rad (PM).</param>
+public readonly record struct ExtraTone(double FrequencyHz, double Amount);
+
+/// <summary>An unmodulated carrier beside the signal (a spur, a neighbour).</summary>
+/// <param name="OffsetHz">Its offset from the signal's carrier, Hz.</param>
+/// <param name="LevelDbc">Its level relative to the signal's carrier amplitude, dB (negative: weaker).</param>
+public readonly record struct Spur(double OffsetHz, double LevelDbc);
 
 /// <summary>
 /// Parameters of a synthesised test signal. Formulas (t = n / fs, n = 0, 1, ...):
 /// <list type="bullet">
 /// <item>complex: s[n] = a(t) exp(j (2 pi (f0 t + d t^2 / 2) + phi(t))); real: s[n] = a(t) cos(the same phase);</item>
-/// <item>CW: a = A, phi = 0; AM: a = A (1 + m cos(2 pi fm t)), phi = 0;</item>
-/// <item>FM: a = A, phi = (D / fm) sin(2 pi fm t), so the instantaneous frequency is f0 + D cos(2 pi fm t);</item>
-/// <item>PM: a = A, phi = P sin(2 pi fm t);</item>
+/// <item>CW: a = A, phi = 0; AM: a = A max(0, 1 + m cos(2 pi fm t) + sum_i m_i cos(2 pi f_i t)), phi = 0
+/// (a depth above 1 is overmodulation: the envelope is cut off at zero, as a transmitter's final stage does);</item>
+/// <item>FM: a = A, phi = (D / fm) sin(2 pi fm t) + sum_i (D_i / f_i) sin(2 pi f_i t), so the instantaneous
+/// frequency is f0 + D cos(2 pi fm t) + sum_i D_i cos(2 pi f_i t);</item>
+/// <item>PM: a = A, phi = P sin(2 pi fm t) + sum_i P_i sin(2 pi f_i t);</item>
+/// <item>OOK: a = A for a 1 bit, 0 for a 0 bit, symbols as FSK's, phi = 0;</item>
+/// <item>spurs: each adds A 10^(L/20) exp(j 2 pi (f0 + offset) t) (complex) or its cosine (real);</item>
+/// <item>IQ image (complex only): z + g conj(z) with g = 10^(image/20), the mirror a receiver's I/Q imbalance
+/// leaves at minus the offset;</item>
 /// <item>FSK: a = A, continuous phase, instantaneous frequency f0 +/- shift/2 for bit 1/0, symbol k covering
 /// floor(n Rs / fs) = k, bits from the seeded generator;</item>
 /// <item>noise: white Gaussian, complex circular (I and Q each of variance sigma^2 / 2) for complex output,
@@ -85,26 +105,63 @@ public sealed record SignalSpec
     /// <summary>Signal-to-noise ratio in dB over the sampled bandwidth; null for no noise.</summary>
     public double? SnrDb { get; init; }
 
+    /// <summary>More modulating tones (AM, FM, PM), e.g. a sub-audible tone under the test tone.</summary>
+    public IReadOnlyList<ExtraTone> ExtraTones { get; init; } = [];
+
+    /// <summary>Unmodulated carriers beside the signal.</summary>
+    public IReadOnlyList<Spur> Spurs { get; init; } = [];
+
+    /// <summary>Level of the IQ image relative to the signal, dB (complex output only); null for none.</summary>
+    public double? ImageDbc { get; init; }
+
     /// <summary>Seed of the noise and FSK data generator.</summary>
     public int Seed { get; init; } = 1;
 
     /// <summary>Samples in the capture: round(duration x rate).</summary>
     public long SampleCount => (long)Math.Round(DurationS * SampleRateHz);
 
-    /// <summary>Mean power of the noise-free signal in full-scale units.</summary>
+    /// <summary>
+    /// Mean power of the noise-free signal of interest in full-scale units (spurs and the image are not part of
+    /// it: the SNR is the signal's). AM: A^2 (1 + m^2/2 + sum m_i^2/2) when the envelope stays above zero, else the
+    /// mean of the clipped envelope squared over a long stretch (numerically); OOK: A^2 / 2.
+    /// </summary>
     public double SignalPower
     {
         get
         {
             double p = Kind switch
             {
-                SignalKind.Am => Amplitude * Amplitude * (1 + AmDepth * AmDepth / 2),
-                SignalKind.Noise => Amplitude * Amplitude,
+                SignalKind.Am when AmDepth + ExtraTones.Sum(t => Math.Abs(t.Amount)) <= 1 => Amplitude
+                    * Amplitude
+                    * (1 + AmDepth * AmDepth / 2 + ExtraTones.Sum(t => t.Amount * t.Amount / 2)),
+                SignalKind.Am => Amplitude * Amplitude * ClippedEnvelopePower(),
+                SignalKind.Ook => Amplitude * Amplitude / 2,
                 _ => Amplitude * Amplitude,
             };
             return IsComplex ? p : p / 2;
         }
     }
+
+    /// <summary>Mean of max(0, 1 + m cos + sum m_i cos)^2 over 2^16 samples at the spec's rate.</summary>
+    private double ClippedEnvelopePower()
+    {
+        const int n = 1 << 16;
+        double sum = 0;
+        for (int k = 0; k < n; k++)
+            sum += Math.Pow(Envelope(k), 2);
+        return sum / n;
+    }
+
+    /// <summary>The AM envelope factor at sample k: max(0, 1 + m cos(2 pi fm t) + sum_i m_i cos(2 pi f_i t)).</summary>
+    internal double Envelope(long k)
+    {
+        double e = 1 + AmDepth * Math.Cos(2 * Math.PI * Frac(ModulatingFrequencyHz * k / SampleRateHz));
+        foreach (ExtraTone t in ExtraTones)
+            e += t.Amount * Math.Cos(2 * Math.PI * Frac(t.FrequencyHz * k / SampleRateHz));
+        return Math.Max(0, e);
+    }
+
+    internal static double Frac(double x) => x - Math.Floor(x);
 
     /// <summary>Checks every parameter; the message names the parameter and its allowed range.</summary>
     /// <exception cref="SettingException">A parameter is out of range (named by its property).</exception>
@@ -135,14 +192,49 @@ public sealed record SignalSpec
             );
         if (Kind is SignalKind.Am or SignalKind.Fm or SignalKind.Pm)
             Positive(ModulatingFrequencyHz, nameof(ModulatingFrequencyHz));
-        if (Kind == SignalKind.Am && (!double.IsFinite(AmDepth) || AmDepth < 0 || AmDepth > 1))
-            throw new SettingException(nameof(AmDepth), AmDepth, "must be from 0 to 1");
-        if (Kind == SignalKind.Am && Amplitude * (1 + AmDepth) > 1)
-            throw new SettingException(nameof(Amplitude), Amplitude, "x (1 + depth) must not exceed full scale (1.0)");
+        if (Kind == SignalKind.Am && (!double.IsFinite(AmDepth) || AmDepth < 0 || AmDepth > 4))
+            throw new SettingException(nameof(AmDepth), AmDepth, "must be from 0 to 4 (above 1: overmodulated)");
+        double peakFactor = 1 + AmDepth + ExtraTones.Sum(t => Math.Abs(t.Amount));
+        if (Kind == SignalKind.Am && Amplitude * peakFactor > 1)
+            throw new SettingException(
+                nameof(Amplitude),
+                Amplitude,
+                "x (1 + the depths) must not exceed full scale (1.0)"
+            );
+        foreach (ExtraTone t in ExtraTones)
+            if (!(t.FrequencyHz > 0 && t.FrequencyHz < SampleRateHz / 2 && double.IsFinite(t.Amount)))
+                throw new SettingException(
+                    nameof(ExtraTones),
+                    t.FrequencyHz,
+                    "each extra tone needs a frequency between 0 and half the sample rate and a finite amount"
+                );
+        if (ExtraTones.Count > 0 && Kind is not (SignalKind.Am or SignalKind.Fm or SignalKind.Pm))
+            throw new SettingException(nameof(ExtraTones), ExtraTones.Count, "extra tones apply to am, fm and pm");
+        foreach (Spur sp in Spurs)
+            if (
+                !(
+                    double.IsFinite(sp.OffsetHz)
+                    && Math.Abs(CarrierOffsetHz + sp.OffsetHz) < SampleRateHz / 2
+                    && sp.LevelDbc <= 0
+                )
+            )
+                throw new SettingException(
+                    nameof(Spurs),
+                    sp.OffsetHz,
+                    "a spur must lie inside the sampled band and be at most as strong as the carrier (0 dBc)"
+                );
+        if (ImageDbc is { } img && (!IsComplex || !(img < 0)))
+            throw new SettingException(
+                nameof(ImageDbc),
+                img,
+                "an IQ image needs complex output and a level below 0 dB"
+            );
         if (Kind == SignalKind.Fm)
             Positive(PeakDeviationHz, nameof(PeakDeviationHz));
         if (Kind == SignalKind.Pm)
             Positive(PeakPhaseRad, nameof(PeakPhaseRad));
+        if (Kind is SignalKind.Fsk or SignalKind.Ook)
+            Positive(SymbolRateBd, nameof(SymbolRateBd));
         if (Kind == SignalKind.Fsk)
         {
             Positive(FskShiftHz, nameof(FskShiftHz));

@@ -34,9 +34,16 @@ public static class Synthesizer
                 s.ModulatingFrequencyHz
             ),
             SignalKind.Fsk => string.Format(c, "2-FSK shift {0:R} Hz at {1:R} Bd", s.FskShiftHz, s.SymbolRateBd),
+            SignalKind.Ook => string.Format(c, "on-off keying at {0:R} Bd", s.SymbolRateBd),
             SignalKind.Noise => "noise only",
             _ => "unmodulated carrier",
         };
+        foreach (ExtraTone t in s.ExtraTones)
+            mod += string.Format(c, " plus {0:R} by {1:R} Hz", t.Amount, t.FrequencyHz);
+        foreach (Spur sp in s.Spurs)
+            mod += string.Format(c, ", a carrier at {0:R} Hz from it, {1:R} dBc", sp.OffsetHz, sp.LevelDbc);
+        if (s.ImageDbc is { } image)
+            mod += string.Format(c, ", an IQ image at {0:R} dBc", image);
         string snr = s.SnrDb is { } db ? string.Format(c, ", SNR {0:R} dB", db) : ", no noise";
         string drift = s.DriftHzPerS != 0 ? string.Format(c, ", drift {0:R} Hz/s", s.DriftHzPerS) : string.Empty;
         return string.Format(

@@ -150,9 +150,108 @@ public class SignalGeneratorTests
             nameof(SignalSpec.Amplitude) => new SignalSpec { Amplitude = 1.5 },
             nameof(SignalSpec.SampleRateHz) => new SignalSpec { SampleRateHz = -1 },
             nameof(SignalSpec.CarrierOffsetHz) => new SignalSpec { SampleRateHz = 1000, CarrierOffsetHz = 600 },
-            _ => new SignalSpec { Kind = SignalKind.Am, AmDepth = 1.5 },
+            _ => new SignalSpec { Kind = SignalKind.Am, AmDepth = 5 },
         };
         var e = Assert.Throws<SettingException>(() => new SignalGenerator(bad));
         Assert.Equal(setting, e.Setting);
+    }
+
+    [Fact]
+    public void Extra_FM_tones_add_their_deviations_to_the_instantaneous_frequency()
+    {
+        // A sub-audible tone under a test tone: f(t) = f0 + D cos(2 pi fm t) + D2 cos(2 pi f2 t), the phase
+        // its integral (the formula of SignalSpec): checked sample by sample against the closed form.
+        var spec = new SignalSpec
+        {
+            Kind = SignalKind.Fm,
+            SampleRateHz = 48000,
+            DurationS = 0.2,
+            CarrierOffsetHz = 250,
+            PeakDeviationHz = 1900,
+            ModulatingFrequencyHz = 1000,
+            ExtraTones = [new ExtraTone(118.8, 600)],
+            Amplitude = 0.5,
+        };
+        Complex[] z = Complexes(spec);
+        for (int n = 0; n < z.Length; n++)
+        {
+            double t = n / 48000.0;
+            double phase =
+                2 * Math.PI * 250 * t
+                + 1900 / 1000.0 * Math.Sin(2 * Math.PI * 1000 * t)
+                + 600 / 118.8 * Math.Sin(2 * Math.PI * 118.8 * t);
+            Assert.True((z[n] - Complex.FromPolarCoordinates(0.5, phase)).Magnitude < 1e-9, $"sample {n}");
+        }
+    }
+
+    [Fact]
+    public void Overmodulated_AM_is_cut_off_at_zero_for_the_expected_share_of_the_cycle()
+    {
+        // a = A max(0, 1 + m cos wt): for m = 1.5 the envelope is zero while cos wt < -1/m, a share
+        // 1 - acos(-1/m)/pi = 0.2677 of the time (closed form).
+        var spec = new SignalSpec
+        {
+            Kind = SignalKind.Am,
+            SampleRateHz = 48000,
+            DurationS = 1,
+            AmDepth = 1.5,
+            ModulatingFrequencyHz = 997, // not a divisor of the rate, so the samples spread over the cycle
+            Amplitude = 0.3,
+        };
+        Complex[] z = Complexes(spec);
+        double zero = z.Count(c => c.Magnitude == 0) / (double)z.Length;
+        Near.Equal(1 - Math.Acos(-1 / 1.5) / Math.PI, zero, 0.002, "share of time at zero");
+        Near.Equal(0.3 * 2.5, z.Max(c => c.Magnitude), 1e-4, "peak envelope A (1 + m)");
+    }
+
+    [Fact]
+    public void OOK_keys_the_carrier_fully_on_and_off_about_half_of_the_time()
+    {
+        var spec = new SignalSpec
+        {
+            Kind = SignalKind.Ook,
+            SampleRateHz = 48000,
+            DurationS = 1,
+            SymbolRateBd = 100,
+            Amplitude = 0.4,
+            CarrierOffsetHz = 2000,
+        };
+        Complex[] z = Complexes(spec);
+        Assert.All(z, c => Assert.True(c.Magnitude < 1e-12 || Math.Abs(c.Magnitude - 0.4) < 1e-12));
+        double on = z.Count(c => c.Magnitude > 0.2) / (double)z.Length;
+        Assert.InRange(on, 0.35, 0.65); // 100 random bits: a binomial share, 3 sigma = 0.15
+        // Symbols last 480 samples: the carrier changes state only on symbol boundaries.
+        for (int n = 1; n < z.Length; n++)
+            if ((z[n].Magnitude > 0.2) != (z[n - 1].Magnitude > 0.2))
+                Assert.Equal(0, n % 480);
+    }
+
+    [Fact]
+    public void A_spur_and_an_IQ_image_stand_at_their_offsets_and_levels()
+    {
+        // Bin-centred carrier at +2000 Hz, a spur 12 dB down 1500 Hz above it and the IQ image 28 dB down at
+        // -2000 Hz: the DFT bins read A, A 10^(-12/20) and A 10^(-28/20) (the definitions, rectangular window).
+        var spec = new SignalSpec
+        {
+            Kind = SignalKind.Cw,
+            SampleRateHz = 8000,
+            DurationS = 1,
+            CarrierOffsetHz = 2000,
+            Amplitude = 0.5,
+            Spurs = [new Spur(1500, -12)],
+            ImageDbc = -28,
+        };
+        Complex[] z = Complexes(spec);
+        double Bin(double hz) =>
+            (
+                z.Select((c, n) => c * Complex.FromPolarCoordinates(1, -2 * Math.PI * hz * n / 8000))
+                    .Aggregate(Complex.Zero, (a, b) => a + b) / z.Length
+            ).Magnitude;
+        double carrier = Bin(2000);
+        Near.Equal(0.5 * (1 + Math.Pow(10, -28 / 20.0) * 0), carrier, 1e-9, "carrier");
+        Near.Equal(-12, 20 * Math.Log10(Bin(3500) / carrier), 0.01, "spur, dBc");
+        // The image mirrors the carrier and the spur: conj(z) puts them at -2000 and -3500 Hz.
+        Near.Equal(-28, 20 * Math.Log10(Bin(-2000) / carrier), 0.01, "image, dBc");
+        Near.Equal(-40, 20 * Math.Log10(Bin(-3500) / carrier), 0.01, "the spur's image, dBc");
     }
 }
