@@ -43,6 +43,7 @@ internal static class AmMeasurement
             if (
                 TonePeaks.TryCorrect(
                     m.Pass.EnvelopeSpectrum,
+                    m.Components,
                     tone.Value,
                     m.MinToneHz,
                     m.EnvelopeTopHz,

@@ -77,6 +77,9 @@ public sealed record AnalysisResult
     /// <summary>Modulating frequency, Hz (AM, FM, PM); null otherwise.</summary>
     public Measured? ModulatingFrequencyHz { get; init; }
 
+    /// <summary>The modulating components (tones) of AM, FM and PM, strongest first; empty otherwise.</summary>
+    public IReadOnlyList<ModulatingComponent> ModulatingComponents { get; init; } = [];
+
     /// <summary>Necessary bandwidth by the 47 CFR 2.202 formulas, Hz; null when none applies.</summary>
     public double? NecessaryBandwidthHz { get; init; }
 

@@ -129,7 +129,11 @@ public static class Analyzer
             MinToneHz = minTone,
         };
         Measured? tone = ModulatingTone.Find(kind, b, minTone, inputs.EnvelopeTopHz, channel.PostLowPassHz);
-        inputs = inputs with { Tone = tone };
+        inputs = inputs with
+        {
+            Tone = tone,
+            Components = FindComponents(kind, b, features, minTone, inputs.EnvelopeTopHz, channel.PostLowPassHz),
+        };
         if (MeasurementWarnings.FewTonePeriods(tone, count / fs) is { } fewPeriods)
             warnings.Add(fewPeriods);
 
@@ -209,7 +213,7 @@ public static class Analyzer
             PostLowPassHz = channel.PostLowPassHz,
             PostHighPassHz = options.PostHighPassHz,
             DeEmphasisUs = options.DeEmphasisUs,
-            PeakStatistic = TonePeaks.Describe(kind, b, extras.PeaksCorrected),
+            PeakStatistic = TonePeaks.Describe(kind, b, extras.PeaksCorrected, inputs.Components),
             ObwNoise = options.ObwNoise,
         };
         string sha = hash.Result;
@@ -232,6 +236,7 @@ public static class Analyzer
             Pm = pm,
             Fsk = fsk,
             ModulatingFrequencyHz = kind is ModulationKind.Am or ModulationKind.Fm or ModulationKind.Pm ? tone : null,
+            ModulatingComponents = inputs.Components,
             NecessaryBandwidthHz = extras.NecessaryBandwidthHz,
             EmissionDesignator = EmissionDesignator.Format(kind, extras.NecessaryBandwidthHz),
             Spectrum = spectrum,
@@ -243,6 +248,34 @@ public static class Analyzer
             WaveformLabel = waveLabel,
         };
     }
+
+    /// <summary>The modulating components of an AM (depth in %), FM (deviation in Hz) or PM (phase in rad)
+    /// signal.</summary>
+    private static IReadOnlyList<ModulatingComponent> FindComponents(
+        ModulationKind kind,
+        PassResult b,
+        DemodulatedFeatures f,
+        double minHz,
+        double envelopeTopHz,
+        double postLowPassHz
+    ) =>
+        kind switch
+        {
+            ModulationKind.Am when f.EnvelopeMean > 0 => ModulatingComponents.Find(
+                b.EnvelopeSpectrum,
+                minHz,
+                envelopeTopHz,
+                100 / f.EnvelopeMean
+            ),
+            ModulationKind.Fm => ModulatingComponents.Find(b.ToneSpectrum, minHz, postLowPassHz, 1),
+            ModulationKind.Pm =>
+            [
+                .. ModulatingComponents
+                    .Find(b.ToneSpectrum, minHz, postLowPassHz, 1)
+                    .Select(c => c with { PeakAmount = c.PeakAmount / c.FrequencyHz }),
+            ],
+            _ => [],
+        };
 
     /// <summary>The spectrum pass's settings: the FFT size asked for, or <see cref="DefaultFftSize"/> halved until
     /// the window holds eight segments (down to 64).</summary>

@@ -6,6 +6,11 @@ public sealed record FmResult
     /// <summary>Peak deviation: the larger of the positive and negative peaks, Hz.</summary>
     public required Measured PeakDeviationHz { get; init; }
 
+    /// <summary>Peak phase of the same signal, rad: the sum of each modulating component's D_i / f_i (the phase
+    /// waveform's peak when the tones drift through every phase), or D / fm for one tone; null without a
+    /// tone.</summary>
+    public double? PeakPhaseRad { get; init; }
+
     /// <summary>Positive peak (99.9th percentile of the deviation), Hz.</summary>
     public required double PositivePeakHz { get; init; }
 
@@ -38,6 +43,7 @@ internal static class FmMeasurement
             m.Tone is { } tone
             && TonePeaks.TryCorrect(
                 m.Pass.ToneSpectrum,
+                m.Components,
                 tone.Value,
                 m.MinToneHz,
                 m.Channel.PostLowPassHz,
@@ -45,17 +51,42 @@ internal static class FmMeasurement
                 ref pNeg
             );
         double peak = Math.Max(pPos, pNeg);
+        UncertaintyComponent[] budget = PeakBudget.Of(
+            peak,
+            TypeB.FmPeakFraction,
+            m.NoiseGrowth,
+            m.Pass.Freq.BinWidth,
+            "TypeB.FmPeakFraction"
+        );
+        if (!corrected && m.Tone is { } raw)
+            budget =
+            [
+                .. budget,
+                new(
+                    "noise on the raw peak",
+                    TonePeaks.RawPeakNoise(
+                        m.Pass.ToneSpectrum,
+                        m.Components,
+                        raw.Value,
+                        m.MinToneHz,
+                        m.Channel.PostLowPassHz,
+                        1
+                    ),
+                    "rms of the demodulated noise (band power less the modulating components')"
+                ),
+            ];
         var result = new FmResult
         {
-            PeakDeviationHz = Measured.FromBudget(
-                peak,
-                PeakBudget.Of(peak, TypeB.FmPeakFraction, m.NoiseGrowth, m.Pass.Freq.BinWidth, "TypeB.FmPeakFraction")
-            ),
+            PeakDeviationHz = Measured.FromBudget(peak, budget),
             PositivePeakHz = pPos,
             NegativePeakHz = pNeg,
             HalfPeakToPeakHz = (pPos + pNeg) / 2,
             RmsDeviationHz = m.Pass.FreqRms,
             ModulationIndex = m.Tone is { } t ? peak / t.Value : null,
+            PeakPhaseRad =
+                m.Components.Count > 0 ? m.Components.Sum(c => c.PeakAmount / c.FrequencyHz)
+                : m.Tone is { } t1 ? peak / t1.Value
+                : null,
         };
         double? necessary = m.Tone is { } mt ? EmissionDesignator.AngleModulationBandwidthHz(mt.Value, peak) : null;
         return (result, new MeasurementExtras(necessary, corrected));

@@ -35,6 +35,9 @@ internal sealed record MeasurementInputs
     /// <summary>The modulating frequency found, or null.</summary>
     public Measured? Tone { get; init; }
 
+    /// <summary>The modulating components found, strongest first (empty for CW, FSK and noise).</summary>
+    public IReadOnlyList<ModulatingComponent> Components { get; init; } = [];
+
     /// <summary>How the type-B peak figures grow at this SNR (<see cref="TypeB.NoiseGrowth"/>).</summary>
     public double NoiseGrowth => TypeB.NoiseGrowth(SnrDb);
 

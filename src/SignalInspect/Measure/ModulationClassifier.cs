@@ -92,13 +92,16 @@ internal static class ModulationClassifier
         }
         else if (sigmaPhase * Math.Sqrt(2) <= Math.PI / 2)
         {
-            detected = ModulationKind.Pm;
-            conf = 0.55;
+            // One tone cannot tell PM from FM (a tone's phase and its frequency are both sines); analogue voice
+            // radios transmit FM (with pre-emphasis, phase-like above 300 Hz), so FM is the default: the
+            // standard 1 kHz test tone at 1.5 kHz deviation is an index 1.5 signal, not PM.
+            detected = ModulationKind.Fm;
+            conf = 0.7;
             why =
                 string.Create(
                     c,
-                    $"angle modulation of small peak phase (about {sigmaPhase * Math.Sqrt(2):0.##} rad): read as PM; a "
-                ) + "tone cannot tell PM from FM, give --expect fm if it is FM";
+                    $"angle modulation of small peak phase (about {sigmaPhase * Math.Sqrt(2):0.##} rad), read as FM "
+                ) + "(one tone cannot tell PM from FM; give --expect pm for a phase-modulated transmitter)";
         }
         else
         {

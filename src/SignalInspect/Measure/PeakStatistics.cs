@@ -156,6 +156,10 @@ internal static class TonePeaks
     /// <summary>Share of the band's power the tone's lines must hold for the correction to apply.</summary>
     public const double OneToneShare = 0.8;
 
+    /// <summary>Share of the modulating components' power the strongest must hold: a second tone (a sub-audible
+    /// tone under the test tone) is not noise, and the sine-plus-noise model would read the sum's peak low.</summary>
+    public const double OneComponentShare = 0.99;
+
     /// <summary>
     /// Replaces <paramref name="up"/> and <paramref name="down"/> (peaks about the mean, both positive)
     /// by the sine's peaks (<see cref="SinePeak.FromPercentiles"/>) when the tone at
@@ -165,6 +169,7 @@ internal static class TonePeaks
     /// </summary>
     public static bool TryCorrect(
         LineSpectrum spectrum,
+        IReadOnlyList<ModulatingComponent> components,
         double toneHz,
         double minHz,
         double maxHz,
@@ -172,6 +177,8 @@ internal static class TonePeaks
         ref double down
     )
     {
+        if (!OneToneCarries(components))
+            return false;
         var (tone, noise) = spectrum.Split(toneHz, minHz, maxHz);
         if (!(tone >= OneToneShare * (tone + noise)))
             return false;
@@ -179,8 +186,38 @@ internal static class TonePeaks
         return true;
     }
 
+    /// <summary>
+    /// The standard deviation of the noise under a peak read raw (no correction): the variance of
+    /// <paramref name="spectrum"/> between <paramref name="minHz"/> and <paramref name="maxHz"/> less that of the
+    /// modulating components (each a sine: peak^2 / 2), in the stream's unit. A raw percentile is pushed up by
+    /// about this much: the budget carries it as a component of its own.
+    /// </summary>
+    public static double RawPeakNoise(
+        LineSpectrum spectrum,
+        IReadOnlyList<ModulatingComponent> components,
+        double toneHz,
+        double minHz,
+        double maxHz,
+        double unitsPerStream
+    )
+    {
+        var (tone, noise) = spectrum.Split(toneHz, minHz, maxHz);
+        double lines = components.Sum(c => Math.Pow(c.PeakAmount / unitsPerStream, 2) / 2);
+        return Math.Sqrt(Math.Max(0, tone + noise - lines));
+    }
+
+    /// <summary>True when at most one modulating component was found, or the strongest holds at least
+    /// <see cref="OneComponentShare"/> of their power.</summary>
+    public static bool OneToneCarries(IReadOnlyList<ModulatingComponent> components) =>
+        components.Count <= 1 || components[0].PowerShare >= OneComponentShare;
+
     /// <summary>The method record's words for the peak statistic of a measurement of <paramref name="kind"/>.</summary>
-    public static string Describe(ModulationKind kind, Demodulation.PassResult pass, bool corrected)
+    public static string Describe(
+        ModulationKind kind,
+        Demodulation.PassResult pass,
+        bool corrected,
+        IReadOnlyList<ModulatingComponent> components
+    )
     {
         bool freq = kind is ModulationKind.Fm or ModulationKind.Fsk;
         bool jitter = freq ? pass.JitterFrequency : pass.JitterEnvelope;
@@ -192,7 +229,10 @@ internal static class TonePeaks
         return "positive peak = 99.9th percentile, negative peak = 0.1th percentile of the post-detection signal, "
             + how
             + (
-                corrected ? "tone peaks corrected for the measured noise (sine-plus-Gaussian model)" : "raw percentiles"
+                corrected ? "tone peaks corrected for the measured noise (sine-plus-Gaussian model)"
+                : OneToneCarries(components) ? "raw percentiles"
+                : $"raw percentiles ({components.Count} modulating components: the peak of their sum is read, no "
+                    + "single-tone noise correction)"
             );
     }
 }

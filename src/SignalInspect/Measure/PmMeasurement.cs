@@ -13,6 +13,10 @@ public sealed record PmResult
 
     /// <summary>Negative peak phase (as a positive number), rad.</summary>
     public required double NegativePeakRad { get; init; }
+
+    /// <summary>Peak frequency deviation of the same signal, Hz: the sum of each component's P_i f_i, or P fm for
+    /// one tone; null without a tone.</summary>
+    public double? PeakDeviationHz { get; init; }
 }
 
 /// <summary>
@@ -51,6 +55,10 @@ internal static class PmMeasurement
             ),
             PositivePeakRad = up,
             NegativePeakRad = -lo,
+            PeakDeviationHz =
+                m.Components.Count > 0 ? m.Components.Sum(c => c.PeakAmount * c.FrequencyHz)
+                : m.Tone is { } t1 ? p * t1.Value
+                : null,
         };
         double? necessary = m.Tone is { } t
             ? EmissionDesignator.AngleModulationBandwidthHz(t.Value, p * t.Value)

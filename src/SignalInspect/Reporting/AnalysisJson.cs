@@ -12,7 +12,7 @@ namespace SignalInspect.Reporting;
 public static class AnalysisJson
 {
     /// <summary>Format version of this JSON.</summary>
-    public const string SchemaVersion = "1";
+    public const string SchemaVersion = "2";
 
     /// <summary>Serialises the result to UTF-8 JSON bytes.</summary>
     public static byte[] ToBytes(AnalysisResult r, bool indented = true)
@@ -119,6 +119,7 @@ public static class AnalysisJson
             w.WriteNumber("halfPeakToPeakHz", fm.HalfPeakToPeakHz);
             w.WriteNumber("rmsDeviationHz", fm.RmsDeviationHz);
             CaptureInfoJson.WriteNumberOrNull(w, "modulationIndex", fm.ModulationIndex);
+            CaptureInfoJson.WriteNumberOrNull(w, "peakPhaseRad", fm.PeakPhaseRad);
         }
         else
         {
@@ -135,6 +136,7 @@ public static class AnalysisJson
             w.WriteNumber("peakDeviationUncertaintyRad", pm.PeakDeviationRad.StandardUncertainty);
             w.WriteNumber("positivePeakRad", pm.PositivePeakRad);
             w.WriteNumber("negativePeakRad", pm.NegativePeakRad);
+            CaptureInfoJson.WriteNumberOrNull(w, "peakDeviationHz", pm.PeakDeviationHz);
         }
         else
             w.WriteNull("peakDeviationRad");
@@ -162,6 +164,26 @@ public static class AnalysisJson
         }
         w.WriteEndObject();
         CaptureInfoJson.WriteNumberOrNull(w, "modulatingFrequencyHz", r.ModulatingFrequencyHz?.Value);
+        WriteBudgets(w, r);
+        w.WriteStartArray("modulatingComponents");
+        foreach (ModulatingComponent mc in r.ModulatingComponents)
+        {
+            w.WriteStartObject();
+            w.WriteNumber("frequencyHz", mc.FrequencyHz);
+            w.WriteNumber("peak", mc.PeakAmount);
+            w.WriteString(
+                "peakUnit",
+                r.Classification.Kind switch
+                {
+                    ModulationKind.Am => "%",
+                    ModulationKind.Pm => "rad",
+                    _ => "Hz",
+                }
+            );
+            w.WriteNumber("powerShare", mc.PowerShare);
+            w.WriteEndObject();
+        }
+        w.WriteEndArray();
         CaptureInfoJson.WriteNumberOrNull(w, "necessaryBandwidthHz", r.NecessaryBandwidthHz);
         if (r.EmissionDesignator is { } d)
             w.WriteString("emissionDesignator", d);
@@ -194,4 +216,36 @@ public static class AnalysisJson
 
     /// <summary>The software version written into outputs.</summary>
     public static string Version => typeof(AnalysisJson).Assembly.GetName().Version?.ToString(3) ?? "0";
+
+    /// <summary>
+    /// <c>uncertaintyBudget</c>: for each measured value with a standard uncertainty, the components it was
+    /// combined from (name, standard uncertainty in the value's unit, source), keyed by the value's JSON path.
+    /// </summary>
+    private static void WriteBudgets(Utf8JsonWriter w, AnalysisResult r)
+    {
+        w.WriteStartObject("uncertaintyBudget");
+        void One(string key, Measured? m)
+        {
+            if (m is not { } v || v.Budget.Count == 0)
+                return;
+            w.WriteStartArray(key);
+            foreach (UncertaintyComponent c in v.Budget)
+            {
+                w.WriteStartObject();
+                w.WriteString("name", c.Name);
+                w.WriteNumber("standardUncertainty", c.StandardUncertainty);
+                w.WriteString("source", c.Source);
+                w.WriteEndObject();
+            }
+            w.WriteEndArray();
+        }
+        One("carrier.frequencyHz", r.Carrier?.FrequencyHz);
+        One("am.depthPercent", r.Am?.DepthPercent);
+        One("fm.peakDeviationHz", r.Fm?.PeakDeviationHz);
+        One("pm.peakDeviationRad", r.Pm?.PeakDeviationRad);
+        One("fsk.shiftHz", r.Fsk?.ShiftHz);
+        One("fsk.symbolRateBd", r.Fsk?.SymbolRateBd);
+        One("modulatingFrequencyHz", r.ModulatingFrequencyHz);
+        w.WriteEndObject();
+    }
 }

@@ -202,6 +202,8 @@ public static class ResultRows
                 "Hz"
             );
             Info("fm.rmsDeviation", "FM rms deviation", fm.RmsDeviationHz, "Hz", null, "0.#");
+            if (fm.PeakPhaseRad is { } phase)
+                Info("fm.peakPhase", "FM peak phase", phase, "rad", null, "0.###");
         }
         if (a.Am is { } am)
         {
@@ -239,6 +241,24 @@ public static class ResultRows
         }
         if (a.ModulatingFrequencyHz is { } mf)
             Info("modulatingFrequency", "modulating frequency", mf.Value, "Hz", mf.StandardUncertainty, "0.##");
+        if (a.ModulatingComponents.Count > 1)
+        {
+            string unit =
+                a.Am is not null ? "%"
+                : a.Pm is not null ? "rad"
+                : "Hz";
+            Words(
+                "modulatingComponents",
+                "modulating components",
+                string.Join(
+                    ", ",
+                    a.ModulatingComponents.Select(c =>
+                        string.Create(C, $"{c.FrequencyHz:0.#} Hz ({c.PeakAmount:0.##} {unit})")
+                    )
+                ),
+                ""
+            );
+        }
         if (a.EmissionDesignator is { } d)
             Words(
                 "emissionDesignator",

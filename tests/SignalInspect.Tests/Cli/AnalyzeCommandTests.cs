@@ -39,9 +39,17 @@ public class AnalyzeCommandTests
     [Fact]
     public void IQ_WAV_PM()
     {
-        JsonElement j = Analyze(M("pm-iq.wav"));
+        // PM of 1 rad by 800 Hz (MANIFEST.md). One tone cannot tell PM from FM (the phase and the frequency
+        // are both sines: a fact of the trade), so it is read as FM of 800 Hz peak deviation, whose peak phase
+        // is the 1 rad; --expect pm measures the phase directly.
+        JsonElement asFm = Analyze(M("pm-iq.wav"));
+        Assert.Equal("fm", asFm.GetProperty("modulation").GetString());
+        Near.Equal(800, asFm.GetProperty("fm").GetProperty("peakDeviationHz").GetDouble(), 16, "deviation");
+        Near.Equal(1.0, asFm.GetProperty("fm").GetProperty("peakPhaseRad").GetDouble(), 0.02, "peak phase");
+        JsonElement j = Analyze(M("pm-iq.wav"), "--expect", "pm");
         Assert.Equal("pm", j.GetProperty("modulation").GetString());
         Near.Equal(1.0, j.GetProperty("pm").GetProperty("peakDeviationRad").GetDouble(), 0.02, "peak phase");
+        Near.Equal(800, j.GetProperty("pm").GetProperty("peakDeviationHz").GetDouble(), 16, "deviation");
         Near.Equal(1500, j.GetProperty("carrier").GetProperty("offsetHz").GetDouble(), 1, "offset");
         Near.Equal(800, j.GetProperty("modulatingFrequencyHz").GetDouble(), 1, "tone");
         Assert.Equal(JsonValueKind.Null, j.GetProperty("carrier").GetProperty("offsetPpm").ValueKind); // no RF given

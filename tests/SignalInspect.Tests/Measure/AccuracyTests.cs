@@ -144,7 +144,7 @@ public class AccuracyTests
             SnrDb = 30,
             Seed = 5,
         };
-        AnalysisResult r = Measuring.Analyze(tmp, spec);
+        AnalysisResult r = Measuring.Analyze(tmp, spec, new AnalysisOptions { Expect = ModulationKind.Pm });
         Assert.Equal(ModulationKind.Pm, r.Classification.Kind);
         Near.Equal(phase, r.Pm!.PeakDeviationRad.Value, 0.02 * phase, "peak phase");
         Near.Equal(600, r.Carrier!.OffsetHz, 1, "offset");
@@ -270,18 +270,18 @@ public class AccuracyTests
             tmp,
             new SignalSpec
             {
-                Kind = SignalKind.Pm,
+                Kind = SignalKind.Fm,
                 SampleRateHz = 48000,
                 DurationS = 1,
-                PeakPhaseRad = 1,
+                PeakDeviationHz = 1000,
                 SnrDb = 30,
             },
-            new AnalysisOptions { Expect = ModulationKind.Fm }
+            new AnalysisOptions { Expect = ModulationKind.Pm }
         );
-        Assert.Equal(ModulationKind.Fm, r.Classification.Kind);
-        Assert.Equal(ModulationKind.Pm, r.Classification.Detected);
+        Assert.Equal(ModulationKind.Pm, r.Classification.Kind);
+        Assert.Equal(ModulationKind.Fm, r.Classification.Detected);
         Assert.True(r.Classification.Expected);
-        // PM of 1 rad at 1 kHz is FM of 1 kHz peak deviation.
-        Near.Equal(1000, r.Fm!.PeakDeviationHz.Value, 10, "deviation");
+        // FM of 1 kHz peak deviation by 1 kHz is PM of 1 rad (D / fm, the definition).
+        Near.Equal(1, r.Pm!.PeakDeviationRad.Value, 0.02, "peak phase");
     }
 }
