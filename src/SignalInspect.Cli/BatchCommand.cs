@@ -211,6 +211,7 @@ internal static class BatchCommand
     private static int ExitCode(IReadOnlyList<BatchRecord> records) =>
         records.Any(r => r.Status == "error") ? ExitCodes.BadInput
         : records.Any(r => r.Verdict == "FAIL") ? ExitCodes.LimitFailed
+        : records.Any(r => r.Verdict is "INCONCLUSIVE" or "NOT TESTED") ? ExitCodes.NotShown
         : ExitCodes.Success;
 
     private static void WriteCounts(TextWriter o, IReadOnlyList<BatchRecord> records)

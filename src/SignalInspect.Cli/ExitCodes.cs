@@ -15,8 +15,18 @@ public static class ExitCodes
     /// <summary>An internal error (a bug in SignalInspect): please report it.</summary>
     public const int InternalError = 3;
 
-    /// <summary>The exit code of a judged capture: <see cref="LimitFailed"/> when a limit failed, else
-    /// <see cref="Success"/> (no profile, PASS or INCONCLUSIVE).</summary>
+    /// <summary>Nothing failed, but compliance was not shown: a limit was INCONCLUSIVE or NOT TESTED.</summary>
+    public const int NotShown = 4;
+
+    /// <summary>The exit code of a judged capture: <see cref="LimitFailed"/> when a limit failed, <see
+    /// cref="NotShown"/>
+    /// when none failed but one was INCONCLUSIVE or NOT TESTED, else <see cref="Success"/> (PASS, or no
+    /// profile).</summary>
     public static int ForVerdict(Compliance.Verdict? overall) =>
-        overall == Compliance.Verdict.Fail ? LimitFailed : Success;
+        overall switch
+        {
+            Compliance.Verdict.Fail => LimitFailed,
+            Compliance.Verdict.Inconclusive or Compliance.Verdict.NotTested => NotShown,
+            _ => Success,
+        };
 }

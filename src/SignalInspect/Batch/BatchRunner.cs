@@ -277,7 +277,7 @@ public static class BatchRunner
                 PeakDeviationHz = r.Fm?.PeakDeviationHz.Value ?? r.Fsk?.DeviationHz,
                 DepthPercent = r.Am?.DepthPercent.Value,
                 EmissionDesignator = r.EmissionDesignator,
-                Verdict = overall?.ToString().ToUpperInvariant(),
+                Verdict = overall?.Text(),
                 Warnings = r.Warnings.Count > 0 ? string.Join("; ", r.Warnings) : null,
                 Report = reportRel?.Replace('\\', '/'),
                 Thumbnail = thumbRel.Replace('\\', '/'),

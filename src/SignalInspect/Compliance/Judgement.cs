@@ -16,6 +16,18 @@ public enum Verdict
     /// <summary>The value plus or minus its expanded uncertainty straddles the limit (or the capture cannot show
     /// it).</summary>
     Inconclusive,
+
+    /// <summary>The limit was not tested: it does not apply to the class found, there is no signal, or the value
+    /// could not be measured. The reason says which.</summary>
+    NotTested,
+}
+
+/// <summary>How verdicts are written.</summary>
+public static class VerdictNames
+{
+    /// <summary>PASS, FAIL, INCONCLUSIVE, NOT TESTED.</summary>
+    public static string Text(this Verdict v) =>
+        v == Verdict.NotTested ? "NOT TESTED" : v.ToString().ToUpperInvariant();
 }
 
 /// <summary>One limit, the measured value and the verdict.</summary>
@@ -28,6 +40,7 @@ public enum Verdict
 /// <param name="Margin">Limit minus value for an upper limit (positive: inside), same unit.</param>
 /// <param name="Verdict">The verdict under the decision rule.</param>
 /// <param name="Basis">Where the limit comes from and any note.</param>
+/// <param name="Reason">Why the verdict is INCONCLUSIVE or NOT TESTED (null for PASS and FAIL).</param>
 public sealed record LimitCheck(
     string Measurement,
     double Value,
@@ -37,8 +50,31 @@ public sealed record LimitCheck(
     string LimitText,
     double Margin,
     Verdict Verdict,
-    string Basis
-);
+    string Basis,
+    string? Reason = null
+)
+{
+    /// <summary>A limit that was not tested, with the reason.</summary>
+    public static LimitCheck NotTested(
+        string measurement,
+        string unit,
+        string limitText,
+        string basis,
+        string reason
+    ) =>
+        new(
+            measurement,
+            double.NaN,
+            unit,
+            double.NaN,
+            double.NaN,
+            limitText,
+            double.NaN,
+            Verdict.NotTested,
+            basis,
+            reason
+        );
+}
 
 /// <summary>
 /// Judges measurements against a profile. Decision rule: guarded acceptance and rejection with a
@@ -58,55 +94,35 @@ public static class Judgement
     /// scalloping).</summary>
     public const double MaskUncertaintyDb = 2.0;
 
-    /// <summary>Checks every limit of the profile that applies to the measured modulation.</summary>
+    /// <summary>
+    /// Checks every limit of the profile: each gets PASS, FAIL, INCONCLUSIVE, or NOT TESTED with its reason (it
+    /// does not apply to the class found, there is no signal, or the value could not be measured). A profile
+    /// for some classes also gets a check of the class itself.
+    /// </summary>
     public static IReadOnlyList<LimitCheck> Check(AnalysisResult r, LimitProfile p)
     {
         var checks = new List<LimitCheck>();
         double k = p.CoverageFactor;
         CultureInfo c = CultureInfo.InvariantCulture;
         string src = p.Source is { } s ? s : p.Name;
-        if ((p.FrequencyTolerancePpm is not null || p.FrequencyToleranceHz is not null) && r.Carrier is { } car)
-        {
-            double? nominal = p.NominalFrequencyHz ?? r.Capture.CenterFrequencyHz;
-            bool absolute = FrequencyAxis.Of(r.Capture).IsAbsolute;
-            double offset = absolute && p.NominalFrequencyHz is { } nom ? car.FrequencyHz.Value - nom : car.OffsetHz;
-            double? tolHz = p.FrequencyToleranceHz
-                ?? (nominal is { } n && p.FrequencyTolerancePpm is { } ppm ? ppm * n / 1e6 : null);
-            if (tolHz is { } t)
-            {
-                double u = k * car.FrequencyHz.StandardUncertainty;
-                checks.Add(
-                    Upper(
-                        "carrier frequency error |f - f0|",
-                        Math.Abs(offset),
-                        "Hz",
-                        u,
-                        t,
-                        string.Create(c, $"<= {t:0.###} Hz ({p.ToleranceText} of {nominal:0.###} Hz)"),
-                        $"{src}; offset {offset:+0.###;-0.###} Hz"
-                    )
-                );
-            }
-            else
-            {
-                checks.Add(
-                    new LimitCheck(
-                        "carrier frequency error",
-                        Math.Abs(car.OffsetHz),
-                        "Hz",
-                        double.NaN,
-                        double.NaN,
-                        p.ToleranceText ?? "",
-                        double.NaN,
-                        Verdict.Inconclusive,
-                        "the RF frequency is unknown (no centre frequency and no nominal): a ppm tolerance cannot be "
-                            + "applied"
-                    )
-                );
-            }
-        }
+        ModulationKind kind = r.Classification.Kind;
+        string noSignal = string.Create(
+            c,
+            $"no signal was found (SNR in band {r.ChannelSnrDb:0.#} dB): nothing to measure"
+        );
+        string Unlike(string what) =>
+            kind == ModulationKind.Noise ? noSignal : $"{what} does not apply to the class found ({kind.Name()})";
+        if (p.Modulation.Count > 0)
+            checks.Add(ClassCheck(r, p, src, noSignal));
+        if (p.FrequencyTolerancePpm is not null || p.FrequencyToleranceHz is not null)
+            checks.Add(
+                r.Carrier is { } car
+                    ? ToleranceCheck(r, p, car, k, src)
+                    : LimitCheck.NotTested("carrier frequency error", "Hz", p.ToleranceText ?? "", src, noSignal)
+            );
         if (p.MaxPeakDeviationHz is { } maxDev)
         {
+            string text = string.Create(c, $"<= {maxDev:0.###} Hz");
             if (r.Fm is { } fm)
                 checks.Add(
                     Upper(
@@ -115,7 +131,7 @@ public static class Judgement
                         "Hz",
                         k * fm.PeakDeviationHz.StandardUncertainty,
                         maxDev,
-                        string.Create(c, $"<= {maxDev:0.###} Hz"),
+                        text,
                         src
                     )
                 );
@@ -127,56 +143,131 @@ public static class Judgement
                         "Hz",
                         k * fsk.ShiftHz.StandardUncertainty / 2,
                         maxDev,
-                        string.Create(c, $"<= {maxDev:0.###} Hz"),
+                        text,
                         src
+                    )
+                );
+            else
+                checks.Add(
+                    LimitCheck.NotTested(
+                        "FM peak deviation",
+                        "Hz",
+                        text,
+                        src,
+                        kind == ModulationKind.Pm
+                            ? "measured as PM (--expect pm): the deviation limit is judged on an FM reading"
+                            : Unlike("a frequency-deviation limit")
                     )
                 );
         }
         if (p.MaxOccupiedBandwidthHz is { } maxObw)
+        {
+            string what = string.Create(c, $"occupied bandwidth ({100 * (1 - r.Bandwidth.Beta):0.#} %)");
+            string text = string.Create(c, $"<= {maxObw:0.###} Hz");
             checks.Add(
-                Upper(
-                    $"occupied bandwidth ({100 * (1 - r.Bandwidth.Beta):0.#} %)",
-                    r.Bandwidth.OccupiedHz,
-                    "Hz",
-                    k * r.OccupiedUncertaintyHz,
-                    maxObw,
-                    string.Create(c, $"<= {maxObw:0.###} Hz"),
-                    src
-                )
+                kind == ModulationKind.Noise
+                    ? LimitCheck.NotTested(what, "Hz", text, src, noSignal)
+                    : Upper(what, r.Bandwidth.OccupiedHz, "Hz", k * r.OccupiedUncertaintyHz, maxObw, text, src)
             );
-        if (r.Am is { } am)
-            foreach (
-                var (what, value, limit) in new[]
-                {
-                    ("AM positive-peak modulation", am.PositivePeakPercent, p.MaxAmPositivePeakPercent),
-                    ("AM negative-peak modulation", am.NegativePeakPercent, p.MaxAmNegativePeakPercent),
-                }
-            )
-                if (limit is { } max)
-                    checks.Add(
-                        Upper(
-                            what,
-                            value,
-                            "%",
-                            k * am.DepthPercent.StandardUncertainty,
-                            max,
-                            string.Create(c, $"<= {max:0.##} %"),
-                            src
-                        )
-                    );
-        if (p.Mask is { } mask && r.Carrier is not null)
-            checks.Add(MaskCheck(r, mask));
+        }
+        foreach (
+            var (what, value, limit) in new[]
+            {
+                ("AM positive-peak modulation", r.Am?.PositivePeakPercent, p.MaxAmPositivePeakPercent),
+                ("AM negative-peak modulation", r.Am?.NegativePeakPercent, p.MaxAmNegativePeakPercent),
+            }
+        )
+        {
+            if (limit is not { } max)
+                continue;
+            string text = string.Create(c, $"<= {max:0.##} %");
+            checks.Add(
+                r.Am is { } am && value is { } v
+                    ? Upper(what, v, "%", k * am.DepthPercent.StandardUncertainty, max, text, src)
+                    : LimitCheck.NotTested(what, "%", text, src, Unlike("an AM modulation limit"))
+            );
+        }
+        if (p.Mask is { } mask)
+            checks.Add(
+                r.Carrier is not null
+                    ? MaskCheck(r, mask)
+                    : LimitCheck.NotTested(
+                        "emission mask: worst margin",
+                        "dB",
+                        ">= 0 dB above the mask attenuation",
+                        mask.Name,
+                        noSignal
+                    )
+            );
         return checks;
     }
 
-    /// <summary>The overall verdict: FAIL if any check fails, else INCONCLUSIVE if any is, else PASS (PASS also when
-    /// there is no check).</summary>
+    /// <summary>The class found against the classes the profile is for.</summary>
+    private static LimitCheck ClassCheck(AnalysisResult r, LimitProfile p, string src, string noSignal)
+    {
+        ModulationKind kind = r.Classification.Kind;
+        string wanted = string.Join(" or ", p.Modulation.Select(m => m.Name()));
+        bool match = p.Modulation.Contains(kind);
+        string? reason =
+            match ? null
+            : kind == ModulationKind.Noise ? noSignal
+            : $"the profile is for {wanted}, the capture was classed {kind.Name()}: its limits are not those of this "
+                + "emission";
+        return new LimitCheck(
+            "modulation class",
+            double.NaN,
+            "",
+            double.NaN,
+            double.NaN,
+            wanted,
+            double.NaN,
+            match ? Verdict.Pass
+                : kind == ModulationKind.Noise ? Verdict.NotTested
+                : Verdict.Inconclusive,
+            src,
+            reason
+        );
+    }
+
+    private static LimitCheck ToleranceCheck(AnalysisResult r, LimitProfile p, CarrierResult car, double k, string src)
+    {
+        CultureInfo c = CultureInfo.InvariantCulture;
+        double? nominal = p.NominalFrequencyHz ?? r.Capture.CenterFrequencyHz;
+        bool absolute = FrequencyAxis.Of(r.Capture).IsAbsolute;
+        double offset = absolute && p.NominalFrequencyHz is { } nom ? car.FrequencyHz.Value - nom : car.OffsetHz;
+        double? tolHz = p.FrequencyToleranceHz
+            ?? (nominal is { } n && p.FrequencyTolerancePpm is { } ppm ? ppm * n / 1e6 : null);
+        if (tolHz is not { } t)
+            return LimitCheck.NotTested(
+                "carrier frequency error",
+                "Hz",
+                p.ToleranceText ?? "",
+                src,
+                "the RF frequency is unknown (no centre frequency and no nominal): a ppm tolerance cannot be applied"
+            );
+        return Upper(
+            "carrier frequency error |f - f0|",
+            Math.Abs(offset),
+            "Hz",
+            k * car.FrequencyHz.StandardUncertainty,
+            t,
+            string.Create(c, $"<= {t:0.###} Hz ({p.ToleranceText} of {nominal:0.###} Hz)"),
+            string.Create(c, $"{src}; offset {offset:+0.###;-0.###} Hz")
+        );
+    }
+
+    /// <summary>
+    /// The overall verdict: FAIL if any check fails; PASS only when there are checks and every one passed;
+    /// else INCONCLUSIVE when one is, else NOT TESTED.
+    /// </summary>
     public static Verdict Overall(IEnumerable<LimitCheck> checks)
     {
         var list = checks.ToList();
         if (list.Any(x => x.Verdict == Verdict.Fail))
             return Verdict.Fail;
-        return list.Any(x => x.Verdict == Verdict.Inconclusive) ? Verdict.Inconclusive : Verdict.Pass;
+        if (list.Count > 0 && list.All(x => x.Verdict == Verdict.Pass))
+            return Verdict.Pass;
+        return list.Any(x => x.Verdict == Verdict.Inconclusive) ? Verdict.Inconclusive : Verdict.NotTested;
     }
 
     /// <summary>Verdict for an upper limit under the guard-banded rule.</summary>

@@ -69,6 +69,10 @@ public sealed record LimitProfile
     /// <summary>Where its numbers come from (rule sections).</summary>
     public string? Source { get; init; }
 
+    /// <summary>The modulation classes the profile is for (e.g. fm); empty for any. A capture of another class is
+    /// not judged as if it were one of these: its verdict cannot be PASS.</summary>
+    public IReadOnlyList<Measure.ModulationKind> Modulation { get; init; } = [];
+
     /// <summary>Nominal carrier frequency, Hz (absolute RF); null to take the capture's centre.</summary>
     public double? NominalFrequencyHz { get; init; }
 
@@ -144,6 +148,7 @@ public sealed record LimitProfile
             "mask",
             "coverageFactor",
             "notes",
+            "modulation",
         };
         foreach (JsonProperty p in root.EnumerateObject())
             if (!known.Contains(p.Name))
@@ -166,6 +171,28 @@ public sealed record LimitProfile
             return v.ValueKind == JsonValueKind.String ? v.GetString() : throw Bad(field, "must be a string");
         }
         string name = Str(root, "name", "name") ?? throw Bad("name", "is missing");
+        var modulation = new List<Measure.ModulationKind>();
+        if (root.TryGetProperty("modulation", out JsonElement mod))
+        {
+            IEnumerable<JsonElement> words = mod.ValueKind switch
+            {
+                JsonValueKind.String => [mod],
+                JsonValueKind.Array => mod.EnumerateArray(),
+                _ => throw Bad("modulation", "must be a class (\"fm\") or a list of classes"),
+            };
+            foreach (JsonElement w in words)
+            {
+                string? word = w.ValueKind == JsonValueKind.String ? w.GetString() : null;
+                if (
+                    word is null
+                    || !Enum.TryParse(word, ignoreCase: true, out Measure.ModulationKind k)
+                    || !Enum.IsDefined(k)
+                    || int.TryParse(word, out _)
+                )
+                    throw Bad("modulation", $"'{w}' is not one of am, fm, pm, fsk, cw, noise");
+                modulation.Add(k);
+            }
+        }
         double? tolPpm = null,
             tolHz = null;
         if (root.TryGetProperty("frequencyTolerance", out JsonElement tol))
@@ -230,6 +257,7 @@ public sealed record LimitProfile
         }
         return new LimitProfile
         {
+            Modulation = modulation,
             Name = name,
             Source = Str(root, "source", "source"),
             NominalFrequencyHz = Num(root, "nominalFrequencyHz", "nominalFrequencyHz"),

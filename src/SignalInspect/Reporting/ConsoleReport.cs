@@ -1,4 +1,5 @@
 using System.Globalization;
+using SignalInspect.Compliance;
 using SignalInspect.Measure;
 using SignalInspect.Spectrum;
 
@@ -76,18 +77,16 @@ public static class ConsoleReport
         {
             if (row.Verdict is not { } v)
                 continue;
-            o.WriteLine(
-                string.Create(
-                    C,
-                    $"  {v.ToString().ToUpperInvariant(),-13} {row.Quantity}: {row.Value:0.###} {row.Unit} "
-                )
-                    + string.Create(
-                        C,
-                        $"(U {row.ExpandedUncertainty:0.###}), limit {row.LimitText}, margin {row.Margin:+0.###;-0.###}"
-                    )
-            );
+            string reading =
+                v == Verdict.NotTested ? $"limit {row.LimitText}"
+                : row.Value is { } value && double.IsFinite(value)
+                    ? string.Create(C, $"{value:0.###} {row.Unit} (U {row.ExpandedUncertainty:0.###}), ")
+                        + string.Create(C, $"limit {row.LimitText}, margin {row.Margin:+0.###;-0.###}")
+                : $"limit {row.LimitText}";
+            string why = row.Reason is { } reason ? $": {reason}" : string.Empty;
+            o.WriteLine($"  {v.Text(),-13} {row.Quantity}: {reading}{why}");
         }
-        o.WriteLine($"{"verdict",-LabelWidth}{report.Overall?.ToString().ToUpperInvariant()}");
+        o.WriteLine($"{"verdict",-LabelWidth}{report.Overall?.Text()}");
     }
 
     /// <summary>The demo's one-line reading of a capture: its headline rows, then the offset.</summary>

@@ -119,6 +119,7 @@ internal sealed class PdfLayout
             Verdict.Pass => (XColor.FromArgb(46, 125, 50), "PASS"),
             Verdict.Fail => (XColor.FromArgb(192, 0, 0), "FAIL"),
             Verdict.Inconclusive => (XColor.FromArgb(191, 120, 0), "INCONCLUSIVE"),
+            Verdict.NotTested => (XColor.FromArgb(191, 120, 0), "NOT TESTED"),
             _ => (XColor.FromArgb(110, 110, 110), "NO LIMITS APPLIED"),
         };
         var rect = new XRect(Margin, _y, ContentWidth, 26);
@@ -192,7 +193,7 @@ internal sealed class PdfLayout
                     {
                         "PASS" => (new XSolidBrush(XColor.FromArgb(46, 125, 50)), Bold),
                         "FAIL" => (new XSolidBrush(XColor.FromArgb(192, 0, 0)), Bold),
-                        "INCONCLUSIVE" => (new XSolidBrush(XColor.FromArgb(191, 120, 0)), Bold),
+                        "INCONCLUSIVE" or "NOT TESTED" => (new XSolidBrush(XColor.FromArgb(191, 120, 0)), Bold),
                         _ => (XBrushes.Black, font),
                     };
                 }

@@ -126,6 +126,14 @@ public static class PdfReportWriter
             l.Small,
             XBrushes.DimGray
         );
+        var unproven = r.Checks.Where(x => x.Reason is not null).ToList();
+        if (unproven.Count > 0)
+        {
+            l.Gap(8);
+            l.Text("Limits not shown to be met", l.H2);
+            foreach (LimitCheck x in unproven)
+                l.Text($"- {x.Verdict.Text()}: {x.Measurement}: {x.Reason}", l.Body);
+        }
         if (a.Warnings.Count > 0)
         {
             l.Gap(8);
@@ -154,7 +162,7 @@ public static class PdfReportWriter
                 : row.Text is not null && row.Unit.Length == 0 ? ""
                 : "-";
             string last =
-                row.Verdict is { } v ? v.ToString().ToUpperInvariant()
+                row.Verdict is { } v ? v.Text()
                 : row.Text is not null ? row.Note ?? "-"
                 : "-";
             cells.Add([

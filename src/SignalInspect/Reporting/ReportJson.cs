@@ -52,12 +52,13 @@ public static class ReportJson
                     Num(w, "limit", c.Limit!.Value);
                     w.WriteString("limitText", c.LimitText);
                     Num(w, "margin", c.Margin!.Value);
-                    w.WriteString("verdict", verdict.ToString().ToUpperInvariant());
+                    w.WriteString("verdict", verdict.Text());
                     w.WriteString("basis", c.Note);
+                    w.WriteString("reason", c.Reason);
                     w.WriteEndObject();
                 }
                 w.WriteEndArray();
-                w.WriteString("verdict", report.Overall?.ToString().ToUpperInvariant());
+                w.WriteString("verdict", report.Overall?.Text());
             }
             else
             {

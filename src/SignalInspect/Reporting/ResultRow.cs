@@ -49,6 +49,9 @@ public sealed record ResultRow
     /// <summary>The verdict, when a limit judged this row.</summary>
     public Verdict? Verdict { get; init; }
 
+    /// <summary>Why the verdict is INCONCLUSIVE or NOT TESTED.</summary>
+    public string? Reason { get; init; }
+
     /// <summary>A short note for the last column of an unjudged row ("conf. 0.93", "Bn 11000 Hz").</summary>
     public string? Note { get; init; }
 
@@ -96,6 +99,7 @@ public static class ResultRows
                     Margin = c.Margin,
                     Verdict = c.Verdict,
                     Note = c.Basis,
+                    Reason = c.Reason,
                 }
             );
         // Values already judged above are not repeated as information rows.

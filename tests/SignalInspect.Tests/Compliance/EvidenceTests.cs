@@ -1,0 +1,108 @@
+using System.Text.Json;
+using SignalInspect.Compliance;
+using SignalInspect.Measure;
+using SignalInspect.Synthesis;
+using SignalInspect.Tests.Measure;
+
+namespace SignalInspect.Tests.Compliance;
+
+/// <summary>
+/// No verdict without evidence: every limit of a profile gets PASS, FAIL, INCONCLUSIVE or NOT TESTED with
+/// a reason, and the overall verdict is PASS only when every limit was tested and passed (the kind of
+/// statement of conformity ILAC-G8:09/2019 asks to be explicit about: a limit not tested is not met).
+/// </summary>
+public class EvidenceTests
+{
+    private static string ProfilePath(string name) => TestData.Repo("profiles", name);
+
+    private static LimitProfile LandMobile => LimitProfile.Load(ProfilePath("land-mobile-12k5-vhf.json"));
+
+    [Fact]
+    public void An_AM_transmitter_judged_by_an_FM_profile_is_not_a_pass()
+    {
+        using var tmp = new TempDir();
+        AnalysisResult r = Measuring.Analyze(
+            tmp,
+            new SignalSpec
+            {
+                Kind = SignalKind.Am,
+                AmDepth = 0.8,
+                SampleRateHz = 48000,
+                DurationS = 1,
+                CenterFrequencyHz = 155.3125e6,
+                SnrDb = 40,
+            }
+        );
+        Assert.Equal(ModulationKind.Am, r.Classification.Kind);
+        IReadOnlyList<LimitCheck> checks = Judgement.Check(r, LandMobile);
+        LimitCheck cls = Assert.Single(checks, c => c.Measurement == "modulation class");
+        Assert.Equal(Verdict.Inconclusive, cls.Verdict);
+        Assert.Contains("classed am", cls.Reason);
+        LimitCheck dev = Assert.Single(checks, c => c.Measurement == "FM peak deviation");
+        Assert.Equal(Verdict.NotTested, dev.Verdict);
+        Assert.Contains("does not apply to the class found (am)", dev.Reason);
+        Assert.NotEqual(Verdict.Pass, Judgement.Overall(checks));
+        // The deviation limit is named even though nothing could be read against it.
+        Assert.Equal(5, checks.Count); // class, tolerance, deviation, OBW, mask
+    }
+
+    [Fact]
+    public void No_signal_leaves_every_limit_not_tested_with_its_reason_and_exit_code_4()
+    {
+        using var tmp = new TempDir();
+        string path = tmp.File("quiet.sigmf");
+        Synthesizer.Write(
+            new SignalSpec
+            {
+                Kind = SignalKind.Noise,
+                SampleRateHz = 48000,
+                DurationS = 1,
+                Amplitude = 0.01,
+                CenterFrequencyHz = 155.3125e6,
+            },
+            path,
+            SignalInspect.Capture.SampleFormat.Parse("cf32_le")
+        );
+        string report = tmp.File("quiet.pdf");
+        var (code, stdout, stderr) = CliRunner.Run(
+            "analyze",
+            path,
+            "--limits",
+            ProfilePath("land-mobile-12k5-vhf.json"),
+            "--report",
+            report
+        );
+        Assert.True(code == 4, stderr);
+        Assert.Matches(@"(?m)^verdict +NOT TESTED$", stdout);
+        Assert.Contains("NOT TESTED    FM peak deviation: limit <= 2500 Hz: no signal was found", stdout);
+        JsonElement model = JsonDocument.Parse(File.ReadAllText(Path.ChangeExtension(report, ".json"))).RootElement;
+        Assert.Equal("NOT TESTED", model.GetProperty("verdict").GetString());
+        foreach (JsonElement c in model.GetProperty("checks").EnumerateArray())
+        {
+            Assert.Equal("NOT TESTED", c.GetProperty("verdict").GetString());
+            Assert.StartsWith("no signal was found", c.GetProperty("reason").GetString());
+        }
+    }
+
+    [Fact]
+    public void The_overall_verdict_is_pass_only_when_every_limit_passed()
+    {
+        LimitCheck Of(Verdict v) => new("x", 1, "Hz", 0.1, 2, "<= 2 Hz", 1, v, "test");
+        Assert.Equal(Verdict.Pass, Judgement.Overall([Of(Verdict.Pass), Of(Verdict.Pass)]));
+        Assert.Equal(Verdict.NotTested, Judgement.Overall([Of(Verdict.Pass), Of(Verdict.NotTested)]));
+        Assert.Equal(Verdict.Inconclusive, Judgement.Overall([Of(Verdict.NotTested), Of(Verdict.Inconclusive)]));
+        Assert.Equal(Verdict.Fail, Judgement.Overall([Of(Verdict.Inconclusive), Of(Verdict.Fail)]));
+        Assert.Equal(Verdict.NotTested, Judgement.Overall([])); // a profile with no limit shows nothing
+    }
+
+    [Fact]
+    public void A_profile_names_its_modulation_strictly()
+    {
+        var e = Assert.Throws<ProfileException>(() => LimitProfile.Parse("{\"name\": \"x\", \"modulation\": \"fmx\"}"));
+        Assert.Contains("modulation 'fmx' is not one of", e.Message);
+        Assert.Equal(
+            [ModulationKind.Fm, ModulationKind.Fsk],
+            LimitProfile.Parse("{\"name\": \"x\", \"modulation\": [\"fm\", \"FSK\"]}").Modulation
+        );
+    }
+}
