@@ -18,6 +18,14 @@ internal static class AnalyzeCommand
             "Nominal (assigned) carrier frequency in Hz: offsets and ppm are taken from it (absolute RF when the "
                 + "centre is known)."
         );
+        var signal = new Option<string?>("--signal")
+        {
+            Description =
+                "The emission to measure, FREQ[:WIDTH] (default: the strongest): FREQ in Hz, absolute RF when the "
+                + "capture's centre is known, else an offset from the centre (audio frequency for real input); "
+                + "WIDTH sets the channel the measurement sees. SI suffixes: --signal 459.9875M:12.5k.",
+            HelpName = "FREQ[:WIDTH]",
+        };
         var expect = new Option<string?>("--expect")
         {
             Description = "Measure as this modulation instead of classifying: am, fm, pm, fsk, cw, noise.",
@@ -96,6 +104,7 @@ internal static class AnalyzeCommand
         )
         {
             capture,
+            signal,
             nominal,
             expect,
             json,
@@ -141,6 +150,7 @@ internal static class AnalyzeCommand
             {
                 NominalHz = r.GetValue(nominal),
                 Expect = expected,
+                Signal = r.GetValue(signal) is { } sig ? ParseSignal(sig) : null,
                 ObwPercent = r.GetValue(obw),
                 Xdb = r.GetValue(xdb),
                 ObwNoise = r.GetValue(obwNoise) == "keep" ? NoiseFloorTreatment.Keep : NoiseFloorTreatment.Subtract,
@@ -204,6 +214,20 @@ internal static class AnalyzeCommand
             return ExitCodes.ForVerdict(model.Overall);
         });
         return cmd;
+    }
+
+    /// <summary>Parses FREQ[:WIDTH], each a number with an optional SI suffix.</summary>
+    private static SignalSelection ParseSignal(string text)
+    {
+        string[] p = text.Split(':');
+        if (p.Length is 1 or 2 && Units.TryParseSi(p[0], out double f))
+        {
+            if (p.Length == 1)
+                return new SignalSelection(f);
+            if (Units.TryParseSi(p[1], out double w))
+                return new SignalSelection(f, w);
+        }
+        throw new UsageException($"--signal: '{text}' is not FREQ or FREQ:WIDTH in Hz (e.g. 459.9875M:12.5k)");
     }
 
     private static string Quote(string a) => a.Contains(' ') ? $"\"{a}\"" : a;

@@ -29,6 +29,7 @@ internal static class OptionNames
             // Measuring (AnalysisOptions)
             ["NominalHz"] = "--nominal",
             ["Expect"] = "--expect",
+            ["Signal"] = "--signal",
             ["ObwPercent"] = "--obw-percent",
             ["Xdb"] = "--xdb",
             ["PostLowPassHz"] = "--post-lowpass",

@@ -9,6 +9,10 @@ public sealed record AnalysisOptions
     /// capture's own axis. Null: offsets are taken from the centre.</summary>
     public double? NominalHz { get; init; }
 
+    /// <summary>The emission to measure: its frequency (absolute RF when the capture's centre is known, else on
+    /// the capture's own axis) and optionally the channel width; null for the strongest emission.</summary>
+    public SignalSelection? Signal { get; init; }
+
     /// <summary>Modulation to measure as, overriding the classifier; null to classify.</summary>
     public ModulationKind? Expect { get; init; }
 
@@ -73,3 +77,10 @@ public sealed record AnalysisOptions
             throw new SettingException(nameof(DurationS), d, "must be a positive number of seconds");
     }
 }
+
+/// <summary>Which emission to measure.</summary>
+/// <param name="FrequencyHz">Where it is: absolute RF when the capture's centre is known (IQ), else on the capture's
+/// axis (offset from the centre, or audio frequency).</param>
+/// <param name="WidthHz">The channel's width, Hz: the measurement sees only FREQ +/- WIDTH/2; null to take the
+/// emission found there.</param>
+public sealed record SignalSelection(double FrequencyHz, double? WidthHz = null);

@@ -60,19 +60,22 @@ public static class Analyzer
         SpectrumSettings spectrumSettings = SpectrumSettingsFor(options, count);
         SpectrumResult spectrum = WelchEstimator.Estimate(source, spectrumSettings, first, count, progress, cancel);
         timer.Stage("spectrum pass");
-        PowerSpectrum psd = spectrum.Mean;
-        if (!(psd.TotalPower() > 1e-30))
+        if (!(spectrum.Mean.TotalPower() > 1e-30))
             throw CaptureException.ForFile(
                 info.Path,
                 spectrum.NonFiniteSegments > 0
                     ? "holds only NaN, infinite or zero samples: there is nothing to measure"
                     : "holds only zero samples (a silent or empty recording): there is nothing to measure"
             );
+        // The emission to measure, alone: other emissions, spurs and an IQ image are set to the floor.
+        Selection selection = EmissionSelection.Select(info, spectrum.Mean, options.Signal);
+        PowerSpectrum psd = selection.Spectrum;
         BandwidthResult bw = BandwidthMeasurement.Measure(
             psd,
             1 - options.ObwPercent / 100,
             options.Xdb,
-            options.ObwNoise
+            options.ObwNoise,
+            selection.NoiseFloorDensity
         );
         double snrDb = BandwidthMeasurement.SnrDb(psd, bw);
         double coarse = CarrierMeasurement.Coarse(psd, bw);
@@ -88,10 +91,12 @@ public static class Analyzer
             bw.LowerEdgeHz,
             bw.UpperEdgeHz,
             bw.NoiseFloorDensity,
-            options.PostLowPassHz
+            options.PostLowPassHz,
+            Math.Max(bw.OccupiedHz, bw.XdbHz)
         );
         if (channel.MirrorKept)
             warnings.Add(MeasurementWarnings.MirrorKept);
+        warnings.AddRange(EmissionSelection.Warnings(info, selection));
         int threads = Math.Max(1, options.Threads ?? Environment.ProcessorCount);
         PassPlan plan = channel.ForPass(source, first, count, options.PostHighPassHz, options.DeEmphasisUs, threads);
 
@@ -196,7 +201,7 @@ public static class Analyzer
                 info,
                 kind,
                 bw,
-                psd,
+                spectrum.Mean,
                 carrierAxisHz,
                 b.NearFullScale,
                 count,

@@ -59,11 +59,14 @@ public static class BandwidthMeasurement
     /// <param name="beta">Fraction of power outside the band, 0 &lt; beta &lt; 1 (0.01 for 99 %).</param>
     /// <param name="xdb">The x of the x-dB bandwidth, positive (26 by default in the tools that call this).</param>
     /// <param name="treatment">Noise-floor treatment.</param>
+    /// <param name="floor">The noise density, when already estimated (<see cref="NoiseFloor.Estimate"/>); null to
+    /// estimate it here.</param>
     public static BandwidthResult Measure(
         PowerSpectrum psd,
         double beta = 0.01,
         double xdb = 26,
-        NoiseFloorTreatment treatment = NoiseFloorTreatment.Subtract
+        NoiseFloorTreatment treatment = NoiseFloorTreatment.Subtract,
+        double? floor = null
     )
     {
         if (!(beta > 0 && beta < 1))
@@ -80,10 +83,10 @@ public static class BandwidthMeasurement
         ReadOnlySpan<double> v = psd.Values;
         ReadOnlySpan<double> f = psd.FrequenciesHz;
         double bw = psd.BinWidthHz;
-        double floor = NoiseFloor(v);
+        double noise = floor ?? NoiseFloor.Estimate(psd);
         var p = new double[n];
         for (int i = 0; i < n; i++)
-            p[i] = treatment == NoiseFloorTreatment.Subtract ? Math.Max(0, v[i] - floor) * bw : v[i] * bw;
+            p[i] = treatment == NoiseFloorTreatment.Subtract ? Math.Max(0, v[i] - noise) * bw : v[i] * bw;
         double total = p.Sum();
         if (total <= 0)
         {
@@ -122,19 +125,11 @@ public static class BandwidthMeasurement
             xl,
             xu,
             xdb,
-            floor,
+            noise,
             treatment,
             total,
             den > 0 ? num / den : f[peak]
         );
-    }
-
-    /// <summary>The noise floor density: the 10th percentile of the bins.</summary>
-    public static double NoiseFloor(ReadOnlySpan<double> density)
-    {
-        double[] sorted = density.ToArray();
-        Array.Sort(sorted);
-        return sorted[(int)(0.10 * (sorted.Length - 1))];
     }
 
     private static double Edge(double[] p, ReadOnlySpan<double> f, double bw, double target, bool fromLow)

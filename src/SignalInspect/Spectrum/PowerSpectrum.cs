@@ -134,6 +134,38 @@ public sealed class PowerSpectrum
         );
     }
 
+    /// <summary>
+    /// The same spectrum with the bins outside [<paramref name="first"/>, <paramref name="last"/>], and those of
+    /// <paramref name="others"/> inside it, set to <paramref name="fill"/> (the noise floor): the spectrum of one
+    /// emission, for measuring it alone.
+    /// </summary>
+    public PowerSpectrum Only(int first, int last, IEnumerable<(int First, int Last)> others, double fill)
+    {
+        double[] v = [.. _values];
+        for (int i = 0; i < v.Length; i++)
+            if (i < first || i > last)
+                v[i] = fill;
+        foreach (var (a, b) in others)
+            for (int i = Math.Max(a, first); i <= Math.Min(b, last); i++)
+                v[i] = fill;
+        return new PowerSpectrum(
+            _frequencies,
+            v,
+            Scaling,
+            Averaging,
+            Settings,
+            Window,
+            SampleRateHz,
+            CenterFrequencyHz,
+            IsOneSided,
+            Segments
+        );
+    }
+
+    /// <summary>The bin nearest <paramref name="hz"/> (clamped to the spectrum).</summary>
+    public int BinOf(double hz) =>
+        Math.Clamp((int)Math.Round((hz - _frequencies[0]) / BinWidthHz), 0, _values.Length - 1);
+
     /// <summary>Index of the largest value.</summary>
     public int PeakIndex()
     {

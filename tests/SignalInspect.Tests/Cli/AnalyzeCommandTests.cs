@@ -64,7 +64,7 @@ public class AnalyzeCommandTests
         Near.Equal(-120000, j.GetProperty("carrier").GetProperty("offsetHz").GetDouble(), 1, "offset");
         Near.Equal(97.98e6, j.GetProperty("carrier").GetProperty("frequencyHz").GetDouble(), 1, "carrier");
         Near.Equal(15000, j.GetProperty("modulatingFrequencyHz").GetDouble(), 15, "tone");
-        // beta = 5: OBW99 = 2 x 6 x 15 kHz = 180 kHz (Bessel sums, REFERENCE-VALUES.md).
+        // beta = 5: OBW99 = 2 x 6 x 15 kHz = 180 kHz (Bessel sums, testdata/REFERENCE-VALUES.md [D]).
         double rbw = j.GetProperty("bandwidth").GetProperty("rbwHz").GetDouble();
         Near.Equal(
             180000,

@@ -5,7 +5,8 @@ namespace SignalInspect.Tests.Compliance;
 public class ComplianceTests
 {
     [Theory]
-    // 47 CFR 90.210(d) mask D [R]; checks [D] from REFERENCE-VALUES.md: fd 10 kHz -> 51.76 dB, 12.5 kHz -> 69.94 dB.
+    // 47 CFR 90.210(d) mask D [R]; checks [D] from testdata/REFERENCE-VALUES.md: fd 10 kHz -> 51.76 dB, 12.5 kHz ->
+    // 69.94 dB.
     [InlineData(3000, 0)]
     [InlineData(5625, 0)]
     [InlineData(10000, 51.7624)]

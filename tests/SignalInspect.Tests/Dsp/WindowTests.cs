@@ -5,7 +5,7 @@ namespace SignalInspect.Tests.Dsp;
 /// <summary>
 /// Window figures of merit against Harris (1978), "On the use of windows for harmonic analysis
 /// with the discrete Fourier transform", Proc. IEEE 66(1), Table 1 (values as listed in
-/// shared REFERENCE-VALUES.md: [D], agreeing with Harris [mem]).
+/// testdata/REFERENCE-VALUES.md: [D], agreeing with Harris [mem]).
 /// </summary>
 public class WindowTests
 {
@@ -29,7 +29,7 @@ public class WindowTests
     public void Kaiser_beta_3pi_matches_Harris_Kaiser_Bessel_alpha_3()
     {
         // Harris 1978 Table 1, Kaiser-Bessel alpha = 3 (beta = pi alpha): coherent gain 0.40,
-        // ENBW 1.80 bins, scalloping loss 1.02 dB [mem: not in REFERENCE-VALUES.md].
+        // ENBW 1.80 bins, scalloping loss 1.02 dB [mem: not in testdata/REFERENCE-VALUES.md].
         Window w = Window.Create(WindowKind.Kaiser, 4096, 3 * Math.PI);
         Near.Equal(0.40, w.CoherentGain, 5e-3, "coherent gain");
         Near.Equal(1.80, w.EnbwBins, 5e-3, "ENBW");

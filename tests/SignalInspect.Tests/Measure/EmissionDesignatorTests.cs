@@ -3,7 +3,7 @@ using SignalInspect.Measure;
 namespace SignalInspect.Tests.Measure;
 
 /// <summary>47 CFR 2.201-2.202 and ITU Radio Regulations Appendix 1 [R]; vectors as in shared
-/// REFERENCE-VALUES.md.</summary>
+/// testdata/REFERENCE-VALUES.md.</summary>
 public class EmissionDesignatorTests
 {
     // 47 CFR 2.202(b)(3): the bandwidth-code examples.

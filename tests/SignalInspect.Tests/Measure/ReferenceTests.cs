@@ -17,7 +17,7 @@ public class ReferenceTests
     [Fact]
     public void The_bound_formula_gives_the_reference_value()
     {
-        // REFERENCE-VALUES.md [D]: N = 1024, SNR 10 dB -> std(f) >= 3.762e-6 cycles/sample.
+        // testdata/REFERENCE-VALUES.md [D]: N = 1024, SNR 10 dB -> std(f) >= 3.762e-6 cycles/sample.
         Near.Equal(3.762e-6, CrbStdCyclesPerSample(10, 1024), 0.0005e-6);
     }
 

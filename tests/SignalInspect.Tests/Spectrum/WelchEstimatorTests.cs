@@ -139,7 +139,7 @@ public class WelchEstimatorTests
         return CaptureSource.Open(path);
     }
 
-    // Identity of the 'spectrum' scaling [REFERENCE-VALUES: scipy source, D]: a real tone of
+    // Identity of the 'spectrum' scaling [testdata/REFERENCE-VALUES.md: scipy source, D]: a real tone of
     // amplitude A reads A^2/2 at its bin for every window (tone on a bin centre).
     [Theory]
     [InlineData(WindowKind.Rectangular)]

@@ -1,0 +1,128 @@
+using System.Globalization;
+using SignalInspect.Capture;
+using SignalInspect.Spectrum;
+
+namespace SignalInspect.Measure;
+
+/// <summary>What was selected for measuring: the emission, the spectrum of it alone, and the others.</summary>
+/// <param name="Measured">The emission measured, or null when none stands out of the noise.</param>
+/// <param name="Spectrum">The mean spectrum with everything but that emission (or the channel asked for) set to
+/// the noise floor: every spectral measurement (bandwidths, carrier, channel) reads this.</param>
+/// <param name="Others">The other emissions, strongest first.</param>
+/// <param name="NoiseFloorDensity">The noise density of the capture.</param>
+internal sealed record Selection(
+    Emission? Measured,
+    PowerSpectrum Spectrum,
+    IReadOnlyList<Emission> Others,
+    double NoiseFloorDensity
+);
+
+/// <summary>
+/// Chooses the emission to measure: by default the strongest; with a <see cref="SignalSelection"/> the one
+/// at its frequency, or the channel of its width there. Other emissions, spurs and an IQ image never
+/// widen the measured one: their bins are set to the noise floor in the spectrum the measurements read.
+/// </summary>
+internal static class EmissionSelection
+{
+    /// <summary>Bins kept either side of the selected emission, as a share of its width (its weak outer sidebands
+    /// may fall below the detection threshold), at least <see cref="EmissionFinder.GapHz"/>.</summary>
+    public const double MarginShare = 0.25;
+
+    /// <summary>An emission mirrored about 0 Hz within this share of the measured one's width is taken as the
+    /// receiver's IQ image.</summary>
+    public const double ImageTolerance = 0.1;
+
+    /// <exception cref="SettingException">The frequency asked for is outside the band, the width wider than it, or no
+    /// emission stands at the frequency.</exception>
+    public static Selection Select(CaptureInfo info, PowerSpectrum psd, SignalSelection? asked)
+    {
+        double floor = NoiseFloor.Estimate(psd);
+        IReadOnlyList<Emission> all = EmissionFinder.Find(psd, floor);
+        double lowest = psd.FrequenciesHz[0],
+            highest = psd.FrequenciesHz[^1];
+        if (asked is { } s)
+        {
+            double f = FrequencyAxis.Of(info).ToAxis(s.FrequencyHz);
+            string where = string.Create(CultureInfo.InvariantCulture, $"{s.FrequencyHz:0.###} Hz");
+            if (!(f >= lowest && f <= highest))
+                throw new SettingException(
+                    nameof(AnalysisOptions.Signal),
+                    where,
+                    string.Create(
+                        CultureInfo.InvariantCulture,
+                        $"lies outside the sampled band ({FrequencyAxis.Of(info).ToReported(lowest):0.###} to "
+                    )
+                        + string.Create(
+                            CultureInfo.InvariantCulture,
+                            $"{FrequencyAxis.Of(info).ToReported(highest):0.###} Hz)"
+                        ),
+                    info.Path
+                );
+            if (s.WidthHz is { } w)
+            {
+                if (!(w > 0) || f - w / 2 < lowest || f + w / 2 > highest)
+                    throw new SettingException(
+                        nameof(AnalysisOptions.Signal),
+                        w,
+                        "the channel width must be positive and fit inside the sampled band",
+                        info.Path
+                    );
+                int a = psd.BinOf(f - w / 2),
+                    b = psd.BinOf(f + w / 2);
+                Emission? inside = all.FirstOrDefault(e => e.LastBin >= a && e.FirstBin <= b);
+                return new Selection(
+                    inside,
+                    psd.Only(a, b, [], floor),
+                    [.. all.Where(e => e.LastBin < a || e.FirstBin > b)],
+                    floor
+                );
+            }
+            Emission? at = all.Where(e => f >= e.LowHz - 2 * psd.BinWidthHz && f <= e.HighHz + 2 * psd.BinWidthHz)
+                .FirstOrDefault();
+            if (at is null)
+                throw new SettingException(
+                    nameof(AnalysisOptions.Signal),
+                    where,
+                    "no emission stands out of the noise there (give a width to measure the channel anyway)",
+                    info.Path
+                );
+            return Around(psd, at, all, floor);
+        }
+        return all.Count == 0 ? new Selection(null, psd, [], floor) : Around(psd, all[0], all, floor);
+    }
+
+    private static Selection Around(PowerSpectrum psd, Emission e, IReadOnlyList<Emission> all, double floor)
+    {
+        double margin = Math.Max(EmissionFinder.GapHz, MarginShare * e.WidthHz);
+        int a = psd.BinOf(e.LowHz - margin),
+            b = psd.BinOf(e.HighHz + margin);
+        IReadOnlyList<Emission> others = [.. all.Where(x => x != e)];
+        return new Selection(e, psd.Only(a, b, others.Select(x => (x.FirstBin, x.LastBin)), floor), others, floor);
+    }
+
+    /// <summary>One warning per other emission: its frequency, width and level relative to the measured one, and
+    /// whether it looks like the measured one's IQ image (a mirror about 0 Hz of an IQ capture).</summary>
+    public static IEnumerable<string> Warnings(CaptureInfo info, Selection s)
+    {
+        if (s.Measured is not { } m)
+            yield break;
+        var axis = FrequencyAxis.Of(info);
+        CultureInfo c = CultureInfo.InvariantCulture;
+        foreach (Emission o in s.Others)
+        {
+            double db = 10 * Math.Log10(o.Power / m.Power);
+            bool image =
+                info.IsComplex
+                && Math.Abs(m.CentreHz) > m.WidthHz / 2
+                && Math.Abs(o.CentreHz + m.CentreHz) <= Math.Max(ImageTolerance * m.WidthHz, o.WidthHz / 2)
+                && db < 0;
+            yield return image
+                ? string.Create(c, $"a mirror of the measured emission at {axis.ToReported(o.CentreHz):0.#} Hz, ")
+                    + string.Create(c, $"{db:0.0} dB relative to it: the receiver's IQ image (not measured, not a ")
+                    + "second emission)"
+                : string.Create(c, $"another emission at {axis.ToReported(o.CentreHz):0.#} Hz ")
+                    + string.Create(c, $"({o.WidthHz:0} Hz wide, {db:+0.0;-0.0} dB relative to the measured one) ")
+                    + "was not measured and did not widen the channel; select it to measure it";
+        }
+    }
+}

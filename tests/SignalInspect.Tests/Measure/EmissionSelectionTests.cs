@@ -1,0 +1,101 @@
+using SignalInspect.Measure;
+using SignalInspect.Synthesis;
+
+namespace SignalInspect.Tests.Measure;
+
+/// <summary>
+/// The measured emission is chosen before demodulating; other emissions, spurs and the receiver's IQ image
+/// never widen its channel. Expected values from the construction: FM 2.5 kHz by 1 kHz (beta 2.5) has a
+/// 99 % occupied bandwidth of 8.0 kHz (Bessel sums, testdata/REFERENCE-VALUES.md [D]); tolerance
+/// max(5 %, 2 RBW) and 1 % on the deviation at 30 dB and more (issue 21).
+/// </summary>
+public class EmissionSelectionTests
+{
+    private static SignalSpec Handheld(double rate, double offset, double wholeBandSnrDb) =>
+        new()
+        {
+            Kind = SignalKind.Fm,
+            SampleRateHz = rate,
+            DurationS = 1,
+            CarrierOffsetHz = offset,
+            PeakDeviationHz = 2500,
+            ModulatingFrequencyHz = 1000,
+            Amplitude = 0.1,
+            SnrDb = wholeBandSnrDb,
+            Seed = 31,
+        };
+
+    private static void ObwNear8k(AnalysisResult r) =>
+        Near.Equal(8000, r.Bandwidth.OccupiedHz, Math.Max(0.05 * 8000, 2 * r.Method.RbwHz), "occupied bandwidth");
+
+    [Fact]
+    public void A_spur_and_the_IQ_image_do_not_widen_the_channel_and_are_named()
+    {
+        using var tmp = new TempDir();
+        AnalysisResult r = Measuring.Analyze(
+            tmp,
+            Handheld(96000, 12500, 40) with
+            {
+                Spurs = [new Spur(21500, -12)],
+                ImageDbc = -28,
+            }
+        );
+        Assert.Equal(ModulationKind.Fm, r.Classification.Kind);
+        Near.Equal(2500, r.Fm!.PeakDeviationHz.Value, 25, "peak deviation");
+        Near.Equal(12500, r.Carrier!.OffsetHz, 1, "carrier offset");
+        ObwNear8k(r);
+        Assert.Contains(r.Warnings, w => w.Contains("another emission at 34000 Hz") && w.Contains("-12.0 dB"));
+        Assert.Contains(r.Warnings, w => w.Contains("IQ image") && w.Contains("-28.0 dB"));
+    }
+
+    [Theory]
+    [InlineData(10.2, 0.01)] // 30 dB in the 25 kHz channel: 10 log10(2.4 MHz / 25 kHz) = 19.8 dB lower over the band
+    [InlineData(0.2, 0.03)] // 20 dB in the channel
+    public void A_weak_handheld_in_a_wideband_capture_is_found_and_measured(
+        double wholeBandSnrDb,
+        double deviationShare
+    )
+    {
+        using var tmp = new TempDir();
+        AnalysisResult r = Measuring.Analyze(tmp, Handheld(2.4e6, 312500, wholeBandSnrDb) with { DurationS = 0.5 });
+        Assert.Equal(ModulationKind.Fm, r.Classification.Kind);
+        Near.Equal(2500, r.Fm!.PeakDeviationHz.Value, deviationShare * 2500, "peak deviation");
+        Near.Equal(312500, r.Carrier!.OffsetHz, 1, "carrier offset");
+        ObwNear8k(r);
+    }
+
+    [Fact]
+    public void Signal_picks_another_emission_and_a_width_sets_the_channel()
+    {
+        using var tmp = new TempDir();
+        SignalSpec spec = Handheld(96000, 12500, 40) with { Spurs = [new Spur(21500, -12)] };
+        // The spur is an unmodulated carrier at 34 kHz.
+        AnalysisResult spur = Measuring.Analyze(tmp, spec, new AnalysisOptions { Signal = new SignalSelection(34000) });
+        Assert.Equal(ModulationKind.Cw, spur.Classification.Kind);
+        Near.Equal(34000, spur.Carrier!.OffsetHz, 1, "spur offset");
+        AnalysisResult channel = Measuring.Analyze(
+            tmp,
+            spec,
+            new AnalysisOptions { Signal = new SignalSelection(12500, 25000) }
+        );
+        Near.Equal(2500, channel.Fm!.PeakDeviationHz.Value, 25, "peak deviation in the 25 kHz channel");
+    }
+
+    [Theory]
+    [InlineData(60000, null, "outside the sampled band")]
+    [InlineData(12500, 200000.0, "fit inside the sampled band")]
+    [InlineData(-30000, null, "no emission stands out of the noise there")]
+    public void A_signal_that_is_not_there_is_refused_and_named(double hz, double? width, string problem)
+    {
+        using var tmp = new TempDir();
+        var e = Assert.Throws<SettingException>(() =>
+            Measuring.Analyze(
+                tmp,
+                Handheld(96000, 12500, 40),
+                new AnalysisOptions { Signal = new SignalSelection(hz, width) }
+            )
+        );
+        Assert.Equal(nameof(AnalysisOptions.Signal), e.Setting);
+        Assert.Contains(problem, e.Message);
+    }
+}
