@@ -28,7 +28,7 @@ public sealed record ChannelPlan
 
     /// <summary>Pass edge: the reach plus this many spectrum bins, and at least <see cref="MinPassBins"/>.</summary>
     public const double PassEdgeBins = 4,
-        MinPassBins = 25;
+        MinPassBins = 8;
 
     /// <summary>A channel filter is used when 1.25 x the pass edge stays below 0.9 of the usable band.</summary>
     public const double FilterRoom = 1.25,
@@ -150,8 +150,7 @@ public sealed record ChannelPlan
                 + string.Create(c, $" ({taps.Length} taps, 80 dB), decimation {decimation} to {fsd:0.###} Hz");
         // Default post-detection bandwidth: the channel's, so that every modulating frequency the
         // occupied bandwidth allows passes (a fixed 15 kHz would halve a 15 kHz broadcast tone).
-        double postLp =
-            postLowPassHz
+        double postLp = postLowPassHz
             ?? Math.Min(PostLowPassShare * Math.Min(half, fsd / 2), Math.Max(modulationWidthHz, MinPostLowPassHz));
         postLp = Math.Min(postLp, MaxPostLowPassShare * fsd);
         return new ChannelPlan

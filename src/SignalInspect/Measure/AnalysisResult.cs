@@ -74,6 +74,9 @@ public sealed record AnalysisResult
     /// <summary>FSK results when the kind is FSK.</summary>
     public FskResult? Fsk { get; init; }
 
+    /// <summary>On-off keying results when the kind is OOK.</summary>
+    public OokResult? Ook { get; init; }
+
     /// <summary>Modulating frequency, Hz (AM, FM, PM); null otherwise.</summary>
     public Measured? ModulatingFrequencyHz { get; init; }
 
@@ -107,4 +110,14 @@ public sealed record AnalysisResult
 
     /// <summary>What the waveform shows (e.g. "instantaneous frequency (Hz)").</summary>
     public required string WaveformLabel { get; init; }
+}
+
+/// <summary>On-off keying: how much of the time the carrier is on, and its level then.</summary>
+public sealed record OokResult
+{
+    /// <summary>Share of the time the envelope stands above the noise's level, percent.</summary>
+    public required double OnSharePercent { get; init; }
+
+    /// <summary>Mean envelope while on, full scale.</summary>
+    public required double OnLevel { get; init; }
 }

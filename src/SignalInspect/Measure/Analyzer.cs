@@ -109,18 +109,14 @@ public static class Analyzer
         double carrierAxisHz = coarse + b.Slope * fsd / (2 * Math.PI); // the slope is in rad per decimated sample
 
         // Classification, then the modulating frequency from the demodulated spectra.
-        var features = DemodulatedFeatures.From(b);
+        var features = DemodulatedFeatures.From(b, bw.NoiseFloorDensity * 2 * channel.HalfWidthHz);
         var fskTones = FskMeasurement.FindTones(b.Freq);
-        Classification cls = ModulationClassifier.Classify(
-            snrDb,
-            features.EnvelopeDepth,
-            features.PhaseRmsRad,
-            fskTones.Dwell,
-            options.Expect
-        );
+        Classification cls = ModulationClassifier.Classify(snrDb, features, fskTones.Dwell, options.Expect);
         ModulationKind kind = cls.Kind;
         if (MeasurementWarnings.LowSnr(snrDb, kind) is { } lowSnr)
             warnings.Add(lowSnr);
+        if (MeasurementWarnings.Overmodulation(kind, features) is { } overmodulation)
+            warnings.Add(overmodulation);
         double minTone = Math.Max(3 * b.ToneSpectrum.BinWidthHz, 2 * fs / Math.Max(count, 1));
         var inputs = new MeasurementInputs
         {
@@ -147,6 +143,7 @@ public static class Analyzer
         FmResult? fm = null;
         PmResult? pm = null;
         FskResult? fsk = null;
+        OokResult? ook = null;
         MeasurementExtras extras = default;
         var carrierBudget = new List<UncertaintyComponent>
         {
@@ -175,6 +172,19 @@ public static class Analyzer
                 );
                 timer.Stage("phase pass");
                 (pm, extras) = PmMeasurement.Measure(inputs, phase);
+                break;
+            case ModulationKind.Ook:
+                // The phase is noise while the carrier is off: the carrier is the spectrum's line.
+                carrierAxisHz = coarse;
+                carrierBudget =
+                [
+                    new(
+                        "resolution (interpolated spectral line)",
+                        psd.BinWidthHz / TypeB.ToneBinDivisor,
+                        "TypeB.ToneBinDivisor of the Welch bin"
+                    ),
+                ];
+                ook = new OokResult { OnSharePercent = 100 * (1 - features.OffShare), OnLevel = features.OnLevel };
                 break;
             case ModulationKind.Fsk:
                 (fsk, double? centre, extras) = FskMeasurement.Measure(inputs, fskTones.Tones, FrequencyAxis.Of(info));
@@ -240,6 +250,7 @@ public static class Analyzer
             Fm = fm,
             Pm = pm,
             Fsk = fsk,
+            Ook = ook,
             ModulatingFrequencyHz = kind is ModulationKind.Am or ModulationKind.Fm or ModulationKind.Pm ? tone : null,
             ModulatingComponents = inputs.Components,
             NecessaryBandwidthHz = extras.NecessaryBandwidthHz,

@@ -25,8 +25,13 @@ internal sealed record Selection(
 internal static class EmissionSelection
 {
     /// <summary>Bins kept either side of the selected emission, as a share of its width (its weak outer sidebands
-    /// may fall below the detection threshold), at least <see cref="EmissionFinder.GapHz"/>.</summary>
+    /// may fall below the detection threshold), at least <see cref="MarginBins"/>. Not more: every noise bin kept
+    /// adds the positive part of its fluctuation to the occupied bandwidth's sum, which widens a weak
+    /// emission.</summary>
     public const double MarginShare = 0.25;
+
+    /// <summary>Least margin either side of the selected emission, bins (the window's main lobe and more).</summary>
+    public const int MarginBins = 8;
 
     /// <summary>An emission mirrored about 0 Hz within this share of the measured one's width is taken as the
     /// receiver's IQ image.</summary>
@@ -93,7 +98,7 @@ internal static class EmissionSelection
 
     private static Selection Around(PowerSpectrum psd, Emission e, IReadOnlyList<Emission> all, double floor)
     {
-        double margin = Math.Max(EmissionFinder.GapHz, MarginShare * e.WidthHz);
+        double margin = Math.Max(MarginBins * psd.BinWidthHz, MarginShare * e.WidthHz);
         int a = psd.BinOf(e.LowHz - margin),
             b = psd.BinOf(e.HighHz + margin);
         IReadOnlyList<Emission> others = [.. all.Where(x => x != e)];

@@ -36,6 +36,14 @@ internal static class MeasurementWarnings
                 + "readings are unreliable and the classification uncertain"
             : null;
 
+    /// <summary>The overmodulation warning of an AM signal whose envelope is cut off at zero, or null.</summary>
+    public static string? Overmodulation(ModulationKind kind, DemodulatedFeatures f) =>
+        kind == ModulationKind.Am && f.OffShare >= ModulationClassifier.OffShare
+            ? string.Create(CultureInfo.InvariantCulture, $"overmodulation: the envelope is cut off at zero ")
+                + string.Create(CultureInfo.InvariantCulture, $"{100 * f.OffShare:0.#} % of the time (negative peaks ")
+                + "reach 100 %; the depth reads 100 % and the positive peak and the sidebands show how far beyond)"
+            : null;
+
     /// <summary>The short-capture warning, or null.</summary>
     public static string? FewTonePeriods(Measured? tone, double windowS) =>
         tone is { } t && windowS < MinTonePeriods / t.Value

@@ -34,21 +34,23 @@ internal static class ModulationClassifier
     /// <summary>Share of time on two tones above which angle modulation is FSK.</summary>
     public const double FskDwell = 0.6;
 
+    /// <summary>Share of the time the carrier must be absent (envelope at the noise) to be keyed or cut off.</summary>
+    public const double OffShare = 0.02;
+
+    /// <summary>Spread of the envelope while on, relative to its mean, below which an intermittent carrier is
+    /// on-off keyed (steady when present) rather than AM cut off at zero.</summary>
+    public const double SteadyOnSpread = 0.1;
+
     /// <summary>Below this SNR (dB) the confidence is scaled down.</summary>
     public const double ConfidentSnrDb = 15;
 
     /// <summary>Classifies; with <paramref name="expect"/> the kind measured is the one given, and the reason says
     /// what the classifier found.</summary>
-    public static Classification Classify(
-        double snrDb,
-        double envelopeDepth,
-        double phaseRmsRad,
-        double dwell,
-        ModulationKind? expect
-    )
+    public static Classification Classify(double snrDb, DemodulatedFeatures f, double dwell, ModulationKind? expect)
     {
-        double mEnv = envelopeDepth,
-            sigmaPhase = phaseRmsRad;
+        // A steady carrier is cw unless its envelope varies beyond what the measured noise explains.
+        double mEnv = f.NoiseKnown ? f.ExcessDepth : f.EnvelopeDepth,
+            sigmaPhase = f.PhaseExcessRad;
         ModulationKind detected;
         double conf;
         string why;
@@ -58,6 +60,22 @@ internal static class ModulationClassifier
             detected = ModulationKind.Noise;
             conf = Math.Clamp(0.6 + (NoiseBelowSnrDb - snrDb) / 10, 0.5, 0.95);
             why = string.Create(c, $"no signal stands above the noise floor (SNR in band {snrDb:0.#} dB)");
+        }
+        else if (f.OffShare >= OffShare && f.OnSpread < SteadyOnSpread)
+        {
+            detected = ModulationKind.Ook;
+            conf = Math.Clamp(0.7 + (SteadyOnSpread - f.OnSpread) * 2, 0.5, 0.97);
+            why =
+                string.Create(c, $"the carrier is absent {100 * f.OffShare:0} % of the time and steady when ")
+                + string.Create(c, $"present (spread {100 * f.OnSpread:0.#} %): on-off keying");
+        }
+        else if (f.OffShare >= OffShare)
+        {
+            detected = ModulationKind.Am;
+            conf = 0.8;
+            why =
+                string.Create(c, $"the envelope falls to zero {100 * f.OffShare:0} % of the time and varies ")
+                + "continuously in between: AM cut off at zero (overmodulated)";
         }
         else if (sigmaPhase < SteadyPhaseRad)
         {

@@ -20,6 +20,9 @@ public enum ModulationKind
 
     /// <summary>Frequency-shift keying.</summary>
     Fsk,
+
+    /// <summary>On-off keying: the carrier present part of the time, steady while present.</summary>
+    Ook,
 }
 
 /// <summary>Names of the modulation kinds as the command line and JSON write them.</summary>

@@ -164,6 +164,10 @@ public static class AnalysisJson
         }
         w.WriteEndObject();
         CaptureInfoJson.WriteNumberOrNull(w, "modulatingFrequencyHz", r.ModulatingFrequencyHz?.Value);
+        w.WriteStartObject("ook");
+        CaptureInfoJson.WriteNumberOrNull(w, "onSharePercent", r.Ook?.OnSharePercent);
+        CaptureInfoJson.WriteNumberOrNull(w, "onLevel", r.Ook?.OnLevel);
+        w.WriteEndObject();
         WriteBudgets(w, r);
         w.WriteStartArray("modulatingComponents");
         foreach (ModulatingComponent mc in r.ModulatingComponents)

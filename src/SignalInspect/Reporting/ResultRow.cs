@@ -243,6 +243,8 @@ public static class ResultRows
             if (fsk.SymbolRateBd is { } sr)
                 Info("fsk.symbolRate", "FSK symbol rate", sr.Value, "Bd", sr.StandardUncertainty, "0.##", "rate");
         }
+        if (a.Ook is { } ook)
+            Info("ook.onShare", "OOK carrier on", ook.OnSharePercent, "%", null, "0.#", "on");
         if (a.ModulatingFrequencyHz is { } mf)
             Info("modulatingFrequency", "modulating frequency", mf.Value, "Hz", mf.StandardUncertainty, "0.##");
         if (a.ModulatingComponents.Count > 1)

@@ -62,13 +62,17 @@ public static class EmissionFinder
         double nu = NoiseFloor.EquivalentDof(psd);
         double threshold = floor * ChiSquared.InvCDF(nu, 1 - FalseAlarm) / nu;
         int gap = Math.Max(MinGapBins, (int)Math.Round(GapHz / psd.BinWidthHz));
-        // Regions: runs of bins above the threshold, gaps up to `gap` bridged.
+        // Regions: runs of bins above the threshold, gaps up to `gap` bridged. A lone bin barely above it is
+        // the threshold's own false alarm (one in 1 / FalseAlarm bins of noise), not a part of an emission.
         var regions = new List<(int A, int B)>();
         int start = -1,
             last = -1;
         for (int i = 0; i < n; i++)
         {
             if (v[i] <= threshold)
+                continue;
+            bool lone = (i == 0 || v[i - 1] <= threshold) && (i == n - 1 || v[i + 1] <= threshold);
+            if (lone && v[i] < 2 * threshold)
                 continue;
             if (start >= 0 && i - last > gap)
             {
@@ -112,7 +116,11 @@ public static class EmissionFinder
             int first = group.Min(r => r.A),
                 lastBin = group.Max(r => r.B);
             double power = Power(psd, group, floor);
-            int bins = group.Sum(r => r.B - r.A + 1);
+            int bins = 0;
+            foreach (var (a, b) in group)
+                for (int i = a; i <= b; i++)
+                    if (v[i] > threshold)
+                        bins++;
             double snr = 10 * Math.Log10(Math.Max(power, 1e-300) / (floor * bins * psd.BinWidthHz));
             if (snr < MinSnrDb)
                 continue;

@@ -101,4 +101,90 @@ public class RealTransmissionTests
         Near.Equal(1500, r.Fm!.PeakDeviationHz.Value, 15, "peak deviation");
         Near.Equal(1.5, r.Fm.PeakPhaseRad!.Value, 0.015, "peak phase");
     }
+
+    /// <summary>
+    /// AM at 150 % with the envelope cut off at zero (a transmitter's final stage cannot go below zero) is AM, its
+    /// depth reads 100 % (Amin = 0: the definition) and a warning says "overmodulation"; its positive peak is
+    /// A (1 + m) / mean envelope - 1, well above 100 %.
+    /// </summary>
+    [Fact]
+    public void Overmodulated_AM_is_AM_at_100_percent_with_a_warning()
+    {
+        using var tmp = new TempDir();
+        AnalysisResult r = Measuring.Analyze(
+            tmp,
+            new SignalSpec
+            {
+                Kind = SignalKind.Am,
+                AmDepth = 1.5,
+                Amplitude = 0.3,
+                ModulatingFrequencyHz = 997,
+                CarrierOffsetHz = 5000,
+                SampleRateHz = 48000,
+                DurationS = 1,
+                SnrDb = 40,
+                Seed = 24,
+            }
+        );
+        Assert.Equal(ModulationKind.Am, r.Classification.Kind);
+        Near.Equal(100, r.Am!.DepthPercent.Value, 1, "depth");
+        Near.Equal(100, r.Am.NegativePeakPercent, 1, "negative peak");
+        Assert.True(r.Am.PositivePeakPercent > 110, "positive peak beyond 100 %");
+        Assert.Contains(r.Warnings, w => w.Contains("overmodulation"));
+    }
+
+    /// <summary>On-off keyed packets are their own class; the carrier is the spectrum's line, measured while
+    /// on.</summary>
+    [Fact]
+    public void On_off_keying_is_its_own_class_with_the_carrier_and_the_time_on()
+    {
+        using var tmp = new TempDir();
+        var spec = new SignalSpec
+        {
+            Kind = SignalKind.Ook,
+            SymbolRateBd = 100,
+            CarrierOffsetHz = 3000,
+            SampleRateHz = 48000,
+            DurationS = 2,
+            SnrDb = 30,
+            Seed = 25,
+        };
+        // The share of time on, from the construction (the generator's own samples).
+        var values = new double[2 * spec.SampleCount];
+        new SignalGenerator(spec with { SnrDb = null }).Generate(values);
+        double on =
+            Enumerable
+                .Range(0, (int)spec.SampleCount)
+                .Count(n => Math.Abs(values[2 * n]) + Math.Abs(values[2 * n + 1]) > 0) / (double)spec.SampleCount;
+        AnalysisResult r = Measuring.Analyze(tmp, spec);
+        Assert.Equal(ModulationKind.Ook, r.Classification.Kind);
+        Near.Equal(3000, r.Carrier!.OffsetHz, 1, "carrier offset");
+        Near.Equal(100 * on, r.Ook!.OnSharePercent, 5, "time on, percent");
+    }
+
+    /// <summary>
+    /// An unmodulated carrier about 14 dB above the noise in its occupied bandwidth is cw: the envelope and the
+    /// phase vary no more than the measured noise explains (it was read as AM from a fixed 3 % envelope spread).
+    /// </summary>
+    [Fact]
+    public void A_weak_steady_carrier_is_CW()
+    {
+        using var tmp = new TempDir();
+        AnalysisResult r = Measuring.Analyze(
+            tmp,
+            new SignalSpec
+            {
+                Kind = SignalKind.Cw,
+                CarrierOffsetHz = 1000,
+                Amplitude = 0.05,
+                SampleRateHz = 48000,
+                DurationS = 1,
+                SnrDb = -15, // over the 48 kHz band; about 14 dB in the carrier's 2 RBW
+                Seed = 26,
+            }
+        );
+        Assert.InRange(r.ChannelSnrDb, 10, 20);
+        Assert.Equal(ModulationKind.Cw, r.Classification.Kind);
+        Near.Equal(1000, r.Carrier!.OffsetHz, 1, "offset");
+    }
 }
