@@ -155,4 +155,23 @@ public class CorpusTests
         }
         Assert.Equal(before, TestData.Sha256(path));
     }
+
+    [Theory]
+    [InlineData("200k", "--signal: lies outside the sampled band")]
+    [InlineData("151.645M", "--signal: no emission stands out of the noise there")]
+    [InlineData("151.625M:100k", "--signal: the channel width must be positive and fit inside the sampled band")]
+    [InlineData("abc", "--signal: 'abc' is not FREQ or FREQ:WIDTH")]
+    public void A_signal_that_is_not_there_is_one_line_and_exit_2(string value, string message)
+    {
+        // nbfm-151625: FM at +350 Hz from 151.625 MHz, 48 kS/s, so 151.601 to 151.649 MHz (MANIFEST.md).
+        var (code, _, stderr) = CliRunner.Run(
+            "analyze",
+            TestData.Path("measure", "nbfm-151625.sigmf-meta"),
+            "--signal",
+            value
+        );
+        Assert.Equal(2, code);
+        Assert.Contains(message, stderr);
+        Assert.Single(stderr.Trim().Split('\n'));
+    }
 }
