@@ -37,11 +37,6 @@ public sealed record ChannelPlan
     /// <summary>The decimated rate is at least this many times the low-pass's stop edge (on the one side).</summary>
     public const double RateOverStopEdge = 2.5;
 
-    /// <summary>The default post-detection cutoff is at least this, Hz (a voice channel's audio band, 300-3000 Hz,
-    /// with room: a low-index test tone whose sidebands stand below the occupied bandwidth's edges still
-    /// passes).</summary>
-    public const double MinPostLowPassHz = 4000;
-
     /// <summary>Default post-detection cutoff as a share of the channel's width; never above
     /// <see cref="MaxPostLowPassShare"/> of the decimated rate.</summary>
     public const double PostLowPassShare = 0.9,
@@ -95,11 +90,8 @@ public sealed record ChannelPlan
     /// <param name="lowerEdgeHz">Lower edge of the occupied bandwidth, Hz.</param>
     /// <param name="upperEdgeHz">Upper edge of the occupied bandwidth, Hz.</param>
     /// <param name="noiseFloorDensity">Noise density of the spectrum (its unit).</param>
-    /// <param name="postLowPassHz">Post-detection low-pass asked for, Hz; null for the default: the channel's width,
-    /// but no wider than the emission's spectrum shows modulation (its occupied and x-dB bandwidths, at least
-    /// <see cref="MinPostLowPassHz"/>): the modulating frequencies of AM and of angle modulation lie below half the
-    /// occupied bandwidth, and every hertz more lets in discriminator noise, which rises with frequency.</param>
-    /// <param name="modulationWidthHz">The widest of the emission's occupied and x-dB bandwidths, Hz.</param>
+    /// <param name="postLowPassHz">Post-detection low-pass asked for, Hz; null for the channel's width (so that every
+    /// modulating frequency the channel holds passes, and FSK's frequency steps keep their flat tops).</param>
     public static ChannelPlan Design(
         PowerSpectrum psd,
         bool complex,
@@ -107,8 +99,7 @@ public sealed record ChannelPlan
         double lowerEdgeHz,
         double upperEdgeHz,
         double noiseFloorDensity,
-        double? postLowPassHz,
-        double modulationWidthHz = double.PositiveInfinity
+        double? postLowPassHz
     )
     {
         double fs = psd.SampleRateHz;

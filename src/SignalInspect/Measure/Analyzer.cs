@@ -91,8 +91,7 @@ public static class Analyzer
             bw.LowerEdgeHz,
             bw.UpperEdgeHz,
             bw.NoiseFloorDensity,
-            options.PostLowPassHz,
-            Math.Max(bw.OccupiedHz, bw.XdbHz)
+            options.PostLowPassHz
         );
         if (channel.MirrorKept)
             warnings.Add(MeasurementWarnings.MirrorKept);

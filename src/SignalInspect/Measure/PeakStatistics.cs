@@ -153,8 +153,9 @@ public static class SinePeak
 /// </summary>
 internal static class TonePeaks
 {
-    /// <summary>Share of the band's power the tone's lines must hold for the correction to apply.</summary>
-    public const double OneToneShare = 0.8;
+    /// <summary>Share of the band's power (up to the post-detection cutoff, the discriminator's noise included) the
+    /// tone's lines must hold for the correction to apply: the noise may be large, the model takes it in.</summary>
+    public const double OneToneShare = 0.5;
 
     /// <summary>Share of the modulating components' power the strongest must hold: a second tone (a sub-audible
     /// tone under the test tone) is not noise, and the sine-plus-noise model would read the sum's peak low.</summary>
