@@ -141,8 +141,7 @@ public sealed record ChannelPlan
                 + string.Create(c, $" ({taps.Length} taps, 80 dB), decimation {decimation} to {fsd:0.###} Hz");
         // Default post-detection bandwidth: the channel's, so that every modulating frequency the
         // occupied bandwidth allows passes (a fixed 15 kHz would halve a 15 kHz broadcast tone).
-        double postLp = postLowPassHz
-            ?? Math.Min(PostLowPassShare * Math.Min(half, fsd / 2), Math.Max(modulationWidthHz, MinPostLowPassHz));
+        double postLp = postLowPassHz ?? PostLowPassShare * Math.Min(half, fsd / 2);
         postLp = Math.Min(postLp, MaxPostLowPassShare * fsd);
         return new ChannelPlan
         {
