@@ -12,6 +12,7 @@ using SignalInspect.Synthesis;
 //   fft                      in-house FftPlan against MathNet.Numerics' FFT
 //   welch [CAPTURE] [--smoke] Welch stage throughput on a 60 s, 2.4 MS/s cf32 capture (made if absent)
 //   kernels [--smoke]        the demodulation pass's kernels, ns per input or decimated sample
+//   coverage [SEEDS]         Monte Carlo coverage of the stated uncertainties (docs/COVERAGE.md)
 CultureInfo.DefaultThreadCurrentCulture = CultureInfo.InvariantCulture;
 string mode = args.Length > 0 ? args[0] : "fft";
 bool smoke = args.Contains("--smoke");
@@ -26,8 +27,11 @@ switch (mode)
     case "kernels":
         Kernels(smoke);
         break;
+    case "coverage":
+        Console.Write(Coverage.Run(args.Length > 1 ? int.Parse(args[1], CultureInfo.InvariantCulture) : 40));
+        break;
     default:
-        Console.Error.WriteLine("usage: fft | welch [CAPTURE] [--smoke] | kernels [--smoke]");
+        Console.Error.WriteLine("usage: fft | welch [CAPTURE] [--smoke] | kernels [--smoke] | coverage [SEEDS]");
         return 2;
 }
 return 0;

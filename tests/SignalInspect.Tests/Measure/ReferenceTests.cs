@@ -196,7 +196,7 @@ public class ReferenceTests
 }
 
 /// <summary>Numbers of the analysis that the other tests did not pin to an outside value.</summary>
-public class CoverageTests
+public class UnpinnedNumberTests
 {
     [Fact]
     public void X_dB_bandwidth_follows_the_AM_sideband_level()

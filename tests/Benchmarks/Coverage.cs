@@ -1,0 +1,175 @@
+using System.Globalization;
+using System.Text;
+using SignalInspect.Capture;
+using SignalInspect.Measure;
+using SignalInspect.Synthesis;
+
+/// <summary>
+/// Honest uncertainty, measured: a seeded Monte Carlo over synthesised captures of known parameters
+/// (single-tone FM, FM with a sub-audible tone under the test tone, AM) from 20 to 60 dB SNR in the
+/// signal's occupied bandwidth, the carrier offset and the tone drawn at random per trial so that
+/// interpolation biases are sampled too. For each quantity: the share of trials whose truth lies within
+/// U = 2u of the reading (a k = 2 expanded uncertainty claims about 95 %: GUM 6.3.3), and per SNR the
+/// bias, rms error and mean u. Run by hand (`coverage`); the table goes to docs/COVERAGE.md.
+/// </summary>
+internal static class Coverage
+{
+    private static readonly double[] Snrs = [20, 30, 40, 50, 60];
+
+    private sealed record Trial(string Quantity, double SnrDb, double Truth, double Value, double U);
+
+    public static string Run(int seedsPerSnr)
+    {
+        var trials = new List<Trial>();
+        var rng = new Random(20261204);
+        foreach (double snr in Snrs)
+            for (int k = 0; k < seedsPerSnr; k++)
+            {
+                double offset = 1000 + 500 * rng.NextDouble(),
+                    tone = 950 + 100 * rng.NextDouble();
+                int seed = rng.Next();
+                var fm = new SignalSpec
+                {
+                    Kind = SignalKind.Fm,
+                    SampleRateHz = 48000,
+                    DurationS = 0.5,
+                    CarrierOffsetHz = offset,
+                    PeakDeviationHz = 2500,
+                    ModulatingFrequencyHz = tone,
+                    Amplitude = 0.3,
+                    Seed = seed,
+                };
+                // SNR in the occupied bandwidth: synth's SNR is over the sampled band (48 kHz).
+                AnalysisResult a = Analyze(fm with { SnrDb = snr - 10 * Math.Log10(48000 / 8000.0) });
+                trials.Add(
+                    new(
+                        "carrier offset, Hz",
+                        snr,
+                        offset,
+                        a.Carrier!.OffsetHz,
+                        a.Carrier.FrequencyHz.StandardUncertainty
+                    )
+                );
+                trials.Add(
+                    new(
+                        "FM peak deviation (one tone), Hz",
+                        snr,
+                        2500,
+                        a.Fm!.PeakDeviationHz.Value,
+                        a.Fm.PeakDeviationHz.StandardUncertainty
+                    )
+                );
+                trials.Add(
+                    new(
+                        "modulating frequency, Hz",
+                        snr,
+                        tone,
+                        a.ModulatingFrequencyHz!.Value.Value,
+                        a.ModulatingFrequencyHz.Value.StandardUncertainty
+                    )
+                );
+                trials.Add(
+                    new(
+                        "occupied bandwidth (Bessel 99 %), Hz",
+                        snr,
+                        BesselObw(2500 / tone) * tone,
+                        a.Bandwidth.OccupiedHz,
+                        a.OccupiedUncertaintyHz
+                    )
+                );
+                AnalysisResult b = Analyze(
+                    fm with
+                    {
+                        PeakDeviationHz = 1900,
+                        ExtraTones = [new ExtraTone(118.8, 600)],
+                        SnrDb = snr - 10 * Math.Log10(48000 / 7500.0),
+                    }
+                );
+                trials.Add(
+                    new(
+                        "FM peak deviation (two tones), Hz",
+                        snr,
+                        2500,
+                        b.Fm!.PeakDeviationHz.Value,
+                        b.Fm.PeakDeviationHz.StandardUncertainty
+                    )
+                );
+                AnalysisResult c = Analyze(
+                    new SignalSpec
+                    {
+                        Kind = SignalKind.Am,
+                        SampleRateHz = 48000,
+                        DurationS = 0.5,
+                        CarrierOffsetHz = offset,
+                        AmDepth = 0.7,
+                        ModulatingFrequencyHz = tone,
+                        Amplitude = 0.3,
+                        Seed = seed,
+                        SnrDb = snr - 10 * Math.Log10(48000 / (2 * tone)),
+                    }
+                );
+                trials.Add(
+                    new("AM depth, %", snr, 70, c.Am!.DepthPercent.Value, c.Am.DepthPercent.StandardUncertainty)
+                );
+            }
+        var ci = CultureInfo.InvariantCulture;
+        var t = new StringBuilder();
+        t.AppendLine(
+            "| quantity | trials | coverage of U = 2u | "
+                + string.Join(" | ", Snrs.Select(s => s.ToString(ci) + " dB"))
+                + " |"
+        );
+        t.AppendLine("|---|---|---|" + string.Concat(Snrs.Select(_ => "---|")));
+        static double Cover(IEnumerable<Trial> ts) =>
+            ts.Count(x => Math.Abs(x.Value - x.Truth) <= 2 * x.U) / (double)ts.Count();
+        foreach (var g in trials.GroupBy(x => x.Quantity))
+            t.AppendLine(
+                string.Create(ci, $"| {g.Key} | {g.Count()} | {100 * Cover(g):0.0} % | ")
+                    + string.Join(
+                        " | ",
+                        Snrs.Select(s => string.Create(ci, $"{100 * Cover(g.Where(x => x.SnrDb == s)):0} %"))
+                    )
+                    + " |"
+            );
+        t.AppendLine();
+        t.AppendLine("| quantity | SNR (dB) | bias | rms error | mean u |");
+        t.AppendLine("|---|---|---|---|---|");
+        foreach (var g in trials.GroupBy(x => (x.Quantity, x.SnrDb)))
+            t.AppendLine(
+                string.Create(ci, $"| {g.Key.Quantity} | {g.Key.SnrDb} | {g.Average(x => x.Value - x.Truth):G3} | ")
+                    + string.Create(
+                        ci,
+                        $"{Math.Sqrt(g.Average(x => Math.Pow(x.Value - x.Truth, 2))):G3} | {g.Average(x => x.U):G3} |"
+                    )
+            );
+        return t.ToString();
+    }
+
+    /// <summary>
+    /// The 99 % occupied bandwidth of single-tone FM of index beta, in units of the tone: 2n with n the
+    /// smallest integer such that J0(beta)^2 + 2 sum_{k=1..n} Jk(beta)^2 exceeds 0.99 (Bessel sums;
+    /// testdata/REFERENCE-VALUES.md [D]).
+    /// </summary>
+    private static double BesselObw(double beta)
+    {
+        double sum = Math.Pow(MathNet.Numerics.SpecialFunctions.BesselJ(0, beta), 2);
+        int n = 0;
+        while (sum <= 0.99)
+            sum += 2 * Math.Pow(MathNet.Numerics.SpecialFunctions.BesselJ(++n, beta), 2);
+        return 2 * n;
+    }
+
+    private static AnalysisResult Analyze(SignalSpec s)
+    {
+        string path = Path.Combine(Path.GetTempPath(), $"si-cov-{Guid.NewGuid():N}.sigmf");
+        try
+        {
+            Synthesizer.Write(s, path, SampleFormat.Parse("cf32_le"));
+            return Analyzer.Analyze(CaptureSource.Open(path), new AnalysisOptions { Threads = 1 });
+        }
+        finally
+        {
+            File.Delete(path);
+        }
+    }
+}
