@@ -59,16 +59,26 @@ internal static class AmMeasurement
             }
         }
         double? sideband = m.Tone is { } t ? SidebandDepth(m.Psd, carrierAxisHz, t.Value) : null;
+        UncertaintyComponent[] budget =
+        [
+            new("peak statistic", TypeB.AmDepthPoints * m.NoiseGrowth, "TypeB.AmDepthPoints x TypeB.NoiseGrowth"),
+        ];
+        if (m.Tone is { } tn && aMean > 0)
+            budget =
+            [
+                .. budget,
+                new(
+                    "noise on the envelope's peaks",
+                    TypeB.AmCorrectedPeakNoiseShare
+                        * 100
+                        * Math.Sqrt(m.Pass.EnvelopeSpectrum.Split(tn.Value, m.MinToneHz, m.EnvelopeTopHz).Noise)
+                        / aMean,
+                    "TypeB.AmCorrectedPeakNoiseShare x rms of the envelope's noise / mean envelope"
+                ),
+            ];
         var result = new AmResult
         {
-            DepthPercent = Measured.FromBudget(
-                100 * depth,
-                new UncertaintyComponent(
-                    "peak statistic",
-                    TypeB.AmDepthPoints * m.NoiseGrowth,
-                    "TypeB.AmDepthPoints x TypeB.NoiseGrowth"
-                )
-            ),
+            DepthPercent = Measured.FromBudget(100 * depth, budget),
             PositivePeakPercent = 100 * (aMax - aMean) / aMean,
             NegativePeakPercent = 100 * (aMean - aMin) / aMean,
             SidebandDepthPercent = sideband is { } s ? 100 * s : null,

@@ -58,6 +58,17 @@ internal static class FmMeasurement
             m.Pass.Freq.BinWidth,
             "TypeB.FmPeakFraction"
         );
+        if (corrected && m.Tone is { } tc)
+            budget =
+            [
+                .. budget,
+                new(
+                    "noise under the corrected peak",
+                    TypeB.FmCorrectedPeakNoiseShare
+                        * Math.Sqrt(m.Pass.ToneSpectrum.Split(tc.Value, m.MinToneHz, m.Channel.PostLowPassHz).Noise),
+                    "TypeB.FmCorrectedPeakNoiseShare x rms of the demodulated noise"
+                ),
+            ];
         if (!corrected && m.Tone is { } raw)
             budget =
             [
@@ -75,6 +86,21 @@ internal static class FmMeasurement
                     "rms of the demodulated noise (band power less the modulating components')"
                 ),
             ];
+        if (!corrected && m.Components.Count >= 2)
+            budget =
+            [
+                .. budget,
+                new(
+                    "percentile below the sum's peak",
+                    2
+                        * Math.PI
+                        * (1 - DemodulatedFeatures.Upper)
+                        * Math.Sqrt(m.Components[0].PeakAmount * m.Components[1].PeakAmount),
+                    "the 99.9th percentile of two incommensurate tones of peaks A and B lies about "
+                        + "2 pi 0.001 sqrt(A B) below A + B (the cap of the torus above the level)"
+                ),
+            ];
+
         var result = new FmResult
         {
             PeakDeviationHz = Measured.FromBudget(peak, budget),
