@@ -144,15 +144,10 @@ public static class Analyzer
         FskResult? fsk = null;
         OokResult? ook = null;
         MeasurementExtras extras = default;
-        var carrierBudget = new List<UncertaintyComponent>
-        {
-            new(
-                "noise (phase-slope fit)",
-                Math.Sqrt(Math.Max(b.SlopeVariance, 0)) * fsd / (2 * Math.PI),
-                "standard error of the least-squares slope with the residual phase variance"
-            ),
-            new("numerical floor", TypeB.CarrierFloorHz, "TypeB.CarrierFloorHz"),
-        };
+        List<UncertaintyComponent> carrierBudget =
+        [
+            .. CarrierMeasurement.SlopeBudget(b, fsd, kind, inputs.Components, count / fs),
+        ];
         switch (kind)
         {
             case ModulationKind.Am:
@@ -179,8 +174,8 @@ public static class Analyzer
                 [
                     new(
                         "resolution (interpolated spectral line)",
-                        psd.BinWidthHz / TypeB.ToneBinDivisor,
-                        "TypeB.ToneBinDivisor of the Welch bin"
+                        psd.BinWidthHz / TypeB.SpectralLineBinDivisor,
+                        "TypeB.SpectralLineBinDivisor of the Welch bin"
                     ),
                 ];
                 ook = new OokResult { OnSharePercent = 100 * (1 - features.OffShare), OnLevel = features.OnLevel };

@@ -177,10 +177,13 @@ public static class BandwidthMeasurement
     }
 
     /// <summary>
-    /// Standard uncertainty of the occupied bandwidth, Hz: the larger of RBW / sqrt(3) (an edge anywhere
-    /// inside one resolution bandwidth, a rectangular distribution: GUM 4.3.7) and
-    /// <see cref="TypeB.OccupiedFraction"/> of the reading.
+    /// Standard uncertainty of the occupied bandwidth, Hz: the root sum of squares of the edges' resolution
+    /// (each edge anywhere in the window's main lobe, +/- its half-width, a rectangular distribution: GUM 4.3.7;
+    /// two edges: sqrt 2 of one) and <see cref="TypeB.OccupiedFraction"/> of the reading.
     /// </summary>
-    public static double OccupiedUncertaintyHz(PowerSpectrum psd, BandwidthResult bw) =>
-        Math.Max(psd.RbwHz / Math.Sqrt(3), TypeB.OccupiedFraction * bw.OccupiedHz);
+    public static double OccupiedUncertaintyHz(PowerSpectrum psd, BandwidthResult bw)
+    {
+        double edges = Math.Sqrt(2) * psd.Window.MainLobeHalfWidthBins * psd.BinWidthHz / Math.Sqrt(3);
+        return Math.Sqrt(Math.Pow(edges, 2) + Math.Pow(TypeB.OccupiedFraction * bw.OccupiedHz, 2));
+    }
 }

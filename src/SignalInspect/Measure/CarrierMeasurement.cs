@@ -34,6 +34,57 @@ internal static class CarrierMeasurement
     /// <summary>Share of the signal power the strongest line must hold to be taken as the carrier.</summary>
     public const double LineShare = 0.3;
 
+    /// <summary>
+    /// The budget of a carrier read as the least-squares slope of the unwrapped phase over a window of
+    /// <paramref name="windowS"/> seconds: the noise (the slope's standard error with the residual phase variance
+    /// less the modulation's own, sum P_i^2 / 2 with P_i each component's peak phase), the modulation's leakage
+    /// into the slope (for a phase P sin(wt + theta) over T the slope moves by at most 12 P / (w T^2) rad/s, rms
+    /// 6 sqrt(2) P / (w T^2) over theta: a closed form), and a numerical floor.
+    /// </summary>
+    public static UncertaintyComponent[] SlopeBudget(
+        Demodulation.PassResult b,
+        double decimatedRateHz,
+        ModulationKind kind,
+        IReadOnlyList<ModulatingComponent> components,
+        double windowS
+    )
+    {
+        double[] peakPhases = kind switch
+        {
+            ModulationKind.Fm => [.. components.Select(c => c.PeakAmount / c.FrequencyHz)],
+            ModulationKind.Pm => [.. components.Select(c => c.PeakAmount)],
+            _ => [],
+        };
+        double modulation = peakPhases.Sum(p => p * p / 2);
+        double residual = Math.Max(b.PhaseResidualVariance, 0);
+        double share = residual > 0 ? Math.Max(residual - modulation, 0) / residual : 0;
+        double noise = Math.Sqrt(Math.Max(b.SlopeVariance, 0) * share) * decimatedRateHz / (2 * Math.PI);
+        double leak = Math.Sqrt(
+            components
+                .Zip(peakPhases)
+                .Sum(x =>
+                    Math.Pow(
+                        6
+                            * Math.Sqrt(2)
+                            * x.Second
+                            / (2 * Math.PI * x.First.FrequencyHz * windowS * windowS)
+                            / (2 * Math.PI),
+                        2
+                    )
+                )
+        );
+        return
+        [
+            new(
+                "noise (phase-slope fit)",
+                noise,
+                "standard error of the slope, the residual phase less the modulation's"
+            ),
+            new("modulation's leakage into the slope", leak, "6 sqrt 2 P / (w T^2), each modulating component"),
+            new("numerical floor", TypeB.CarrierFloorHz, "TypeB.CarrierFloorHz"),
+        ];
+    }
+
     /// <summary>The first estimate on the capture's axis: the strongest line, or the centroid of the occupied
     /// band.</summary>
     public static double Coarse(PowerSpectrum psd, BandwidthResult bw)

@@ -42,18 +42,24 @@ public static class TypeB
     /// 50-60 dB SNR; 0.3 before it).</summary>
     public const double AmDepthPoints = 0.05;
 
-    /// <summary>A floor of 1 mHz under the carrier's uncertainty, so that a noiseless synthetic capture does not
+    /// <summary>A floor of 0.1 mHz under the carrier's uncertainty, so that a noiseless synthetic capture does not
     /// report an uncertainty of zero (a numerical allowance, not a property of any receiver).</summary>
-    public const double CarrierFloorHz = 1e-3;
+    public const double CarrierFloorHz = 1e-4;
 
-    /// <summary>Occupied bandwidth: at least 0.5 % of the reading (and at least RBW / sqrt 3, the
-    /// rectangular distribution of an edge inside one resolution bandwidth, GUM 4.3.7).</summary>
-    public const double OccupiedFraction = 0.005;
+    /// <summary>Occupied bandwidth: 0.2 % of the reading, beside the edges' resolution (each edge anywhere in the
+    /// window's main lobe, rectangular: GUM 4.3.7). The Monte Carlo of docs/COVERAGE.md read single-tone FM 0.4 %
+    /// low with a 0.1 % spread (the edge interpolated inside the last line's main lobe).</summary>
+    public const double OccupiedFraction = 0.002;
 
-    /// <summary>Modulating frequency: the line spectrum's bin divided by this (a tenth of a bin for the
-    /// interpolated peak), at least <see cref="ToneFraction"/> of the reading.</summary>
-    public const double ToneBinDivisor = 10,
+    /// <summary>Modulating frequency: the line spectrum's bin divided by this, at least <see cref="ToneFraction"/> of
+    /// the reading. The Monte Carlo of docs/COVERAGE.md (tones drawn across a bin, 20-60 dB SNR) scattered the
+    /// interpolated line by 0.0022 of a bin (within +/- 0.004); a tenth of a bin before it.</summary>
+    public const double ToneBinDivisor = 500,
         ToneFraction = 1e-6;
+
+    /// <summary>A carrier read from the Welch spectrum's line (on-off keying): a tenth of the bin (not calibrated by
+    /// a Monte Carlo yet).</summary>
+    public const double SpectralLineBinDivisor = 10;
 
     /// <summary>FSK symbol rate: the line spectrum's bin divided by this (a fifth of a bin), at least
     /// <see cref="SymbolRateFraction"/> of the reading.</summary>
