@@ -1,3 +1,4 @@
+using System.Globalization;
 using SignalInspect.Capture;
 using SignalInspect.Demodulation;
 using SignalInspect.Diagnostics;
@@ -69,14 +70,31 @@ public static class Analyzer
             );
         // The emission to measure, alone: other emissions, spurs and an IQ image are set to the floor.
         Selection selection = EmissionSelection.Select(info, spectrum.Mean, options.Signal);
+        BandwidthResult bw = Bandwidths(selection, options);
+        // A narrow emission in a wide capture: the spectrum again, with enough bins across the emission.
+        if (
+            options.FftSize is null
+            && selection.Measured is { } seen
+            && Finer(spectrumSettings, spectrum.Mean.BinWidthHz, bw, count) is { } finer
+        )
+        {
+            SpectrumResult again = WelchEstimator.Estimate(source, finer, first, count, null, cancel);
+            timer.Stage("finer spectrum pass");
+            var at = new SignalSelection(FrequencyAxis.Of(info).ToReported(seen.CentreHz), options.Signal?.WidthHz);
+            Selection refined = EmissionSelection.Select(info, again.Mean, options.Signal ?? at);
+            CultureInfo ci = CultureInfo.InvariantCulture;
+            warnings.Add(
+                string.Create(ci, $"the emission spans {bw.OccupiedHz / spectrum.Mean.BinWidthHz:0.#} bins of the ")
+                    + string.Create(ci, $"default {spectrumSettings.FftSize}-point spectrum: measured again with ")
+                    + string.Create(
+                        ci,
+                        $"{finer.FftSize} points (RBW {again.Mean.RbwHz:0.##} Hz); --fft or --rbw sets it"
+                    )
+            );
+            (spectrumSettings, spectrum, selection) = (finer, again, refined);
+            bw = Bandwidths(selection, options);
+        }
         PowerSpectrum psd = selection.Spectrum;
-        BandwidthResult bw = BandwidthMeasurement.Measure(
-            psd,
-            1 - options.ObwPercent / 100,
-            options.Xdb,
-            options.ObwNoise,
-            selection.NoiseFloorDensity
-        );
         double snrDb = BandwidthMeasurement.SnrDb(psd, bw);
         double coarse = CarrierMeasurement.Coarse(psd, bw);
         if (!info.IsComplex && coarse <= psd.BinWidthHz)
@@ -257,6 +275,33 @@ public static class Analyzer
             TrendLow = [.. longT.Zip(longLow)],
             WaveformLabel = waveLabel,
         };
+    }
+
+    /// <summary>Bins across the occupied bandwidth the default spectrum should give (the emission's shape, not the
+    /// window's, then sets its edges).</summary>
+    public const int MinBinsAcross = 32;
+
+    /// <summary>Largest FFT the finer spectrum takes.</summary>
+    public const int MaxFinerFftSize = 1 << 18;
+
+    private static BandwidthResult Bandwidths(Selection s, AnalysisOptions o) =>
+        BandwidthMeasurement.Measure(s.Spectrum, 1 - o.ObwPercent / 100, o.Xdb, o.ObwNoise, s.NoiseFloorDensity);
+
+    /// <summary>
+    /// The settings of a finer spectrum when the occupied bandwidth spans fewer than <see cref="MinBinsAcross"/>
+    /// bins of <paramref name="binWidthHz"/>: the power of two that gives that many, at most
+    /// <see cref="MaxFinerFftSize"/> and a sixteenth of the window's samples; null when the spectrum is fine
+    /// enough or cannot be made finer.
+    /// </summary>
+    private static SpectrumSettings? Finer(SpectrumSettings current, double binWidthHz, BandwidthResult bw, long count)
+    {
+        if (!(bw.OccupiedHz > 0) || bw.OccupiedHz >= MinBinsAcross * binWidthHz)
+            return null;
+        double wanted = current.FftSize * MinBinsAcross * binWidthHz / bw.OccupiedHz;
+        int fft = current.FftSize;
+        while (fft < wanted && 2L * fft <= MaxFinerFftSize && 16L * fft <= count)
+            fft *= 2;
+        return fft > current.FftSize ? current with { FftSize = fft } : null;
     }
 
     /// <summary>The modulating components of an AM (depth in %), FM (deviation in Hz) or PM (phase in rad)

@@ -62,6 +62,10 @@ public class EmissionSelectionTests
         Near.Equal(2500, r.Fm!.PeakDeviationHz.Value, deviationShare * 2500, "peak deviation");
         Near.Equal(312500, r.Carrier!.OffsetHz, 1, "carrier offset");
         ObwNear8k(r);
+        // The default 4096 points give 880 Hz of RBW at 2.4 MS/s, 13 bins across 8 kHz: the spectrum is taken
+        // again with enough bins across the emission (32 at least), and the report says so.
+        Assert.True(r.Bandwidth.OccupiedHz / (r.Method.RbwHz / 1.5) >= 32, $"RBW {r.Method.RbwHz} Hz");
+        Assert.Contains(r.Warnings, w => w.Contains("measured again with 16384 points"));
     }
 
     [Fact]
