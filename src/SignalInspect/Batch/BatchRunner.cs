@@ -119,7 +119,7 @@ public static class BatchRunner
         if (found.ContainsKey(full))
             return;
         string data = IsPairHalf(full, CaptureFormats.SigMfMetaEnding) ? CaptureFormats.DataOf(full) : "";
-        long bytes = new FileInfo(full).Length + (data.Length > 0 && File.Exists(data) ? new FileInfo(data).Length : 0);
+        long bytes = ByteSource.LengthOf(full) + (data.Length > 0 && File.Exists(data) ? ByteSource.LengthOf(data) : 0);
         found[full] = new BatchInput(path, key.Replace('\\', '/'), defaults, bytes);
     }
 

@@ -43,6 +43,21 @@ internal abstract class ByteSource : IDisposable
     protected void DisposeMap() => _mapped?.Dispose();
 
     /// <summary>Opens a file for reading only, shared with other readers, for sequential access.</summary>
+    /// <summary>
+    /// The length of a file in bytes, through symbolic links to their final target (FileInfo.Length of a link is
+    /// the length of the link's own text): a linked capture is read as its target.
+    /// </summary>
+    /// <exception cref="CaptureException">The link leads to nothing.</exception>
+    public static long LengthOf(string path)
+    {
+        var info = new FileInfo(path);
+        if (info.LinkTarget is null)
+            return info.Length;
+        return info.ResolveLinkTarget(returnFinalTarget: true) is FileInfo { Exists: true } target
+            ? target.Length
+            : throw CaptureException.ForFile(path, "is a symbolic link to a file that does not exist");
+    }
+
     public static FileStream OpenReadOnly(string path) =>
         new(
             path,

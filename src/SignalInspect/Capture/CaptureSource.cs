@@ -71,7 +71,7 @@ public sealed class CaptureSource
 
     private static CaptureSource OpenKnown(string path, ReaderOptions options)
     {
-        long size = new FileInfo(path).Length;
+        long size = ByteSource.LengthOf(path);
         CaptureFileKind kind = CaptureFormats.KindOf(path);
         if (kind == CaptureFileKind.SigMfPair)
             return SigMfReader.OpenPair(path, options);

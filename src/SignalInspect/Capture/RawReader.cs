@@ -9,7 +9,7 @@ internal static class RawReader
 {
     public static CaptureSource Open(string path, ReaderOptions options)
     {
-        long size = new FileInfo(path).Length;
+        long size = ByteSource.LengthOf(path);
         var notes = new List<string>();
         SampleFormat format;
         if (options.Datatype is { } word)

@@ -30,7 +30,7 @@ internal static class SigMfReader
             );
         if (!File.Exists(dataPath))
             throw CaptureException.ForFile(metaPath, $"data file {Path.GetFileName(dataPath)} not found");
-        long metaSize = new FileInfo(metaPath).Length;
+        long metaSize = ByteSource.LengthOf(metaPath);
         if (metaSize == 0)
             throw CaptureException.ForFile(metaPath, "metadata file is empty");
         if (metaSize > MaxMetadataBytes)
@@ -44,7 +44,7 @@ internal static class SigMfReader
             json = new byte[metaSize];
             fs.ReadExactly(json);
         }
-        long dataSize = new FileInfo(dataPath).Length;
+        long dataSize = ByteSource.LengthOf(dataPath);
         return Build(metaPath, json, dataPath, 0, dataSize, "SigMF", metaSize + dataSize, options);
     }
 
@@ -84,7 +84,7 @@ internal static class SigMfReader
             data.DataOffset,
             data.Size,
             "SigMF archive",
-            new FileInfo(path).Length,
+            ByteSource.LengthOf(path),
             options
         );
         if (metas.Count > 1)

@@ -20,7 +20,7 @@ internal static class WavReader
 
     public static CaptureSource Open(string path, ReaderOptions options)
     {
-        long fileSize = new FileInfo(path).Length;
+        long fileSize = ByteSource.LengthOf(path);
         ChunkScan scan = Scan(path, fileSize);
         (SampleFormat stored, int channels, int rate) = ReadFormat(path, scan);
 
