@@ -202,7 +202,7 @@ internal static class AnalyzeCommand
             }
             if (jsonOut is not null)
             {
-                byte[] bytes = AnalysisJson.ToBytes(model.Analysis);
+                byte[] bytes = profile is null ? AnalysisJson.ToBytes(model.Analysis) : AnalysisJson.ToBytes(model);
                 if (toStdout)
                     stdout.WriteLine(System.Text.Encoding.UTF8.GetString(bytes));
                 else

@@ -284,7 +284,18 @@ public static class Judgement
         double limit,
         string text,
         string basis
-    ) => new(what, value, unit, u, limit, text, limit - value, UpperVerdict(value, u, limit), basis);
+    )
+    {
+        Verdict v = UpperVerdict(value, u, limit);
+        string? reason =
+            v == Verdict.Inconclusive
+                ? string.Create(
+                    CultureInfo.InvariantCulture,
+                    $"the reading is within its expanded uncertainty ({u:0.###} {unit}) of the limit: neither met nor "
+                ) + "exceeded is shown"
+                : null;
+        return new(what, value, unit, u, limit, text, limit - value, v, basis, reason);
+    }
 
     /// <summary>
     /// Mask: the max-hold PSD, as power in the mask's reference bandwidth, against the required
@@ -319,14 +330,17 @@ public static class Judgement
             : worst - MaskUncertaintyDb >= 0 ? Verdict.Pass
             : worst + MaskUncertaintyDb < 0 ? Verdict.Fail
             : Verdict.Inconclusive;
-        if (v == Verdict.Pass && floorLimited)
+        string? reason = null;
+        if ((v == Verdict.Pass && floorLimited) || double.IsNaN(worst))
         {
             v = Verdict.Inconclusive;
-            basis +=
-                "; the capture's noise floor is above the mask at some offsets (not enough dynamic range to show "
-                + "compliance there)";
+            reason =
+                "the capture's noise floor is above the mask at some offsets: not enough dynamic range to show "
+                + "compliance there";
         }
-        else if (!double.IsNaN(worst) && worst < 99)
+        else if (v == Verdict.Inconclusive)
+            reason = "the worst margin is within the mask check's uncertainty of the limit";
+        if (!double.IsNaN(worst) && worst < 99)
         {
             basis += string.Create(CultureInfo.InvariantCulture, $"; worst at {worstAt:+0;-0} Hz from the carrier");
         }
@@ -339,7 +353,8 @@ public static class Judgement
             ">= 0 dB above the mask attenuation",
             double.IsNaN(worst) ? double.NaN : worst,
             v,
-            basis
+            basis,
+            reason
         );
     }
 }

@@ -23,8 +23,19 @@ public static class AnalysisJson
         return ms.ToArray();
     }
 
-    /// <summary>Writes the result as one JSON object.</summary>
-    public static void Write(Utf8JsonWriter w, AnalysisResult r)
+    /// <summary>The analysis as <see cref="ToBytes(AnalysisResult, bool)"/>, with the judgement of its report
+    /// (<c>limits</c>, <c>checks</c>, <c>verdict</c>) after the analysis's own keys when a profile was given.</summary>
+    public static byte[] ToBytes(MeasurementReport report)
+    {
+        using var ms = new MemoryStream();
+        using (var w = new Utf8JsonWriter(ms, new JsonWriterOptions { Indented = true }))
+            Write(w, report.Analysis, report.Profile is null ? null : report);
+        return ms.ToArray();
+    }
+
+    /// <summary>Writes the result as one JSON object; with <paramref name="judged"/> its limits, checks and verdict
+    /// too.</summary>
+    public static void Write(Utf8JsonWriter w, AnalysisResult r, MeasurementReport? judged = null)
     {
         var info = r.Capture;
         var axis = FrequencyAxis.Of(info);
@@ -215,6 +226,8 @@ public static class AnalysisJson
         foreach (string s in r.Warnings)
             w.WriteStringValue(s);
         w.WriteEndArray();
+        if (judged is not null)
+            ReportJson.WriteJudgement(w, judged);
         w.WriteEndObject();
     }
 

@@ -30,46 +30,56 @@ public static class ReportJson
             w.WriteEndObject();
             w.WritePropertyName("analysis");
             AnalysisJson.Write(w, report.Analysis);
-            if (report.Profile is { } p)
-            {
-                w.WriteStartObject("limits");
-                w.WriteString("profile", p.Name);
-                w.WriteString("file", report.ProfilePath);
-                w.WriteString("source", p.Source);
-                w.WriteNumber("coverageFactor", p.CoverageFactor);
-                w.WriteString("decisionRule", Judgement.DecisionRule);
-                w.WriteEndObject();
-                w.WriteStartArray("checks");
-                foreach (ResultRow c in ResultRows.For(report.Analysis, report.Checks, p.CoverageFactor))
-                {
-                    if (c.Verdict is not { } verdict)
-                        continue;
-                    w.WriteStartObject();
-                    w.WriteString("measurement", c.Quantity);
-                    Num(w, "value", c.Value!.Value);
-                    w.WriteString("unit", c.Unit);
-                    Num(w, "expandedUncertainty", c.ExpandedUncertainty!.Value);
-                    Num(w, "limit", c.Limit!.Value);
-                    w.WriteString("limitText", c.LimitText);
-                    Num(w, "margin", c.Margin!.Value);
-                    w.WriteString("verdict", verdict.Text());
-                    w.WriteString("basis", c.Note);
-                    w.WriteString("reason", c.Reason);
-                    w.WriteEndObject();
-                }
-                w.WriteEndArray();
-                w.WriteString("verdict", report.Overall?.Text());
-            }
-            else
-            {
-                w.WriteNull("limits");
-                w.WriteStartArray("checks");
-                w.WriteEndArray();
-                w.WriteNull("verdict");
-            }
+            WriteJudgement(w, report);
             w.WriteEndObject();
         }
         return ms.ToArray();
+    }
+
+    /// <summary>
+    /// The limits, the checks (from the report's rows) and the verdict: <c>limits</c> (profile, file, source,
+    /// coverage factor, decision rule), <c>checks[]</c> and <c>verdict</c>; null, empty and null without a
+    /// profile. The same keys in the report's JSON and in <c>analyze --limits --json</c>.
+    /// </summary>
+    public static void WriteJudgement(Utf8JsonWriter w, MeasurementReport report)
+    {
+        if (report.Profile is { } p)
+        {
+            w.WriteStartObject("limits");
+            w.WriteString("profile", p.Name);
+            w.WriteString("file", report.ProfilePath);
+            w.WriteString("source", p.Source);
+            w.WriteNumber("coverageFactor", p.CoverageFactor);
+            w.WriteString("decisionRule", Judgement.DecisionRule);
+            w.WriteEndObject();
+            w.WriteStartArray("checks");
+            foreach (ResultRow c in ResultRows.For(report.Analysis, report.Checks, p.CoverageFactor))
+            {
+                if (c.Verdict is not { } verdict)
+                    continue;
+                w.WriteStartObject();
+                w.WriteString("measurement", c.Quantity);
+                Num(w, "value", c.Value!.Value);
+                w.WriteString("unit", c.Unit);
+                Num(w, "expandedUncertainty", c.ExpandedUncertainty!.Value);
+                Num(w, "limit", c.Limit!.Value);
+                w.WriteString("limitText", c.LimitText);
+                Num(w, "margin", c.Margin!.Value);
+                w.WriteString("verdict", verdict.Text());
+                w.WriteString("basis", c.Note);
+                w.WriteString("reason", c.Reason);
+                w.WriteEndObject();
+            }
+            w.WriteEndArray();
+            w.WriteString("verdict", report.Overall?.Text());
+        }
+        else
+        {
+            w.WriteNull("limits");
+            w.WriteStartArray("checks");
+            w.WriteEndArray();
+            w.WriteNull("verdict");
+        }
     }
 
     private static void Num(Utf8JsonWriter w, string name, double v)

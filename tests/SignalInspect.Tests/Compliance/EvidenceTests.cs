@@ -105,4 +105,27 @@ public class EvidenceTests
             LimitProfile.Parse("{\"name\": \"x\", \"modulation\": [\"fm\", \"FSK\"]}").Modulation
         );
     }
+
+    [Fact]
+    public void Analyze_with_limits_writes_the_checks_and_the_verdict_in_its_JSON()
+    {
+        var (code, stdout, stderr) = CliRunner.Run(
+            "analyze",
+            TestData.Path("measure", "nbfm-151625.sigmf-meta"),
+            "--limits",
+            ProfilePath("land-mobile-12k5-vhf.json"),
+            "--json",
+            "-"
+        );
+        Assert.True(code == 4, stderr); // the deviation is INCONCLUSIVE (ReportTests)
+        JsonElement j = JsonDocument.Parse(stdout).RootElement;
+        Assert.Equal("INCONCLUSIVE", j.GetProperty("verdict").GetString());
+        JsonElement[] checks = [.. j.GetProperty("checks").EnumerateArray()];
+        Assert.Equal(5, checks.Length);
+        Assert.Contains(checks, c =>
+            c.GetProperty("verdict").GetString() == "INCONCLUSIVE"
+            && c.GetProperty("measurement").GetString() == "FM peak deviation"
+        );
+        Assert.Equal("fm", j.GetProperty("modulation").GetString()); // the analysis's own keys are all still there
+    }
 }
