@@ -135,6 +135,23 @@ public static class CaptureFormats
         };
     }
 
+    /// <summary>
+    /// The reader options for a raw capture given on its own: what the options leave unset is taken from its
+    /// sidecar (<c>FILE.si.json</c>), when there is one. Options given win over the sidecar (batch, where the
+    /// options are defaults for a folder, lets each sidecar win instead: <see cref="WithSidecar"/>).
+    /// </summary>
+    /// <exception cref="CaptureException">The sidecar is malformed.</exception>
+    public static ReaderOptions UnderSidecar(string capture, ReaderOptions given)
+    {
+        ReaderOptions side = WithSidecar(capture, ReaderOptions.Default);
+        return given with
+        {
+            Datatype = given.Datatype ?? side.Datatype,
+            SampleRateHz = given.SampleRateHz ?? side.SampleRateHz,
+            CenterFrequencyHz = given.CenterFrequencyHz ?? side.CenterFrequencyHz,
+        };
+    }
+
     /// <summary>Reads a raw capture's sidecar (<c>datatype</c>, <c>sampleRateHz</c>, <c>centerFrequencyHz</c>) over
     /// the defaults; the defaults unchanged when there is none.</summary>
     /// <exception cref="CaptureException">The sidecar is malformed.</exception>

@@ -84,6 +84,21 @@ public sealed class CaptureSource
             return WavReader.Open(path, options);
         if (kind == CaptureFileKind.Wav)
             throw CaptureException.ForFile(path, "not a WAV file (no RIFF, RF64 or BW64 header)");
+        string sidecar = path + CaptureFormats.SidecarSuffix;
+        if (File.Exists(sidecar))
+        {
+            CaptureSource raw = RawReader.Open(path, CaptureFormats.UnderSidecar(path, options));
+            return raw.WithInfo(
+                raw.Info with
+                {
+                    Notes =
+                    [
+                        .. raw.Info.Notes,
+                        $"what the options left unset was read from {Path.GetFileName(sidecar)}",
+                    ],
+                }
+            );
+        }
         return RawReader.Open(path, options);
     }
 

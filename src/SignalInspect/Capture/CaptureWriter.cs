@@ -110,6 +110,10 @@ public sealed class CaptureWriter : IDisposable
         else
         {
             _dataPath = full;
+            // A raw file states nothing: its sidecar (CaptureFormats.SidecarSuffix) carries the datatype, rate and
+            // centre, so that the tool reads it back with no options.
+            if (container == CaptureContainer.Raw)
+                _metaPath = full + CaptureFormats.SidecarSuffix;
         }
         foreach (string p in OutputPaths)
             if (File.Exists(p) && !overwrite)
@@ -131,7 +135,10 @@ public sealed class CaptureWriter : IDisposable
     }
 
     /// <summary>The files this writer produces.</summary>
-    public IReadOnlyList<string> OutputPaths => _metaPath is null ? [_dataPath] : [_metaPath, _dataPath];
+    public IReadOnlyList<string> OutputPaths =>
+        _metaPath is null ? [_dataPath]
+        : _container == CaptureContainer.Raw ? [_dataPath, _metaPath]
+        : [_metaPath, _dataPath];
 
     /// <summary>Sample components (I, Q or real values) whose code had to be clamped to the code range
     /// (clipped).</summary>
@@ -183,7 +190,7 @@ public sealed class CaptureWriter : IDisposable
         if (_metaPath is not null)
         {
             string metaTemp = _tempPath + ".meta";
-            File.WriteAllBytes(metaTemp, MetadataJson(sha));
+            File.WriteAllBytes(metaTemp, _container == CaptureContainer.Raw ? SidecarJson() : MetadataJson(sha));
             File.Move(_tempPath, _dataPath, overwrite: true);
             File.Move(metaTemp, _metaPath, overwrite: true);
         }
@@ -212,6 +219,23 @@ public sealed class CaptureWriter : IDisposable
     {
         string stem = Path.GetFileNameWithoutExtension(_dataPath);
         return $"{stem}/{stem}{ext}";
+    }
+
+    /// <summary>The sidecar of a raw file: <c>datatype</c>, <c>sampleRateHz</c>, <c>centerFrequencyHz</c> when
+    /// known.</summary>
+    private byte[] SidecarJson()
+    {
+        using var ms = new MemoryStream();
+        using (var w = new Utf8JsonWriter(ms, new JsonWriterOptions { Indented = true }))
+        {
+            w.WriteStartObject();
+            w.WriteString("datatype", _format.Name);
+            w.WriteNumber("sampleRateHz", _meta.SampleRateHz);
+            if (_meta.CenterFrequencyHz is { } f)
+                w.WriteNumber("centerFrequencyHz", f);
+            w.WriteEndObject();
+        }
+        return ms.ToArray();
     }
 
     private byte[] MetadataJson(string sha)

@@ -140,7 +140,11 @@ public class RoundTripTests
         Assert.Equal("precious", File.ReadAllText(path));
         Synthesizer.Write(spec, path, SampleFormat.Parse("cf32_le"), overwrite: true);
         Assert.Equal(80, new FileInfo(path).Length);
-        Assert.Single(Directory.GetFiles(tmp.Path));
+        // The data and its sidecar; no temporary file left behind.
+        Assert.Equal(
+            ["keep.cf32", "keep.cf32" + CaptureFormats.SidecarSuffix],
+            Directory.GetFiles(tmp.Path).Select(Path.GetFileName).Order(StringComparer.Ordinal)
+        );
     }
 
     [Fact]
