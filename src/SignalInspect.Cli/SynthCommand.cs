@@ -91,6 +91,13 @@ internal static class SynthCommand
             Description = "Seed of the noise and FSK data.",
             DefaultValueFactory = _ => 1,
         };
+        var noDither = new Option<bool>("--no-dither")
+        {
+            Description =
+                "Round an integer datatype's codes exactly. By default triangular noise of +/- 1 code is added "
+                + "before rounding, as a converter's own noise does: without it a noiseless signal's rounding error "
+                + "is a comb of spurs that reads as modulation.",
+        };
         var real = new Option<bool>("--real")
         {
             Description = "Write a real signal (audio, a carrier at --offset Hz) instead of complex I/Q.",
@@ -140,6 +147,7 @@ internal static class SynthCommand
             seed,
             real,
             datatype,
+            noDither,
             time,
             rf64,
             force,
@@ -194,10 +202,18 @@ internal static class SynthCommand
                     );
                 start = t;
             }
-            SynthesisResult result = Synthesizer.Write(spec, path, format, start, r.GetValue(force), r.GetValue(rf64));
+            SynthesisResult result = Synthesizer.Write(
+                spec,
+                path,
+                format,
+                start,
+                r.GetValue(force),
+                r.GetValue(rf64),
+                dither: !r.GetValue(noDither)
+            );
             foreach (string p in result.Paths)
                 stdout.WriteLine($"wrote {p}");
-            stdout.WriteLine($"{result.Samples} samples, {format.Name}, {Synthesizer.Describe(spec)}");
+            stdout.WriteLine($"{result.Samples} samples, {format.Name}, {Synthesizer.Describe(spec, format, !r.GetValue(noDither))}");
             if (result.ClippedValues > 0)
                 stderr.WriteLine(
                     $"signalinspect: warning: {result.ClippedValues} sample value(s) clipped at full scale (lower "

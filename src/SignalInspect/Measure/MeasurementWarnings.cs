@@ -89,6 +89,35 @@ internal static class MeasurementWarnings
                 + "it can bias bandwidth and classification; --suppress-dc removes it";
         if (nonFiniteSegments > 0)
             yield return $"{nonFiniteSegments} spectrum segment(s) held NaN or infinite samples (taken as 0)";
+        if (BelowRounding(info, bw.NoiseFloorDensity) is { } rounding)
+            yield return rounding;
+    }
+
+    /// <summary>A floor this far below the datatype's rounding noise (10 dB) means the rounding error is not
+    /// noise.</summary>
+    public const double BelowRoundingFactor = 10;
+
+    /// <summary>
+    /// The warning for a floor far below what rounding to the datatype's codes leaves when the error is noise-like
+    /// (uniform over one code q: q^2 / 12 per component, a density of q^2 / (6 fs) for I and Q over fs as for a
+    /// real signal over fs / 2), or null. A real receiver's own noise dithers the rounding; a noiseless synthetic
+    /// or undithered recording has a periodic rounding error instead, its power in a comb of spurs between which
+    /// the floor reads low: the spurs demodulate as modulation and the readings suffer.
+    /// </summary>
+    public static string? BelowRounding(CaptureInfo info, double floorDensity)
+    {
+        if (!SampleFormat.TryParse(info.Datatype, out SampleFormat f, out _) || f.IsFloat)
+            return null;
+        double q = 1 / f.CodeFullScale;
+        double rounding = q * q / (6 * info.SampleRateHz);
+        if (!(floorDensity < rounding / BelowRoundingFactor))
+            return null;
+        return string.Create(
+                CultureInfo.InvariantCulture,
+                $"the noise floor reads {10 * Math.Log10(rounding / floorDensity):0} dB below the {f.Name} datatype's "
+            )
+            + "rounding noise: the rounding error is not noise (an undithered recording without the receiver's noise) "
+            + "and its spurs may read as modulation, raising peaks and adding components";
     }
 
     /// <summary>A line at exactly 0 Hz, 10 dB above its surroundings and the floor, away from the carrier: a
