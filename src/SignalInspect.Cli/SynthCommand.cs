@@ -213,7 +213,8 @@ internal static class SynthCommand
             );
             foreach (string p in result.Paths)
                 stdout.WriteLine($"wrote {p}");
-            stdout.WriteLine($"{result.Samples} samples, {format.Name}, {Synthesizer.Describe(spec, format, !r.GetValue(noDither))}");
+            string described = Synthesizer.Describe(spec, format, !r.GetValue(noDither));
+            stdout.WriteLine($"{result.Samples} samples, {format.Name}, {described}");
             if (result.ClippedValues > 0)
                 stderr.WriteLine(
                     $"signalinspect: warning: {result.ClippedValues} sample value(s) clipped at full scale (lower "
