@@ -48,6 +48,7 @@ internal static class OptionNames
             ["SnrDb"] = "--snr",
             ["ExtraTones"] = "--add-tone",
             ["Spurs"] = "--spur",
+            ["Bursts"] = "--burst",
             ["ImageDbc"] = "--image",
         };
 

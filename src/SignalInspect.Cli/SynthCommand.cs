@@ -74,6 +74,16 @@ internal static class SynthCommand
                 + "carrier in Hz and its level in dB relative to it; e.g. --spur 21.5k:-12.",
             HelpName = "OFFSET:DBC",
         };
+        var burst = new Option<string[]>("--burst")
+        {
+            Description =
+                "One transmission, START:END[:OFFSET[:AMOUNT]] in seconds (repeatable): the carrier is keyed on only "
+                + "inside the bursts (the noise stays between them), each with its own carrier offset in Hz and "
+                + "amount (FM deviation in Hz, AM depth in percent, PM phase in rad) when given; e.g. --burst "
+                + "0.5:2.5 --burst 3.5:5:150:3000.",
+            HelpName = "START:END[:OFFSET[:AMOUNT]]",
+            AllowMultipleArgumentsPerToken = false,
+        };
         var image = new Option<double?>("--image")
         {
             Description = "An IQ image (the receiver's I/Q imbalance) this many dB below the signal, e.g. -28.",
@@ -142,6 +152,7 @@ internal static class SynthCommand
             drift,
             addTone,
             spur,
+            burst,
             image,
             snr,
             seed,
@@ -184,6 +195,7 @@ internal static class SynthCommand
                 ],
                 Spurs = [.. (r.GetValue(spur) ?? []).Select(t => Pair("--spur", t)).Select(p => new Spur(p.A, p.B))],
                 ImageDbc = r.GetValue(image),
+                Bursts = [.. (r.GetValue(burst) ?? []).Select(t => ParseBurst(t, r.GetValue(kind) == "am"))],
             };
             SampleFormat format = ChooseFormat(path, r.GetValue(datatype), isReal);
             DateTimeOffset? start = null;
@@ -246,6 +258,17 @@ internal static class SynthCommand
     }
 
     /// <summary>Parses "A:B", each a number with an optional SI suffix.</summary>
+    private static Burst ParseBurst(string text, bool am)
+    {
+        string[] p = text.Split(':');
+        var v = new double[p.Length];
+        if (p.Length is >= 2 and <= 4 && p.Select((x, i) => Units.TryParseSi(x, out v[i])).All(ok => ok))
+            return new Burst(v[0], v[1], p.Length > 2 ? v[2] : null, p.Length > 3 ? (am ? v[3] / 100 : v[3]) : null);
+        throw new UsageException(
+            $"--burst: '{text}' is not START:END[:OFFSET[:AMOUNT]] (e.g. 0.5:2.5 or 3:5:150:3000)"
+        );
+    }
+
     private static (double A, double B) Pair(string option, string text)
     {
         string[] p = text.Split(':');

@@ -41,6 +41,9 @@ public static class VerdictNames
 /// <param name="Verdict">The verdict under the decision rule.</param>
 /// <param name="Basis">Where the limit comes from and any note.</param>
 /// <param name="Reason">Why the verdict is INCONCLUSIVE or NOT TESTED (null for PASS and FAIL).</param>
+/// <param name="Transmission">For a capture measured transmission by transmission: which one (from 0) this check's
+/// reading is, the worst of them; null when the reading is of the whole window.</param>
+/// <param name="Where">That transmission in words, as the reports print it ("transmission 2 of 3, 6-9.001 s").</param>
 public sealed record LimitCheck(
     string Measurement,
     double Value,
@@ -51,7 +54,9 @@ public sealed record LimitCheck(
     double Margin,
     Verdict Verdict,
     string Basis,
-    string? Reason = null
+    string? Reason = null,
+    int? Transmission = null,
+    string? Where = null
 )
 {
     /// <summary>A limit that was not tested, with the reason.</summary>
@@ -99,7 +104,51 @@ public static class Judgement
     /// does not apply to the class found, there is no signal, or the value could not be measured). A profile
     /// for some classes also gets a check of the class itself.
     /// </summary>
+    /// <remarks>
+    /// A capture measured transmission by transmission (<see cref="AnalysisResult.Transmissions"/> with results) is
+    /// judged on every transmission: each limit's check is the worst transmission's (FAIL, then INCONCLUSIVE, then
+    /// NOT TESTED, then PASS; the smallest margin among equals), and names it.
+    /// </remarks>
     public static IReadOnlyList<LimitCheck> Check(AnalysisResult r, LimitProfile p)
+    {
+        var measured = r.Transmissions.Select((t, i) => (t, i)).Where(x => x.t.Result is not null).ToList();
+        if (measured.Count < 2)
+            return CheckOne(r, p);
+        var each = measured.Select(x => (x.t, x.i, Checks: CheckOne(x.t.Result!, p))).ToList();
+        int n = each[0].Checks.Count;
+        if (each.Any(x => x.Checks.Count != n))
+            throw new InvalidOperationException("a profile's checks must not depend on the reading");
+        var worst = new List<LimitCheck>(n);
+        for (int j = 0; j < n; j++)
+        {
+            var (t, i, checks) = each.OrderByDescending(x => Severity(x.Checks[j].Verdict))
+                .ThenBy(x => double.IsFinite(x.Checks[j].Margin) ? x.Checks[j].Margin : double.MaxValue)
+                .First();
+            bool alike = each.All(x =>
+                x.Checks[j].Verdict == checks[j].Verdict && !double.IsFinite(x.Checks[j].Margin)
+            );
+            string where = alike
+                ? $"alike on all {each.Count} transmissions"
+                : string.Create(
+                    CultureInfo.InvariantCulture,
+                    $"worst is transmission {i + 1} of {r.Transmissions.Count}, {t.StartS:0.###}-{t.EndS:0.###} s"
+                );
+            worst.Add(checks[j] with { Transmission = alike ? null : i, Where = where });
+        }
+        return worst;
+    }
+
+    /// <summary>How bad a verdict is when transmissions are compared: FAIL, INCONCLUSIVE, NOT TESTED, PASS.</summary>
+    private static int Severity(Verdict v) =>
+        v switch
+        {
+            Verdict.Fail => 3,
+            Verdict.Inconclusive => 2,
+            Verdict.NotTested => 1,
+            _ => 0,
+        };
+
+    private static IReadOnlyList<LimitCheck> CheckOne(AnalysisResult r, LimitProfile p)
     {
         var checks = new List<LimitCheck>();
         double k = p.CoverageFactor;

@@ -188,6 +188,7 @@ internal static partial class DemodulationPass
                 if (i0 < m)
                 {
                     Sums(k, _a.AsSpan(i0, m - i0), _df.AsSpan(i0, m - i0), _ph.AsSpan(i0, m - i0), n0 + i0 - tMid);
+                    s.Power.Add(n0 + i0, _a.AsSpan(i0, m - i0), countStart, ref k.PowerHead);
                     // Transition stream |df[i] - df[i - 1]|.
                     _x[i0] = Math.Abs(_df[i0] - prevD);
                     VectorMath.AbsDifference(

@@ -49,7 +49,8 @@ internal static partial class DemodulationPass
         long FirstSegment,
         long SegmentCandidates,
         (double Intercept, double Slope)? Fit,
-        double[]? Offsets
+        double[]? Offsets,
+        PowerTrack Power
     )
     {
         public int Hop => DemodFft / 2;
@@ -93,6 +94,7 @@ internal static partial class DemodulationPass
             Sd,
             Sdd;
         public double PhaseAtNext;
+        public PowerTrack.Head PowerHead;
     }
 
     /// <summary>Runs the pass; with <paramref name="fit"/> (intercept, slope of the phase, and the chunk offsets of an
@@ -146,7 +148,8 @@ internal static partial class DemodulationPass
             firstSeg,
             Math.Max(0, lastSeg - firstSeg + 1),
             fit,
-            offsets
+            offsets,
+            new PowerTrack(expected, p.Fsd)
         );
 
         var sums = new ChunkSums[chunks];
@@ -243,9 +246,12 @@ internal static partial class DemodulationPass
             sdd += k.Sdd;
             used += k.Used;
             r.NearFullScale += k.NearFullScale;
+            s.Power.Merge(k.PowerHead);
             off += k.PhaseAtNext;
         }
         r.Samples = used;
+        r.BlockPower = s.Power.Means();
+        r.BlockLength = s.Power.BlockLength;
         if (used > 0 && sw > 0)
         {
             double mt = swt / sw,

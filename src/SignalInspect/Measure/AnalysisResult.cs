@@ -110,6 +110,17 @@ public sealed record AnalysisResult
 
     /// <summary>What the waveform shows (e.g. "instantaneous frequency (Hz)").</summary>
     public required string WaveformLabel { get; init; }
+
+    /// <summary>The transmissions found (carrier-on intervals); each with its own result when the capture was measured
+    /// transmission by transmission.</summary>
+    public IReadOnlyList<Transmission> Transmissions { get; init; } = [];
+
+    /// <summary>Which of <see cref="Transmissions"/> the figures of this result are (0-based); null when the
+    /// analysis is of the whole window.</summary>
+    public int? MeasuredTransmission { get; init; }
+
+    /// <summary>How the figures were obtained, beyond the method record (one line each).</summary>
+    public IReadOnlyList<string> Notes { get; init; } = [];
 }
 
 /// <summary>On-off keying: how much of the time the carrier is on, and its level then.</summary>

@@ -34,6 +34,19 @@ public static class Analyzer
         Action<long>? progress = null,
         CancellationToken cancel = default,
         StageTimer? timer = null
+    ) => Run(source, options, progress, cancel, timer, hash: null, split: true);
+
+    /// <summary>The analysis of <see cref="Analyze"/>; <paramref name="split"/>: a capture of several transmissions
+    /// (or one with silence around it) is measured transmission by transmission (each a call without it), sharing
+    /// the file's <paramref name="hash"/>.</summary>
+    private static AnalysisResult Run(
+        CaptureSource source,
+        AnalysisOptions? options,
+        Action<long>? progress,
+        CancellationToken cancel,
+        StageTimer? timer,
+        Task<string>? hash,
+        bool split
     )
     {
         options ??= new AnalysisOptions();
@@ -46,7 +59,7 @@ public static class Analyzer
         var (first, count) = source.WindowSamples(options.StartS, options.DurationS);
         timer.Note($"start: {StageTimer.Memory()}");
         double hashDoneS = 0;
-        Task<string> hash = Task.Run(
+        hash ??= Task.Run(
             () =>
             {
                 string h = FileHash.Sha256(info.DataPath ?? info.Path);
@@ -124,6 +137,18 @@ public static class Analyzer
             throw CaptureException.ForFile(info.Path, "too few samples remain after the channel filter to demodulate");
         double fsd = channel.DecimatedRateHz;
         double carrierAxisHz = coarse + b.Slope * fsd / (2 * Math.PI); // the slope is in rad per decimated sample
+
+        // Transmissions: the channel's power against time. Silence must not read as modulation: a capture with
+        // carrier-off time is measured again, transmission by transmission.
+        IReadOnlyList<Transmission> transmissions = TransmissionFinder.Find(
+            b.BlockPower,
+            b.BlockLength * channel.Decimation / fs,
+            first / fs,
+            (first + count) / fs,
+            bw.NoiseFloorDensity * (info.IsComplex ? 2 : 1) * channel.HalfWidthHz
+        );
+        if (split && TransmissionFinder.Splits(transmissions, count / fs))
+            return ByTransmission(source, options, cancel, hash, transmissions, selection, info);
 
         // Classification, then the modulating frequency from the demodulated spectra.
         var features = DemodulatedFeatures.From(b, bw.NoiseFloorDensity * 2 * channel.HalfWidthHz);
@@ -274,7 +299,47 @@ public static class Analyzer
             TrendHigh = [.. longT.Zip(longHigh)],
             TrendLow = [.. longT.Zip(longLow)],
             WaveformLabel = waveLabel,
+            Transmissions = transmissions,
         };
+    }
+
+    /// <summary>Each transmission measured on its own (the emission found in the whole capture pinned); the result
+    /// is the longest one's, with every transmission's in <see cref="AnalysisResult.Transmissions"/>.</summary>
+    private static AnalysisResult ByTransmission(
+        CaptureSource source,
+        AnalysisOptions options,
+        CancellationToken cancel,
+        Task<string> hash,
+        IReadOnlyList<Transmission> found,
+        Selection selection,
+        CaptureInfo info
+    )
+    {
+        SignalSelection? pinned = options.Signal
+            ?? (
+                selection.Measured is { } e
+                    ? new SignalSelection(FrequencyAxis.Of(info).ToReported(e.CentreHz), null)
+                    : null
+            );
+        var measured = new List<Transmission>();
+        foreach (Transmission t in found)
+        {
+            AnalysisOptions one = options with { StartS = t.StartS, DurationS = t.DurationS, Signal = pinned };
+            measured.Add(t with { Result = Run(source, one, null, cancel, null, hash, split: false) });
+        }
+        int longest = 0;
+        for (int i = 1; i < measured.Count; i++)
+            if (measured[i].DurationS > measured[longest].DurationS)
+                longest = i;
+        AnalysisResult top = measured[longest].Result!;
+        CultureInfo c = CultureInfo.InvariantCulture;
+        Transmission l = measured[longest];
+        double onAir = measured.Sum(t => t.DurationS);
+        string note =
+            string.Create(c, $"{measured.Count} transmission(s) found, {onAir:0.###} s on air: each is measured on ")
+            + string.Create(c, $"its own (transmissions[]) and the figures here are transmission {longest + 1}'s, ")
+            + string.Create(c, $"the longest ({l.StartS:0.###}-{l.EndS:0.###} s); limits are judged on every one");
+        return top with { Transmissions = measured, MeasuredTransmission = longest, Notes = [.. top.Notes, note] };
     }
 
     /// <summary>Bins across the occupied bandwidth the default spectrum should give (the emission's shape, not the

@@ -204,6 +204,7 @@ public static class AnalysisJson
             w.WriteString("emissionDesignator", d);
         else
             w.WriteNull("emissionDesignator");
+        WriteTransmissions(w, r);
         var m = r.Method;
         w.WriteStartObject("method");
         w.WriteString("window", r.Spectrum.Mean.Window.Name);
@@ -219,7 +220,7 @@ public static class AnalysisJson
         w.WriteBoolean("dcSuppressed", r.Spectrum.DcBinsSuppressed > 0);
         w.WriteEndObject();
         w.WriteStartArray("notes");
-        foreach (string n in info.Notes)
+        foreach (string n in info.Notes.Concat(r.Notes))
             w.WriteStringValue(n);
         w.WriteEndArray();
         w.WriteStartArray("warnings");
@@ -230,6 +231,44 @@ public static class AnalysisJson
             ReportJson.WriteJudgement(w, judged);
         w.WriteEndObject();
     }
+
+    /// <summary>
+    /// <c>transmissions</c>: each carrier-on interval (<c>startS</c>, <c>endS</c>, <c>durationS</c> from the capture's
+    /// first sample) with its own class and main figures and their expanded uncertainties (k = 2), null where they do
+    /// not apply; <c>measuredTransmission</c>: which of them (from 0) the document's figures are, null when they are
+    /// of the whole window.
+    /// </summary>
+    private static void WriteTransmissions(Utf8JsonWriter w, AnalysisResult r)
+    {
+        w.WriteStartArray("transmissions");
+        foreach (Transmission t in r.Transmissions)
+        {
+            // Without its own result a transmission is the whole analysis's (a capture with one transmission).
+            AnalysisResult x = t.Result ?? r;
+            w.WriteStartObject();
+            w.WriteNumber("startS", Math.Round(t.StartS, 6));
+            w.WriteNumber("endS", Math.Round(t.EndS, 6));
+            w.WriteNumber("durationS", Math.Round(t.DurationS, 6));
+            w.WriteString("modulation", x.Classification.Kind.Name());
+            CaptureInfoJson.WriteNumberOrNull(w, "channelSnrDb", x.ChannelSnrDb);
+            CaptureInfoJson.WriteNumberOrNull(w, "carrierFrequencyHz", x.Carrier?.FrequencyHz.Value);
+            CaptureInfoJson.WriteNumberOrNull(w, "carrierOffsetHz", x.Carrier?.OffsetHz);
+            CaptureInfoJson.WriteNumberOrNull(w, "carrierOffsetPpm", x.Carrier?.OffsetPpm);
+            CaptureInfoJson.WriteNumberOrNull(w, "carrierExpandedUncertaintyHz", Expanded(x.Carrier?.FrequencyHz));
+            CaptureInfoJson.WriteNumberOrNull(w, "peakDeviationHz", x.Fm?.PeakDeviationHz.Value);
+            CaptureInfoJson.WriteNumberOrNull(w, "peakDeviationExpandedUncertaintyHz", Expanded(x.Fm?.PeakDeviationHz));
+            CaptureInfoJson.WriteNumberOrNull(w, "depthPercent", x.Am?.DepthPercent.Value);
+            CaptureInfoJson.WriteNumberOrNull(w, "depthExpandedUncertaintyPercent", Expanded(x.Am?.DepthPercent));
+            CaptureInfoJson.WriteNumberOrNull(w, "modulatingFrequencyHz", x.ModulatingFrequencyHz?.Value);
+            CaptureInfoJson.WriteNumberOrNull(w, "occupiedBandwidthHz", x.Bandwidth.OccupiedHz);
+            CaptureInfoJson.WriteNumberOrNull(w, "occupiedBandwidthExpandedUncertaintyHz", 2 * x.OccupiedUncertaintyHz);
+            w.WriteEndObject();
+        }
+        w.WriteEndArray();
+        CaptureInfoJson.WriteNumberOrNull(w, "measuredTransmission", r.MeasuredTransmission);
+    }
+
+    private static double? Expanded(Measured? m) => m is { } v ? 2 * v.StandardUncertainty : null;
 
     /// <summary>The software version written into outputs.</summary>
     public static string Version => typeof(AnalysisJson).Assembly.GetName().Version?.ToString(3) ?? "0";

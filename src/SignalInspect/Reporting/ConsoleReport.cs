@@ -29,6 +29,11 @@ public static class ConsoleReport
                 + $"): {cls.Reason}"
         );
         Line("SNR in band", a.ChannelSnrDb.ToString("0.0", C) + " dB");
+        IReadOnlyList<string> transmissions = ResultRows.Transmissions(a, k);
+        for (int i = 0; i < transmissions.Count; i++)
+            Line(i == 0 ? "transmissions" : "", transmissions[i]);
+        foreach (string n in a.Notes)
+            Line("note", n);
         foreach (ResultRow row in ResultRows.For(a, [], k))
         {
             if (row.Key == "modulation")
@@ -84,7 +89,8 @@ public static class ConsoleReport
                         + string.Create(C, $"limit {row.LimitText}, margin {row.Margin:+0.###;-0.###}")
                 : $"limit {row.LimitText}";
             string why = row.Reason is { } reason ? $": {reason}" : string.Empty;
-            o.WriteLine($"  {v.Text(),-13} {row.Quantity}: {reading}{why}");
+            string where = row.Where is { } tx ? $" [{tx}]" : string.Empty;
+            o.WriteLine($"  {v.Text(),-13} {row.Quantity}{where}: {reading}{why}");
         }
         o.WriteLine($"{"verdict",-LabelWidth}{report.Overall?.Text()}");
     }

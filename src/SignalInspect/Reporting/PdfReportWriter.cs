@@ -126,6 +126,18 @@ public static class PdfReportWriter
             l.Small,
             XBrushes.DimGray
         );
+        IReadOnlyList<string> transmissions = ResultRows.Transmissions(a, r.Profile?.CoverageFactor ?? 2);
+        if (transmissions.Count > 0)
+        {
+            l.Gap(8);
+            l.Text("Transmissions (carrier-on intervals, from the capture's first sample)", l.H2);
+            foreach (string t in transmissions)
+                l.Text("- " + t, l.Body);
+            foreach (string n in a.Notes)
+                l.Text(n, l.Small, XBrushes.DimGray);
+            foreach (LimitCheck x in r.Checks.Where(x => x.Where is not null))
+                l.Text($"- {x.Measurement}: {x.Verdict.Text()}, {x.Where}", l.Body);
+        }
         var unproven = r.Checks.Where(x => x.Reason is not null).ToList();
         if (unproven.Count > 0)
         {

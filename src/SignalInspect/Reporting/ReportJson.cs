@@ -68,6 +68,8 @@ public static class ReportJson
                 w.WriteString("verdict", verdict.Text());
                 w.WriteString("basis", c.Note);
                 w.WriteString("reason", c.Reason);
+                CaptureInfoJson.WriteNumberOrNull(w, "transmission", c.Transmission);
+                w.WriteString("where", c.Where);
                 w.WriteEndObject();
             }
             w.WriteEndArray();

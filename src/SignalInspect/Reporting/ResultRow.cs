@@ -52,6 +52,12 @@ public sealed record ResultRow
     /// <summary>Why the verdict is INCONCLUSIVE or NOT TESTED.</summary>
     public string? Reason { get; init; }
 
+    /// <summary>For a check judged on every transmission: the worst one, in words; null otherwise.</summary>
+    public string? Where { get; init; }
+
+    /// <summary>For a check judged on every transmission: the worst one's index (from 0); null otherwise.</summary>
+    public int? Transmission { get; init; }
+
     /// <summary>A short note for the last column of an unjudged row ("conf. 0.93", "Bn 11000 Hz").</summary>
     public string? Note { get; init; }
 
@@ -64,7 +70,12 @@ public sealed record ResultRow
     /// <summary>The value as printed: <see cref="Text"/>, or the number in <see cref="Format"/> ("-" when not
     /// finite).</summary>
     public string ValueText =>
-        Text ?? (Value is { } v && double.IsFinite(v) ? v.ToString(Format, CultureInfo.InvariantCulture) : "-");
+        Text
+        ?? (Value is { } v && double.IsFinite(v) ? Unsigned0(v.ToString(Format, CultureInfo.InvariantCulture)) : "-");
+
+    /// <summary>"-0" (a small negative value rounded to nothing) written as "0".</summary>
+    private static string Unsigned0(string s) =>
+        s.StartsWith('-') && s.TrimStart('-').Trim('0', '.').Length == 0 ? s[1..] : s;
 }
 
 /// <summary>Builds the rows of a report from an analysis and its limit checks.</summary>
@@ -100,6 +111,8 @@ public static class ResultRows
                     Verdict = c.Verdict,
                     Note = c.Basis,
                     Reason = c.Reason,
+                    Where = c.Where,
+                    Transmission = c.Transmission,
                 }
             );
         // Values already judged above are not repeated as information rows.
@@ -274,5 +287,33 @@ public static class ResultRows
                 a.NecessaryBandwidthHz is { } nb ? $"Bn {nb.ToString("0", C)} Hz" : "-"
             );
         return rows;
+    }
+
+    /// <summary>
+    /// One line per transmission found ("2: 6-9.001 s (3.001 s), fm, offset -0.1 Hz, peak deviation 2993.1 Hz
+    /// +/- 16.8 Hz, OBW 8016.8 Hz"): empty when the capture holds one transmission that fills it.
+    /// </summary>
+    public static IReadOnlyList<string> Transmissions(AnalysisResult a, double coverageFactor)
+    {
+        if (a.Transmissions.Count == 0 || (a.Transmissions.Count == 1 && a.Transmissions[0].Result is null))
+            return [];
+        var lines = new List<string>();
+        for (int i = 0; i < a.Transmissions.Count; i++)
+        {
+            Transmission t = a.Transmissions[i];
+            var parts = new List<string>
+            {
+                string.Create(C, $"{i + 1}: {t.StartS:0.###}-{t.EndS:0.###} s ({t.DurationS:0.###} s)"),
+            };
+            AnalysisResult x = t.Result ?? a;
+            foreach (ResultRow row in For(x, [], coverageFactor).Where(r => r.Headline || r.Key == "modulation"))
+            {
+                string u = row.ExpandedUncertainty is { } e ? " +/- " + e.ToString(row.Format, C) : string.Empty;
+                string unit = row.Unit.Length > 0 ? " " + row.Unit : string.Empty;
+                parts.Add($"{row.HeadlineLabel ?? row.Quantity} {row.ValueText}{u}{unit}".Trim());
+            }
+            lines.Add(string.Join(", ", parts));
+        }
+        return lines;
     }
 }

@@ -44,26 +44,35 @@ public sealed class SignalGenerator
         {
             double t = _n / fs;
             double a = s.Amplitude;
-            double cycles = Frac(s.CarrierOffsetHz * _n / fs) + Frac(0.5 * s.DriftHzPerS * t * t);
+            double offset = s.CarrierOffsetHz;
+            double? amount = null;
+            if (s.Bursts.Count > 0)
+            {
+                if (s.BurstAt(t) is { } burst)
+                    (offset, amount) = (burst.OffsetHz ?? offset, burst.Amount);
+                else
+                    a = 0;
+            }
+            double cycles = Frac(offset * _n / fs) + Frac(0.5 * s.DriftHzPerS * t * t);
             double phi = 0;
             switch (s.Kind)
             {
-                case SignalKind.Am when s.ExtraTones.Count == 0 && s.AmDepth <= 1:
-                    a *= 1 + s.AmDepth * Math.Cos(2 * Math.PI * Frac(s.ModulatingFrequencyHz * _n / fs));
+                case SignalKind.Am when s.ExtraTones.Count == 0 && (amount ?? s.AmDepth) <= 1:
+                    a *= 1 + (amount ?? s.AmDepth) * Math.Cos(2 * Math.PI * Frac(s.ModulatingFrequencyHz * _n / fs));
                     break;
                 case SignalKind.Am:
-                    a *= s.Envelope(_n);
+                    a *= s.Envelope(_n, amount ?? s.AmDepth);
                     break;
                 case SignalKind.Fm:
                     phi =
-                        s.PeakDeviationHz
+                        (amount ?? s.PeakDeviationHz)
                         / s.ModulatingFrequencyHz
                         * Math.Sin(2 * Math.PI * Frac(s.ModulatingFrequencyHz * _n / fs));
                     foreach (ExtraTone x in s.ExtraTones)
                         phi += x.Amount / x.FrequencyHz * Math.Sin(2 * Math.PI * Frac(x.FrequencyHz * _n / fs));
                     break;
                 case SignalKind.Pm:
-                    phi = s.PeakPhaseRad * Math.Sin(2 * Math.PI * Frac(s.ModulatingFrequencyHz * _n / fs));
+                    phi = (amount ?? s.PeakPhaseRad) * Math.Sin(2 * Math.PI * Frac(s.ModulatingFrequencyHz * _n / fs));
                     foreach (ExtraTone x in s.ExtraTones)
                         phi += x.Amount * Math.Sin(2 * Math.PI * Frac(x.FrequencyHz * _n / fs));
                     break;

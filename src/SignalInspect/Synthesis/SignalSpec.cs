@@ -36,6 +36,15 @@ public readonly record struct ExtraTone(double FrequencyHz, double Amount);
 /// <param name="LevelDbc">Its level relative to the signal's carrier amplitude, dB (negative: weaker).</param>
 public readonly record struct Spur(double OffsetHz, double LevelDbc);
 
+/// <summary>One transmission of a keyed capture: the carrier is on from <paramref name="StartS"/> to
+/// <paramref name="EndS"/>, with its own carrier offset and modulation amount when given.</summary>
+/// <param name="StartS">Key-up, seconds from the first sample.</param>
+/// <param name="EndS">Key-down, seconds.</param>
+/// <param name="OffsetHz">Its carrier offset (replaces the spec's), Hz; null for the spec's.</param>
+/// <param name="Amount">Its main tone's amount (replaces the spec's): peak deviation in Hz (FM), depth as a fraction
+/// (AM), peak phase in rad (PM); null for the spec's.</param>
+public readonly record struct Burst(double StartS, double EndS, double? OffsetHz = null, double? Amount = null);
+
 /// <summary>
 /// Parameters of a synthesised test signal. Formulas (t = n / fs, n = 0, 1, ...):
 /// <list type="bullet">
@@ -51,6 +60,8 @@ public readonly record struct Spur(double OffsetHz, double LevelDbc);
 /// leaves at minus the offset;</item>
 /// <item>FSK: a = A, continuous phase, instantaneous frequency f0 +/- shift/2 for bit 1/0, symbol k covering
 /// floor(n Rs / fs) = k, bits from the seeded generator;</item>
+/// <item>bursts (when any is given): a = 0 outside them (the noise, spurs and image stay: a receiver hears its own
+/// noise between calls); inside one, its offset and amount replace f0 and the main tone's D, m or P;</item>
 /// <item>noise: white Gaussian, complex circular (I and Q each of variance sigma^2 / 2) for complex output,
 /// real of variance sigma^2 for real output, with sigma^2 = P / 10^(SNR/10) and P the signal's mean power
 /// (A^2 (1 + m^2/2) for complex AM, A^2 for complex angle modulation; half of those for real output).
@@ -114,6 +125,20 @@ public sealed record SignalSpec
     /// <summary>Level of the IQ image relative to the signal, dB (complex output only); null for none.</summary>
     public double? ImageDbc { get; init; }
 
+    /// <summary>Transmissions of a keyed capture (the carrier is off outside them); empty for a carrier on
+    /// throughout. The SNR is the signal's while on.</summary>
+    public IReadOnlyList<Burst> Bursts { get; init; } = [];
+
+    /// <summary>The burst holding time <paramref name="t"/> (bursts in the order given, the first that holds it),
+    /// or null when the carrier is off.</summary>
+    internal Burst? BurstAt(double t)
+    {
+        foreach (Burst b in Bursts)
+            if (t >= b.StartS && t < b.EndS)
+                return b;
+        return null;
+    }
+
     /// <summary>Seed of the noise and FSK data generator.</summary>
     public int Seed { get; init; } = 1;
 
@@ -153,9 +178,12 @@ public sealed record SignalSpec
     }
 
     /// <summary>The AM envelope factor at sample k: max(0, 1 + m cos(2 pi fm t) + sum_i m_i cos(2 pi f_i t)).</summary>
-    internal double Envelope(long k)
+    internal double Envelope(long k) => Envelope(k, AmDepth);
+
+    /// <summary>The AM envelope factor at sample k with the main tone's depth <paramref name="depth"/>.</summary>
+    internal double Envelope(long k, double depth)
     {
-        double e = 1 + AmDepth * Math.Cos(2 * Math.PI * Frac(ModulatingFrequencyHz * k / SampleRateHz));
+        double e = 1 + depth * Math.Cos(2 * Math.PI * Frac(ModulatingFrequencyHz * k / SampleRateHz));
         foreach (ExtraTone t in ExtraTones)
             e += t.Amount * Math.Cos(2 * Math.PI * Frac(t.FrequencyHz * k / SampleRateHz));
         return Math.Max(0, e);
@@ -239,6 +267,23 @@ public sealed record SignalSpec
         {
             Positive(FskShiftHz, nameof(FskShiftHz));
             Positive(SymbolRateBd, nameof(SymbolRateBd));
+        }
+        foreach (Burst b in Bursts)
+        {
+            if (!(double.IsFinite(b.StartS) && double.IsFinite(b.EndS) && b.StartS >= 0 && b.EndS > b.StartS))
+                throw new SettingException(
+                    nameof(Bursts),
+                    b.StartS,
+                    "each burst needs 0 <= start < end, in seconds from the first sample"
+                );
+            if (b.StartS >= DurationS)
+                throw new SettingException(nameof(Bursts), b.StartS, "a burst must start before the capture ends");
+            if (Bursts.Any(o => o != b && o.StartS < b.EndS && b.StartS < o.EndS))
+                throw new SettingException(nameof(Bursts), b.StartS, "bursts must not overlap");
+            if (b.OffsetHz is { } bo && !(Math.Abs(bo) < SampleRateHz / 2 && (IsComplex || bo > 0)))
+                throw new SettingException(nameof(Bursts), bo, "a burst's offset must lie inside the sampled band");
+            if (b.Amount is { } ba && !(double.IsFinite(ba) && ba >= 0))
+                throw new SettingException(nameof(Bursts), ba, "a burst's amount must be a number from 0 up");
         }
         if (!double.IsFinite(DriftHzPerS))
             throw new SettingException(nameof(DriftHzPerS), DriftHzPerS, "must be a number");

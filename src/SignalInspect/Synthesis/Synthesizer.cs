@@ -42,6 +42,15 @@ public static class Synthesizer
             mod += string.Format(c, " plus {0:R} by {1:R} Hz", t.Amount, t.FrequencyHz);
         foreach (Spur sp in s.Spurs)
             mod += string.Format(c, ", a carrier at {0:R} Hz from it, {1:R} dBc", sp.OffsetHz, sp.LevelDbc);
+        foreach (Burst b in s.Bursts)
+            mod += string.Format(
+                c,
+                ", keyed {0:R}-{1:R} s{2}{3}",
+                b.StartS,
+                b.EndS,
+                b.OffsetHz is { } bo ? string.Format(c, " at {0:R} Hz", bo) : "",
+                b.Amount is { } ba ? string.Format(c, " amount {0:R}", ba) : ""
+            );
         if (s.ImageDbc is { } image)
             mod += string.Format(c, ", an IQ image at {0:R} dBc", image);
         string snr = s.SnrDb is { } db ? string.Format(c, ", SNR {0:R} dB", db) : ", no noise";

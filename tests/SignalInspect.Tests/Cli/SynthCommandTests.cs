@@ -90,6 +90,62 @@ public class SynthCommandTests
     }
 
     [Fact]
+    public void Keyed_calls_from_synth_are_listed_and_judged_one_by_one()
+    {
+        // Issue 22: two calls (2.5 and 3.2 kHz deviation) with silence between, through the command line.
+        // Expected values from the construction; the profile's 3 kHz limit fails on the second call only.
+        using var tmp = new TempDir();
+        string path = tmp.File("calls.cf32");
+        var (code, _, stderr) = CliRunner.Run(
+            "synth",
+            path,
+            "--kind",
+            "fm",
+            "--duration",
+            "4",
+            "--snr",
+            "30",
+            "--burst",
+            "0.5:1.5",
+            "--burst",
+            "2.2:3.6:200:3200"
+        );
+        Assert.True(code == 0, stderr);
+        string profile = tmp.File("p.json");
+        File.WriteAllText(profile, """{"name": "3 kHz", "modulation": ["fm"], "maxPeakDeviationHz": 3000}""");
+        var (code2, json, err2) = CliRunner.Run("analyze", path, "--limits", profile, "--json", "-");
+        Assert.Equal(1, code2); // FAIL
+        Assert.Contains("worst is transmission 2 of 2", err2); // the console summary goes to stderr with --json -
+        JsonElement j = JsonDocument.Parse(json).RootElement;
+        JsonElement[] tx = [.. j.GetProperty("transmissions").EnumerateArray()];
+        Assert.Equal(2, tx.Length);
+        Assert.Equal(2.2, tx[1].GetProperty("startS").GetDouble(), 0.01);
+        Assert.Equal(3.6, tx[1].GetProperty("endS").GetDouble(), 0.01);
+        Assert.Equal(200, tx[1].GetProperty("carrierOffsetHz").GetDouble(), 5.0);
+        Assert.Equal(2500, tx[0].GetProperty("peakDeviationHz").GetDouble(), 50.0);
+        Assert.Equal(3200, tx[1].GetProperty("peakDeviationHz").GetDouble(), 64.0);
+        Assert.Equal(1, j.GetProperty("measuredTransmission").GetInt32()); // the longer call's figures lead
+        JsonElement dev = j.GetProperty("checks")
+            .EnumerateArray()
+            .Single(c => c.GetProperty("measurement").GetString() == "FM peak deviation");
+        Assert.Equal("FAIL", dev.GetProperty("verdict").GetString());
+        Assert.Equal(1, dev.GetProperty("transmission").GetInt32());
+        Assert.Equal("FAIL", j.GetProperty("verdict").GetString());
+    }
+
+    [Theory]
+    [InlineData("2:1", "--burst")]
+    [InlineData("1", "START:END")]
+    public void A_bad_burst_is_refused_with_its_option(string value, string message)
+    {
+        using var tmp = new TempDir();
+        var (code, _, stderr) = CliRunner.Run("synth", tmp.File("b.cf32"), "--burst", value);
+        Assert.Equal(2, code);
+        Assert.Contains(message, stderr);
+        Assert.Empty(Directory.GetFiles(tmp.Path));
+    }
+
+    [Fact]
     public void Refuses_to_overwrite_without_force()
     {
         using var tmp = new TempDir();
