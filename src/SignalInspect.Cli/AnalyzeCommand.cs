@@ -66,6 +66,14 @@ internal static class AnalyzeCommand
             Description = "De-emphasis time constant in microseconds (e.g. 50 or 75; default off).",
             HelpName = "US",
         };
+        var interval = new Option<double?>("--track-interval")
+        {
+            Description =
+                "Length in seconds of the windows the carrier, deviation or depth and level are followed in (default "
+                + "about 0.1 s, a whole number of periods of the modulating tone); the frequency tolerance is judged "
+                + "on the worst window.",
+            HelpName = "S",
+        };
         var force = new Option<bool>("--force") { Description = "Replace existing output files." };
         var report = new Option<string?>("--report")
         {
@@ -114,6 +122,7 @@ internal static class AnalyzeCommand
             lp,
             hp,
             deemph,
+            interval,
             force,
             report,
             limits,
@@ -164,6 +173,7 @@ internal static class AnalyzeCommand
                 PostLowPassHz = r.GetValue(lp),
                 PostHighPassHz = r.GetValue(hp),
                 DeEmphasisUs = r.GetValue(deemph),
+                TrackIntervalS = r.GetValue(interval),
                 SuppressDc = r.GetValue(spec.SuppressDc),
                 StartS = r.GetValue(spec.Start) ?? 0,
                 DurationS = r.GetValue(spec.Duration),

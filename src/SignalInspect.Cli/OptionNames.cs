@@ -19,6 +19,7 @@ internal static class OptionNames
             ["VerifyChecksum"] = "--no-verify",
             ["StartS"] = "--start",
             ["DurationS"] = "--duration",
+            ["TrackIntervalS"] = "--track-interval",
             // Spectrum (SpectrumSettings)
             ["FftSize"] = "--fft",
             ["RbwHz"] = "--rbw",

@@ -133,7 +133,14 @@ public static class Judgement
                     CultureInfo.InvariantCulture,
                     $"worst is transmission {i + 1} of {r.Transmissions.Count}, {t.StartS:0.###}-{t.EndS:0.###} s"
                 );
-            worst.Add(checks[j] with { Transmission = alike ? null : i, Where = where });
+            string? inner = checks[j].Where;
+            worst.Add(
+                checks[j] with
+                {
+                    Transmission = alike ? null : i,
+                    Where = inner is null ? where : $"{where}; {inner}",
+                }
+            );
         }
         return worst;
     }
@@ -294,15 +301,44 @@ public static class Judgement
                 src,
                 "the RF frequency is unknown (no centre frequency and no nominal): a ppm tolerance cannot be applied"
             );
-        return Upper(
+        string limitText = string.Create(c, $"<= {t:0.###} Hz ({p.ToleranceText} of {nominal:0.###} Hz)");
+        LimitCheck whole = Upper(
             "carrier frequency error |f - f0|",
             Math.Abs(offset),
             "Hz",
             k * car.FrequencyHz.StandardUncertainty,
             t,
-            string.Create(c, $"<= {t:0.###} Hz ({p.ToleranceText} of {nominal:0.###} Hz)"),
+            limitText,
             string.Create(c, $"{src}; offset {offset:+0.###;-0.###} Hz")
         );
+        if (r.Timeline is not { Windows.Count: > 1 } tl)
+            return whole;
+        // Against time: every window is judged and the worst decides (a drifting carrier may spend seconds beyond
+        // the tolerance while its mean is inside). A window's U adds its own scatter to the carrier's budget.
+        LimitCheck? worst = null;
+        foreach (TrackWindow w in tl.Windows)
+        {
+            double o = offset + (w.CarrierFrequencyHz - car.FrequencyHz.Value);
+            double u = Math.Sqrt(
+                w.StandardUncertaintyHz * w.StandardUncertaintyHz
+                    + car.FrequencyHz.StandardUncertainty * car.FrequencyHz.StandardUncertainty
+            );
+            string where =
+                string.Create(c, $"worst of {tl.Windows.Count} windows of {tl.WindowS:0.###} s: ")
+                + string.Create(c, $"{w.StartS:0.###}-{w.EndS:0.###} s, offset {o:+0.###;-0.###} Hz ")
+                + string.Create(c, $"(whole capture {offset:+0.###;-0.###} Hz)");
+            LimitCheck one = Upper("carrier frequency error |f - f0|", Math.Abs(o), "Hz", k * u, t, limitText, src) with
+            {
+                Where = where,
+            };
+            if (
+                worst is null
+                || Severity(one.Verdict) > Severity(worst.Verdict)
+                || (Severity(one.Verdict) == Severity(worst.Verdict) && one.Margin < worst.Margin)
+            )
+                worst = one;
+        }
+        return worst!;
     }
 
     /// <summary>

@@ -164,6 +164,8 @@ internal static partial class DemodulationPass
                     for (int i = 0; i < m; i++)
                         dev[i] = de.Next(dev[i]);
                 lp.Process(dev, _df.AsSpan(0, m));
+                if (s.Detrend is { } trend)
+                    trend.Subtract(n, _df.AsSpan(0, m));
 
                 // Unwrapped phase: a running sum (sequential), with the chunk's events at their samples.
                 long n0 = n;
@@ -188,7 +190,7 @@ internal static partial class DemodulationPass
                 if (i0 < m)
                 {
                     Sums(k, _a.AsSpan(i0, m - i0), _df.AsSpan(i0, m - i0), _ph.AsSpan(i0, m - i0), n0 + i0 - tMid);
-                    s.Power.Add(n0 + i0, _a.AsSpan(i0, m - i0), countStart, ref k.PowerHead);
+                    s.Track.Add(n0 + i0, _a.AsSpan(i0, m - i0), _df.AsSpan(i0, m - i0), countStart, ref k.TrackHead);
                     // Transition stream |df[i] - df[i - 1]|.
                     _x[i0] = Math.Abs(_df[i0] - prevD);
                     VectorMath.AbsDifference(

@@ -50,7 +50,8 @@ internal static partial class DemodulationPass
         long SegmentCandidates,
         (double Intercept, double Slope)? Fit,
         double[]? Offsets,
-        PowerTrack Power
+        BlockTrack Track,
+        CarrierTrack? Detrend
     )
     {
         public int Hop => DemodFft / 2;
@@ -94,17 +95,19 @@ internal static partial class DemodulationPass
             Sd,
             Sdd;
         public double PhaseAtNext;
-        public PowerTrack.Head PowerHead;
+        public BlockTrack.Head TrackHead;
     }
 
     /// <summary>Runs the pass; with <paramref name="fit"/> (intercept, slope of the phase, and the chunk offsets of an
-    /// earlier pass) also the phase histogram about that line (for PM).</summary>
+    /// earlier pass) also the phase histogram about that line (for PM); with <paramref name="detrend"/> the
+    /// instantaneous frequency is taken about that local carrier (a drifting carrier's deviation).</summary>
     public static PassResult Run(
         PassPlan p,
         (double Intercept, double Slope)? fit,
         double[]? offsets,
         CancellationToken cancel,
-        StageTimer? timer = null
+        StageTimer? timer = null,
+        CarrierTrack? detrend = null
     )
     {
         double[] lpTaps =
@@ -149,7 +152,8 @@ internal static partial class DemodulationPass
             Math.Max(0, lastSeg - firstSeg + 1),
             fit,
             offsets,
-            new PowerTrack(expected, p.Fsd)
+            new BlockTrack(expected, p.Fsd),
+            detrend
         );
 
         var sums = new ChunkSums[chunks];
@@ -246,12 +250,11 @@ internal static partial class DemodulationPass
             sdd += k.Sdd;
             used += k.Used;
             r.NearFullScale += k.NearFullScale;
-            s.Power.Merge(k.PowerHead);
+            s.Track.Merge(k.TrackHead);
             off += k.PhaseAtNext;
         }
         r.Samples = used;
-        r.BlockPower = s.Power.Means();
-        r.BlockLength = s.Power.BlockLength;
+        r.Blocks = s.Track.Result();
         if (used > 0 && sw > 0)
         {
             double mt = swt / sw,

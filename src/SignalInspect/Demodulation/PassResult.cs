@@ -24,12 +24,9 @@ internal sealed class PassResult
     public double[] WaveEnvelope = [],
         WaveFreq = [];
 
-    /// <summary>Mean channel power |z|^2 per block of <see cref="BlockLength"/> decimated samples (NaN where no sample
-    /// was counted): the power against time that finds transmissions.</summary>
-    public double[] BlockPower = [];
-
-    /// <summary>Decimated samples per block of <see cref="BlockPower"/>.</summary>
-    public int BlockLength = 1;
+    /// <summary>The channel against time in blocks of about 1 ms: power (transmissions), mean frequency (the carrier
+    /// against time) and extremes.</summary>
+    public BlockStats Blocks = BlockStats.Empty;
 
     /// <summary>Unwrapped phase at the start of each chunk (see <see cref="DemodulationPass"/>), for a later pass over
     /// the same chunks.</summary>

@@ -53,6 +53,10 @@ public sealed record AnalysisOptions
     /// turns it off when no report is written).</summary>
     public bool KeepSpectrogram { get; init; } = true;
 
+    /// <summary>Length of the windows the carrier, deviation or depth and level are followed in (the timeline), s;
+    /// null for the default (about 100 ms, a whole number of modulating-tone periods when one is found).</summary>
+    public double? TrackIntervalS { get; init; }
+
     /// <summary>Worker threads for the spectrum; null for one per core.</summary>
     public int? Threads { get; init; }
 
@@ -73,6 +77,8 @@ public sealed record AnalysisOptions
             throw new SettingException(nameof(NominalHz), nom, "must be a number of Hz");
         if (!(StartS >= 0 && double.IsFinite(StartS)))
             throw new SettingException(nameof(StartS), StartS, "must be 0 or more seconds");
+        if (TrackIntervalS is { } ti && !(ti >= 0.002 && ti <= 3600))
+            throw new SettingException(nameof(TrackIntervalS), ti, "must be from 0.002 to 3600 seconds");
         if (DurationS is { } d && !(d > 0 && double.IsFinite(d)))
             throw new SettingException(nameof(DurationS), d, "must be a positive number of seconds");
     }

@@ -119,6 +119,9 @@ public sealed record AnalysisResult
     /// analysis is of the whole window.</summary>
     public int? MeasuredTransmission { get; init; }
 
+    /// <summary>The carrier, modulation and level against time (null without a carrier).</summary>
+    public Timeline? Timeline { get; init; }
+
     /// <summary>How the figures were obtained, beyond the method record (one line each).</summary>
     public IReadOnlyList<string> Notes { get; init; } = [];
 }

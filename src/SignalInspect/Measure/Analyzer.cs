@@ -57,6 +57,15 @@ public static class Analyzer
         if (info.SampleCount == 0)
             throw CaptureException.ForFile(info.Path, "holds no samples: there is nothing to measure");
         var (first, count) = source.WindowSamples(options.StartS, options.DurationS);
+        if (split && options.TrackIntervalS is { } interval && interval > count / info.SampleRateHz)
+            throw new SettingException(
+                nameof(options.TrackIntervalS),
+                interval,
+                string.Create(
+                    CultureInfo.InvariantCulture,
+                    $"must not be longer than the analysed window ({count / info.SampleRateHz:0.###} s)"
+                )
+            );
         timer.Note($"start: {StageTimer.Memory()}");
         double hashDoneS = 0;
         hash ??= Task.Run(
@@ -140,12 +149,14 @@ public static class Analyzer
 
         // Transmissions: the channel's power against time. Silence must not read as modulation: a capture with
         // carrier-off time is measured again, transmission by transmission.
+        double blockS = b.Blocks.BlockLength * channel.Decimation / fs,
+            channelNoise = bw.NoiseFloorDensity * (info.IsComplex ? 2 : 1) * channel.HalfWidthHz;
         IReadOnlyList<Transmission> transmissions = TransmissionFinder.Find(
-            b.BlockPower,
-            b.BlockLength * channel.Decimation / fs,
+            b.Blocks.Power,
+            blockS,
             first / fs,
             (first + count) / fs,
-            bw.NoiseFloorDensity * (info.IsComplex ? 2 : 1) * channel.HalfWidthHz
+            channelNoise
         );
         if (split && TransmissionFinder.Splits(transmissions, count / fs))
             return ByTransmission(source, options, cancel, hash, transmissions, selection, info);
@@ -179,6 +190,29 @@ public static class Analyzer
         };
         if (MeasurementWarnings.FewTonePeriods(tone, count / fs) is { } fewPeriods)
             warnings.Add(fewPeriods);
+
+        // The carrier against time; a drifting FM carrier's deviation is measured about the local carrier (a second
+        // demodulation pass: the drift would otherwise widen the deviation's percentiles).
+        BlockStats track = b.Blocks;
+        double windowS = TimelineMeasurement.WindowS(options.TrackIntervalS, tone?.Value, blockS);
+        bool detrended = false;
+        if (
+            kind == ModulationKind.Fm
+            && TimelineMeasurement.Measure(track, blockS, first / fs, windowS, channelNoise, null, kind) is { } rough
+            && TimelineMeasurement.Drifts(rough, channel.HalfWidthHz)
+        )
+        {
+            var knots = rough
+                .Windows.Select(w =>
+                    ((long)Math.Round(((w.StartS + w.EndS) / 2 - first / fs) * fsd), w.CarrierOffsetHz)
+                )
+                .ToList();
+            b = DemodulationPass.Run(plan, null, null, cancel, timer, new CarrierTrack(knots));
+            timer.Stage("demodulation pass about the local carrier");
+            features = DemodulatedFeatures.From(b, bw.NoiseFloorDensity * 2 * channel.HalfWidthHz);
+            inputs = inputs with { Pass = b, Features = features };
+            detrended = true;
+        }
 
         // The kind's own measurements.
         AmResult? am = null;
@@ -243,6 +277,14 @@ public static class Analyzer
             kind == ModulationKind.Noise
                 ? null
                 : CarrierMeasurement.Make(info, options.NominalHz, carrierAxisHz, [.. carrierBudget], kind);
+        Timeline? timeline =
+            carrier is null ? null
+            : TimelineMeasurement.Measure(track, blockS, first / fs, windowS, channelNoise, carrier, kind) is { } tl
+                ? tl with
+                {
+                    Detrended = detrended,
+                }
+            : null;
         warnings.AddRange(
             MeasurementWarnings.AfterMeasuring(
                 info,
@@ -300,6 +342,7 @@ public static class Analyzer
             TrendLow = [.. longT.Zip(longLow)],
             WaveformLabel = waveLabel,
             Transmissions = transmissions,
+            Timeline = timeline,
         };
     }
 

@@ -17,6 +17,9 @@ public sealed record CarrierResult
     /// <summary>Offset in parts per million of the RF frequency, null when the RF frequency is unknown.</summary>
     public double? OffsetPpm { get; init; }
 
+    /// <summary>The RF frequency a ppm figure divides by (null when unknown).</summary>
+    public double? PpmReferenceHz { get; init; }
+
     /// <summary>The frequency the offset is taken from.</summary>
     public required string OffsetReference { get; init; }
 
@@ -148,6 +151,7 @@ internal static class CarrierMeasurement
             FrequencyHz = Measured.FromBudget(reported, budget),
             OffsetHz = offset,
             OffsetPpm = rf is { } r && r != 0 ? offset / r * 1e6 : null,
+            PpmReferenceHz = rf is { } r2 && r2 != 0 ? r2 : null,
             OffsetReference = reference,
             Method = method,
         };

@@ -14,7 +14,7 @@ public sealed record Transmission(double StartS, double EndS, AnalysisResult? Re
 }
 
 /// <summary>
-/// Finds the transmissions in the channel's power against time (<see cref="PassResult.BlockPower"/>, blocks of
+/// Finds the transmissions in the channel's power against time (<see cref="PassResult.Blocks"/>, blocks of
 /// about 1 ms): a carrier is on from the block where the power rises <see cref="OnDb"/> above the channel's noise
 /// until it falls below <see cref="OffDb"/> above it (hysteresis). Gaps shorter than <see cref="MinOffS"/> are
 /// bridged (a fade, a syllable of AM, a keyed data burst's zeros) and transmissions shorter than

@@ -205,6 +205,7 @@ public static class AnalysisJson
         else
             w.WriteNull("emissionDesignator");
         WriteTransmissions(w, r);
+        WriteTimeline(w, r.Timeline);
         var m = r.Method;
         w.WriteStartObject("method");
         w.WriteString("window", r.Spectrum.Mean.Window.Name);
@@ -266,6 +267,47 @@ public static class AnalysisJson
         }
         w.WriteEndArray();
         CaptureInfoJson.WriteNumberOrNull(w, "measuredTransmission", r.MeasuredTransmission);
+    }
+
+    /// <summary>
+    /// <c>timeline</c> (null without a carrier): <c>windowS</c>, <c>driftHzPerS</c> and its standard uncertainty,
+    /// the windows' <c>maxOffsetHz</c>, <c>minOffsetHz</c>, <c>meanOffsetHz</c>, <c>deviationAboutLocalCarrier</c>,
+    /// and <c>windows[]</c> (<c>startS</c>, <c>endS</c>, <c>carrierFrequencyHz</c>, <c>carrierOffsetHz</c>,
+    /// <c>carrierOffsetPpm</c>, <c>carrierUncertaintyHz</c> (k = 1), <c>levelDbfs</c>, <c>rawPeakDeviationHz</c>,
+    /// <c>rawDepthPercent</c>).
+    /// </summary>
+    private static void WriteTimeline(Utf8JsonWriter w, Timeline? t)
+    {
+        if (t is null)
+        {
+            w.WriteNull("timeline");
+            return;
+        }
+        w.WriteStartObject("timeline");
+        w.WriteNumber("windowS", Math.Round(t.WindowS, 6));
+        CaptureInfoJson.WriteNumberOrNull(w, "driftHzPerS", t.DriftHzPerS?.Value);
+        CaptureInfoJson.WriteNumberOrNull(w, "driftUncertaintyHzPerS", t.DriftHzPerS?.StandardUncertainty);
+        w.WriteNumber("maxOffsetHz", t.MaxOffsetHz);
+        w.WriteNumber("minOffsetHz", t.MinOffsetHz);
+        w.WriteNumber("meanOffsetHz", t.MeanOffsetHz);
+        w.WriteBoolean("deviationAboutLocalCarrier", t.Detrended);
+        w.WriteStartArray("windows");
+        foreach (TrackWindow x in t.Windows)
+        {
+            w.WriteStartObject();
+            w.WriteNumber("startS", Math.Round(x.StartS, 6));
+            w.WriteNumber("endS", Math.Round(x.EndS, 6));
+            w.WriteNumber("carrierFrequencyHz", x.CarrierFrequencyHz);
+            w.WriteNumber("carrierOffsetHz", x.CarrierOffsetHz);
+            CaptureInfoJson.WriteNumberOrNull(w, "carrierOffsetPpm", x.OffsetPpm);
+            w.WriteNumber("carrierUncertaintyHz", x.StandardUncertaintyHz);
+            w.WriteNumber("levelDbfs", x.LevelDbfs);
+            CaptureInfoJson.WriteNumberOrNull(w, "rawPeakDeviationHz", x.RawPeakDeviationHz);
+            CaptureInfoJson.WriteNumberOrNull(w, "rawDepthPercent", x.RawDepthPercent);
+            w.WriteEndObject();
+        }
+        w.WriteEndArray();
+        w.WriteEndObject();
     }
 
     private static double? Expanded(Measured? m) => m is { } v ? 2 * v.StandardUncertainty : null;

@@ -32,6 +32,8 @@ public static class ConsoleReport
         IReadOnlyList<string> transmissions = ResultRows.Transmissions(a, k);
         for (int i = 0; i < transmissions.Count; i++)
             Line(i == 0 ? "transmissions" : "", transmissions[i]);
+        if (ResultRows.TimelineSummary(a, k) is { } timeline)
+            Line("carrier against time", timeline);
         foreach (string n in a.Notes)
             Line("note", n);
         foreach (ResultRow row in ResultRows.For(a, [], k))

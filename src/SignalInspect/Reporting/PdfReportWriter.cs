@@ -135,7 +135,18 @@ public static class PdfReportWriter
                 l.Text("- " + t, l.Body);
             foreach (string n in a.Notes)
                 l.Text(n, l.Small, XBrushes.DimGray);
-            foreach (LimitCheck x in r.Checks.Where(x => x.Where is not null))
+        }
+        if (ResultRows.TimelineSummary(a, r.Profile?.CoverageFactor ?? 2) is { } timeline)
+        {
+            l.Gap(6);
+            l.Text("Carrier against time: " + timeline, l.Body);
+        }
+        var located = r.Checks.Where(x => x.Where is not null).ToList();
+        if (located.Count > 0)
+        {
+            l.Gap(8);
+            l.Text("Where the deciding readings are", l.H2);
+            foreach (LimitCheck x in located)
                 l.Text($"- {x.Measurement}: {x.Verdict.Text()}, {x.Where}", l.Body);
         }
         var unproven = r.Checks.Where(x => x.Reason is not null).ToList();

@@ -316,4 +316,24 @@ public static class ResultRows
         }
         return lines;
     }
+
+    /// <summary>The carrier against time in one line ("offset -585.8 to +983.7 Hz in 50 windows of 0.1 s, drift
+    /// +320 Hz/s +/- 0.05 Hz/s (U); deviation measured about the local carrier"), null without a timeline of two
+    /// windows or more.</summary>
+    public static string? TimelineSummary(AnalysisResult a, double coverageFactor)
+    {
+        if (a.Timeline is not { Windows.Count: > 1 } t)
+            return null;
+        string text = string.Create(
+            C,
+            $"offset {t.MinOffsetHz:+0.#;-0.#} to {t.MaxOffsetHz:+0.#;-0.#} Hz in {t.Windows.Count} windows of "
+                + $"{t.WindowS:0.###} s"
+        );
+        if (t.DriftHzPerS is { } d)
+            text += string.Create(
+                C,
+                $", drift {d.Value:+0.###;-0.###} Hz/s +/- {coverageFactor * d.StandardUncertainty:0.###} Hz/s (U)"
+            );
+        return t.Detrended ? text + "; deviation measured about the local carrier" : text;
+    }
 }

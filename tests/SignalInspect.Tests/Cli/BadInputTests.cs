@@ -174,4 +174,20 @@ public class CorpusTests
         Assert.Contains(message, stderr);
         Assert.Single(stderr.Trim().Split('\n'));
     }
+
+    [Theory]
+    [InlineData("60", "--track-interval: must not be longer than the analysed window (1.5 s) (got 60)")]
+    [InlineData("0.001", "--track-interval: must be from 0.002 to 3600 seconds")]
+    public void A_track_interval_that_cannot_be_used_is_one_line_and_exit_2(string value, string message)
+    {
+        var (code, _, stderr) = CliRunner.Run(
+            "analyze",
+            TestData.Path("measure", "nbfm-151625.sigmf-meta"),
+            "--track-interval",
+            value
+        );
+        Assert.Equal(2, code);
+        Assert.Contains(message, stderr);
+        Assert.Single(stderr.Trim().Split('\n'));
+    }
 }
