@@ -50,6 +50,7 @@ internal static class OptionNames
             ["ExtraTones"] = "--add-tone",
             ["Spurs"] = "--spur",
             ["Bursts"] = "--burst",
+            ["KeyUp"] = "--key-up",
             ["ImageDbc"] = "--image",
         };
 

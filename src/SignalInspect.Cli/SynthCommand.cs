@@ -84,6 +84,14 @@ internal static class SynthCommand
             HelpName = "START:END[:OFFSET[:AMOUNT]]",
             AllowMultipleArgumentsPerToken = false,
         };
+        var keyUp = new Option<string?>("--key-up")
+        {
+            Description =
+                "A key-up transient, EXCURSION:TAU: at each burst's start (at 0 without bursts) the carrier starts "
+                + "EXCURSION Hz away and settles exponentially with time constant TAU in seconds; e.g. --key-up "
+                + "14k:0.003.",
+            HelpName = "EXCURSION:TAU",
+        };
         var image = new Option<double?>("--image")
         {
             Description = "An IQ image (the receiver's I/Q imbalance) this many dB below the signal, e.g. -28.",
@@ -153,6 +161,7 @@ internal static class SynthCommand
             addTone,
             spur,
             burst,
+            keyUp,
             image,
             snr,
             seed,
@@ -196,6 +205,11 @@ internal static class SynthCommand
                 Spurs = [.. (r.GetValue(spur) ?? []).Select(t => Pair("--spur", t)).Select(p => new Spur(p.A, p.B))],
                 ImageDbc = r.GetValue(image),
                 Bursts = [.. (r.GetValue(burst) ?? []).Select(t => ParseBurst(t, r.GetValue(kind) == "am"))],
+                KeyUp = r.GetValue(keyUp) is { } ku
+                    ? Pair("--key-up", ku) is var (e, tau)
+                        ? new KeyUpTransient(e, tau)
+                        : null
+                    : null,
             };
             SampleFormat format = ChooseFormat(path, r.GetValue(datatype), isReal);
             DateTimeOffset? start = null;

@@ -113,8 +113,8 @@ public static class Judgement
     {
         var measured = r.Transmissions.Select((t, i) => (t, i)).Where(x => x.t.Result is not null).ToList();
         if (measured.Count < 2)
-            return CheckOne(r, p);
-        var each = measured.Select(x => (x.t, x.i, Checks: CheckOne(x.t.Result!, p))).ToList();
+            return CheckOne(r, p, measured.Count == 1 ? measured[0].t : null);
+        var each = measured.Select(x => (x.t, x.i, Checks: CheckOne(x.t.Result!, p, x.t))).ToList();
         int n = each[0].Checks.Count;
         if (each.Any(x => x.Checks.Count != n))
             throw new InvalidOperationException("a profile's checks must not depend on the reading");
@@ -155,7 +155,7 @@ public static class Judgement
             _ => 0,
         };
 
-    private static IReadOnlyList<LimitCheck> CheckOne(AnalysisResult r, LimitProfile p)
+    private static IReadOnlyList<LimitCheck> CheckOne(AnalysisResult r, LimitProfile p, Transmission? tx)
     {
         var checks = new List<LimitCheck>();
         double k = p.CoverageFactor;
@@ -243,6 +243,8 @@ public static class Judgement
                     : LimitCheck.NotTested(what, "%", text, src, Unlike("an AM modulation limit"))
             );
         }
+        if (p.Transient is { } transient)
+            checks.AddRange(TransientChecks(r, p, transient, tx, k, noSignal));
         if (p.Mask is { } mask)
             checks.Add(
                 r.Carrier is not null
@@ -339,6 +341,110 @@ public static class Judgement
                 worst = one;
         }
         return worst!;
+    }
+
+    /// <summary>
+    /// Transient frequency behaviour: the largest difference from the assigned frequency (the profile's nominal, else
+    /// the capture's centre) during t1 and t2 after the key-up and t3 before the key-down, each against its limit.
+    /// </summary>
+    private static IEnumerable<LimitCheck> TransientChecks(
+        AnalysisResult r,
+        LimitProfile p,
+        TransientLimits tl,
+        Transmission? tx,
+        double k,
+        string noSignal
+    )
+    {
+        CultureInfo c = CultureInfo.InvariantCulture;
+        string basis = tl.Rule ?? p.Source ?? p.Name;
+        var parts = new (string What, KeyTransient? Key, double From, double To, double Max)[]
+        {
+            (
+                string.Create(c, $"transient frequency difference, t1 ({1000 * tl.T1S:0.#} ms after key-up)"),
+                tx?.KeyUp,
+                0,
+                tl.T1S,
+                tl.T1MaxHz
+            ),
+            (
+                string.Create(
+                    c,
+                    $"transient frequency difference, t2 ({1000 * tl.T1S:0.#}-{1000 * (tl.T1S + tl.T2S):0.#} ms)"
+                ),
+                tx?.KeyUp,
+                tl.T1S,
+                tl.T1S + tl.T2S,
+                tl.T2MaxHz
+            ),
+            (
+                string.Create(c, $"transient frequency difference, t3 ({1000 * tl.T3S:0.#} ms before key-down)"),
+                tx?.KeyDown,
+                -tl.T3S,
+                0,
+                tl.T3MaxHz
+            ),
+        };
+        foreach (var (what, key, from, to, max) in parts)
+        {
+            string text = string.Create(c, $"<= {max:0.###} Hz");
+            if (r.Carrier is not { } car)
+            {
+                yield return LimitCheck.NotTested(what, "Hz", text, basis, noSignal);
+                continue;
+            }
+            if (key is null)
+            {
+                yield return LimitCheck.NotTested(
+                    what,
+                    "Hz",
+                    text,
+                    basis,
+                    "the capture holds no such key instant (the carrier is on at its start or end, or it was not "
+                        + "measured transmission by transmission)"
+                );
+                continue;
+            }
+            bool absolute = FrequencyAxis.Of(r.Capture).IsAbsolute;
+            double settledOffset =
+                absolute && p.NominalFrequencyHz is { } nom
+                    ? key.SettledHz - nom
+                    : car.OffsetHz + (key.SettledHz - car.FrequencyHz.Value);
+            var inside = key.Trace.Where(x => x.T >= from && x.T <= to).ToList();
+            if (inside.Count == 0)
+            {
+                yield return LimitCheck.NotTested(
+                    what,
+                    "Hz",
+                    text,
+                    basis,
+                    "no reading in the interval (the carrier was not yet at its full level, or the transmission is "
+                        + "shorter)"
+                );
+                continue;
+            }
+            double worst = inside.Max(x => Math.Abs(settledOffset + x.DfHz));
+            LimitCheck check = Upper(
+                what,
+                worst,
+                "Hz",
+                k * key.StandardUncertaintyHz,
+                max,
+                text,
+                string.Create(c, $"{basis}; key instant {key.InstantS:0.####} s")
+            );
+            if (check.Verdict == Verdict.Pass && key.VisibleHz + Math.Abs(settledOffset) < max)
+                check = check with
+                {
+                    Verdict = Verdict.Inconclusive,
+                    Reason =
+                        string.Create(
+                            c,
+                            $"the capture's band shows +/-{key.VisibleHz:0} Hz about the carrier, less than the limit: "
+                        ) + "an excursion up to the limit would not be seen",
+                };
+            yield return check;
+        }
     }
 
     /// <summary>

@@ -58,6 +58,36 @@ public sealed record EmissionMask
 }
 
 /// <summary>
+/// Transient frequency behaviour at key-up and key-down (the shape of 47 CFR 90.214): the frequency difference from
+/// the assigned frequency must stay within <see cref="T1MaxHz"/> during <see cref="T1S"/> after key-up, within
+/// <see cref="T2MaxHz"/> during the <see cref="T2S"/> after that, and within <see cref="T3MaxHz"/> during the
+/// <see cref="T3S"/> before the carrier is gone.
+/// </summary>
+public sealed record TransientLimits
+{
+    /// <summary>First interval after key-up, s.</summary>
+    public required double T1S { get; init; }
+
+    /// <summary>Second interval (after the first), s.</summary>
+    public required double T2S { get; init; }
+
+    /// <summary>Interval before key-down, s.</summary>
+    public required double T3S { get; init; }
+
+    /// <summary>Largest frequency difference during the first interval, Hz.</summary>
+    public required double T1MaxHz { get; init; }
+
+    /// <summary>Largest frequency difference during the second interval, Hz.</summary>
+    public required double T2MaxHz { get; init; }
+
+    /// <summary>Largest frequency difference during the interval before key-down, Hz.</summary>
+    public required double T3MaxHz { get; init; }
+
+    /// <summary>Where the numbers come from.</summary>
+    public string? Rule { get; init; }
+}
+
+/// <summary>
 /// The limits a transmitter must meet, read from a JSON file of our own format (README, "Limit
 /// profiles"). Every limit is optional; a verdict is given for each one present.
 /// </summary>
@@ -96,6 +126,9 @@ public sealed record LimitProfile
 
     /// <summary>Emission mask, null for none.</summary>
     public EmissionMask? Mask { get; init; }
+
+    /// <summary>Transient frequency behaviour at key-up and key-down; null for none.</summary>
+    public TransientLimits? Transient { get; init; }
 
     /// <summary>Coverage factor k for expanded uncertainties (default 2, about 95 %).</summary>
     public double CoverageFactor { get; init; } = 2;
@@ -149,6 +182,7 @@ public sealed record LimitProfile
             "coverageFactor",
             "notes",
             "modulation",
+            "transient",
         };
         foreach (JsonProperty p in root.EnumerateObject())
             if (!known.Contains(p.Name))
@@ -255,8 +289,26 @@ public sealed record LimitProfile
                 TransmitterPowerW = Num(m, "transmitterPowerW", "mask.transmitterPowerW"),
             };
         }
+        TransientLimits? transient = null;
+        if (root.TryGetProperty("transient", out JsonElement tr))
+        {
+            if (tr.ValueKind != JsonValueKind.Object)
+                throw Bad("transient", "must be an object");
+            double Need(string key) => Num(tr, key, $"transient.{key}") ?? throw Bad($"transient.{key}", "is missing");
+            transient = new TransientLimits
+            {
+                T1S = Need("t1Ms") / 1000,
+                T2S = Need("t2Ms") / 1000,
+                T3S = Need("t3Ms") / 1000,
+                T1MaxHz = Need("t1MaxHz"),
+                T2MaxHz = Need("t2MaxHz"),
+                T3MaxHz = Need("t3MaxHz"),
+                Rule = Str(tr, "rule", "transient.rule"),
+            };
+        }
         return new LimitProfile
         {
+            Transient = transient,
             Modulation = modulation,
             Name = name,
             Source = Str(root, "source", "source"),

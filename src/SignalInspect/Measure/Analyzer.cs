@@ -367,8 +367,17 @@ public static class Analyzer
         var measured = new List<Transmission>();
         foreach (Transmission t in found)
         {
-            AnalysisOptions one = options with { StartS = t.StartS, DurationS = t.DurationS, Signal = pinned };
-            measured.Add(t with { Result = Run(source, one, null, cancel, null, hash, split: false) });
+            var (from, to) = TransmissionFinder.Steady(t);
+            AnalysisOptions one = options with { StartS = from, DurationS = to - from, Signal = pinned };
+            AnalysisResult result = Run(source, one, null, cancel, null, hash, split: false);
+            measured.Add(
+                t with
+                {
+                    Result = result,
+                    KeyUp = TransientMeasurement.Measure(source, t, result, keyUp: true),
+                    KeyDown = TransientMeasurement.Measure(source, t, result, keyUp: false),
+                }
+            );
         }
         int longest = 0;
         for (int i = 1; i < measured.Count; i++)
@@ -381,7 +390,16 @@ public static class Analyzer
         string note =
             string.Create(c, $"{measured.Count} transmission(s) found, {onAir:0.###} s on air: each is measured on ")
             + string.Create(c, $"its own (transmissions[]) and the figures here are transmission {longest + 1}'s, ")
-            + string.Create(c, $"the longest ({l.StartS:0.###}-{l.EndS:0.###} s); limits are judged on every one");
+            + string.Create(c, $"the longest ({l.StartS:0.###}-{l.EndS:0.###} s); limits are judged on every one. ")
+            + string.Create(
+                c,
+                $"Each one's figures leave out {1000 * TransmissionFinder.SteadyAfterKeyUpS:0} ms after its key-up "
+            )
+            + string.Create(
+                c,
+                $"and {1000 * TransmissionFinder.SteadyBeforeKeyDownS:0} ms before its key-down (measured apart as "
+            )
+            + "transients)";
         return top with { Transmissions = measured, MeasuredTransmission = longest, Notes = [.. top.Notes, note] };
     }
 

@@ -4,13 +4,26 @@ namespace SignalInspect.Measure;
 
 /// <summary>One carrier-on interval of a capture; <see cref="Result"/> its own measurements when the capture was
 /// measured transmission by transmission.</summary>
-/// <param name="StartS">Key-up, seconds from the capture's first sample.</param>
-/// <param name="EndS">Key-down, seconds.</param>
-/// <param name="Result">Its measurements; null when the capture held one transmission and the analysis is its.</param>
+/// <param name="StartS">Key-up, seconds from the capture's first sample (the window's start when the carrier was
+/// already on).</param>
+/// <param name="EndS">Key-down, seconds (the window's end when the carrier was still on).</param>
+/// <param name="Result">Its own analysis, when the capture was measured transmission by transmission.</param>
 public sealed record Transmission(double StartS, double EndS, AnalysisResult? Result = null)
 {
     /// <summary>Its duration, s.</summary>
     public double DurationS => EndS - StartS;
+
+    /// <summary>Whether the key-up itself is in the capture (the carrier was off before it).</summary>
+    public bool KeyUpSeen { get; init; }
+
+    /// <summary>Whether the key-down itself is in the capture (the carrier was off after it).</summary>
+    public bool KeyDownSeen { get; init; }
+
+    /// <summary>The frequency at key-up, when measured (<see cref="TransientMeasurement"/>).</summary>
+    public KeyTransient? KeyUp { get; init; }
+
+    /// <summary>The frequency at key-down, when measured.</summary>
+    public KeyTransient? KeyDown { get; init; }
 }
 
 /// <summary>
@@ -38,6 +51,24 @@ public static class TransmissionFinder
 
     /// <summary>Shortest transmission kept, s.</summary>
     public const double MinOnS = 0.05;
+
+    /// <summary>A transmission's steady figures leave out this much after its key-up, s (a synthesiser settling
+    /// from a key-up excursion would otherwise read as modulation; the key-up itself is measured apart,
+    /// <see cref="TransientMeasurement"/>), at most a quarter of the transmission.</summary>
+    public const double SteadyAfterKeyUpS = 0.05;
+
+    /// <summary>And this much before its key-down, s, at most a tenth of the transmission.</summary>
+    public const double SteadyBeforeKeyDownS = 0.01;
+
+    /// <summary>The part of <paramref name="t"/> its steady figures are measured over: from
+    /// <see cref="SteadyAfterKeyUpS"/> after a key-up seen to <see cref="SteadyBeforeKeyDownS"/> before a key-down
+    /// seen.</summary>
+    public static (double StartS, double EndS) Steady(Transmission t)
+    {
+        double a = t.KeyUpSeen ? Math.Min(SteadyAfterKeyUpS, 0.25 * t.DurationS) : 0,
+            b = t.KeyDownSeen ? Math.Min(SteadyBeforeKeyDownS, 0.1 * t.DurationS) : 0;
+        return (t.StartS + a, t.EndS - b);
+    }
 
     /// <summary>At most this many transmissions are measured one by one; a capture with more (a slowly keyed carrier,
     /// a pulse train) is measured whole.</summary>
@@ -99,7 +130,11 @@ public static class TransmissionFinder
                 .Select(t => new Transmission(
                     t.First == firstCounted ? startS : startS + t.First * blockS,
                     t.End == lastCounted + 1 ? endS : Math.Min(endS, startS + t.End * blockS)
-                )),
+                )
+                {
+                    KeyUpSeen = t.First != firstCounted,
+                    KeyDownSeen = t.End != lastCounted + 1,
+                }),
         ];
     }
 

@@ -263,6 +263,8 @@ public static class AnalysisJson
             CaptureInfoJson.WriteNumberOrNull(w, "modulatingFrequencyHz", x.ModulatingFrequencyHz?.Value);
             CaptureInfoJson.WriteNumberOrNull(w, "occupiedBandwidthHz", x.Bandwidth.OccupiedHz);
             CaptureInfoJson.WriteNumberOrNull(w, "occupiedBandwidthExpandedUncertaintyHz", 2 * x.OccupiedUncertaintyHz);
+            WriteKey(w, "keyUp", t.KeyUp);
+            WriteKey(w, "keyDown", t.KeyDown);
             w.WriteEndObject();
         }
         w.WriteEndArray();
@@ -306,6 +308,37 @@ public static class AnalysisJson
             CaptureInfoJson.WriteNumberOrNull(w, "rawDepthPercent", x.RawDepthPercent);
             w.WriteEndObject();
         }
+        w.WriteEndArray();
+        w.WriteEndObject();
+    }
+
+    /// <summary>A key instant's transient: <c>instantS</c>, <c>settledHz</c>, <c>peakExcursionHz</c> (signed, from
+    /// the settled carrier), <c>peakAtS</c> (from the instant), <c>settlingS</c> (key-up), <c>settleBandHz</c>,
+    /// <c>uncertaintyHz</c> (k = 1, of one reading), <c>visibleHz</c>, and the trace as <c>traceS[]</c>,
+    /// <c>traceHz[]</c>; null when the instant is not in the capture.</summary>
+    private static void WriteKey(Utf8JsonWriter w, string name, KeyTransient? k)
+    {
+        if (k is null)
+        {
+            w.WriteNull(name);
+            return;
+        }
+        w.WriteStartObject(name);
+        w.WriteNumber("instantS", Math.Round(k.InstantS, 6));
+        w.WriteNumber("settledHz", k.SettledHz);
+        w.WriteNumber("peakExcursionHz", k.PeakExcursionHz);
+        w.WriteNumber("peakAtS", Math.Round(k.PeakAtS, 6));
+        CaptureInfoJson.WriteNumberOrNull(w, "settlingS", k.SettlingS is { } st ? Math.Round(st, 6) : null);
+        w.WriteNumber("settleBandHz", k.SettleBandHz);
+        w.WriteNumber("uncertaintyHz", k.StandardUncertaintyHz);
+        w.WriteNumber("visibleHz", k.VisibleHz);
+        w.WriteStartArray("traceS");
+        foreach (var (t, _) in k.Trace)
+            w.WriteNumberValue(Math.Round(t, 6));
+        w.WriteEndArray();
+        w.WriteStartArray("traceHz");
+        foreach (var (_, f) in k.Trace)
+            w.WriteNumberValue(Math.Round(f, 3));
         w.WriteEndArray();
         w.WriteEndObject();
     }

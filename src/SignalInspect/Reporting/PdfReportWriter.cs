@@ -308,6 +308,52 @@ public static class PdfReportWriter
             );
             l.Image(wave, w, hWave);
         }
+        KeyUpPlot(l, r, w);
+    }
+
+    /// <summary>The frequency at the first key-up the capture holds, with the profile's transient limits as boxes
+    /// (about the assigned frequency: the profile's nominal, else the capture's centre).</summary>
+    private static void KeyUpPlot(PdfLayout l, MeasurementReport r, double w)
+    {
+        AnalysisResult a = r.Analysis;
+        int index = a.Transmissions.ToList().FindIndex(t => t.KeyUp is not null);
+        if (index < 0)
+            return;
+        Transmission t = a.Transmissions[index];
+        KeyTransient k = t.KeyUp!;
+        AnalysisResult x = t.Result ?? a;
+        double assigned =
+            r.Profile?.NominalFrequencyHz is { } nom && FrequencyAxis.Of(a.Capture).IsAbsolute
+                ? nom
+                : x.Carrier!.FrequencyHz.Value - x.Carrier.OffsetHz;
+        double settled = k.SettledHz - assigned;
+        var boxes = new List<(double, double, double, string)>();
+        if (r.Profile?.Transient is { } tl)
+        {
+            boxes.Add((0, 1000 * tl.T1S, tl.T1MaxHz, "limits (t1, t2)"));
+            boxes.Add((1000 * tl.T1S, 1000 * (tl.T1S + tl.T2S), tl.T2MaxHz, ""));
+        }
+        l.NewPage();
+        l.Text("Frequency at key-up", l.H2);
+        byte[] png = TimePlots.TransientPng(
+            [.. k.Trace.Select(p => (1000 * p.T, settled + p.DfHz))],
+            boxes,
+            string.Create(C, $"Transmission {index + 1}, key-up at {k.InstantS:0.####} s (difference from ")
+                + string.Create(C, $"{assigned:0.###} Hz)"),
+            Px(w),
+            Px(200),
+            Dpi / 96
+        );
+        l.Image(png, w, 200);
+        l.Gap(4);
+        l.Text(
+            string.Create(C, $"Peak {k.PeakExcursionHz:+0;-0} Hz from the settled carrier at {1000 * k.PeakAtS:0.##} ")
+                + string.Create(C, $"ms; within {k.SettleBandHz:0} Hz after {1000 * k.SettlingS:0.#} ms. The trace ")
+                + string.Create(C, $"shows +/-{k.VisibleHz / 1000:0.#} kHz about the carrier; readings start where ")
+                + "the carrier has reached its full level.",
+            l.Small,
+            XBrushes.DimGray
+        );
     }
 
     private static int Px(double pt) => (int)Math.Round(pt / 72 * Dpi);

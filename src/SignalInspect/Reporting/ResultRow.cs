@@ -312,6 +312,17 @@ public static class ResultRows
                 string unit = row.Unit.Length > 0 ? " " + row.Unit : string.Empty;
                 parts.Add($"{row.HeadlineLabel ?? row.Quantity} {row.ValueText}{u}{unit}".Trim());
             }
+            if (t.KeyUp is { } up)
+                parts.Add(
+                    string.Create(C, $"key-up at {up.InstantS:0.####} s: peak {up.PeakExcursionHz:+0;-0} Hz ")
+                        + string.Create(C, $"at {1000 * up.PeakAtS:0.##} ms, settled within {up.SettleBandHz:0} Hz ")
+                        + string.Create(C, $"after {1000 * up.SettlingS:0.#} ms")
+                );
+            if (t.KeyDown is { } down)
+                parts.Add(
+                    string.Create(C, $"key-down at {down.InstantS:0.####} s: peak {down.PeakExcursionHz:+0;-0} Hz ")
+                        + string.Create(C, $"at {1000 * down.PeakAtS:0.##} ms")
+                );
             lines.Add(string.Join(", ", parts));
         }
         return lines;

@@ -46,14 +46,17 @@ public sealed class SignalGenerator
             double a = s.Amplitude;
             double offset = s.CarrierOffsetHz;
             double? amount = null;
+            double keyedAt = 0;
             if (s.Bursts.Count > 0)
             {
                 if (s.BurstAt(t) is { } burst)
-                    (offset, amount) = (burst.OffsetHz ?? offset, burst.Amount);
+                    (offset, amount, keyedAt) = (burst.OffsetHz ?? offset, burst.Amount, burst.StartS);
                 else
                     a = 0;
             }
             double cycles = Frac(offset * _n / fs) + Frac(0.5 * s.DriftHzPerS * t * t);
+            if (s.KeyUp is { } ku && a > 0)
+                cycles += Frac(ku.ExcursionHz * ku.TauS * (1 - Math.Exp(-(t - keyedAt) / ku.TauS)));
             double phi = 0;
             switch (s.Kind)
             {

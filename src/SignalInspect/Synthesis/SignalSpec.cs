@@ -45,6 +45,12 @@ public readonly record struct Spur(double OffsetHz, double LevelDbc);
 /// (AM), peak phase in rad (PM); null for the spec's.</param>
 public readonly record struct Burst(double StartS, double EndS, double? OffsetHz = null, double? Amount = null);
 
+/// <summary>A key-up transient: at each key-up the carrier starts <paramref name="ExcursionHz"/> away and settles
+/// exponentially with time constant <paramref name="TauS"/>.</summary>
+/// <param name="ExcursionHz">Frequency difference at the key-up instant, Hz (signed).</param>
+/// <param name="TauS">Time constant of the settling, s.</param>
+public readonly record struct KeyUpTransient(double ExcursionHz, double TauS);
+
 /// <summary>
 /// Parameters of a synthesised test signal. Formulas (t = n / fs, n = 0, 1, ...):
 /// <list type="bullet">
@@ -62,6 +68,8 @@ public readonly record struct Burst(double StartS, double EndS, double? OffsetHz
 /// floor(n Rs / fs) = k, bits from the seeded generator;</item>
 /// <item>bursts (when any is given): a = 0 outside them (the noise, spurs and image stay: a receiver hears its own
 /// noise between calls); inside one, its offset and amount replace f0 and the main tone's D, m or P;</item>
+/// <item>key-up transient (E, tau): from each burst's start t_on (0 without bursts) the instantaneous frequency
+/// gains E exp(-(t - t_on) / tau), the phase 2 pi E tau (1 - exp(-(t - t_on) / tau));</item>
 /// <item>noise: white Gaussian, complex circular (I and Q each of variance sigma^2 / 2) for complex output,
 /// real of variance sigma^2 for real output, with sigma^2 = P / 10^(SNR/10) and P the signal's mean power
 /// (A^2 (1 + m^2/2) for complex AM, A^2 for complex angle modulation; half of those for real output).
@@ -138,6 +146,9 @@ public sealed record SignalSpec
                 return b;
         return null;
     }
+
+    /// <summary>A key-up transient at each burst's start (at 0 without bursts); null for none.</summary>
+    public KeyUpTransient? KeyUp { get; init; }
 
     /// <summary>Seed of the noise and FSK data generator.</summary>
     public int Seed { get; init; } = 1;
@@ -285,6 +296,12 @@ public sealed record SignalSpec
             if (b.Amount is { } ba && !(double.IsFinite(ba) && ba >= 0))
                 throw new SettingException(nameof(Bursts), ba, "a burst's amount must be a number from 0 up");
         }
+        if (KeyUp is { } ku && !(double.IsFinite(ku.ExcursionHz) && ku.TauS > 0 && ku.TauS < 10))
+            throw new SettingException(
+                nameof(KeyUp),
+                ku.TauS,
+                "needs a finite excursion in Hz and a time constant from 0 to 10 s"
+            );
         if (!double.IsFinite(DriftHzPerS))
             throw new SettingException(nameof(DriftHzPerS), DriftHzPerS, "must be a number");
         if (SnrDb is { } s && !double.IsFinite(s))

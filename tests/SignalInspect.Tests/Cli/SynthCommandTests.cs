@@ -163,6 +163,8 @@ public class SynthCommandTests
     [InlineData("--amplitude", "2", "--amplitude: must be from 0 to 1")]
     [InlineData("--offset", "30k", "--offset: must lie inside")]
     [InlineData("--datatype", "cq8", "unknown datatype")]
+    [InlineData("--key-up", "14k", "--key-up: '14k' is not two numbers as A:B")]
+    [InlineData("--key-up", "14k:-1", "--key-up: needs a finite excursion")]
     public void Bad_parameters_exit_with_2_and_name_the_option(string option, string value, string message)
     {
         using var tmp = new TempDir();

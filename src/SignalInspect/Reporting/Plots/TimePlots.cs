@@ -90,4 +90,47 @@ public static class TimePlots
         plot.Title(title);
         return plot.GetImageBytes(widthPx, heightPx, ImageFormat.Png);
     }
+
+    /// <summary>
+    /// Frequency against time at a key instant: the trace (ms from the instant, Hz from the assigned frequency) and,
+    /// for each interval of a transient rule, its limits drawn as a box (+/- max over from..to ms).
+    /// </summary>
+    public static byte[] TransientPng(
+        IReadOnlyList<(double TimeMs, double Hz)> trace,
+        IReadOnlyList<(double FromMs, double ToMs, double MaxHz, string Label)> boxes,
+        string title,
+        int widthPx,
+        int heightPx,
+        double scale
+    )
+    {
+        Plot plot = PlotStyle.NewPlot();
+        plot.ScaleFactor = scale;
+        var line = plot.Add.ScatterLine(
+            trace.Select(p => p.TimeMs).ToArray(),
+            trace.Select(p => p.Hz / 1e3).ToArray(),
+            PlotStyle.Trace
+        );
+        line.LineWidth = 1.2f;
+        line.LegendText = "frequency difference";
+        bool labelled = false;
+        foreach (var (from, to, max, label) in boxes)
+            foreach (double sign in new[] { 1.0, -1.0 })
+            {
+                var edge = plot.Add.Line(from, sign * max / 1e3, to, sign * max / 1e3);
+                edge.LineColor = PlotStyle.Limit;
+                edge.LinePattern = LinePattern.Dashed;
+                edge.LineWidth = 1.2f;
+                if (!labelled)
+                {
+                    edge.LegendText = label;
+                    labelled = true;
+                }
+            }
+        plot.ShowLegend(Alignment.UpperRight);
+        plot.XLabel("time from the key instant (ms)");
+        plot.YLabel("frequency difference (kHz)");
+        plot.Title(title);
+        return plot.GetImageBytes(widthPx, heightPx, ImageFormat.Png);
+    }
 }
