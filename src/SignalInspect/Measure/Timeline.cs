@@ -97,6 +97,9 @@ internal static class TimelineMeasurement
         var raw =
             new List<(int W0, int W1, double Mean, double U, double Level, int Blocks, double? Dev, double? Depth)>();
         var x = new List<double>(per);
+        // FSK: a window's mean frequency leans to whichever tone its bits favour; the carrier is the centre of the
+        // two tones, each read from the blocks' extremes.
+        (double Split, double Quarter)? tones = kind == ModulationKind.Fsk ? TwoTones(blocks, noisePower) : null;
         for (int w0 = 0; w0 < n; w0 += per)
         {
             int w1 = Math.Min(n, w0 + per);
@@ -122,8 +125,25 @@ internal static class TimelineMeasurement
             }
             if (x.Count < Math.Max(3, per / 2))
                 continue;
-            double mean = x.Average();
-            double u = DetrendedStandardError(idx, x);
+            double mean,
+                u;
+            if (tones is { } tt)
+            {
+                // Each block's extremes: the highest frequency of a block that reached the upper tone is that tone,
+                // the lowest of one that reached the lower tone is that one (a block straddling a bit transition
+                // holds both; noise raises the one and lowers the other alike, so their centre keeps).
+                var hi = idx.Select(b => blocks.FreqMax[b]).Where(v => v > tt.Split + tt.Quarter).ToList();
+                var lo = idx.Select(b => blocks.FreqMin[b]).Where(v => v < tt.Split - tt.Quarter).ToList();
+                if (hi.Count < 3 || lo.Count < 3)
+                    continue;
+                mean = (Median(hi) + Median(lo)) / 2;
+                u = 0.5 * 1.2533 * Math.Sqrt(Variance(hi) / hi.Count + Variance(lo) / lo.Count);
+            }
+            else
+            {
+                mean = x.Average();
+                u = DetrendedStandardError(idx, x);
+            }
             raw.Add(
                 (
                     w0,
@@ -177,6 +197,42 @@ internal static class TimelineMeasurement
         // Windows read far less surely than the rest (a part of a window, a fade) do not make a drift.
         var sure = t.Windows.Where(w => w.StandardUncertaintyHz <= 3 * median).Select(w => w.CarrierOffsetHz).ToList();
         return sure.Count >= 3 && sure.Max() - sure.Min() > Math.Max(6 * median, 0.0025 * channelHalfWidthHz);
+    }
+
+    /// <summary>The two tones of an FSK capture from its whole blocks' mean frequencies (two-means, from the
+    /// extremes): the frequency between them and a quarter of their distance; null when they do not part.</summary>
+    private static (double Split, double Quarter)? TwoTones(BlockStats blocks, double noisePower)
+    {
+        var f = new List<double>();
+        for (int b = 0; b < blocks.Power.Length; b++)
+            if (blocks.Count[b] >= blocks.BlockLength && blocks.Power[b] > 2 * noisePower)
+                f.Add(blocks.Freq[b]);
+        if (f.Count < 8)
+            return null;
+        double lo = f.Min(),
+            hi = f.Max();
+        for (int it = 0; it < 20; it++)
+        {
+            double mid = (lo + hi) / 2;
+            var up = f.Where(v => v > mid).ToList();
+            var down = f.Where(v => v <= mid).ToList();
+            if (up.Count == 0 || down.Count == 0)
+                return null;
+            (lo, hi) = (down.Average(), up.Average());
+        }
+        return hi > lo ? ((lo + hi) / 2, (hi - lo) / 4) : null;
+    }
+
+    private static double Median(IReadOnlyList<double> v)
+    {
+        double[] o = [.. v.Order()];
+        return o.Length % 2 == 1 ? o[o.Length / 2] : (o[o.Length / 2 - 1] + o[o.Length / 2]) / 2;
+    }
+
+    private static double Variance(IReadOnlyList<double> v)
+    {
+        double m = v.Average();
+        return v.Sum(a => (a - m) * (a - m)) / Math.Max(1, v.Count - 1);
     }
 
     /// <summary>Standard error of the mean of <paramref name="x"/> about their least-squares line against

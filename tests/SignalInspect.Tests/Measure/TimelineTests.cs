@@ -141,4 +141,40 @@ public class TimelineTests
         t.Subtract(199, f);
         Assert.Equal([-9.8, -10, -10.2], f.Select(v => Math.Round(v, 9)));
     }
+
+    /// <summary>FSK: a window's carrier is the centre of its two tones, not its mean frequency (which leans to the
+    /// tone its random bits favour: +/- shift / 2 / sqrt(bits), about 45 Hz at 1200 Bd in 0.1 s). A 40 Hz/s drift
+    /// from +640 Hz (the demo's telemetry modem): each window within its U of the line at its centre.</summary>
+    [Fact]
+    public void An_FSK_carrier_is_followed_by_the_centre_of_its_tones()
+    {
+        using var tmp = new TempDir();
+        AnalysisResult r = Measuring.Analyze(
+            tmp,
+            new SignalSpec
+            {
+                Kind = SignalKind.Fsk,
+                SampleRateHz = 96_000,
+                DurationS = 1.5,
+                CarrierOffsetHz = 640,
+                FskShiftHz = 1000,
+                SymbolRateBd = 1200,
+                DriftHzPerS = 40,
+                SnrDb = 40,
+                Seed = 3,
+            }
+        );
+        Timeline t = r.Timeline!;
+        Assert.True(t.Windows.Count >= 12, $"{t.Windows.Count} windows");
+        int outside = 0;
+        foreach (TrackWindow w in t.Windows)
+        {
+            double truth = 640 + 40 * (w.StartS + w.EndS) / 2;
+            Assert.True(w.StandardUncertaintyHz < 20, $"u {w.StandardUncertaintyHz} Hz at {w.StartS} s");
+            if (Math.Abs(w.CarrierOffsetHz - truth) > 2 * w.StandardUncertaintyHz + 2)
+                outside++;
+        }
+        Assert.True(outside <= 2, $"{outside} of {t.Windows.Count} windows off the line by more than U");
+        Near.Equal(40, t.DriftHzPerS!.Value.Value, 3 * t.DriftHzPerS.Value.StandardUncertainty + 2, "drift, Hz/s");
+    }
 }
