@@ -51,6 +51,10 @@ internal static class OptionNames
             ["Spurs"] = "--spur",
             ["Bursts"] = "--burst",
             ["KeyUp"] = "--key-up",
+            ["PulseWidthS"] = "--pulse-width",
+            ["PulsePeriodS"] = "--pulse-period",
+            ["PulseAmDepth"] = "--pulse-am",
+            ["PulsePositionS"] = "--pulse-ppm",
             ["ImageDbc"] = "--image",
         };
 

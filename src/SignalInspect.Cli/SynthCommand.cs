@@ -20,11 +20,12 @@ internal static class SynthCommand
         {
             Description =
                 "Signal: cw (unmodulated carrier), am, fm, pm, fsk (binary, continuous phase), ook (carrier keyed "
-                + "on and off by random bits at --symbol-rate) or noise.",
+                + "on and off by random bits at --symbol-rate), pulse (a pulse train: --pulse-width, --pulse-period) "
+                + "or noise.",
             DefaultValueFactory = _ => "cw",
-            HelpName = "cw|am|fm|pm|fsk|ook|noise",
+            HelpName = "cw|am|fm|pm|fsk|ook|pulse|noise",
         };
-        kind.AcceptOnlyFromAmong("cw", "am", "fm", "pm", "fsk", "ook", "noise");
+        kind.AcceptOnlyFromAmong("cw", "am", "fm", "pm", "fsk", "ook", "pulse", "noise");
         var rate = Units.SiOption("--sample-rate", "Sample rate in Hz.", 48_000, "HZ");
         var duration = Units.SiOption("--duration", "Duration in seconds.", 1.0, "S");
         var centre = Units.SiOption(
@@ -58,6 +59,19 @@ internal static class SynthCommand
         };
         var shift = Units.SiOption("--shift", "FSK shift (distance between the two tones) in Hz.", 1000, "HZ");
         var symbolRate = Units.SiOption("--symbol-rate", "FSK symbol rate in baud.", 1200, "BD");
+        var pulseWidth = Units.SiOption("--pulse-width", "Pulse width in seconds (pulse).", 0.001, "S");
+        var pulsePeriod = Units.SiOption("--pulse-period", "Pulse period in seconds (pulse).", 0.004, "S");
+        var pulseAm = new Option<double>("--pulse-am")
+        {
+            Description = "Pulse amplitude modulation depth in percent by --tone (pulse): A (1 + m cos(2 pi fm t_k)).",
+            HelpName = "PERCENT",
+        };
+        var pulsePpm = Units.SiOption(
+            "--pulse-ppm",
+            "Pulse position modulation, the peak shift in seconds by --tone (pulse): t_k + D sin(2 pi fm t_k).",
+            0,
+            "S"
+        );
         var drift = Units.SiOption("--drift", "Linear carrier drift in Hz per second.", 0, "HZ_PER_S");
         var addTone = new Option<string[]>("--add-tone")
         {
@@ -157,6 +171,10 @@ internal static class SynthCommand
             phase,
             shift,
             symbolRate,
+            pulseWidth,
+            pulsePeriod,
+            pulseAm,
+            pulsePpm,
             drift,
             addTone,
             spur,
@@ -191,6 +209,10 @@ internal static class SynthCommand
                 PeakPhaseRad = r.GetValue(phase),
                 FskShiftHz = r.GetValue(shift),
                 SymbolRateBd = r.GetValue(symbolRate),
+                PulseWidthS = r.GetValue(pulseWidth),
+                PulsePeriodS = r.GetValue(pulsePeriod),
+                PulseAmDepth = r.GetValue(pulseAm) / 100,
+                PulsePositionS = r.GetValue(pulsePpm),
                 DriftHzPerS = r.GetValue(drift),
                 SnrDb = r.GetValue(snr),
                 Seed = r.GetValue(seed),

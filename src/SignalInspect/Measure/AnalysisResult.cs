@@ -134,4 +134,7 @@ public sealed record OokResult
 
     /// <summary>Mean envelope while on, full scale.</summary>
     public required double OnLevel { get; init; }
+
+    /// <summary>The pulses and their statistics; null when fewer than three complete ones were found.</summary>
+    public PulseResult? Pulses { get; init; }
 }

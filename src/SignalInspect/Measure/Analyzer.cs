@@ -255,7 +255,21 @@ public static class Analyzer
                         "TypeB.SpectralLineBinDivisor of the Welch bin"
                     ),
                 ];
-                ook = new OokResult { OnSharePercent = 100 * (1 - features.OffShare), OnLevel = features.OnLevel };
+                ook = new OokResult
+                {
+                    OnSharePercent = 100 * (1 - features.OffShare),
+                    OnLevel = features.OnLevel,
+                    Pulses = PulseMeasurement.Measure(
+                        source,
+                        first,
+                        count,
+                        coarse,
+                        bw.OccupiedHz,
+                        bw.NoiseFloorDensity,
+                        cancel
+                    ),
+                };
+                timer.Stage("pulse passes");
                 break;
             case ModulationKind.Fsk:
                 (fsk, double? centre, extras) = FskMeasurement.Measure(inputs, fskTones.Tones, FrequencyAxis.Of(info));

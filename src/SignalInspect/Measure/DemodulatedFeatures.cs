@@ -61,6 +61,10 @@ internal sealed record DemodulatedFeatures
     /// 0 when the noise explains it all.</summary>
     public double ExcessDepth { get; init; }
 
+    /// <summary>Share of the on-time (envelope above the off level) the envelope spends below half the on-level: a
+    /// few % for keyed or pulsed carriers (only their edges), far more for AM cut off at zero.</summary>
+    public double TransitionShare { get; init; }
+
     /// <summary>True when the noise level was known, so that <see cref="ExcessDepth"/> and
     /// <see cref="PhaseExcessRad"/> hold.</summary>
     public bool NoiseKnown { get; init; }
@@ -83,6 +87,7 @@ internal sealed record DemodulatedFeatures
             onSpread = 0,
             excess = 0,
             onLevel = 0,
+            transition = 0,
             phaseExcess = Math.Sqrt(Math.Max(b.PhaseResidualVariance, 0));
         if (noisePowerInChannel is { } pn && top > 0)
         {
@@ -93,6 +98,8 @@ internal sealed record DemodulatedFeatures
             (double onMean, double onVar) = Moments(h, top / 2, double.PositiveInfinity);
             onSpread = onMean > 0 ? Math.Sqrt(onVar) / onMean : 0;
             onLevel = onMean;
+            double onShare = 1 - h.FractionBetween(double.NegativeInfinity, off);
+            transition = offShare > 0 && onShare > 0 ? h.FractionBetween(off, onMean / 2) / onShare : 0;
             (double mean, double var) = Moments(h, double.NegativeInfinity, double.PositiveInfinity);
             excess = mean > 0 ? Math.Sqrt(2 * Math.Max(0, var - pn / 2)) / mean : 0;
             double a2 = Math.Max(mean * mean + var - pn, 1e-30);
@@ -103,6 +110,7 @@ internal sealed record DemodulatedFeatures
             OffShare = offShare,
             OnSpread = onSpread,
             OnLevel = onLevel,
+            TransitionShare = transition,
             ExcessDepth = excess,
             NoiseKnown = noisePowerInChannel is not null,
             PhaseExcessRad = phaseExcess,

@@ -41,6 +41,12 @@ internal static class ModulationClassifier
     /// on-off keyed (steady when present) rather than AM cut off at zero.</summary>
     public const double SteadyOnSpread = 0.1;
 
+    /// <summary>Share of the on-time below half the on-level under which an intermittent carrier whose level varies
+    /// is pulsed (pulse amplitude modulation: flat-topped pulses with sharp edges) rather than AM cut off at zero,
+    /// whose envelope passes through every level. A rectangular pulse through the channel filter spends about
+    /// 1 / (channel width) per edge there.</summary>
+    public const double PulsedTransitionShare = 0.15;
+
     /// <summary>Below this SNR (dB) the confidence is scaled down.</summary>
     public const double ConfidentSnrDb = 15;
 
@@ -68,6 +74,15 @@ internal static class ModulationClassifier
             why =
                 string.Create(c, $"the carrier is absent {100 * f.OffShare:0} % of the time and steady when ")
                 + string.Create(c, $"present (spread {100 * f.OnSpread:0.#} %): on-off keying");
+        }
+        else if (f.OffShare >= OffShare && f.TransitionShare < PulsedTransitionShare)
+        {
+            detected = ModulationKind.Ook;
+            conf = Math.Clamp(0.6 + (PulsedTransitionShare - f.TransitionShare) * 2, 0.5, 0.9);
+            why =
+                string.Create(c, $"the carrier is absent {100 * f.OffShare:0} % of the time and jumps to levels that ")
+                + string.Create(c, $"vary (spread {100 * f.OnSpread:0.#} %; {100 * f.TransitionShare:0.#} % of the ")
+                + "on-time between): pulses of varying amplitude";
         }
         else if (f.OffShare >= OffShare)
         {

@@ -92,6 +92,10 @@ internal static class TimelineMeasurement
         ModulationKind kind
     )
     {
+        // A keyed carrier's blocks hold its edges and the noise between its keyings: their mean frequency is not
+        // the carrier's (which comes from the spectrum's line); no timeline.
+        if (kind is ModulationKind.Ook or ModulationKind.Noise)
+            return null;
         int per = Math.Max(1, (int)Math.Round(windowS / blockS));
         int n = blocks.Power.Length;
         var raw =
@@ -100,6 +104,7 @@ internal static class TimelineMeasurement
         // FSK: a window's mean frequency leans to whichever tone its bits favour; the carrier is the centre of the
         // two tones, each read from the blocks' extremes.
         (double Split, double Quarter)? tones = kind == ModulationKind.Fsk ? TwoTones(blocks, noisePower) : null;
+        double floor = 2 * noisePower;
         for (int w0 = 0; w0 < n; w0 += per)
         {
             int w1 = Math.Min(n, w0 + per);
@@ -113,7 +118,7 @@ internal static class TimelineMeasurement
             for (int b = w0; b < w1; b++)
             {
                 // Whole blocks only: a part of one holds a part of a tone period, whose mean is not the carrier.
-                if (blocks.Count[b] < blocks.BlockLength || !(blocks.Power[b] > 2 * noisePower))
+                if (blocks.Count[b] < blocks.BlockLength || !(blocks.Power[b] > floor))
                     continue;
                 x.Add(blocks.Freq[b]);
                 idx.Add(b);

@@ -178,6 +178,7 @@ public static class AnalysisJson
         w.WriteStartObject("ook");
         CaptureInfoJson.WriteNumberOrNull(w, "onSharePercent", r.Ook?.OnSharePercent);
         CaptureInfoJson.WriteNumberOrNull(w, "onLevel", r.Ook?.OnLevel);
+        WritePulses(w, r.Ook?.Pulses);
         w.WriteEndObject();
         WriteBudgets(w, r);
         w.WriteStartArray("modulatingComponents");
@@ -339,6 +340,46 @@ public static class AnalysisJson
         w.WriteStartArray("traceHz");
         foreach (var (_, f) in k.Trace)
             w.WriteNumberValue(Math.Round(f, 3));
+        w.WriteEndArray();
+        w.WriteEndObject();
+    }
+
+    /// <summary><c>ook.pulses</c> (null when fewer than three were found): <c>count</c>, <c>widthS</c>,
+    /// <c>periodS</c>, <c>dutyCyclePercent</c> each with its standard uncertainty (<c>...Uncertainty...</c>),
+    /// <c>prfHz</c>, <c>periodJitterS</c>, <c>amplitudeSpreadPercent</c>, <c>positionSpreadS</c>,
+    /// <c>worstDutyPercent</c> and <c>averagingCorrectionDb</c> (47 CFR 15.35(c)), <c>bitRateBd</c>, and
+    /// <c>list[]</c> (<c>startS</c>, <c>widthS</c>, <c>amplitude</c>) of the first pulses.</summary>
+    private static void WritePulses(Utf8JsonWriter w, PulseResult? p)
+    {
+        if (p is null)
+        {
+            w.WriteNull("pulses");
+            return;
+        }
+        w.WriteStartObject("pulses");
+        w.WriteNumber("count", p.Count);
+        w.WriteNumber("widthS", p.WidthS.Value);
+        w.WriteNumber("widthUncertaintyS", p.WidthS.StandardUncertainty);
+        w.WriteNumber("periodS", p.PeriodS.Value);
+        w.WriteNumber("periodUncertaintyS", p.PeriodS.StandardUncertainty);
+        w.WriteNumber("prfHz", p.PrfHz);
+        w.WriteNumber("dutyCyclePercent", p.DutyCyclePercent.Value);
+        w.WriteNumber("dutyCycleUncertaintyPercent", p.DutyCyclePercent.StandardUncertainty);
+        w.WriteNumber("periodJitterS", p.PeriodJitterS);
+        w.WriteNumber("amplitudeSpreadPercent", p.AmplitudeSpreadPercent);
+        w.WriteNumber("positionSpreadS", p.PositionSpreadS);
+        w.WriteNumber("worstDutyPercent", p.WorstDutyPercent);
+        w.WriteNumber("averagingCorrectionDb", p.AveragingCorrectionDb);
+        CaptureInfoJson.WriteNumberOrNull(w, "bitRateBd", p.BitRateBd);
+        w.WriteStartArray("list");
+        foreach (Pulse x in p.Pulses)
+        {
+            w.WriteStartObject();
+            w.WriteNumber("startS", Math.Round(x.StartS, 9));
+            w.WriteNumber("widthS", Math.Round(x.WidthS, 9));
+            w.WriteNumber("amplitude", x.Amplitude);
+            w.WriteEndObject();
+        }
         w.WriteEndArray();
         w.WriteEndObject();
     }

@@ -257,7 +257,39 @@ public static class ResultRows
                 Info("fsk.symbolRate", "FSK symbol rate", sr.Value, "Bd", sr.StandardUncertainty, "0.##", "rate");
         }
         if (a.Ook is { } ook)
+        {
             Info("ook.onShare", "OOK carrier on", ook.OnSharePercent, "%", null, "0.#", "on");
+            if (ook.Pulses is { } p)
+            {
+                Info(
+                    "pulse.width",
+                    "pulse width",
+                    1e3 * p.WidthS.Value,
+                    "ms",
+                    1e3 * p.WidthS.StandardUncertainty,
+                    "0.####"
+                );
+                Info(
+                    "pulse.period",
+                    "pulse period",
+                    1e3 * p.PeriodS.Value,
+                    "ms",
+                    1e3 * p.PeriodS.StandardUncertainty,
+                    "0.####"
+                );
+                Info(
+                    "pulse.duty",
+                    "duty cycle",
+                    p.DutyCyclePercent.Value,
+                    "%",
+                    p.DutyCyclePercent.StandardUncertainty,
+                    "0.##"
+                );
+                Info("pulse.correction", "15.35(c) averaging correction", p.AveragingCorrectionDb, "dB", null, "0.##");
+                if (p.BitRateBd is { } rate)
+                    Info("pulse.bitRate", "keyed bit rate", rate, "Bd", null, "0.#");
+            }
+        }
         if (a.ModulatingFrequencyHz is { } mf)
             Info("modulatingFrequency", "modulating frequency", mf.Value, "Hz", mf.StandardUncertainty, "0.##");
         if (a.ModulatingComponents.Count > 1)

@@ -98,6 +98,9 @@ public sealed class SignalGenerator
                     cycles += _fskCycles;
                     _fskCycles = Frac(_fskCycles + (_bit == 1 ? 0.5 : -0.5) * s.FskShiftHz / fs);
                     break;
+                case SignalKind.Pulse:
+                    a *= PulseAmplitude(s, t);
+                    break;
                 case SignalKind.Noise:
                     a = 0;
                     break;
@@ -135,6 +138,24 @@ public sealed class SignalGenerator
             }
         }
         return count;
+    }
+
+    /// <summary>The pulse train's amplitude factor at time <paramref name="t"/>: pulse k or its neighbour when either
+    /// holds t (a position shift stays within half a period).</summary>
+    private static double PulseAmplitude(SignalSpec s, double t)
+    {
+        long k = (long)Math.Floor(t / s.PulsePeriodS);
+        for (long j = k - 1; j <= k + 1; j++)
+        {
+            if (j < 0)
+                continue;
+            double tk = j * s.PulsePeriodS;
+            double w = 2 * Math.PI * s.ModulatingFrequencyHz * tk;
+            double start = tk + s.PulsePositionS * Math.Sin(w);
+            if (t >= start && t < start + s.PulseWidthS)
+                return 1 + s.PulseAmDepth * Math.Cos(w);
+        }
+        return 0;
     }
 
     private static double Frac(double x) => x - Math.Floor(x);

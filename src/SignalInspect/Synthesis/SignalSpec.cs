@@ -23,6 +23,10 @@ public enum SignalKind
 
     /// <summary>On-off keying: the carrier on for a 1 bit and off for a 0, random bits at the symbol rate.</summary>
     Ook,
+
+    /// <summary>A pulse train: the carrier on for the pulse width every pulse period, each pulse's amplitude and
+    /// position optionally modulated by the tone.</summary>
+    Pulse,
 }
 
 /// <summary>One more modulating tone (AM, FM, PM), added to the main one.</summary>
@@ -68,6 +72,8 @@ public readonly record struct KeyUpTransient(double ExcursionHz, double TauS);
 /// floor(n Rs / fs) = k, bits from the seeded generator;</item>
 /// <item>bursts (when any is given): a = 0 outside them (the noise, spurs and image stay: a receiver hears its own
 /// noise between calls); inside one, its offset and amount replace f0 and the main tone's D, m or P;</item>
+/// <item>pulse: pulse k (t_k = k T) is on from t_k + D sin(2 pi fm t_k) for the width W, with amplitude
+/// A (1 + m cos(2 pi fm t_k)) (T, W, m, D: PulsePeriodS, PulseWidthS, PulseAmDepth, PulsePositionS);</item>
 /// <item>key-up transient (E, tau): from each burst's start t_on (0 without bursts) the instantaneous frequency
 /// gains E exp(-(t - t_on) / tau), the phase 2 pi E tau (1 - exp(-(t - t_on) / tau));</item>
 /// <item>noise: white Gaussian, complex circular (I and Q each of variance sigma^2 / 2) for complex output,
@@ -147,6 +153,18 @@ public sealed record SignalSpec
         return null;
     }
 
+    /// <summary>Pulse width, s (pulse trains).</summary>
+    public double PulseWidthS { get; init; } = 0.001;
+
+    /// <summary>Pulse period, s (pulse trains).</summary>
+    public double PulsePeriodS { get; init; } = 0.004;
+
+    /// <summary>Pulse amplitude modulation: pulse k has amplitude A (1 + m cos(2 pi fm t_k)); 0 for none.</summary>
+    public double PulseAmDepth { get; init; }
+
+    /// <summary>Pulse position modulation: pulse k starts at t_k + D sin(2 pi fm t_k), D in s; 0 for none.</summary>
+    public double PulsePositionS { get; init; }
+
     /// <summary>A key-up transient at each burst's start (at 0 without bursts); null for none.</summary>
     public KeyUpTransient? KeyUp { get; init; }
 
@@ -172,6 +190,10 @@ public sealed record SignalSpec
                     * (1 + AmDepth * AmDepth / 2 + ExtraTones.Sum(t => t.Amount * t.Amount / 2)),
                 SignalKind.Am => Amplitude * Amplitude * ClippedEnvelopePower(),
                 SignalKind.Ook => Amplitude * Amplitude / 2,
+                SignalKind.Pulse => Amplitude
+                    * Amplitude
+                    * (1 + PulseAmDepth * PulseAmDepth / 2)
+                    * Math.Min(1, PulseWidthS / PulsePeriodS),
                 _ => Amplitude * Amplitude,
             };
             return IsComplex ? p : p / 2;
@@ -272,6 +294,21 @@ public sealed record SignalSpec
             Positive(PeakDeviationHz, nameof(PeakDeviationHz));
         if (Kind == SignalKind.Pm)
             Positive(PeakPhaseRad, nameof(PeakPhaseRad));
+        if (Kind == SignalKind.Pulse)
+        {
+            Positive(PulseWidthS, nameof(PulseWidthS));
+            Positive(PulsePeriodS, nameof(PulsePeriodS));
+            if (!(PulseWidthS < PulsePeriodS))
+                throw new SettingException(nameof(PulseWidthS), PulseWidthS, "must be shorter than the pulse period");
+            if (!(PulseAmDepth >= 0 && PulseAmDepth <= 1))
+                throw new SettingException(nameof(PulseAmDepth), PulseAmDepth, "must be from 0 to 100 %");
+            if (!(PulsePositionS >= 0 && PulsePositionS + PulseWidthS < PulsePeriodS / 2))
+                throw new SettingException(
+                    nameof(PulsePositionS),
+                    PulsePositionS,
+                    "must be 0 or more and keep each pulse within half a period of its place"
+                );
+        }
         if (Kind is SignalKind.Fsk or SignalKind.Ook)
             Positive(SymbolRateBd, nameof(SymbolRateBd));
         if (Kind == SignalKind.Fsk)
