@@ -102,11 +102,15 @@ public sealed record AnalysisResult
     /// rad).</summary>
     public required IReadOnlyList<(double TimeS, double Value)> Waveform { get; init; }
 
-    /// <summary>Highest value per 5 ms over the first 16384 demodulated samples, for the time plot.</summary>
+    /// <summary>Highest value per step (<see cref="TrendStepS"/>) over the whole window, for the time plot (times from
+    /// the capture's first sample).</summary>
     public IReadOnlyList<(double TimeS, double Value)> TrendHigh { get; init; } = [];
 
-    /// <summary>Lowest value per 5 ms, same times as <see cref="TrendHigh"/>.</summary>
+    /// <summary>Lowest value per step, same times as <see cref="TrendHigh"/>.</summary>
     public IReadOnlyList<(double TimeS, double Value)> TrendLow { get; init; } = [];
+
+    /// <summary>The time each trend point covers, s.</summary>
+    public double TrendStepS { get; init; }
 
     /// <summary>What the waveform shows (e.g. "instantaneous frequency (Hz)").</summary>
     public required string WaveformLabel { get; init; }

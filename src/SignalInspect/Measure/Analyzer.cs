@@ -328,7 +328,7 @@ public static class Analyzer
         timer.Stage("results, hash wait");
         timer.Note($"hash done at {hashDoneS:0.000} s, analysis at {timer.ElapsedS:0.000} s");
         var (waveT, waveV, waveLabel) = PlotTraces.Waveform(b, kind, tone?.Value, fsd, features.MeanDeviationHz);
-        var (longT, longHigh, longLow) = PlotTraces.Trend(b, kind, fsd, features.MeanDeviationHz);
+        var (longT, longHigh, longLow, trendStep) = PlotTraces.Trend(b, kind, blockS, first / fs, b.FreqMean);
         return new AnalysisResult
         {
             Capture = info,
@@ -354,6 +354,7 @@ public static class Analyzer
             Waveform = [.. waveT.Zip(waveV)],
             TrendHigh = [.. longT.Zip(longHigh)],
             TrendLow = [.. longT.Zip(longLow)],
+            TrendStepS = trendStep,
             WaveformLabel = waveLabel,
             Transmissions = transmissions,
             Timeline = timeline,

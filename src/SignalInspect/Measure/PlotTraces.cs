@@ -15,7 +15,7 @@ internal static class PlotTraces
         double meanDev
     )
     {
-        bool am = kind is ModulationKind.Am or ModulationKind.Cw;
+        bool am = kind is ModulationKind.Am or ModulationKind.Cw or ModulationKind.Ook;
         double[] src = am ? b.WaveEnvelope : b.WaveFreq;
         int n = src.Length;
         if (toneHz is { } f && f > 0)
@@ -34,35 +34,46 @@ internal static class PlotTraces
         return ([.. t], [.. v], am ? "envelope (full scale)" : "instantaneous frequency deviation (Hz)");
     }
 
-    /// <summary>The highest and the lowest value per 5 ms of the stored stretch (shows drift, bursts and over-deviation
-    /// at a glance).</summary>
-    public static (double[] T, double[] High, double[] Low) Trend(
+    /// <summary>Points of the whole-capture trend, at most (one per pixel column of a report plot, about).</summary>
+    public const int TrendPoints = 2000;
+
+    /// <summary>
+    /// The highest and the lowest value (deviation about the mean frequency, or envelope) over the whole window,
+    /// from the pass's 1 ms blocks grouped to at most <see cref="TrendPoints"/> points; times in seconds from the
+    /// capture's first sample. Shows drift, bursts and over-deviation at a glance.
+    /// </summary>
+    public static (double[] T, double[] High, double[] Low, double StepS) Trend(
         PassResult b,
         ModulationKind kind,
-        double fsd,
+        double blockS,
+        double startS,
         double meanDev
     )
     {
-        bool am = kind is ModulationKind.Am or ModulationKind.Cw;
-        double[] src = am ? b.WaveEnvelope : b.WaveFreq;
-        int chunk = Math.Max(2, (int)(0.005 * fsd));
+        bool am = kind is ModulationKind.Am or ModulationKind.Cw or ModulationKind.Ook;
+        BlockStats k = b.Blocks;
+        int n = k.Power.Length;
+        int group = Math.Max(1, (n + TrendPoints - 1) / TrendPoints);
         var t = new List<double>();
-        var v = new List<double>();
-        var lows = new List<double>();
-        for (int i = 0; i + chunk <= src.Length; i += chunk)
+        var hi = new List<double>();
+        var lo = new List<double>();
+        for (int g = 0; g < n; g += group)
         {
-            double hi = double.NegativeInfinity,
-                lo = double.PositiveInfinity;
-            for (int j = i; j < i + chunk; j++)
+            double h = double.NegativeInfinity,
+                l = double.PositiveInfinity;
+            for (int j = g; j < Math.Min(n, g + group); j++)
             {
-                hi = Math.Max(hi, src[j]);
-                lo = Math.Min(lo, src[j]);
+                if (k.Count[j] == 0)
+                    continue;
+                h = Math.Max(h, am ? k.EnvelopeMax[j] : k.FreqMax[j] - meanDev);
+                l = Math.Min(l, am ? k.EnvelopeMin[j] : k.FreqMin[j] - meanDev);
             }
-            double off = am ? 0 : meanDev;
-            t.Add((i + chunk / 2) / fsd);
-            v.Add(hi - off);
-            lows.Add(lo - off);
+            if (h < l)
+                continue;
+            t.Add(startS + (g + Math.Min(group, n - g) / 2.0) * blockS);
+            hi.Add(h);
+            lo.Add(l);
         }
-        return ([.. t], [.. v], [.. lows]);
+        return ([.. t], [.. hi], [.. lo], group * blockS);
     }
 }

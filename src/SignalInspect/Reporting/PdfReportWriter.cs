@@ -282,19 +282,59 @@ public static class PdfReportWriter
             string unit = a.WaveformLabel.StartsWith("envelope", StringComparison.Ordinal)
                 ? "envelope (FS)"
                 : "deviation (Hz)";
+            var shaded = a.Transmissions.Select(t => (t.StartS, t.EndS)).ToList();
             if (a.TrendHigh.Count > 1)
             {
                 byte[] trend = TimePlots.SeriesPng(
                     a.TrendHigh,
-                    (unit.StartsWith("env") ? "Envelope" : "Deviation") + " against time (highest and lowest per 5 ms)",
+                    (unit.StartsWith("env") ? "Envelope" : "Deviation")
+                        + string.Create(C, $" against time (max and min per {1000 * a.TrendStepS:0.#} ms)"),
                     unit,
                     Px(w),
                     Px(hWave),
                     Dpi / 96,
                     levels,
-                    a.TrendLow
+                    a.TrendLow,
+                    seconds: true,
+                    shaded: shaded
                 );
                 l.Image(trend, w, hWave);
+                if (shaded.Count > 0)
+                    l.Text(
+                        "Shaded: the transmissions found (carrier on). The figures and plots are those of the window "
+                            + "analysed (see Identification).",
+                        l.Small,
+                        XBrushes.DimGray
+                    );
+                l.Gap(6);
+            }
+            if (a.Timeline is { Windows.Count: > 1 } tl)
+            {
+                var band = new List<(double, string)>();
+                if (ToleranceHz(r) is { } tol)
+                {
+                    double centre =
+                        a.Carrier!.OffsetHz
+                        - (
+                            r.Profile?.NominalFrequencyHz is { } nom && FrequencyAxis.Of(a.Capture).IsAbsolute
+                                ? a.Carrier.FrequencyHz.Value - nom
+                                : a.Carrier.OffsetHz
+                        );
+                    band.Add((centre + tol, "frequency tolerance"));
+                    band.Add((centre - tol, ""));
+                }
+                byte[] carrier = TimePlots.SeriesPng(
+                    [.. tl.Windows.Select(x => ((x.StartS + x.EndS) / 2, x.CarrierOffsetHz))],
+                    string.Create(C, $"Carrier offset against time ({tl.WindowS:0.###} s windows)"),
+                    "offset (Hz)",
+                    Px(w),
+                    Px(hWave),
+                    Dpi / 96,
+                    band,
+                    seconds: true,
+                    shaded: shaded
+                );
+                l.Image(carrier, w, hWave);
                 l.Gap(6);
             }
             byte[] wave = TimePlots.SeriesPng(
@@ -309,6 +349,17 @@ public static class PdfReportWriter
             l.Image(wave, w, hWave);
         }
         KeyUpPlot(l, r, w);
+    }
+
+    /// <summary>The profile's frequency tolerance in Hz at the nominal (or the capture's centre), null without
+    /// one.</summary>
+    private static double? ToleranceHz(MeasurementReport r)
+    {
+        if (r.Profile is not { } p)
+            return null;
+        double? nominal = p.NominalFrequencyHz ?? r.Analysis.Capture.CenterFrequencyHz;
+        return p.FrequencyToleranceHz
+            ?? (nominal is { } n && p.FrequencyTolerancePpm is { } ppm ? ppm * n / 1e6 : null);
     }
 
     /// <summary>The frequency at the first key-up the capture holds, with the profile's transient limits as boxes

@@ -174,4 +174,53 @@ public class ReportTests
         Assert.Contains("FAIL", handheld);
         Assert.Contains("Harbour Water Authority", handheld);
     }
+
+    [Fact]
+    public void A_report_of_keyed_calls_lists_them_and_names_where_the_verdict_was_decided()
+    {
+        // Two calls with a key-up transient each (synthesised: 5 kHz settling in 3 ms), judged by the 90.214
+        // transient profile: the report lists the transmissions, names the deciding key instant and plots the
+        // key-up (its heading and the plots' caption are text).
+        using var tmp = new TempDir();
+        string capture = tmp.File("calls.cf32");
+        Assert.Equal(
+            0,
+            CliRunner
+                .Run(
+                    "synth",
+                    capture,
+                    "--kind",
+                    "cw",
+                    "--duration",
+                    "3",
+                    "--center-frequency",
+                    "155.2M",
+                    "--snr",
+                    "40",
+                    "--burst",
+                    "0.5:1.2",
+                    "--burst",
+                    "1.8:2.6",
+                    "--key-up",
+                    "5k:0.003"
+                )
+                .Code
+        );
+        string pdf = tmp.File("calls.pdf");
+        var (code, _, stderr) = CliRunner.Run(
+            "analyze",
+            capture,
+            "--report",
+            pdf,
+            "--limits",
+            ProfilePath("transient-12k5-vhf.json")
+        );
+        Assert.True(code == 0, stderr); // every transient within its limits
+        string text = PdfText(pdf);
+        Assert.Contains("Transmissions (carrier-on intervals", text);
+        Assert.Contains("2: 1.8-2.6", text);
+        Assert.Contains("Where the deciding readings are", text);
+        Assert.Contains("Frequency at key-up", text);
+        Assert.Contains("Shaded: the transmissions found", text);
+    }
 }

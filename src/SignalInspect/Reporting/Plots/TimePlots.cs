@@ -42,7 +42,8 @@ public static class TimePlots
         plot.XLabel(
             centreHz is { } centre ? $"offset from {centre / 1e6:0.######} MHz ({unit})" : $"frequency ({unit})"
         );
-        plot.YLabel("time (s)");
+        // Time runs down the page (the first row on top, as a waterfall display shows it): the label says so.
+        plot.YLabel("time (s), downwards");
         plot.Title(title);
         plot.Axes.SetLimits(f0 / div, f1 / div, t1, 0);
         return plot.GetImageBytes(widthPx, heightPx, ImageFormat.Png);
@@ -57,19 +58,29 @@ public static class TimePlots
         int heightPx,
         double scale,
         IReadOnlyList<(double Value, string Label)>? levels = null,
-        IReadOnlyList<(double TimeS, double Value)>? second = null
+        IReadOnlyList<(double TimeS, double Value)>? second = null,
+        bool seconds = false,
+        IReadOnlyList<(double StartS, double EndS)>? shaded = null
     )
     {
         Plot plot = PlotStyle.NewPlot();
         plot.ScaleFactor = scale;
-        double[] t = [.. points.Select(p => p.TimeS * 1e3)];
+        double unit = seconds ? 1 : 1e3;
+        if (shaded is not null)
+            foreach (var (a, b) in shaded)
+            {
+                var span = plot.Add.HorizontalSpan(a * unit, b * unit);
+                span.FillStyle.Color = PlotStyle.Edge.WithAlpha(0.12);
+                span.LineStyle.Width = 0;
+            }
+        double[] t = [.. points.Select(p => p.TimeS * unit)];
         double[] v = [.. points.Select(p => p.Value)];
         var line = plot.Add.ScatterLine(t, v, PlotStyle.Trace);
         line.LineWidth = 1.2f;
         if (second is { Count: > 1 })
         {
             var low = plot.Add.ScatterLine(
-                second.Select(p => p.TimeS * 1e3).ToArray(),
+                second.Select(p => p.TimeS * unit).ToArray(),
                 second.Select(p => p.Value).ToArray(),
                 PlotStyle.Trace
             );
@@ -85,7 +96,7 @@ public static class TimePlots
             if (levels.Count > 0)
                 plot.ShowLegend(Alignment.UpperRight);
         }
-        plot.XLabel("time (ms)");
+        plot.XLabel(seconds ? "time from the capture's start (s)" : "time (ms)");
         plot.YLabel(yLabel);
         plot.Title(title);
         return plot.GetImageBytes(widthPx, heightPx, ImageFormat.Png);
