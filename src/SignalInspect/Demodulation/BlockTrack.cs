@@ -22,10 +22,14 @@ internal sealed class BlockTrack
         _aMin;
     private readonly int[] _count;
 
+    /// <summary>Blocks at most: a capture longer than this many milliseconds (about 17 minutes) gets longer blocks,
+    /// so that the track's memory (56 bytes a block) stays under 60 MB whatever the capture's length.</summary>
+    public const int MaxBlocks = 1 << 20;
+
     /// <summary>A track for <paramref name="samples"/> decimated samples at <paramref name="fsd"/>.</summary>
     public BlockTrack(long samples, double fsd)
     {
-        BlockLength = Math.Max(1, (int)Math.Round(BlockSeconds * fsd));
+        BlockLength = (int)Math.Max(Math.Max(1, Math.Round(BlockSeconds * fsd)), (samples + MaxBlocks - 1) / MaxBlocks);
         long blocks = (samples + BlockLength - 1) / BlockLength;
         _p = new double[blocks];
         _f = new double[blocks];

@@ -43,7 +43,7 @@ public class EvidenceTests
         Assert.Contains("does not apply to the class found (am)", dev.Reason);
         Assert.NotEqual(Verdict.Pass, Judgement.Overall(checks));
         // The deviation limit is named even though nothing could be read against it.
-        Assert.Equal(5, checks.Count); // class, tolerance, deviation, OBW, mask
+        Assert.Equal(8, checks.Count); // class, tolerance, deviation, OBW, transient t1 t2 t3, mask
     }
 
     [Fact]
@@ -121,7 +121,7 @@ public class EvidenceTests
         JsonElement j = JsonDocument.Parse(stdout).RootElement;
         Assert.Equal("INCONCLUSIVE", j.GetProperty("verdict").GetString());
         JsonElement[] checks = [.. j.GetProperty("checks").EnumerateArray()];
-        Assert.Equal(5, checks.Length);
+        Assert.Equal(8, checks.Length); // class, tolerance, deviation, OBW, transient t1 t2 t3, mask
         Assert.Contains(checks, c =>
             c.GetProperty("verdict").GetString() == "INCONCLUSIVE"
             && c.GetProperty("measurement").GetString() == "FM peak deviation"
