@@ -198,6 +198,13 @@ public sealed record LimitProfile
                 throw Bad(field, "must be a positive number");
             return d;
         }
+        // Nested objects are as strict as the top: a misspelt key would otherwise drop its limit silently.
+        void Only(JsonElement obj, string field, params string[] keys)
+        {
+            foreach (JsonProperty p in obj.EnumerateObject())
+                if (!keys.Contains(p.Name))
+                    throw Bad($"{field}.{p.Name}", $"is not a field of {field} (known: {string.Join(", ", keys)})");
+        }
         string? Str(JsonElement obj, string key, string field)
         {
             if (!obj.TryGetProperty(key, out JsonElement v) || v.ValueKind == JsonValueKind.Null)
@@ -233,10 +240,13 @@ public sealed record LimitProfile
         {
             if (tol.ValueKind != JsonValueKind.Object)
                 throw Bad("frequencyTolerance", "must be an object with \"ppm\" or \"hz\"");
+            Only(tol, "frequencyTolerance", "ppm", "hz");
             tolPpm = Num(tol, "ppm", "frequencyTolerance.ppm");
             tolHz = Num(tol, "hz", "frequencyTolerance.hz");
             if (tolPpm is null && tolHz is null)
                 throw Bad("frequencyTolerance", "needs \"ppm\" or \"hz\"");
+            if (tolPpm is not null && tolHz is not null)
+                throw Bad("frequencyTolerance", "takes \"ppm\" or \"hz\", not both (which would decide?)");
         }
         double? pos = null,
             neg = null;
@@ -244,6 +254,7 @@ public sealed record LimitProfile
         {
             if (am.ValueKind != JsonValueKind.Object)
                 throw Bad("am", "must be an object");
+            Only(am, "am", "maxPositivePeakPercent", "maxNegativePeakPercent");
             pos = Num(am, "maxPositivePeakPercent", "am.maxPositivePeakPercent");
             neg = Num(am, "maxNegativePeakPercent", "am.maxNegativePeakPercent");
         }
@@ -252,6 +263,7 @@ public sealed record LimitProfile
         {
             if (m.ValueKind != JsonValueKind.Object)
                 throw Bad("mask", "must be an object");
+            Only(m, "mask", "rule", "name", "points", "referenceBandwidthHz", "transmitterPowerW");
             string? rule = Str(m, "rule", "mask.rule");
             if (rule is not null && rule != "47cfr90.210d")
                 throw Bad("mask.rule", $"'{rule}' is not a known rule (known: 47cfr90.210d)");
@@ -274,6 +286,8 @@ public sealed record LimitProfile
                         a = pt[1].GetDouble();
                     if (f < 0 || (points.Count > 0 && f <= points[^1].Item1))
                         throw Bad($"mask.points[{i}]", "offsets must be 0 or more and ascending");
+                    if (!(double.IsFinite(a) && a >= 0))
+                        throw Bad($"mask.points[{i}]", "the attenuation must be 0 dB or more (below the carrier)");
                     points.Add((f, a));
                     i++;
                 }
@@ -294,6 +308,7 @@ public sealed record LimitProfile
         {
             if (tr.ValueKind != JsonValueKind.Object)
                 throw Bad("transient", "must be an object");
+            Only(tr, "transient", "t1Ms", "t2Ms", "t3Ms", "t1MaxHz", "t2MaxHz", "t3MaxHz", "rule");
             double Need(string key) => Num(tr, key, $"transient.{key}") ?? throw Bad($"transient.{key}", "is missing");
             transient = new TransientLimits
             {

@@ -88,6 +88,33 @@ public class ComplianceTests
         "{\"name\": \"x\", \"am\": {\"maxPositivePeakPercent\": true}}",
         "am.maxPositivePeakPercent must be a number"
     )]
+    // Issue 27: misspelt nested keys dropped their limit silently (a PASS with no checks), contradictory
+    // tolerances and a negative mask attenuation were taken.
+    [InlineData(
+        "{\"name\": \"x\", \"am\": {\"maxPositivePeakPercnt\": 125}}",
+        "am.maxPositivePeakPercnt is not a field of am"
+    )]
+    [InlineData(
+        "{\"name\": \"x\", \"mask\": {\"rule\": \"47cfr90.210d\", \"refBandwidthHz\": 300}}",
+        "mask.refBandwidthHz is not a field of mask"
+    )]
+    [InlineData(
+        "{\"name\": \"x\", \"frequencyTolerance\": {\"ppm\": 2.5, \"ppb\": 2500}}",
+        "frequencyTolerance.ppb is not a field"
+    )]
+    [InlineData(
+        "{\"name\": \"x\", \"frequencyTolerance\": {\"ppm\": 2.5, \"hz\": 400}}",
+        "not both"
+    )]
+    [InlineData(
+        "{\"name\": \"x\", \"mask\": {\"points\": [[0, 0], [10000, -20]]}}",
+        "mask.points[1] the attenuation must be 0 dB or more"
+    )]
+    [InlineData(
+        "{\"name\": \"x\", \"transient\": {\"t1Ms\": 5, \"t1MaxHz\": 1, \"t2Ms\": 5, \"t2MaxHz\": 1, "
+            + "\"t3Ms\": 5, \"t3MaxHz\": 1, \"t4Ms\": 3}}",
+        "transient.t4Ms is not a field of transient"
+    )]
     public void A_bad_profile_gives_one_line_naming_the_field(string json, string message)
     {
         using var tmp = new TempDir();
