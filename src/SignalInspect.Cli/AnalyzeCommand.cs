@@ -196,6 +196,15 @@ internal static class AnalyzeCommand
                         "signalinspect " + string.Join(' ', Environment.GetCommandLineArgs().Skip(1).Select(Quote)),
                 },
             };
+            if (
+                jsonOut is not null
+                && jsonOut != "-"
+                && pdfOut is not null
+                && Path.GetFullPath(jsonOut) == Path.GetFullPath(CaptureInspection.ModelPathFor(pdfOut))
+            )
+                throw new UsageException(
+                    $"--json {jsonOut}: --report {pdfOut} writes its JSON model there; give --json another name"
+                );
             MeasurementReport model = CliProgress.Run(stderr, "analyze", source.Info.SampleCount, report =>
                 CaptureInspection.Inspect(source, settings, report, timer: Diagnostics.TimerFor(stderr))
             );

@@ -63,6 +63,8 @@ public static class Cli
                 + $" ({OptionNames.For(setting)} reads it anyway)",
             UserInputException u => OneLine(u.Message),
             UsageException u => OneLine(u.Message),
+            // The machine, not the program: a full device, a closed standard output, a file gone under us.
+            IOException io => $"input/output error: {OneLine(io.Message)}",
             _ => null,
         };
 

@@ -55,3 +55,13 @@ public sealed class WideVectorTheoryAttribute : TheoryAttribute
             Skip = Hardware.NoAvx512;
     }
 }
+
+/// <summary>A fact that needs a device file (e.g. /dev/full): reported as skipped where the system has none.</summary>
+public sealed class DeviceFactAttribute : FactAttribute
+{
+    public DeviceFactAttribute(string device)
+    {
+        if (!File.Exists(device))
+            Skip = $"this system has no {device}";
+    }
+}

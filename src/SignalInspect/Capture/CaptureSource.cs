@@ -277,6 +277,12 @@ public sealed class CaptureSource
         }
     }
 
+    /// <summary>Lowest sample rate read, Hz.</summary>
+    public const double MinRateHz = 1;
+
+    /// <summary>Highest sample rate read, Hz (100 GS/s).</summary>
+    public const double MaxRateHz = 1e11;
+
     /// <summary>The origin of a rate the user gave (a setting, not the file).</summary>
     internal const string UserGiven = "the rate given";
 
@@ -288,10 +294,18 @@ public sealed class CaptureSource
     {
         if (rateHz is not { } r)
             throw new SettingException(nameof(ReaderOptions.SampleRateHz), null, $"needed ({origin})", path);
-        if (origin == UserGiven && (!double.IsFinite(r) || r <= 0))
-            throw new SettingException(nameof(ReaderOptions.SampleRateHz), r, "must be a positive number of Hz", path);
-        if (!double.IsFinite(r) || r <= 0)
-            throw CaptureException.ForFile(path, $"sample rate {r:R} Hz from {origin} must be a positive number");
+        // 1 Hz to 100 GHz: beyond either end durations and bin widths overflow or vanish (1e-308 Hz read as an
+        // infinite duration with NaN results; 1e13 Hz overflowed a sample count).
+        bool plausible = double.IsFinite(r) && r >= MinRateHz && r <= MaxRateHz;
+        if (origin == UserGiven && !plausible)
+            throw new SettingException(
+                nameof(ReaderOptions.SampleRateHz),
+                r,
+                "must be a number of Hz from 1 to 1e11",
+                path
+            );
+        if (!plausible)
+            throw CaptureException.ForFile(path, $"sample rate {r:R} Hz from {origin} must lie from 1 Hz to 1e11 Hz");
         return r;
     }
 }

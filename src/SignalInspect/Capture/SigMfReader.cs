@@ -212,7 +212,18 @@ internal static class SigMfReader
             long headerSum = 0;
             for (int i = 0; i < caps.Count; i++)
             {
+                // Every size from the metadata is bounded by the data file before any arithmetic (a sample_start of
+                // 2^61 wrapped to byte 0, or ran a reader for ever).
+                if (caps[i].Header < 0 || caps[i].Header > dataLength - headerSum)
+                    throw m.Error(
+                        $"captures[{i}].core:header_bytes {caps[i].Header} runs beyond the {dataLength}-byte data file"
+                    );
                 headerSum += caps[i].Header;
+                if (caps[i].Start > (dataLength - headerSum) / frameBytes)
+                    throw m.Error(
+                        $"captures[{i}].core:sample_start {caps[i].Start + indexOffset} lies beyond the end of the "
+                            + $"{dataLength}-byte data file"
+                    );
                 long byteStart = headerSum + caps[i].Start * (long)frameBytes;
                 if (byteStart > dataLength)
                     throw m.Error(
@@ -223,7 +234,7 @@ internal static class SigMfReader
                 if (i + 1 < caps.Count)
                 {
                     count = caps[i + 1].Start - caps[i].Start;
-                    if (byteStart + count * frameBytes > dataLength)
+                    if (count > (dataLength - byteStart) / frameBytes)
                         throw m.Error($"captures[{i}] runs beyond the end of the {dataLength}-byte data file");
                 }
                 else

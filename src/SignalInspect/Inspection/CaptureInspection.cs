@@ -66,7 +66,12 @@ public static class CaptureInspection
     /// missing.</exception>
     public static void WriteReport(MeasurementReport model, string pdfPath, bool overwrite)
     {
-        AtomicFile.Write(ModelPathFor(pdfPath), overwrite, s => s.Write(ReportJson.ToBytes(model)));
-        AtomicFile.Write(pdfPath, overwrite, s => PdfReportWriter.Write(model, s));
+        AtomicFile.WriteSet(
+            [
+                (ModelPathFor(pdfPath), s => s.Write(ReportJson.ToBytes(model))),
+                (pdfPath, s => PdfReportWriter.Write(model, s)),
+            ],
+            overwrite
+        );
     }
 }

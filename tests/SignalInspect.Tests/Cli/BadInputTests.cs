@@ -20,10 +20,10 @@ public class BadInputTests
     [InlineData("rate-is-string.sigmf-meta", "global.core:sample_rate must be a number, not a string")]
     [InlineData("unknown-datatype.sigmf-meta", "unknown datatype 'cf16_xx'")]
     [InlineData("rate-missing.sigmf-meta", "--sample-rate: needed (no global.core:sample_rate in the metadata)")]
-    [InlineData("rate-zero.sigmf-meta", "must be a positive number")]
+    [InlineData("rate-zero.sigmf-meta", "must lie from 1 Hz to 1e11 Hz")]
     [InlineData(
         "rate-negative.sigmf-meta",
-        "sample rate -48000 Hz from global.core:sample_rate must be a positive number"
+        "sample rate -48000 Hz from global.core:sample_rate must lie from 1 Hz to 1e11 Hz"
     )]
     [InlineData("captures-not-array.sigmf-meta", "'captures' must be a JSON array")]
     [InlineData("data-missing.sigmf-meta", "data file data-missing.sigmf-data not found")]
@@ -50,8 +50,8 @@ public class BadInputTests
 
     [Theory]
     [InlineData("--datatype", "cf99_le", "unknown datatype 'cf99_le'")]
-    [InlineData("--sample-rate", "0", "must be a positive number")]
-    [InlineData("--sample-rate", "-2.4M", "must be a positive number")]
+    [InlineData("--sample-rate", "0", "must be a number of Hz from 1 to 1e11")]
+    [InlineData("--sample-rate", "-2.4M", "must be a number of Hz from 1 to 1e11")]
     public void Bad_reader_options_fail_with_exit_code_2(string option, string value, string problem)
     {
         var (code, _, stderr) = CliRunner.Run(
@@ -189,5 +189,56 @@ public class CorpusTests
         Assert.Equal(2, code);
         Assert.Contains(message, stderr);
         Assert.Single(stderr.Trim().Split('\n'));
+    }
+
+    /// <summary>Issue 27 item 2: a SigMF sample_start of 2^61 wrapped to byte 0 (read with exit 0) or, as a second
+    /// capture, ran the reader for ever. Refused at once, naming the field, the data file unchanged.</summary>
+    [Theory]
+    [InlineData("[{\"core:sample_start\": 2305843009213693952}]", "captures[0].core:sample_start")]
+    [InlineData(
+        "[{\"core:sample_start\": 0}, {\"core:sample_start\": 2305843009213693952}]",
+        "captures[0] runs beyond the end" // the first capture would run up to the second
+    )]
+    [InlineData("[{\"core:sample_start\": 0, \"core:header_bytes\": 4611686018427387904}]", "header_bytes")]
+    public void A_SigMF_capture_beyond_its_data_file_is_refused_at_once(string captures, string field)
+    {
+        using var tmp = new TempDir();
+        string data = tmp.File("x.sigmf-data");
+        File.WriteAllBytes(data, new byte[4000]);
+        File.WriteAllText(
+            tmp.File("x.sigmf-meta"),
+            "{\"global\": {\"core:datatype\": \"ci16_le\", \"core:sample_rate\": 48000, \"core:version\": "
+                + "\"1.2.0\"}, \"captures\": "
+                + captures
+                + ", \"annotations\": []}"
+        );
+        foreach (string command in new[] { "info", "analyze", "spectrum" })
+        {
+            var (code, _, stderr) = CliRunner.Run(command, tmp.File("x.sigmf-meta"));
+            Assert.Equal(2, code);
+            Assert.Contains(field, stderr);
+            Assert.Contains("beyond", stderr);
+            Assert.Single(stderr.Trim().Split('\n'));
+        }
+        Assert.Equal(new byte[4000], File.ReadAllBytes(data));
+    }
+
+    /// <summary>Issue 27 item 3: absurd rates gave an infinite duration and NaN results (exit 0) or an internal
+    /// error.</summary>
+    [Theory]
+    [InlineData("1e-308")]
+    [InlineData("0.5")]
+    [InlineData("1e13")]
+    [InlineData("1e308")]
+    public void An_absurd_sample_rate_is_refused(string rate)
+    {
+        var (code, _, stderr) = CliRunner.Run(
+            "analyze",
+            TestData.Path("measure", "nbfm-151625.sigmf-meta"),
+            "--sample-rate",
+            rate
+        );
+        Assert.Equal(2, code);
+        Assert.Contains("--sample-rate: must be a number of Hz from 1 to 1e11", stderr);
     }
 }

@@ -102,10 +102,7 @@ public class ComplianceTests
         "{\"name\": \"x\", \"frequencyTolerance\": {\"ppm\": 2.5, \"ppb\": 2500}}",
         "frequencyTolerance.ppb is not a field"
     )]
-    [InlineData(
-        "{\"name\": \"x\", \"frequencyTolerance\": {\"ppm\": 2.5, \"hz\": 400}}",
-        "not both"
-    )]
+    [InlineData("{\"name\": \"x\", \"frequencyTolerance\": {\"ppm\": 2.5, \"hz\": 400}}", "not both")]
     [InlineData(
         "{\"name\": \"x\", \"mask\": {\"points\": [[0, 0], [10000, -20]]}}",
         "mask.points[1] the attenuation must be 0 dB or more"
