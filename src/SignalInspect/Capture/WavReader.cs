@@ -44,6 +44,14 @@ internal static class WavReader
             );
             dataBytes = available;
         }
+        if (scan.DataChunks.Count > 1)
+        {
+            dataBytes = scan.DataChunks.Sum(c => c.Length);
+            notes.Add(
+                $"the samples are spread over {scan.DataChunks.Count} data chunks ({scan.Between} other chunk(s) "
+                    + "between them): all are read, in file order"
+            );
+        }
         if (dataBytes % frameBytes != 0)
             warnings.Add(
                 $"data chunk holds {dataBytes % frameBytes} byte(s) after the last whole sample frame; they are ignored"
@@ -84,6 +92,20 @@ internal static class WavReader
             Warnings = warnings,
         };
         long length = dataBytes;
+        if (scan.DataChunks.Count > 1)
+        {
+            var extents = new List<FileExtent>();
+            long left = length;
+            foreach (FileExtent c in scan.DataChunks)
+            {
+                long take = Math.Min(c.Length, left);
+                if (take <= 0)
+                    break;
+                extents.Add(c with { Length = take });
+                left -= take;
+            }
+            return new CaptureSource(info, () => new FileExtentSource(path, extents), stored, channels, pick);
+        }
         return new CaptureSource(info, () => OpenData(path, scan.Magic, length), stored, channels, pick);
     }
 
@@ -168,7 +190,15 @@ internal static class WavReader
         return (stored, fmt.Channels, fmt.SampleRate);
     }
 
-    private sealed record ChunkScan(string Magic, long DataOffset, long DeclaredDataBytes, ushort? SubFormatCode);
+    private sealed record ChunkScan(string Magic, long DataOffset, long DeclaredDataBytes, ushort? SubFormatCode)
+    {
+        /// <summary>Every data chunk's body (offset, length) when the samples are spread over more than one (some
+        /// receivers write hundreds, with their own small chunks between); empty for the usual one.</summary>
+        public IReadOnlyList<FileExtent> DataChunks { get; init; } = [];
+
+        /// <summary>Other chunks found between the data chunks.</summary>
+        public int Between { get; init; }
+    }
 
     /// <summary>Walks the chunk list up to the data chunk; sizes are never used to allocate.</summary>
     private static ChunkScan Scan(string path, long fileSize)
@@ -239,7 +269,10 @@ internal static class WavReader
                 if (magic != "RIFF" && size == uint.MaxValue)
                     declared = ds64Data
                         ?? throw CaptureException.ForFile(path, $"{magic} data chunk needs a ds64 chunk with its size");
-                return new ChunkScan(magic, bodyAt, declared, sub);
+                var scan = new ChunkScan(magic, bodyAt, declared, sub);
+                return magic == "RIFF" && size != uint.MaxValue && bodyAt + size < fileSize
+                    ? MoreData(fs, scan, fileSize)
+                    : scan;
             }
             long next = bodyAt + size + (size & 1);
             if (next > fileSize)
@@ -249,6 +282,32 @@ internal static class WavReader
                 );
             pos = next;
         }
+    }
+
+    /// <summary>Walks on past the first data chunk to the end of the file: every further data chunk is part of the
+    /// recording (a chunk running past the end, or a header that does not read, ends the walk).</summary>
+    private static ChunkScan MoreData(FileStream fs, ChunkScan first, long fileSize)
+    {
+        var data = new List<FileExtent> { new(first.DataOffset, first.DeclaredDataBytes) };
+        int between = 0;
+        Span<byte> ch = stackalloc byte[8];
+        long pos = first.DataOffset + first.DeclaredDataBytes + (first.DeclaredDataBytes & 1);
+        while (pos + 8 <= fileSize)
+        {
+            fs.Position = pos;
+            if (fs.ReadAtLeast(ch, 8, throwOnEndOfStream: false) < 8)
+                break;
+            uint size = BinaryPrimitives.ReadUInt32LittleEndian(ch[4..]);
+            long bodyAt = pos + 8;
+            if (bodyAt + size > fileSize)
+                break;
+            if (ch[..4].SequenceEqual("data"u8))
+                data.Add(new FileExtent(bodyAt, size));
+            else
+                between++;
+            pos = bodyAt + size + (size & 1);
+        }
+        return data.Count > 1 ? first with { DataChunks = data, Between = between } : first;
     }
 
     private static string Printable(string id) => new(id.Select(c => c is >= ' ' and <= '~' ? c : '?').ToArray());

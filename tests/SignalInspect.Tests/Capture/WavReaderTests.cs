@@ -220,4 +220,60 @@ public class WavReaderTests
         w.Write(uint.MaxValue);
         return ms.ToArray();
     }
+
+    /// <summary>
+    /// Issue 27 item 10: some web receivers write IQ WAV files with the samples spread over hundreds of data chunks,
+    /// small vendor chunks between them; only the first chunk was read (512 of 350 000 samples) without a word.
+    /// A file made to that layout here (RIFF rules: chunks padded to even length) reads every sample, in order.
+    /// </summary>
+    [Fact]
+    public void Samples_spread_over_many_data_chunks_are_all_read()
+    {
+        using var tmp = new TempDir();
+        string path = tmp.File("chunks.wav");
+        const int chunks = 60,
+            frames = 512;
+        var expected = new List<double>();
+        using (var w = new BinaryWriter(File.Create(path)))
+        {
+            w.Write("RIFF"u8);
+            w.Write(0); // patched below
+            w.Write("WAVE"u8);
+            w.Write("fmt "u8);
+            w.Write(16);
+            w.Write((short)1); // PCM
+            w.Write((short)2); // I, Q
+            w.Write(48000);
+            w.Write(48000 * 4);
+            w.Write((short)4);
+            w.Write((short)16);
+            int n = 0;
+            for (int c = 0; c < chunks; c++)
+            {
+                w.Write("data"u8);
+                w.Write(frames * 4);
+                for (int k = 0; k < frames; k++, n++)
+                {
+                    short i = (short)Math.Round(8000 * Math.Cos(2 * Math.PI * 3000 * n / 48000.0)),
+                        q = (short)Math.Round(8000 * Math.Sin(2 * Math.PI * 3000 * n / 48000.0));
+                    w.Write(i);
+                    w.Write(q);
+                    expected.Add(i / 32768.0);
+                    expected.Add(q / 32768.0);
+                }
+                // A vendor chunk of odd length between data chunks: its pad byte must be skipped too.
+                w.Write("vndr"u8);
+                w.Write(5);
+                w.Write("abcde"u8);
+                w.Write((byte)0);
+            }
+            w.Flush();
+            w.Seek(4, SeekOrigin.Begin);
+            w.Write((int)(w.BaseStream.Length - 8));
+        }
+        CaptureSource source = CaptureSource.Open(path);
+        Assert.Equal(chunks * frames, source.Info.SampleCount);
+        Assert.Contains(source.Info.Notes, note => note.Contains("spread over 60 data chunks"));
+        Assert.Equal(expected, TestData.ReadAll(source));
+    }
 }
