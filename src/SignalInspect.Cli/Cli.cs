@@ -37,7 +37,7 @@ public static class Cli
         }
         catch (Exception e) when (UserMessage(e) is { } message)
         {
-            stderr.WriteLine($"signalinspect: error: {message}");
+            stderr.WriteLine($"signalinspect: error: {SignalInspect.Diagnostics.SafeText.ForTerminal(message)}");
             return ExitCodes.BadInput;
         }
         catch (Exception e)

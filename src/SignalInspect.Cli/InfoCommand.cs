@@ -2,6 +2,7 @@ using System.CommandLine;
 using System.Globalization;
 using System.Text.Json;
 using SignalInspect.Capture;
+using SignalInspect.Diagnostics;
 using SignalInspect.Reporting;
 
 namespace SignalInspect.Cli;
@@ -47,7 +48,10 @@ internal static class InfoCommand
                 WriteText(stdout, info);
             }
             foreach (string warning in info.Warnings)
-                stderr.WriteLine($"signalinspect: warning: {Path.GetFileName(info.Path)}: {warning}");
+                stderr.WriteLine(
+                    $"signalinspect: warning: {SafeText.ForTerminal(Path.GetFileName(info.Path))}: "
+                        + SafeText.ForTerminal(warning)
+                );
             return ExitCodes.Success;
         });
         return cmd;
@@ -56,7 +60,8 @@ internal static class InfoCommand
     private static void WriteText(TextWriter o, CaptureInfo info)
     {
         CultureInfo inv = CultureInfo.InvariantCulture;
-        void Row(string k, string v) => o.WriteLine($"{k,-19}{v}");
+        // Text from the file is shown with its control characters escaped (SafeText).
+        void Row(string k, string v) => o.WriteLine($"{k,-19}{SafeText.ForTerminal(v)}");
         Row("file", info.Path);
         Row("container", info.Container);
         Row("sample rate", Units.Hz(info.SampleRateHz));
@@ -103,11 +108,11 @@ internal static class InfoCommand
                                 ? $", {Units.Hz(lo)} to {Units.Hz(hi)}"
                                 : string.Empty
                         )
-                        + (a.Label is { } l ? $", '{l}'" : string.Empty)
-                        + (a.Comment is { } cm ? $": {cm}" : string.Empty)
+                        + (a.Label is { } l ? $", '{SafeText.ForTerminal(l)}'" : string.Empty)
+                        + (a.Comment is { } cm ? $": {SafeText.ForTerminal(cm)}" : string.Empty)
                 );
         }
         foreach (string n in info.Notes)
-            o.WriteLine($"note: {n}");
+            o.WriteLine($"note: {SafeText.ForTerminal(n)}");
     }
 }

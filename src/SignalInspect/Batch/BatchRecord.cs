@@ -162,7 +162,7 @@ public sealed record BatchRecord
                         null => string.Empty,
                         double d => double.IsFinite(d) ? d.ToString("R", CultureInfo.InvariantCulture) : string.Empty,
                         long l => l.ToString(CultureInfo.InvariantCulture),
-                        string s => Quote(s),
+                        string s => Quote(Diagnostics.SafeText.ForSpreadsheet(s)),
                         _ => string.Empty,
                     }
                 )

@@ -1,5 +1,6 @@
 using System.Globalization;
 using SignalInspect.Compliance;
+using SignalInspect.Diagnostics;
 using SignalInspect.Measure;
 using SignalInspect.Spectrum;
 
@@ -19,7 +20,7 @@ public static class ConsoleReport
     {
         AnalysisResult a = report.Analysis;
         double k = report.Profile?.CoverageFactor ?? 2;
-        void Line(string label, string text) => o.WriteLine($"{label,-LabelWidth}{text}");
+        void Line(string label, string text) => o.WriteLine($"{label,-LabelWidth}{SafeText.ForTerminal(text)}");
         Line("file", a.Capture.Path);
         Classification cls = a.Classification;
         Line(
