@@ -180,6 +180,11 @@ internal static class SpectrumCommand
             );
             clock.Stop();
             PowerSpectrum psd = r.GetValue(average) == "max" ? result.MaxHold : result.Mean;
+            if (!(result.Mean.TotalPower() > 1e-30))
+                throw CaptureException.ForFile(
+                    source.Info.Path,
+                    "holds only zero (or NaN and infinite) samples: there is no spectrum to estimate"
+                );
             TextWriter summary = csvToStdout ? stderr : stdout;
             WriteSummary(summary, source.Info, psd, result, clock.Elapsed);
             foreach (string w in source.Info.Warnings)

@@ -309,7 +309,8 @@ public static class Analyzer
                 b.NearFullScale,
                 count,
                 options.SuppressDc,
-                spectrum.NonFiniteSegments
+                spectrum.NonFiniteSegments,
+                snrDb
             )
         );
         var method = new MethodRecord

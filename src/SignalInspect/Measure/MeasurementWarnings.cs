@@ -63,7 +63,8 @@ internal static class MeasurementWarnings
         long nearFullScale,
         long count,
         bool suppressDc,
-        long nonFiniteSegments
+        long nonFiniteSegments,
+        double snrDb = 0
     )
     {
         double fs = info.SampleRateHz;
@@ -91,6 +92,16 @@ internal static class MeasurementWarnings
             yield return $"{nonFiniteSegments} spectrum segment(s) held NaN or infinite samples (taken as 0)";
         if (BelowRounding(info, bw.NoiseFloorDensity) is { } rounding)
             yield return rounding;
+        if (kind != ModulationKind.Noise && snrDb >= BandwidthMeasurement.MaxSnrDb - 0.5)
+            yield return "no noise was found beside the signal (the SNR reads at its 200 dB cap): the samples are "
+                + "synthetic or digitally generated, not a receiver's; the uncertainties that come from noise are nil";
+        if (
+            info.IsComplex
+            && kind is not (ModulationKind.Noise or ModulationKind.Ook)
+            && Math.Abs(carrierAxisHz) < psd.RbwHz
+        )
+            yield return "the carrier sits at the capture's centre (0 Hz), where a receiver's DC offset or LO leakage "
+                + "also sits: check that it is the transmitter's (tune off-centre to tell them apart)";
     }
 
     /// <summary>A floor this far below the datatype's rounding noise (10 dB) means the rounding error is not

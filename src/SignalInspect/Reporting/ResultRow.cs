@@ -367,16 +367,17 @@ public static class ResultRows
     {
         if (a.Timeline is not { Windows.Count: > 1 } t)
             return null;
+        // Rounded first: a value that rounds to nothing would print as "-+0" with a signed format.
+        static double R(double v, int places) => Math.Round(v, places) + 0.0;
         string text = string.Create(
             C,
-            $"offset {t.MinOffsetHz:+0.#;-0.#} to {t.MaxOffsetHz:+0.#;-0.#} Hz in {t.Windows.Count} windows of "
-                + $"{t.WindowS:0.###} s"
+            $"offset {R(t.MinOffsetHz, 1):+0.#;-0.#;0} to {R(t.MaxOffsetHz, 1):+0.#;-0.#;0} Hz in {t.Windows.Count} "
+                + $"windows of {t.WindowS:0.###} s"
         );
         if (t.DriftHzPerS is { } d)
-            text += string.Create(
-                C,
-                $", drift {d.Value:+0.###;-0.###} Hz/s +/- {coverageFactor * d.StandardUncertainty:0.###} Hz/s (U)"
-            );
+            text +=
+                string.Create(C, $", drift {R(d.Value, 3):+0.###;-0.###;0} Hz/s ")
+                + string.Create(C, $"+/- {coverageFactor * d.StandardUncertainty:0.###} Hz/s (U)");
         return t.Detrended ? text + "; deviation measured about the local carrier" : text;
     }
 }
