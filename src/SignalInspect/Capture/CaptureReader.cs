@@ -62,6 +62,9 @@ public sealed class CaptureReader : IDisposable
     /// <summary>Samples already read from the window.</summary>
     public long Position => _position;
 
+    /// <summary>Whether the file stores floating-point samples (which may exceed 1 without clipping).</summary>
+    public bool StoresFloat => _decoder.StoresFloat;
+
     /// <summary>Values per sample in the output: 2 (I, Q) for complex, 1 for real.</summary>
     public int ValuesPerSample => _decoder.OutputComponents;
 

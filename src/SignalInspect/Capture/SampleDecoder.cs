@@ -36,6 +36,9 @@ internal sealed class SampleDecoder
     public bool StoresOutputAsFloat32 =>
         _identity && _format.Encoding == ComponentEncoding.Float32 && _format.BigEndian != BitConverter.IsLittleEndian;
 
+    /// <summary>Whether the stored components are floating point.</summary>
+    public bool StoresFloat => _format.IsFloat;
+
     /// <summary>Values written per output sample (2 complex, 1 real).</summary>
     public int OutputComponents => _pick.Length;
 

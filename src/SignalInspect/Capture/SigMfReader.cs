@@ -307,11 +307,22 @@ internal static class SigMfReader
                 }
             }
 
+            // SigMF states complex data by its datatype (c...): a real datatype with several channels is several
+            // real channels, not I and Q (as a two-channel WAV is by convention). Channel 0 unless one is picked.
+            ReaderOptions picking = options;
+            if (!format.IsComplex && channels > 1 && options.Channels == ChannelSelection.Auto)
+            {
+                picking = options with { Channels = ChannelSelection.Index, ChannelIndex = 0 };
+                notes.Add(
+                    $"{format.Name} with {channels} channels is {channels} real channels (SigMF: complex data has a "
+                        + "c datatype): channel 0 is read; --channel N reads another, --channel iq reads 0 and 1 as I/Q"
+                );
+            }
             (int[] pick, bool complex, string use) = CaptureSource.PickChannels(
                 metaPath,
                 format,
                 (int)channels,
-                options
+                picking
             );
             double?[] freqs = [.. segments.Select(s => s.FrequencyHz)];
             bool oneFrequency = freqs.Distinct().Count() == 1;

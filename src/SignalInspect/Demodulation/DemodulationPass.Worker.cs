@@ -288,14 +288,14 @@ internal static partial class DemodulationPass
                 if ((got = f.Length / vps) <= 0)
                     return -1;
                 if (skip < got)
-                    k.NearFullScale += CountFullScale(f[(skip * vps)..]);
+                    k.NearFullScale += CountFullScale(f[(skip * vps)..], reader.StoresFloat);
                 inPos += got;
                 return dec.Process(f, _re.AsSpan(1), _im.AsSpan(1));
             }
             if ((got = reader.Read(_input)) <= 0)
                 return -1;
             if (skip < got)
-                k.NearFullScale += CountFullScale(_input.AsSpan(skip * vps, (got - skip) * vps));
+                k.NearFullScale += CountFullScale(_input.AsSpan(skip * vps, (got - skip) * vps), reader.StoresFloat);
             inPos += got;
             return dec.Process(_input.AsSpan(0, got * vps), _re.AsSpan(1), _im.AsSpan(1));
         }
@@ -463,11 +463,21 @@ internal static partial class DemodulationPass
     private static readonly float FullScaleCodeF =
         (float)FullScaleCode >= FullScaleCode ? (float)FullScaleCode : MathF.BitIncrement((float)FullScaleCode);
 
-    /// <summary>Sample components at full scale (|v| at or above the top code), NaN not counted.</summary>
-    private static long CountFullScale(ReadOnlySpan<double> v) => CountAtOrAbove(v, FullScaleCode);
+    /// <summary>Sample components at full scale (|v| at or above the top code), NaN not counted. Floats may exceed
+    /// 1 without clipping (a capture not scaled to +/-1): for them only values from the top code up to 1 itself
+    /// count (the second count runs only when the first found any).</summary>
+    private static long CountFullScale(ReadOnlySpan<double> v, bool isFloat)
+    {
+        long n = CountAtOrAbove(v, FullScaleCode);
+        return isFloat && n > 0 ? n - CountAtOrAbove(v, Math.BitIncrement(1.0)) : n;
+    }
 
     /// <summary>The same count of single-precision components (as of them widened).</summary>
-    private static long CountFullScale(ReadOnlySpan<float> v) => CountAtOrAbove(v, FullScaleCodeF);
+    private static long CountFullScale(ReadOnlySpan<float> v, bool isFloat)
+    {
+        long n = CountAtOrAbove(v, FullScaleCodeF);
+        return isFloat && n > 0 ? n - CountAtOrAbove(v, MathF.BitIncrement(1f)) : n;
+    }
 
     /// <summary>
     /// Components with |v| &gt;= <paramref name="limit"/>, NaN not counted. The per-lane counts are

@@ -169,4 +169,46 @@ public class RawAndSigMfTests
         CaptureInfo info = CaptureSource.Open(path, new ReaderOptions { VerifyChecksum = false }).Info;
         Assert.StartsWith("not checked", info.ChecksumStatus);
     }
+
+    /// <summary>
+    /// Issue 27 item 10: SigMF states complex data by its datatype (c...); ri16_le with core:num_channels 2 is two
+    /// real channels and was read as I/Q. Made to that layout here: channel 0 a 1 kHz tone, channel 1 a 3 kHz tone
+    /// (48 kS/s, interleaved per sample as the spec lays out channels).
+    /// </summary>
+    [Fact]
+    public void SigMF_two_real_channels_are_two_real_channels()
+    {
+        using var tmp = new TempDir();
+        const int n = 48000;
+        var data = new byte[n * 4];
+        for (int k = 0; k < n; k++)
+        {
+            BitConverter.TryWriteBytes(
+                data.AsSpan(4 * k),
+                (short)Math.Round(8000 * Math.Cos(2 * Math.PI * 1000 * k / 48000.0))
+            );
+            BitConverter.TryWriteBytes(
+                data.AsSpan(4 * k + 2),
+                (short)Math.Round(8000 * Math.Cos(2 * Math.PI * 3000 * k / 48000.0))
+            );
+        }
+        File.WriteAllBytes(tmp.File("two.sigmf-data"), data);
+        File.WriteAllText(
+            tmp.File("two.sigmf-meta"),
+            "{\"global\": {\"core:datatype\": \"ri16_le\", \"core:sample_rate\": 48000, \"core:num_channels\": 2, "
+                + "\"core:version\": \"1.2.0\"}, \"captures\": [{\"core:sample_start\": 0}], \"annotations\": []}"
+        );
+        CaptureSource zero = CaptureSource.Open(tmp.File("two.sigmf-meta"));
+        Assert.False(zero.Info.IsComplex);
+        Assert.Contains(zero.Info.Notes, x => x.Contains("2 real channels"));
+        double[] v = TestData.ReadAll(zero);
+        Assert.Equal(n, v.Length);
+        Assert.Equal(8000 / 32768.0, v[0], 9); // cos(0) of channel 0
+        Assert.Equal(Math.Round(8000 * Math.Cos(2 * Math.PI * 1000 / 48000.0)) / 32768.0, v[1], 9);
+        CaptureSource one = CaptureSource.Open(
+            tmp.File("two.sigmf-meta"),
+            new ReaderOptions { Channels = ChannelSelection.Index, ChannelIndex = 1 }
+        );
+        Assert.Equal(Math.Round(8000 * Math.Cos(2 * Math.PI * 3000 / 48000.0)) / 32768.0, TestData.ReadAll(one)[1], 9);
+    }
 }

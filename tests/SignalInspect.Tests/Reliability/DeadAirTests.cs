@@ -62,4 +62,29 @@ public class DeadAirTests
         Near.Equal(9, t.EndS, 0.01, "key-down, s");
         Near.Equal(2500, r.Fm!.PeakDeviationHz.Value, 0.02 * 2500, "deviation");
     }
+
+    /// <summary>Issue 27 item 10: a float capture not scaled to +/-1 got a false "probably clipped" warning; a
+    /// float capture clipped at full scale (components held at exactly 1) still gets it.</summary>
+    [Theory]
+    [InlineData(5.0, false, false)] // a tone of amplitude 5: floats, not clipped
+    [InlineData(1.5, true, true)] // amplitude 1.5 with I and Q clamped at +/-1: clipped
+    public void Float_clipping_is_full_scale_held_not_values_beyond_one(double amplitude, bool clamp, bool warned)
+    {
+        using var tmp = new TempDir();
+        string path = tmp.File("f.cf32");
+        var bytes = new byte[8 * 48000];
+        for (int k = 0; k < 48000; k++)
+        {
+            double ph = 2 * Math.PI * 3000 * k / 48000.0;
+            double i = amplitude * Math.Cos(ph),
+                q = amplitude * Math.Sin(ph);
+            if (clamp)
+                (i, q) = (Math.Clamp(i, -1, 1), Math.Clamp(q, -1, 1));
+            BitConverter.TryWriteBytes(bytes.AsSpan(8 * k), (float)i);
+            BitConverter.TryWriteBytes(bytes.AsSpan(8 * k + 4), (float)q);
+        }
+        File.WriteAllBytes(path, bytes);
+        var (_, _, stderr) = CliRunner.Run("analyze", path, "--sample-rate", "48k");
+        Assert.Equal(warned, stderr.Contains("probably clipped"));
+    }
 }
