@@ -75,18 +75,7 @@ public static class BatchRunner
         {
             if (Directory.Exists(input))
             {
-                foreach (
-                    string f in Directory.EnumerateFiles(
-                        input,
-                        "*",
-                        new EnumerationOptions
-                        {
-                            RecurseSubdirectories = true,
-                            IgnoreInaccessible = true,
-                            AttributesToSkip = FileAttributes.Hidden,
-                        }
-                    )
-                )
+                foreach (string f in Walk(input))
                     if (CaptureFormats.IsCaptureName(f))
                         Add(found, f, Path.GetRelativePath(input, f), defaults);
             }
@@ -109,6 +98,59 @@ public static class BatchRunner
             }
         }
         return [.. found.Values];
+    }
+
+    /// <summary>The files under <paramref name="root"/>, every folder once: a linked folder is followed to its
+    /// target, which is walked only if it was not walked already (a link to a parent, `up -> ..`, or to itself,
+    /// `self -> .`, used to hang the walk or list every file dozens of times). Hidden entries are skipped.</summary>
+    private static IEnumerable<string> Walk(string root)
+    {
+        var seen = new HashSet<string>(StringComparer.Ordinal);
+        var pending = new Stack<string>();
+        pending.Push(root);
+        var options = new EnumerationOptions
+        {
+            IgnoreInaccessible = true,
+            AttributesToSkip = FileAttributes.Hidden,
+            RecurseSubdirectories = false,
+        };
+        while (pending.Count > 0)
+        {
+            string dir = pending.Pop();
+            string real;
+            try
+            {
+                real = Directory.ResolveLinkTarget(dir, returnFinalTarget: true)?.FullName ?? Path.GetFullPath(dir);
+                real = RealPath(real);
+            }
+            catch (IOException)
+            {
+                continue; // a link that leads nowhere
+            }
+            if (!seen.Add(real))
+                continue;
+            foreach (string f in Directory.EnumerateFiles(dir, "*", options))
+                yield return f;
+            foreach (
+                string d in Directory.EnumerateDirectories(dir, "*", options).OrderDescending(StringComparer.Ordinal)
+            )
+                pending.Push(d);
+        }
+    }
+
+    /// <summary>The path with every linked folder along it resolved (two spellings of one folder compare equal).
+    /// </summary>
+    private static string RealPath(string full)
+    {
+        string? parent = Path.GetDirectoryName(full);
+        if (parent is null)
+            return full;
+        string resolvedParent = RealPath(parent);
+        string here = Path.Combine(resolvedParent, Path.GetFileName(full));
+        var info = new DirectoryInfo(here);
+        return info.LinkTarget is not null && info.ResolveLinkTarget(returnFinalTarget: true) is { } t
+            ? RealPath(t.FullName)
+            : here;
     }
 
     private static void Add(SortedDictionary<string, BatchInput> found, string path, string key, ReaderOptions defaults)
@@ -160,12 +202,19 @@ public static class BatchRunner
     {
         Directory.CreateDirectory(options.OutDir);
         string jsonl = Path.Combine(options.OutDir, "summary.jsonl");
+        using FileStream outLock = LockOutput(options.OutDir);
+        // Resume: a capture is done when its path and its content are (the same bytes at two paths are two
+        // captures); one that ended in an error is tried again (the error may have been the machine's).
         var done = new Dictionary<string, BatchRecord>(StringComparer.Ordinal);
         if (options.Resume && File.Exists(jsonl))
-            foreach (BatchRecord r in ReadJsonl(jsonl))
-                done[r.ContentSha256 ?? "path:" + r.File] = r;
-        else if (File.Exists(jsonl))
+            foreach (BatchRecord r in ReadJsonlForResume(jsonl))
+                if (r.Status != "error")
+                    done[ResumeKey(r.ContentSha256, r.File)] = r;
+        if (File.Exists(jsonl))
+        {
+            // The kept records are written again below, so a torn or failed line leaves no trace.
             File.Delete(jsonl);
+        }
         List<BatchInput> mine = [.. inputs.Where(i => ShardOf(i.Key, options.ShardCount) == options.ShardIndex - 1)];
         var records = new ConcurrentBag<BatchRecord>(done.Values);
         object gate = new();
@@ -180,6 +229,8 @@ public static class BatchRunner
             AutoFlush = true,
             NewLine = "\n",
         };
+        foreach (BatchRecord kept in done.Values)
+            append.WriteLine(kept.ToJsonLine());
         try
         {
             Parallel.ForEach(
@@ -194,10 +245,7 @@ public static class BatchRunner
                     }
                     catch (IOException) { }
                     catch (UnauthorizedAccessException) { }
-                    if (
-                        options.Resume
-                        && (hash is not null ? done.ContainsKey(hash) : done.ContainsKey("path:" + input.Path))
-                    )
+                    if (options.Resume && done.ContainsKey(ResumeKey(hash, input.Path)))
                     {
                         Interlocked.Increment(ref skipped);
                         return;
@@ -295,6 +343,51 @@ public static class BatchRunner
                 Error = message.ReplaceLineEndings(" ").Trim(),
             };
         }
+    }
+
+    private static string ResumeKey(string? hash, string file) => (hash ?? "-") + "|" + file;
+
+    /// <summary>Holds the output folder for this run: a second batch into the same folder would interleave its
+    /// lines with this one's and one would lose its rows.</summary>
+    /// <exception cref="OutputException">Another batch holds the folder.</exception>
+    private static FileStream LockOutput(string outDir)
+    {
+        string path = Path.Combine(outDir, ".batch.lock");
+        try
+        {
+            return new FileStream(
+                path,
+                FileMode.OpenOrCreate,
+                FileAccess.ReadWrite,
+                FileShare.None,
+                1,
+                FileOptions.DeleteOnClose
+            );
+        }
+        catch (IOException)
+        {
+            throw OutputException.ForFile(
+                outDir,
+                "another batch is writing into this folder (.batch.lock is held); wait for it or write elsewhere"
+            );
+        }
+    }
+
+    /// <summary>The records of a summary.jsonl to resume from: a last line that does not read (a run killed while
+    /// writing it) is left out; any other bad line is an error.</summary>
+    private static List<BatchRecord> ReadJsonlForResume(string path)
+    {
+        string[] lines = [.. File.ReadLines(path).Where(l => !string.IsNullOrWhiteSpace(l))];
+        var records = new List<BatchRecord>(lines.Length);
+        for (int i = 0; i < lines.Length; i++)
+        {
+            try
+            {
+                records.Add(BatchRecord.FromJsonLine(lines[i], path));
+            }
+            catch (CaptureException) when (i == lines.Length - 1) { }
+        }
+        return records;
     }
 
     /// <summary>Reads the records of a summary.jsonl.</summary>
