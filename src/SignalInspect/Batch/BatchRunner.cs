@@ -419,6 +419,15 @@ public static class BatchRunner
         );
     }
 
+    /// <summary>Whether <paramref name="rel"/> is a relative path that stays inside <paramref name="dir"/>.</summary>
+    private static bool Inside(string dir, string rel)
+    {
+        if (Path.IsPathRooted(rel) || rel.Contains('\0'))
+            return false;
+        string root = Path.GetFullPath(dir) + Path.DirectorySeparatorChar;
+        return Path.GetFullPath(Path.Combine(dir, rel)).StartsWith(root, StringComparison.Ordinal);
+    }
+
     /// <summary>Joins the summaries of several output folders (shards) into one, de-duplicated by content
     /// hash.</summary>
     public static IReadOnlyList<BatchRecord> Merge(IEnumerable<string> dirs, string outDir)
@@ -444,6 +453,13 @@ public static class BatchRunner
                 {
                     if (rel is null)
                         continue;
+                    // The summary is data, not instructions: a path in it that leaves its folder (.., rooted) is
+                    // neither read nor written (it could copy a file from anywhere or overwrite one outside --out).
+                    if (!Inside(dir, rel) || !Inside(outDir, rel))
+                        throw CaptureException.ForFile(
+                            jsonl,
+                            $"names the file '{Diagnostics.SafeText.ForTerminal(rel)}' outside its folder: not merged"
+                        );
                     string src = Path.Combine(dir, rel),
                         dst = Path.Combine(outDir, rel);
                     if (!File.Exists(src) || Path.GetFullPath(src) == Path.GetFullPath(dst))

@@ -220,4 +220,30 @@ public class BatchCommandTests
         Assert.Single(File.ReadAllLines(Path.Combine(tmp.File("out"), "summary.jsonl")));
         Assert.Contains("1 (1 ok", stdout);
     }
+
+    /// <summary>Issue 27 item 9: `batch merge` trusted the paths inside summary.jsonl; a thumbnail of ../../x
+    /// copied a file from outside the shard into a place outside --out. Such a summary is refused.</summary>
+    [Theory]
+    [InlineData("../../outside.txt")]
+    [InlineData("/etc/hostname")]
+    public void Merge_refuses_paths_that_leave_their_folder(string hostile)
+    {
+        using var tmp = new TempDir();
+        string shard = tmp.File("shard"),
+            merged = Path.Combine(tmp.Path, "deep", "merged");
+        CliRunner.Run("batch", TestData.Path("measure", "am-audio-12k.wav"), "--out", shard);
+        string jsonl = Path.Combine(shard, "summary.jsonl");
+        string line = File.ReadAllLines(jsonl)[0];
+        using (JsonDocument d = JsonDocument.Parse(line))
+        {
+            string thumb = d.RootElement.GetProperty("thumbnail").GetString()!;
+            File.WriteAllText(jsonl, line.Replace(thumb, hostile) + "\n");
+        }
+        File.WriteAllText(tmp.File("outside.txt"), "not to be copied");
+        var (code, _, stderr) = CliRunner.Run("batch", "merge", shard, "--out", merged);
+        Assert.Equal(2, code);
+        Assert.Contains("outside its folder", stderr);
+        Assert.Equal("not to be copied", File.ReadAllText(tmp.File("outside.txt"))); // where ../../ would land
+        Assert.Empty(Directory.EnumerateFiles(tmp.Path, "hostname", SearchOption.AllDirectories));
+    }
 }
