@@ -228,8 +228,19 @@ public sealed class CaptureReader : IDisposable
                 break;
             total += got;
         }
+        // The window's length was taken at opening: nothing to read before its end means the file was cut since.
+        if (total < frameBytes && buffer.Length >= frameBytes && _position < SampleCount)
+            throw Shrank(Info.Path);
         return total / frameBytes;
     }
+
+    /// <summary>The error of a capture cut by another program while it was read.</summary>
+    internal static CaptureException Shrank(string path) =>
+        CaptureException.ForFile(
+            path,
+            "the file became shorter while it was read (another program cut it): the analysis stopped; measure it "
+                + "again when it is complete"
+        );
 
     /// <inheritdoc />
     public void Dispose()

@@ -19,6 +19,7 @@ internal sealed unsafe class MappedExtent : IDisposable
     public const int WindowBytes = 8 << 20;
 
     private readonly MemoryMappedFile _map;
+    private readonly FileStream _stream;
     private readonly long _offset,
         _length;
     private readonly int _window;
@@ -27,9 +28,10 @@ internal sealed unsafe class MappedExtent : IDisposable
     private long _viewStart,
         _viewLength;
 
-    private MappedExtent(MemoryMappedFile map, long offset, long length, int window)
+    private MappedExtent(MemoryMappedFile map, FileStream stream, long offset, long length, int window)
     {
         _map = map;
+        _stream = stream;
         _offset = offset;
         _length = length;
         _window = window;
@@ -72,7 +74,7 @@ internal sealed unsafe class MappedExtent : IDisposable
                 HandleInheritability.None,
                 leaveOpen: true
             );
-            return new MappedExtent(map, offset, length, WindowBytesForTests.Value ?? WindowBytes);
+            return new MappedExtent(map, stream, offset, length, WindowBytesForTests.Value ?? WindowBytes);
         }
         catch (Exception e)
             when (e is IOException or UnauthorizedAccessException or NotSupportedException or ArgumentException)
@@ -102,6 +104,11 @@ internal sealed unsafe class MappedExtent : IDisposable
         {
             Release();
             long len = Math.Min(Math.Max(_window, count), _length - at);
+            // Touching a mapped page past a file's end kills the process (SIGBUS): before each window the file's
+            // length is looked at again, so a file cut by another program is an error, not a crash (a cut during
+            // the window's own few milliseconds is still not caught: SIGNALINSPECT_NO_MAP=1 closes that too).
+            if (CurrentLength() < _offset + at + len)
+                throw CaptureReader.Shrank(_stream.Name);
             _view = _map.CreateViewAccessor(_offset + at, len, MemoryMappedFileAccess.Read);
             byte* p = null;
             _view.SafeMemoryMappedViewHandle.AcquirePointer(ref p);
@@ -110,6 +117,20 @@ internal sealed unsafe class MappedExtent : IDisposable
             _viewLength = len;
         }
         return new ReadOnlySpan<byte>(_base + (at - _viewStart), count);
+    }
+
+    /// <summary>The file's length now (by its name: the open stream caches it); unknown (taken as enough) when the
+    /// name no longer leads to it, as after a delete, which leaves the mapped data readable.</summary>
+    private long CurrentLength()
+    {
+        try
+        {
+            return ByteSource.LengthOf(_stream.Name);
+        }
+        catch (Exception e) when (e is IOException or UnauthorizedAccessException or CaptureException)
+        {
+            return long.MaxValue;
+        }
     }
 
     private void Release()
