@@ -134,7 +134,7 @@ internal static class BatchCommand
                         double mbs = doneBytes / 1e6 / Math.Max(clock.Elapsed.TotalSeconds, 1e-3);
                         double left = mbs > 0 ? (bytes - doneBytes) / 1e6 / mbs : 0;
                         string what =
-                            rec.Status == "ok"
+                            rec.Status != "error"
                                 ? $"{rec.Modulation}{(rec.Verdict is { } v ? " " + v : string.Empty)}"
                                 : "error: " + rec.Error;
                         stderr.WriteLine(
@@ -218,6 +218,7 @@ internal static class BatchCommand
     {
         o.WriteLine(
             $"captures              {records.Count} ({records.Count(r => r.Status == "ok")} ok, "
+                + (records.Count(r => r.Status == "warn") is > 0 and var warned ? $"{warned} with warnings, " : "")
                 + $"{records.Count(r => r.Status == "error")} could not be read)"
         );
         o.WriteLine(
@@ -225,7 +226,7 @@ internal static class BatchCommand
                 + string.Join(
                     ", ",
                     records
-                        .Where(r => r.Status == "ok")
+                        .Where(r => r.Status != "error")
                         .GroupBy(r => r.Modulation)
                         .OrderBy(g => g.Key, StringComparer.Ordinal)
                         .Select(g => $"{g.Key} {g.Count()}")

@@ -10,7 +10,8 @@ public sealed record BatchRecord
     /// <summary>The capture's path as found.</summary>
     public required string File { get; init; }
 
-    /// <summary>"ok" or "error".</summary>
+    /// <summary>"ok" (measured), "warn" (measured, with warnings: see <see cref="Warnings"/>) or "error" (could
+    /// not be read).</summary>
     public required string Status { get; init; }
 
     /// <summary>SHA-256 of the file's content (with its .sigmf-data for a SigMF pair); null when it could not be

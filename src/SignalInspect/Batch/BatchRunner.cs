@@ -311,7 +311,7 @@ public static class BatchRunner
             return new BatchRecord
             {
                 File = file,
-                Status = "ok",
+                Status = r.Warnings.Count > 0 || source.Info.Warnings.Count > 0 ? "warn" : "ok",
                 ContentSha256 = hash,
                 Bytes = input.Bytes,
                 Modulation = r.Classification.Kind.Name(),

@@ -26,11 +26,11 @@ public static class BatchSummaryPdf
         );
         l.Gap(6);
         var kinds = records
-            .GroupBy(r => r.Status == "ok" ? r.Modulation ?? "?" : "error")
+            .GroupBy(r => r.Status != "error" ? r.Modulation ?? "?" : "error")
             .OrderBy(g => g.Key, StringComparer.Ordinal)
             .Select(g => $"{g.Key} {g.Count()}");
         var verdicts = records
-            .Where(r => r.Status == "ok")
+            .Where(r => r.Status != "error")
             .GroupBy(r => r.Verdict ?? "no limits")
             .OrderBy(g => g.Key, StringComparer.Ordinal)
             .Select(g => $"{g.Key} {g.Count()}");
@@ -50,7 +50,7 @@ public static class BatchSummaryPdf
                     ? File.ReadAllBytes(Path.Combine(outDir, t))
                     : null;
             string what =
-                r.Status == "ok"
+                r.Status != "error"
                     ? string.Join(
                         ", ",
                         new[]
@@ -65,7 +65,7 @@ public static class BatchSummaryPdf
                         }.Where(x => x is not null)
                     ) + (r.Warnings is { } w ? " | warning: " + w : string.Empty)
                     : r.Error ?? "error";
-            string flag = r.Status == "ok" ? r.Verdict ?? "ok" : "ERROR";
+            string flag = r.Status != "error" ? r.Verdict ?? r.Status : "ERROR";
             rows.Add((png, [Path.GetFileName(r.File), what, flag]));
         }
         l.ThumbnailTable(["spectrum", "capture", "readings", "verdict"], [0.22, 0.19, 0.41, 0.18], rows, 40);

@@ -48,13 +48,18 @@ public class BatchCommandTests
             outDir = tmp.File("out");
         var (code, stdout, stderr) = CliRunner.Run("batch", dir, "--out", outDir, "--jobs", "2");
         Assert.Equal(2, code); // some could not be read
-        Assert.Contains("8 (5 ok, 3 could not be read)", stdout);
+        // Two are measured with warnings (cw-462: the emission needed a finer spectrum; wbfm: a DC spike), and say
+        // so in their status (issue 27 item 7: every row said ok).
+        Assert.Contains("8 (3 ok, 2 with warnings, 3 could not be read)", stdout);
         Assert.Contains("batch: [", stderr);
         string[] lines = File.ReadAllLines(Path.Combine(outDir, "summary.jsonl"));
         Assert.Equal(8, lines.Length);
         var recs = lines.Select(l => JsonDocument.Parse(l).RootElement).ToList();
         JsonElement nbfm = recs.Single(r => r.GetProperty("file").GetString()!.EndsWith("nbfm-151625.sigmf-meta"));
         Assert.Equal("ok", nbfm.GetProperty("status").GetString());
+        Assert.All(recs.Where(r => r.GetProperty("status").GetString() == "warn"), r =>
+            Assert.False(string.IsNullOrEmpty(r.GetProperty("warnings").GetString()))
+        );
         Assert.Equal("fm", nbfm.GetProperty("modulation").GetString());
         // The same numbers as analyze gives for this capture.
         var (_, json, _) = CliRunner.Run("analyze", TestData.Path("measure", "nbfm-151625.sigmf-meta"), "--json", "-");
