@@ -38,19 +38,19 @@ internal static class AnalyzeCommand
         };
         var obw = new Option<double>("--obw-percent")
         {
-            Description = "Occupied-bandwidth percentage (default 99, ITU-R SM.328).",
+            Description = "Occupied-bandwidth percentage (ITU-R SM.328).",
             DefaultValueFactory = _ => 99,
             HelpName = "PERCENT",
         };
         var xdb = new Option<double>("--xdb")
         {
-            Description = "The x of the x-dB bandwidth (default 26 dB).",
+            Description = "The x of the x-dB bandwidth, dB.",
             DefaultValueFactory = _ => 26,
             HelpName = "DB",
         };
         var obwNoise = new Option<string>("--obw-noise")
         {
-            Description = "Noise floor in the occupied bandwidth: subtract (default) or keep.",
+            Description = "Noise floor in the occupied bandwidth: subtract or keep.",
             DefaultValueFactory = _ => "subtract",
             HelpName = "subtract|keep",
         };
@@ -98,7 +98,7 @@ internal static class AnalyzeCommand
         var notes = new Option<string?>("--notes") { Description = "Notes for the report.", HelpName = "TEXT" };
         var paper = new Option<string>("--paper")
         {
-            Description = "Paper size of the report: a4 (default) or letter.",
+            Description = "Paper size of the report: a4 or letter.",
             DefaultValueFactory = _ => "a4",
             HelpName = "a4|letter",
         };

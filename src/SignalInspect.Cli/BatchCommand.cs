@@ -32,10 +32,10 @@ internal static class BatchCommand
             Description = "Limit profile (see profiles/README.md): a verdict per capture.",
             HelpName = "PROFILE",
         };
-        var jobs = new Option<int>("--jobs")
+        // No default value in the option: help would print this machine's core count as if it were everyone's.
+        var jobs = new Option<int?>("--jobs")
         {
             Description = "Captures analysed at once (default: one per core).",
-            DefaultValueFactory = _ => Math.Max(1, Environment.ProcessorCount),
             HelpName = "N",
         };
         var reports = new Option<bool>("--reports")
@@ -77,7 +77,7 @@ internal static class BatchCommand
             var (index, count) = ParseShard(r.GetValue(shard));
             string? profilePath = r.GetValue(limits);
             LimitProfile? profile = profilePath is null ? null : LimitProfile.Load(profilePath);
-            int j = r.GetValue(jobs);
+            int j = r.GetValue(jobs) ?? Math.Max(1, Environment.ProcessorCount);
             if (j < 1 || j > 256)
                 throw new UsageException($"--jobs: {j} must be from 1 to 256");
             IReadOnlyList<BatchInput> found = BatchRunner.Discover(r.GetValue(inputs)!, reader.Read(r));

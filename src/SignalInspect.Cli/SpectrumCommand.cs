@@ -34,14 +34,14 @@ internal static class SpectrumCommand
         public Option<string> Window { get; } =
             new("--window")
             {
-                Description = "Window: hann (default), hamming, blackmanharris, flattop, rectangular, kaiser:BETA.",
+                Description = "Window: hann, hamming, blackmanharris, flattop, rectangular, kaiser:BETA.",
                 DefaultValueFactory = _ => "hann",
                 HelpName = "NAME",
             };
         public Option<double> Overlap { get; } =
             new("--overlap")
             {
-                Description = "Overlap of segments in percent, 0 to 95 (default 50).",
+                Description = "Overlap of segments in percent, 0 to 95.",
                 DefaultValueFactory = _ => 50,
                 HelpName = "PERCENT",
             };
@@ -56,8 +56,8 @@ internal static class SpectrumCommand
             new("--calibration")
             {
                 Description =
-                    "Offset in dB added to every level (e.g. to read dBm at a calibrated receiver input); default 0 "
-                    + "(dBFS).",
+                    "Offset in dB added to every level (e.g. to read dBm at a calibrated receiver input; 0 reads "
+                    + "dBFS).",
                 DefaultValueFactory = _ => 0,
                 HelpName = "DB",
             };
@@ -138,7 +138,7 @@ internal static class SpectrumCommand
         };
         var average = new Option<string>("--average")
         {
-            Description = "How segments are combined: mean (Welch, default) or max (max-hold).",
+            Description = "How segments are combined: mean (Welch) or max (max-hold).",
             DefaultValueFactory = _ => "mean",
             HelpName = "mean|max",
         };
