@@ -94,6 +94,9 @@ public sealed record CaptureInfo
     /// <summary>Recording hardware from the metadata, null when none.</summary>
     public string? Hardware { get; init; }
 
+    /// <summary>The program that wrote the recording (SigMF core:recorder), null when not stated.</summary>
+    public string? Recorder { get; init; }
+
     /// <summary>State of the data checksum: "verified", "not present", "not checked".</summary>
     public string ChecksumStatus { get; init; } = "not present";
 

@@ -172,6 +172,7 @@ internal static class SigMfReader
             string? sha = m.String(global, "global", "core:sha512");
             string? description = m.String(global, "global", "core:description");
             string? hardware = m.String(global, "global", "core:hw");
+            string? recorder = m.String(global, "global", "core:recorder");
             if (options.Datatype is not null)
                 notes.Add("--datatype is ignored: SigMF metadata states core:datatype");
 
@@ -356,6 +357,7 @@ internal static class SigMfReader
                 Annotations = annotations,
                 Description = description,
                 Hardware = hardware,
+                Recorder = recorder,
                 ChecksumStatus = checksum,
                 Notes = notes,
                 Warnings = warnings,

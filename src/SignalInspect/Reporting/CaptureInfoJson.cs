@@ -31,6 +31,8 @@ public static class CaptureInfoJson
             w.WriteNull("startTime");
         w.WriteNumber("fileSizeBytes", info.FileSizeBytes);
         w.WriteString("checksum", info.ChecksumStatus);
+        w.WriteString("hardware", info.Hardware);
+        w.WriteString("recorder", info.Recorder);
         if (info.SelectedSegment is { } s)
             w.WriteNumber("segment", s);
         else

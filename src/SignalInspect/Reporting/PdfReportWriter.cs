@@ -3,6 +3,7 @@ using PdfSharp.Drawing;
 using PdfSharp.Fonts;
 using PdfSharp.Pdf;
 using SignalInspect.Compliance;
+using SignalInspect.Diagnostics;
 using SignalInspect.Measure;
 using SignalInspect.Reporting.Plots;
 using SignalInspect.Spectrum;
@@ -90,6 +91,14 @@ public static class PdfReportWriter
             (
                 "Format",
                 $"{info.Container}, {info.Datatype}, {(info.IsComplex ? "complex I/Q" : "real")}, {info.ChannelUse}"
+            ),
+            (
+                "Receiver (from the file)",
+                SafeText.ForTerminal(info.Hardware)
+                    + (info.Recorder is { } rec ? $"; recorded by {SafeText.ForTerminal(rec)}" : string.Empty)
+                    is { Length: > 0 } hw
+                    ? hw
+                    : "not stated in the file"
             ),
             ("Sample rate", Hz(info.SampleRateHz)),
             ("Centre frequency", Hz(info.CenterFrequencyHz)),

@@ -227,4 +227,31 @@ public class ReportTests
         Assert.Contains("Frequency at key-up", text);
         Assert.Contains("Shaded: the transmissions found", text);
     }
+
+    /// <summary>Issue 23: the report shows the receiver and the recorder the file states (SigMF core:hw,
+    /// core:recorder), and `info --json` carries them.</summary>
+    [Fact]
+    public void The_receiver_the_file_names_is_in_the_report_and_the_info()
+    {
+        using var tmp = new TempDir();
+        string meta = tmp.File("rx.sigmf-meta");
+        File.Copy(TestData.Path("measure", "nbfm-151625.sigmf-data"), tmp.File("rx.sigmf-data"));
+        var doc = System.Text.Json.Nodes.JsonNode.Parse(
+            File.ReadAllText(TestData.Path("measure", "nbfm-151625.sigmf-meta"))
+        )!;
+        doc["global"]!["core:hw"] = "Quay-side receiver QR-7, 20 dB attenuator";
+        doc["global"]!["core:recorder"] = "harbour-logger 2.1";
+        File.WriteAllText(meta, doc.ToJsonString());
+        var (code, json, stderr) = CliRunner.Run("info", meta, "--json");
+        Assert.True(code == 0, stderr);
+        JsonElement info = JsonDocument.Parse(json).RootElement;
+        Assert.Equal("Quay-side receiver QR-7, 20 dB attenuator", info.GetProperty("hardware").GetString());
+        Assert.Equal("harbour-logger 2.1", info.GetProperty("recorder").GetString());
+        string pdf = tmp.File("rx.pdf");
+        Assert.True(CliRunner.Run("analyze", meta, "--report", pdf).Code is 0 or 4);
+        string text = PdfText(pdf);
+        Assert.Contains("Receiver (from the file)", text);
+        Assert.Contains("QR-7", text);
+        Assert.Contains("recorded by harbour-logger 2.1", text);
+    }
 }
