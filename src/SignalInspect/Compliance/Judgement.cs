@@ -44,6 +44,8 @@ public static class VerdictNames
 /// <param name="Transmission">For a capture measured transmission by transmission: which one (from 0) this check's
 /// reading is, the worst of them; null when the reading is of the whole window.</param>
 /// <param name="Where">That transmission in words, as the reports print it ("transmission 2 of 3, 6-9.001 s").</param>
+/// <param name="ByUncertainty">INCONCLUSIVE only because the reading lies within its expanded uncertainty of the limit
+/// (the case the decision rule settles); false for any other reason.</param>
 public sealed record LimitCheck(
     string Measurement,
     double Value,
@@ -56,7 +58,8 @@ public sealed record LimitCheck(
     string Basis,
     string? Reason = null,
     int? Transmission = null,
-    string? Where = null
+    string? Where = null,
+    bool ByUncertainty = false
 )
 {
     /// <summary>A limit that was not tested, with the reason.</summary>
@@ -89,7 +92,17 @@ public sealed record LimitCheck(
 /// </summary>
 public static class Judgement
 {
-    /// <summary>The decision rule, as the report states it.</summary>
+    /// <summary>The decision rule a profile names (guarded by default), as the report states it.</summary>
+    public static string RuleText(LimitProfile? p) => p?.Rule == DecisionRuleKind.Simple ? SimpleRule : DecisionRule;
+
+    /// <summary>Simple acceptance, as the report states it.</summary>
+    public const string SimpleRule =
+        "Simple acceptance, guard band w = 0 (ILAC-G8:09/2019, 4.2.1): PASS if the measured value is within the "
+        + "limit, FAIL if it is beyond; the expanded uncertainty U is stated but not used, so a reading just inside "
+        + "the limit may be a false accept with a probability up to 50 %. INCONCLUSIVE only where the capture "
+        + "cannot show the quantity (noise floor, band).";
+
+    /// <summary>The guarded decision rule, as the report states it.</summary>
     public const string DecisionRule =
         "Guarded acceptance and rejection, guard band w = U (expanded uncertainty, coverage factor k): PASS if the "
         + "measured value plus U is within the limit; FAIL if the value minus U is beyond it; INCONCLUSIVE otherwise "
@@ -109,7 +122,22 @@ public static class Judgement
     /// judged on every transmission: each limit's check is the worst transmission's (FAIL, then INCONCLUSIVE, then
     /// NOT TESTED, then PASS; the smallest margin among equals), and names it.
     /// </remarks>
-    public static IReadOnlyList<LimitCheck> Check(AnalysisResult r, LimitProfile p)
+    public static IReadOnlyList<LimitCheck> Check(AnalysisResult r, LimitProfile p) =>
+        p.Rule == DecisionRuleKind.Simple ? [.. Guarded(r, p).Select(Simple)] : Guarded(r, p);
+
+    /// <summary>A guarded check as simple acceptance: a reading within its U of the limit is judged by the reading
+    /// alone.</summary>
+    private static LimitCheck Simple(LimitCheck c) =>
+        c.ByUncertainty
+            ? c with
+            {
+                Verdict = c.Margin >= 0 ? Verdict.Pass : Verdict.Fail,
+                Reason = null,
+                Basis = c.Basis + "; simple acceptance: within its U of the limit, judged by the reading",
+            }
+            : c;
+
+    private static IReadOnlyList<LimitCheck> Guarded(AnalysisResult r, LimitProfile p)
     {
         var measured = r.Transmissions.Select((t, i) => (t, i)).Where(x => x.t.Result is not null).ToList();
         if (measured.Count < 2)
@@ -485,7 +513,10 @@ public static class Judgement
                     $"the reading is within its expanded uncertainty ({u:0.###} {unit}) of the limit: neither met nor "
                 ) + "exceeded is shown"
                 : null;
-        return new(what, value, unit, u, limit, text, limit - value, v, basis, reason);
+        return new(what, value, unit, u, limit, text, limit - value, v, basis, reason)
+        {
+            ByUncertainty = v == Verdict.Inconclusive,
+        };
     }
 
     /// <summary>
@@ -531,6 +562,8 @@ public static class Judgement
         }
         else if (v == Verdict.Inconclusive)
             reason = "the worst margin is within the mask check's uncertainty of the limit";
+        bool byU =
+            v == Verdict.Inconclusive && !double.IsNaN(worst) && !(floorLimited && worst - MaskUncertaintyDb >= 0);
         if (!double.IsNaN(worst) && worst < 99)
         {
             basis += string.Create(CultureInfo.InvariantCulture, $"; worst at {worstAt:+0;-0} Hz from the carrier");
@@ -546,6 +579,9 @@ public static class Judgement
             v,
             basis,
             reason
-        );
+        )
+        {
+            ByUncertainty = byU,
+        };
     }
 }

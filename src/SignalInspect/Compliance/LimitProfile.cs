@@ -57,6 +57,16 @@ public sealed record EmissionMask
     }
 }
 
+/// <summary>How a reading within its expanded uncertainty of a limit is judged (ILAC-G8:09/2019).</summary>
+public enum DecisionRuleKind
+{
+    /// <summary>Guarded acceptance and rejection, w = U: such a reading is INCONCLUSIVE (the default).</summary>
+    Guarded,
+
+    /// <summary>Simple acceptance, w = 0: the reading alone decides.</summary>
+    Simple,
+}
+
 /// <summary>
 /// Transient frequency behaviour at key-up and key-down (the shape of 47 CFR 90.214): the frequency difference from
 /// the assigned frequency must stay within <see cref="T1MaxHz"/> during <see cref="T1S"/> after key-up, within
@@ -127,6 +137,9 @@ public sealed record LimitProfile
     /// <summary>Emission mask, null for none.</summary>
     public EmissionMask? Mask { get; init; }
 
+    /// <summary>The decision rule (guarded unless the profile says "decisionRule": "simple").</summary>
+    public DecisionRuleKind Rule { get; init; } = DecisionRuleKind.Guarded;
+
     /// <summary>Transient frequency behaviour at key-up and key-down; null for none.</summary>
     public TransientLimits? Transient { get; init; }
 
@@ -183,6 +196,7 @@ public sealed record LimitProfile
             "notes",
             "modulation",
             "transient",
+            "decisionRule",
         };
         foreach (JsonProperty p in root.EnumerateObject())
             if (!known.Contains(p.Name))
@@ -321,8 +335,15 @@ public sealed record LimitProfile
                 Rule = Str(tr, "rule", "transient.rule"),
             };
         }
+        DecisionRuleKind decision = Str(root, "decisionRule", "decisionRule") switch
+        {
+            null or "guarded" => DecisionRuleKind.Guarded,
+            "simple" => DecisionRuleKind.Simple,
+            var other => throw Bad("decisionRule", $"'{other}' is not guarded or simple"),
+        };
         return new LimitProfile
         {
+            Rule = decision,
             Transient = transient,
             Modulation = modulation,
             Name = name,

@@ -80,7 +80,10 @@ public static class ConsoleReport
     {
         if (report.Profile is not { } profile)
             return;
-        o.WriteLine($"{"limits",-LabelWidth}{profile.Name}");
+        o.WriteLine(
+            $"{"limits",-LabelWidth}{profile.Name}"
+                + (profile.Rule == DecisionRuleKind.Simple ? " (simple acceptance: U stated, not used)" : string.Empty)
+        );
         foreach (ResultRow row in ResultRows.For(report.Analysis, report.Checks, profile.CoverageFactor))
         {
             if (row.Verdict is not { } v)

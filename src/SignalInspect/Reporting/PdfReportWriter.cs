@@ -484,7 +484,7 @@ public static class PdfReportWriter
                     + "bandwidths from the resolution bandwidth; expanded with the coverage factor shown. "
                     + "Not included: the recorder's calibration and frequency reference."
             ),
-            ("Decision rule", Judgement.DecisionRule),
+            ("Decision rule", Judgement.RuleText(r.Profile)),
         };
         if (r.Profile is { } p)
             items.Add(

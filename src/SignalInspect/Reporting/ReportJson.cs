@@ -50,7 +50,7 @@ public static class ReportJson
             w.WriteString("file", report.ProfilePath);
             w.WriteString("source", p.Source);
             w.WriteNumber("coverageFactor", p.CoverageFactor);
-            w.WriteString("decisionRule", Judgement.DecisionRule);
+            w.WriteString("decisionRule", Judgement.RuleText(p));
             w.WriteEndObject();
             w.WriteStartArray("checks");
             foreach (ResultRow c in ResultRows.For(report.Analysis, report.Checks, p.CoverageFactor))

@@ -1,4 +1,6 @@
+using SignalInspect.Capture;
 using SignalInspect.Compliance;
+using SignalInspect.Measure;
 
 namespace SignalInspect.Tests.Compliance;
 
@@ -130,5 +132,33 @@ public class ComplianceTests
         File.WriteAllText(path, "{\n \"name\": \"x\",\n \"maxPeakDeviationHz\" 2500\n}");
         var e = Assert.Throws<ProfileException>(() => LimitProfile.Load(path));
         Assert.Contains("line 3", e.Message);
+    }
+
+    /// <summary>
+    /// Issue 23: a lab must be able to choose and name its decision rule (ILAC-G8:09/2019). The capture's deviation
+    /// (2500 Hz true, testdata/MANIFEST.md) reads just inside the 2500 Hz limit but within its U: guarded acceptance
+    /// says INCONCLUSIVE, simple acceptance (w = 0) says PASS on the reading. A check that is INCONCLUSIVE for
+    /// another reason (the mask under the capture's noise floor) stays so under either rule.
+    /// </summary>
+    [Fact]
+    public void Simple_acceptance_settles_readings_within_U_and_nothing_else()
+    {
+        AnalysisResult r = Analyzer.Analyze(CaptureSource.Open(TestData.Path("measure", "nbfm-151625.sigmf-meta")));
+        const string limits = "\"maxPeakDeviationHz\": 2500, \"mask\": {\"rule\": \"47cfr90.210d\"}";
+        LimitProfile guarded = LimitProfile.Parse("{\"name\": \"g\", " + limits + "}");
+        LimitProfile simple = LimitProfile.Parse("{\"name\": \"s\", \"decisionRule\": \"simple\", " + limits + "}");
+        LimitCheck g = Judgement.Check(r, guarded).Single(c => c.Measurement == "FM peak deviation");
+        LimitCheck s = Judgement.Check(r, simple).Single(c => c.Measurement == "FM peak deviation");
+        Assert.Equal(Verdict.Inconclusive, g.Verdict);
+        Assert.True(g.ByUncertainty);
+        Assert.Equal(g.Margin >= 0 ? Verdict.Pass : Verdict.Fail, s.Verdict);
+        Assert.Contains("simple acceptance", s.Basis);
+        Assert.Equal(
+            Judgement.Check(r, guarded).Single(c => c.Measurement.StartsWith("emission mask")).Verdict,
+            Judgement.Check(r, simple).Single(c => c.Measurement.StartsWith("emission mask")).Verdict
+        );
+        Assert.StartsWith("Simple acceptance", Judgement.RuleText(simple));
+        Assert.StartsWith("Guarded acceptance", Judgement.RuleText(guarded));
+        Assert.Throws<ProfileException>(() => LimitProfile.Parse("{\"name\": \"x\", \"decisionRule\": \"lenient\"}"));
     }
 }
