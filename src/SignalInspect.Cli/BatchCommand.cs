@@ -81,6 +81,12 @@ internal static class BatchCommand
             if (j < 1 || j > 256)
                 throw new UsageException($"--jobs: {j} must be from 1 to 256");
             IReadOnlyList<BatchInput> found = BatchRunner.Discover(r.GetValue(inputs)!, reader.Read(r));
+            if (found.Count == 0)
+                throw new UsageException(
+                    "no captures found in "
+                        + string.Join(", ", r.GetValue(inputs)!)
+                        + " (WAV/RF64/BW64, SigMF, or raw files with a datatype ending or a sidecar): nothing written"
+                );
             var options = new BatchOptions
             {
                 OutDir = r.GetValue(outDir)!,

@@ -251,4 +251,19 @@ public class BatchCommandTests
         Assert.Equal("not to be copied", File.ReadAllText(tmp.File("outside.txt"))); // where ../../ would land
         Assert.Empty(Directory.EnumerateFiles(tmp.Path, "hostname", SearchOption.AllDirectories));
     }
+
+    /// <summary>Issue 25 item 3: a folder with no capture in it is a message and exit 2, not an empty summary.
+    /// </summary>
+    [Fact]
+    public void No_captures_found_is_a_message_and_exit_2()
+    {
+        using var tmp = new TempDir();
+        string dir = Path.Combine(tmp.Path, "empty");
+        Directory.CreateDirectory(dir);
+        File.WriteAllText(Path.Combine(dir, "notes.txt"), "not a capture");
+        var (code, _, stderr) = CliRunner.Run("batch", dir, "--out", tmp.File("out"));
+        Assert.Equal(2, code);
+        Assert.Contains("no captures found", stderr);
+        Assert.False(Directory.Exists(tmp.File("out")));
+    }
 }
