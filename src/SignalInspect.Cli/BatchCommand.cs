@@ -164,7 +164,7 @@ internal static class BatchCommand
                     + (outcome.Cancelled ? ", stopped before the end" : string.Empty)
                     + $"; wrote {Path.Combine(options.OutDir, "summary.csv")}, summary.jsonl, summary.pdf"
             );
-            return ExitCode(outcome.Records);
+            return ExitCode(outcome.Records, outcome.Cancelled);
         });
         return cmd;
     }
@@ -214,8 +214,11 @@ internal static class BatchCommand
         throw new UsageException($"--shard: '{text}' is not I/N with 1 <= I <= N (e.g. 2/8)");
     }
 
-    private static int ExitCode(IReadOnlyList<BatchRecord> records) =>
-        records.Any(r => r.Status == "error") ? ExitCodes.BadInput
+    /// <summary>A batch's exit code: <see cref="ExitCodes.Interrupted"/> when stopped before the end, else the worst
+    /// of its records (an unreadable capture, a failed limit, a limit not shown).</summary>
+    internal static int ExitCode(IReadOnlyList<BatchRecord> records, bool cancelled = false) =>
+        cancelled ? ExitCodes.Interrupted
+        : records.Any(r => r.Status == "error") ? ExitCodes.BadInput
         : records.Any(r => r.Verdict == "FAIL") ? ExitCodes.LimitFailed
         : records.Any(r => r.Verdict is "INCONCLUSIVE" or "NOT TESTED") ? ExitCodes.NotShown
         : ExitCodes.Success;

@@ -78,7 +78,8 @@ public static class Cli
             $"SignalInspect {version}: offline measurements of radio signal recordings (WAV/RF64 audio or IQ, raw IQ, "
                 + "SigMF).\n"
                 + "Exit codes: 0 success (every limit passed, or no limits), 1 a limit failed, 2 bad input or usage, "
-                + "3 internal error, 4 nothing failed but a limit was INCONCLUSIVE or NOT TESTED.\n"
+                + "3 internal error, 4 nothing failed but a limit was INCONCLUSIVE or NOT TESTED, 130 batch stopped by "
+                + "Ctrl-C.\n"
                 + "Captures are read through a memory map; SIGNALINSPECT_NO_MAP=1 reads them with copies (for files "
                 + "another program may truncate meanwhile)."
         )

@@ -18,6 +18,10 @@ public static class ExitCodes
     /// <summary>Nothing failed, but compliance was not shown: a limit was INCONCLUSIVE or NOT TESTED.</summary>
     public const int NotShown = 4;
 
+    /// <summary>Stopped by Ctrl-C (SIGINT) before the end, the summary of what finished written: 128 + 2, as
+    /// shells report a process ended by SIGINT (common practice).</summary>
+    public const int Interrupted = 130;
+
     /// <summary>The exit code of a judged capture: <see cref="LimitFailed"/> when a limit failed, <see
     /// cref="NotShown"/>
     /// when none failed but one was INCONCLUSIVE or NOT TESTED, else <see cref="Success"/> (PASS, or no

@@ -266,4 +266,16 @@ public class BatchCommandTests
         Assert.Contains("no captures found", stderr);
         Assert.False(Directory.Exists(tmp.File("out")));
     }
+
+    /// <summary>Issue 25 item 3: Ctrl-C ends a batch with 130 (128 + SIGINT, as shells report it; common practice)
+    /// after writing the summary of what finished; otherwise the worst record decides.</summary>
+    [Fact]
+    public void An_interrupted_batch_exits_130()
+    {
+        var ok = new SignalInspect.Batch.BatchRecord { File = "a.wav", Status = "ok" };
+        var bad = new SignalInspect.Batch.BatchRecord { File = "b.wav", Status = "error" };
+        Assert.Equal(130, SignalInspect.Cli.BatchCommand.ExitCode([ok], cancelled: true));
+        Assert.Equal(2, SignalInspect.Cli.BatchCommand.ExitCode([ok, bad]));
+        Assert.Equal(0, SignalInspect.Cli.BatchCommand.ExitCode([ok]));
+    }
 }
