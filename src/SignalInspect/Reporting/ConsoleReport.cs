@@ -41,12 +41,13 @@ public static class ConsoleReport
         {
             if (row.Key == "modulation")
                 continue;
-            string u = row.ExpandedUncertainty is { } x
-                ? string.Create(C, $" +/- {x.ToString(row.Format, C)} {row.Unit} (U, k = {k:0.##})")
+            var (value, rounded) = row.Rounded;
+            string u = row.ExpandedUncertainty is not null
+                ? string.Create(C, $" +/- {rounded} {row.Unit} (U, k = {k:0.##})")
                 : string.Empty;
             string unit = row.Unit.Length > 0 ? " " + row.Unit : string.Empty;
             string note = row.Note is { } n && n != "-" ? $" ({n})" : string.Empty;
-            Line(row.Quantity, row.ValueText + unit + u + note + Detail(a, row.Key));
+            Line(row.Quantity, value + unit + u + note + Detail(a, row.Key));
         }
     }
 

@@ -189,8 +189,10 @@ public static class PdfReportWriter
         var cells = new List<string[]>();
         foreach (ResultRow row in ResultRows.For(r.Analysis, r.Checks, r.Profile?.CoverageFactor ?? 2))
         {
+            // Value and U rounded together (U to two significant digits, the value to the same place).
+            var (value, rounded) = row.Rounded;
             string u =
-                row.ExpandedUncertainty is { } x ? F(x, "0.###")
+                row.ExpandedUncertainty is not null ? rounded
                 : row.Text is not null && row.Unit.Length == 0 ? ""
                 : "-";
             string last =
@@ -199,7 +201,9 @@ public static class PdfReportWriter
                 : "-";
             cells.Add([
                 row.Quantity,
-                row.Verdict is null ? row.ValueText : F(row.Value ?? double.NaN, "0.###"),
+                row.Verdict is null || row.ExpandedUncertainty is { } ue && double.IsFinite(ue) && ue > 0
+                    ? value
+                    : F(row.Value ?? double.NaN, "0.###"),
                 row.Unit,
                 u,
                 row.LimitText ?? "-",

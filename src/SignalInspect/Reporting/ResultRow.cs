@@ -73,6 +73,43 @@ public sealed record ResultRow
         Text
         ?? (Value is { } v && double.IsFinite(v) ? Unsigned0(v.ToString(Format, CultureInfo.InvariantCulture)) : "-");
 
+    /// <summary>
+    /// The value and its expanded uncertainty as a report prints them: U to two significant digits and the value to
+    /// the same decimal place (GUM 7.2.6: "the numerical values of the estimate and its uncertainty should not be
+    /// given with an excessive number of digits"; two significant digits of U is common practice). Without a finite
+    /// U, the row's own format; the JSON keeps every digit.
+    /// </summary>
+    public (string Value, string Uncertainty) Rounded
+    {
+        get
+        {
+            if (Text is not null || Value is not { } v || !double.IsFinite(v))
+                return (ValueText, ExpandedUncertainty is { } e0 && double.IsFinite(e0) ? Plain(e0, Format) : "-");
+            if (ExpandedUncertainty is not { } u || !double.IsFinite(u) || u <= 0)
+                return (ValueText, ExpandedUncertainty is { } z && double.IsFinite(z) ? Plain(z, Format) : "-");
+            return RoundPair(v, u);
+        }
+    }
+
+    /// <summary><paramref name="value"/> and <paramref name="u"/> rounded as <see cref="Rounded"/> says.</summary>
+    public static (string Value, string Uncertainty) RoundPair(double value, double u)
+    {
+        int places = Math.Clamp(1 - (int)Math.Floor(Math.Log10(u)), -12, 9);
+        // U rounded up to two digits may become three (99.6 -> 100): one place fewer then.
+        if (Math.Round(u, Math.Max(places, 0)) >= Math.Pow(10, 2 - places))
+            places--;
+        string F(double x)
+        {
+            if (places >= 0)
+                return Unsigned0(Math.Round(x, places).ToString("F" + places, CultureInfo.InvariantCulture));
+            double step = Math.Pow(10, -places);
+            return Unsigned0((Math.Round(x / step) * step).ToString("0", CultureInfo.InvariantCulture));
+        }
+        return (F(value), F(u));
+    }
+
+    private static string Plain(double x, string format) => Unsigned0(x.ToString(format, CultureInfo.InvariantCulture));
+
     /// <summary>"-0" (a small negative value rounded to nothing) written as "0".</summary>
     private static string Unsigned0(string s) =>
         s.StartsWith('-') && s.TrimStart('-').Trim('0', '.').Length == 0 ? s[1..] : s;

@@ -63,10 +63,24 @@ public class ReportTests
         Near.Equal(8000, obw, 240, "occupied bandwidth, Hz");
         double offset = analysis.GetProperty("carrier").GetProperty("offsetHz").GetDouble();
         Near.Equal(350, offset, 1, "carrier offset, Hz");
-        var c = System.Globalization.CultureInfo.InvariantCulture;
-        Assert.Contains($"FM peak deviation {dev.ToString("0.###", c)} Hz", text);
-        Assert.Contains($"occupied bandwidth (99 %) {obw.ToString("0.###", c)} Hz", text);
-        Assert.Contains($"carrier offset {offset.ToString("0.###", c)} Hz", text);
+        // Each printed with its U to two significant digits and the value to the same decimal place (GUM 7.2.6;
+        // two digits of U: common practice), U = 2 u from the JSON.
+        string Rounded(double v, double u2)
+        {
+            int places = Math.Max(0, 1 - (int)Math.Floor(Math.Log10(u2)));
+            var c = System.Globalization.CultureInfo.InvariantCulture;
+            return Math.Round(v, places).ToString("F" + places, c)
+                + " Hz "
+                + Math.Round(u2, places).ToString("F" + places, c);
+        }
+        double devU = 2 * analysis.GetProperty("fm").GetProperty("peakDeviationUncertaintyHz").GetDouble();
+        double obwU = 2 * analysis.GetProperty("bandwidth").GetProperty("occupiedUncertaintyHz").GetDouble();
+        double offU = 2 * analysis.GetProperty("carrier").GetProperty("frequencyUncertaintyHz").GetDouble();
+        Assert.Contains($"FM peak deviation {Rounded(dev, devU)}", text);
+        Assert.Contains($"occupied bandwidth (99 %) {Rounded(obw, obwU)}", text);
+        Assert.Contains($"carrier offset {Rounded(offset, offU)}", text);
+        // No more digits than U supports.
+        Assert.DoesNotContain(dev.ToString("0.###", System.Globalization.CultureInfo.InvariantCulture), text);
         JsonElement[] checks = [.. model.GetProperty("checks").EnumerateArray()];
         string[] verdicts =
         [
@@ -254,4 +268,15 @@ public class ReportTests
         Assert.Contains("QR-7", text);
         Assert.Contains("recorded by harbour-logger 2.1", text);
     }
+
+    /// <summary>Rounding of a value with its U (GUM 7.2.6; two significant digits of U, common practice), worked by
+    /// hand: 13.3 -> 13 with the value to units; 0.00052 -> five places; 99.6 -> 100, the value to tens.</summary>
+    [Theory]
+    [InlineData(2496.21, 13.3, "2496", "13")]
+    [InlineData(7984.89, 49.85, "7985", "50")]
+    [InlineData(350.000091, 0.000523, "350.00009", "0.00052")]
+    [InlineData(1234.5, 99.6, "1230", "100")]
+    [InlineData(-0.0004, 0.013, "0.000", "0.013")]
+    public void A_value_is_rounded_with_its_uncertainty(double value, double u, string v, string uText) =>
+        Assert.Equal((v, uText), SignalInspect.Reporting.ResultRow.RoundPair(value, u));
 }
