@@ -112,9 +112,20 @@ public static class ConsoleReport
             ", ",
             rows.Select(r =>
                 r.Key == "carrier.offset"
-                    ? $"offset {r.Value!.Value.ToString("+0.#;-0.#", C)} {r.Unit}"
-                    : $"{r.HeadlineLabel} {r.Value!.Value.ToString(r.Format, C)} {r.Unit}"
+                    ? $"offset {Signed(Short(r))} {r.Unit}"
+                    : $"{r.HeadlineLabel} {Short(r)} {r.Unit}"
             )
         );
     }
+
+    /// <summary>A one-line table's value: rounded to its U, or to the row's format when that is shorter (a statistical
+    /// U far below what the recorder's reference allows would otherwise print a dozen digits).</summary>
+    private static string Short(ResultRow r)
+    {
+        string rounded = r.Rounded.Value,
+            plain = r.ValueText;
+        return rounded.Length <= plain.Length ? rounded : plain;
+    }
+
+    private static string Signed(string v) => v.StartsWith('-') || v.Trim('0', '.').Length == 0 ? v : "+" + v;
 }
