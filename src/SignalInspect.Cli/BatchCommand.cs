@@ -45,7 +45,12 @@ internal static class BatchCommand
         var resume = new Option<bool>("--resume")
         {
             Description =
-                "Keep the records already in DIR/summary.jsonl and skip those captures (matched by content hash).",
+                "Keep the records already in DIR/summary.jsonl and skip those captures (matched by path and "
+                + "content); captures that ended in an error are tried again.",
+        };
+        var force = new Option<bool>("--force")
+        {
+            Description = "Replace a summary already in DIR (without this or --resume, such a folder is refused).",
         };
         var shard = new Option<string?>("--shard")
         {
@@ -68,6 +73,7 @@ internal static class BatchCommand
             jobs,
             reports,
             resume,
+            force,
             shard,
         };
         reader.AddTo(cmd);
@@ -80,6 +86,12 @@ internal static class BatchCommand
             int j = r.GetValue(jobs) ?? Math.Max(1, Environment.ProcessorCount);
             if (j < 1 || j > 256)
                 throw new UsageException($"--jobs: {j} must be from 1 to 256");
+            string outPath = r.GetValue(outDir)!;
+            if (File.Exists(Path.Combine(outPath, "summary.jsonl")) && !r.GetValue(resume) && !r.GetValue(force))
+                throw OutputException.ForFile(
+                    outPath,
+                    "already holds a batch summary: --resume continues it, --force replaces it"
+                );
             IReadOnlyList<BatchInput> found = BatchRunner.Discover(r.GetValue(inputs)!, reader.Read(r));
             if (found.Count == 0)
                 throw new UsageException(

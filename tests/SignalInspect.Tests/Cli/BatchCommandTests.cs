@@ -278,4 +278,22 @@ public class BatchCommandTests
         Assert.Equal(2, SignalInspect.Cli.BatchCommand.ExitCode([ok, bad]));
         Assert.Equal(0, SignalInspect.Cli.BatchCommand.ExitCode([ok]));
     }
+
+    /// <summary>Issue 25 item 3: an existing summary is replaced only with --force (a second run silently threw
+    /// away the first's rows); --resume continues it.</summary>
+    [Fact]
+    public void An_existing_summary_is_kept_unless_forced()
+    {
+        using var tmp = new TempDir();
+        string capture = TestData.Path("measure", "am-audio-12k.wav"),
+            outDir = tmp.File("out");
+        Assert.True(CliRunner.Run("batch", capture, "--out", outDir).Code is 0 or 4);
+        string before = File.ReadAllText(Path.Combine(outDir, "summary.jsonl"));
+        var (code, _, stderr) = CliRunner.Run("batch", capture, "--out", outDir);
+        Assert.Equal(2, code);
+        Assert.Contains("already holds a batch summary", stderr);
+        Assert.Equal(before, File.ReadAllText(Path.Combine(outDir, "summary.jsonl")));
+        Assert.True(CliRunner.Run("batch", capture, "--out", outDir, "--force").Code is 0 or 4);
+        Assert.True(CliRunner.Run("batch", capture, "--out", outDir, "--resume").Code is 0 or 4);
+    }
 }
