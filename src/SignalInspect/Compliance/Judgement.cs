@@ -321,8 +321,7 @@ public static class Judgement
         double? nominal = p.NominalFrequencyHz ?? r.Capture.CenterFrequencyHz;
         bool absolute = FrequencyAxis.Of(r.Capture).IsAbsolute;
         double offset = absolute && p.NominalFrequencyHz is { } nom ? car.FrequencyHz.Value - nom : car.OffsetHz;
-        double? tolHz = p.FrequencyToleranceHz
-            ?? (nominal is { } n && p.FrequencyTolerancePpm is { } ppm ? ppm * n / 1e6 : null);
+        double? tolHz = p.ToleranceHzAt(nominal);
         if (tolHz is not { } t)
             return LimitCheck.NotTested(
                 "carrier frequency error",

@@ -360,6 +360,11 @@ public sealed record LimitProfile
         };
     }
 
+    /// <summary>The frequency tolerance in Hz about <paramref name="nominalHz"/> (a ppm tolerance needs it), null
+    /// without a tolerance or, for ppm, without a nominal.</summary>
+    public double? ToleranceHzAt(double? nominalHz) =>
+        FrequencyToleranceHz ?? (nominalHz is { } n && FrequencyTolerancePpm is { } ppm ? ppm * n / 1e6 : null);
+
     /// <summary>A one-line description of the tolerance, e.g. "2.5 ppm".</summary>
     public string? ToleranceText =>
         FrequencyTolerancePpm is { } p ? p.ToString("0.###", CultureInfo.InvariantCulture) + " ppm"

@@ -1,3 +1,4 @@
+using MathNet.Numerics.Statistics;
 using SignalInspect.Capture;
 
 namespace SignalInspect.Measure;
@@ -170,7 +171,7 @@ public static class PulseMeasurement
             WidthS = width,
             PeriodS = period,
             DutyCyclePercent = new Measured(100 * duty, 100 * dutyU),
-            PeriodJitterS = StdDev(periods),
+            PeriodJitterS = Statistics.StandardDeviation(periods),
             AmplitudeSpreadPercent = 100 * (amps.Max() - amps.Min()) / (amps.Max() + amps.Min()),
             PositionSpreadS = PositionSpread(starts, period.Value),
             WorstDutyPercent = 100 * WorstDuty(starts, widths, AveragingWindowS),
@@ -236,14 +237,8 @@ public static class PulseMeasurement
     private static Measured MeanWithError(IReadOnlyList<double> v, double resolution)
     {
         double mean = v.Average();
-        double se = StdDev(v) / Math.Sqrt(v.Count);
+        double se = Statistics.StandardDeviation(v) / Math.Sqrt(v.Count);
         return new Measured(mean, Math.Sqrt(se * se + resolution * resolution));
-    }
-
-    private static double StdDev(IReadOnlyList<double> v)
-    {
-        double mean = v.Average();
-        return Math.Sqrt(v.Sum(x => (x - mean) * (x - mean)) / Math.Max(1, v.Count - 1));
     }
 
     /// <summary>Largest distance of a start from start_0 + i T fitted by least squares (i counted in periods, so a

@@ -1,3 +1,4 @@
+using MathNet.Numerics.Statistics;
 using SignalInspect.Demodulation;
 
 namespace SignalInspect.Measure;
@@ -141,8 +142,8 @@ internal static class TimelineMeasurement
                 var lo = idx.Select(b => blocks.FreqMin[b]).Where(v => v < tt.Split - tt.Quarter).ToList();
                 if (hi.Count < 3 || lo.Count < 3)
                     continue;
-                mean = (Median(hi) + Median(lo)) / 2;
-                u = 0.5 * 1.2533 * Math.Sqrt(Variance(hi) / hi.Count + Variance(lo) / lo.Count);
+                mean = (hi.Median() + lo.Median()) / 2;
+                u = 0.5 * 1.2533 * Math.Sqrt(hi.Variance() / hi.Count + lo.Variance() / lo.Count);
             }
             else
             {
@@ -226,18 +227,6 @@ internal static class TimelineMeasurement
             (lo, hi) = (down.Average(), up.Average());
         }
         return hi > lo ? ((lo + hi) / 2, (hi - lo) / 4) : null;
-    }
-
-    private static double Median(IReadOnlyList<double> v)
-    {
-        double[] o = [.. v.Order()];
-        return o.Length % 2 == 1 ? o[o.Length / 2] : (o[o.Length / 2 - 1] + o[o.Length / 2]) / 2;
-    }
-
-    private static double Variance(IReadOnlyList<double> v)
-    {
-        double m = v.Average();
-        return v.Sum(a => (a - m) * (a - m)) / Math.Max(1, v.Count - 1);
     }
 
     /// <summary>Standard error of the mean of <paramref name="x"/> about their least-squares line against

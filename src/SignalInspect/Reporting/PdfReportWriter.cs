@@ -324,7 +324,7 @@ public static class PdfReportWriter
             if (a.Timeline is { Windows.Count: > 1 } tl)
             {
                 var band = new List<(double, string)>();
-                if (ToleranceHz(r) is { } tol)
+                if (r.Profile?.ToleranceHzAt(r.Profile.NominalFrequencyHz ?? a.Capture.CenterFrequencyHz) is { } tol)
                 {
                     double centre =
                         a.Carrier!.OffsetHz
@@ -362,17 +362,6 @@ public static class PdfReportWriter
             l.Image(wave, w, hWave);
         }
         KeyUpPlot(l, r, w);
-    }
-
-    /// <summary>The profile's frequency tolerance in Hz at the nominal (or the capture's centre), null without
-    /// one.</summary>
-    private static double? ToleranceHz(MeasurementReport r)
-    {
-        if (r.Profile is not { } p)
-            return null;
-        double? nominal = p.NominalFrequencyHz ?? r.Analysis.Capture.CenterFrequencyHz;
-        return p.FrequencyToleranceHz
-            ?? (nominal is { } n && p.FrequencyTolerancePpm is { } ppm ? ppm * n / 1e6 : null);
     }
 
     /// <summary>The frequency at the first key-up the capture holds, with the profile's transient limits as boxes
