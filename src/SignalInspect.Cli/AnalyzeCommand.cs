@@ -74,6 +74,12 @@ internal static class AnalyzeCommand
                 + "on the worst window.",
             HelpName = "S",
         };
+        var reference = new ReferenceOptionSet();
+        var conditions = new Option<string?>("--conditions")
+        {
+            Description = "Test conditions for the report (temperature, supply voltage, set-up).",
+            HelpName = "TEXT",
+        };
         var force = new Option<bool>("--force") { Description = "Replace existing output files." };
         var report = new Option<string?>("--report")
         {
@@ -130,8 +136,10 @@ internal static class AnalyzeCommand
             op,
             eut,
             notes,
+            conditions,
             paper,
         };
+        reference.AddTo(cmd);
         reader.AddTo(cmd);
         spec.AddTo(cmd);
         cmd.SetAction(r =>
@@ -180,6 +188,7 @@ internal static class AnalyzeCommand
                 Threads = r.GetValue(spec.Threads),
                 KeepSpectrogram = pdfOut is not null,
             };
+            options = reference.Apply(r, options);
             var settings = new InspectionSettings
             {
                 Analysis = options,
@@ -191,6 +200,7 @@ internal static class AnalyzeCommand
                     Operator = r.GetValue(op),
                     Equipment = r.GetValue(eut),
                     Notes = r.GetValue(notes),
+                    Conditions = r.GetValue(conditions),
                     Paper = r.GetValue(paper) == "letter" ? PaperSize.Letter : PaperSize.A4,
                     CommandLine =
                         "signalinspect " + string.Join(' ', Environment.GetCommandLineArgs().Skip(1).Select(Quote)),

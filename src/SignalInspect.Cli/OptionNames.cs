@@ -36,6 +36,9 @@ internal static class OptionNames
             ["PostLowPassHz"] = "--post-lowpass",
             ["PostHighPassHz"] = "--post-highpass",
             ["DeEmphasisUs"] = "--deemphasis",
+            ["ReceiverErrorPpm"] = "--receiver-error",
+            ["ReceiverErrorUncertaintyPpm"] = "--receiver-error-uncertainty",
+            ["ReferenceCarrierHz"] = "--reference-carrier",
             // Synthesis (SignalSpec)
             ["Amplitude"] = "--amplitude",
             ["CarrierOffsetHz"] = "--offset",

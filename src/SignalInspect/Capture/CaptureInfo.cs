@@ -97,6 +97,12 @@ public sealed record CaptureInfo
     /// <summary>The program that wrote the recording (SigMF core:recorder), null when not stated.</summary>
     public string? Recorder { get; init; }
 
+    /// <summary>Who made the recording (SigMF core:author), null when not stated.</summary>
+    public string? Author { get; init; }
+
+    /// <summary>Where it was made (SigMF core:geolocation) in words, null when not stated.</summary>
+    public string? Location { get; init; }
+
     /// <summary>State of the data checksum: "verified", "not present", "not checked".</summary>
     public string ChecksumStatus { get; init; } = "not present";
 

@@ -173,6 +173,8 @@ internal static class SigMfReader
             string? description = m.String(global, "global", "core:description");
             string? hardware = m.String(global, "global", "core:hw");
             string? recorder = m.String(global, "global", "core:recorder");
+            string? author = m.String(global, "global", "core:author");
+            string? location = Geolocation(global, notes);
             if (options.Datatype is not null)
                 notes.Add("--datatype is ignored: SigMF metadata states core:datatype");
 
@@ -358,6 +360,8 @@ internal static class SigMfReader
                 Description = description,
                 Hardware = hardware,
                 Recorder = recorder,
+                Author = author,
+                Location = location,
                 ChecksumStatus = checksum,
                 Notes = notes,
                 Warnings = warnings,
@@ -406,6 +410,36 @@ internal static class SigMfReader
     }
 
     /// <summary>Typed access to metadata fields, with one-line errors that name the field.</summary>
+    /// <summary>SigMF core:geolocation (a GeoJSON point, RFC 7946 3.1.2: [longitude, latitude(, altitude m)]) as one
+    /// line; null when absent, with a note when it is not such a point (it is information, not a reason to
+    /// refuse the recording).</summary>
+    private static string? Geolocation(JsonElement global, List<string> notes)
+    {
+        if (!global.TryGetProperty("core:geolocation", out JsonElement g) || g.ValueKind == JsonValueKind.Null)
+            return null;
+        if (
+            g.ValueKind == JsonValueKind.Object
+            && g.TryGetProperty("coordinates", out JsonElement c)
+            && c.ValueKind == JsonValueKind.Array
+            && c.GetArrayLength() is 2 or 3
+            && c.EnumerateArray().All(x => x.ValueKind == JsonValueKind.Number)
+        )
+        {
+            double lon = c[0].GetDouble(),
+                lat = c[1].GetDouble();
+            if (Math.Abs(lat) <= 90 && Math.Abs(lon) <= 180)
+                return string.Create(CultureInfo.InvariantCulture, $"latitude {lat:0.######}, longitude {lon:0.######}")
+                    + (
+                        c.GetArrayLength() == 3
+                            ? string.Create(CultureInfo.InvariantCulture, $", altitude {c[2].GetDouble():0.#} m")
+                            : string.Empty
+                    )
+                    + " (WGS 84, from core:geolocation)";
+        }
+        notes.Add("global.core:geolocation is not a GeoJSON point [longitude, latitude(, altitude)]: not shown");
+        return null;
+    }
+
     private sealed class Meta(string path)
     {
         public CaptureException Error(string problem) => CaptureException.ForFile(path, problem);

@@ -37,6 +37,10 @@ public sealed record ChannelPlan
     /// <summary>The decimated rate is at least this many times the low-pass's stop edge (on the one side).</summary>
     public const double RateOverStopEdge = 2.5;
 
+    /// <summary>Narrowest transition band, as a share of the pass edge, when another emission is near (a narrower one
+    /// would need more than <see cref="MaxTaps"/> taps at wide rates).</summary>
+    public const double MinTransitionShare = 0.2;
+
     /// <summary>Default post-detection cutoff as a share of the channel's width; never above
     /// <see cref="MaxPostLowPassShare"/> of the decimated rate.</summary>
     public const double PostLowPassShare = 0.9,
@@ -72,6 +76,10 @@ public sealed record ChannelPlan
     /// decimated rate.</summary>
     public required double PostLowPassHz { get; init; }
 
+    /// <summary>True when another emission lies so near that the filter's stop band cannot start before it while
+    /// passing the measured emission's occupied band.</summary>
+    public bool Crowded { get; init; }
+
     /// <summary>The filter in words, for the method record.</summary>
     public required string Description { get; init; }
 
@@ -92,6 +100,9 @@ public sealed record ChannelPlan
     /// <param name="noiseFloorDensity">Noise density of the spectrum (its unit).</param>
     /// <param name="postLowPassHz">Post-detection low-pass asked for, Hz; null for the channel's width (so that every
     /// modulating frequency the channel holds passes, and FSK's frequency steps keep their flat tops).</param>
+    /// <param name="others">Other emissions (lower, upper edge on the capture's axis, Hz): the filter's stop band
+    /// starts before the nearest one where the measured emission's occupied band allows (a carrier 10 kHz away
+    /// would otherwise pass the transition band and beat with the measured one).</param>
     public static ChannelPlan Design(
         PowerSpectrum psd,
         bool complex,
@@ -99,7 +110,8 @@ public sealed record ChannelPlan
         double lowerEdgeHz,
         double upperEdgeHz,
         double noiseFloorDensity,
-        double? postLowPassHz
+        double? postLowPassHz,
+        IReadOnlyList<(double LowHz, double HighHz)>? others = null
     )
     {
         double fs = psd.SampleRateHz;
@@ -112,6 +124,29 @@ public sealed record ChannelPlan
         double usable = complex ? nyquist : Math.Min(coarse, nyquist - coarse);
         bool filter = FilterRoom * passEdge < UsableShare * usable;
         double transition = filter ? Math.Min(0.5 * passEdge, UsableShare * usable - passEdge) : 0;
+        bool crowded = false;
+        if (filter && others is { Count: > 0 })
+        {
+            // The nearest other emission's near edge bounds the stop edge; the pass band keeps the occupied band.
+            double room = others.Min(o =>
+                o.LowHz > coarse ? o.LowHz - coarse
+                : o.HighHz < coarse ? coarse - o.HighHz
+                : 0
+            );
+            double occupied = Math.Max(
+                Math.Max(upperEdgeHz - coarse, coarse - lowerEdgeHz) * OccupiedReach + PassEdgeBins * bin,
+                MinPassBins * bin
+            );
+            if (passEdge + transition > room)
+            {
+                passEdge = Math.Max(occupied, Math.Min(passEdge, room / (1 + MinTransitionShare)));
+                transition = Math.Min(
+                    Math.Max(room - passEdge, MinTransitionShare * passEdge),
+                    Math.Min(0.5 * passEdge, UsableShare * usable - passEdge)
+                );
+                crowded = passEdge + transition > room;
+            }
+        }
         double half = passEdge + transition / 2;
         int decimation = filter ? Math.Max(1, (int)Math.Floor(fs / (RateOverStopEdge * (half + transition / 2)))) : 1;
         double fsd = fs / decimation;
@@ -155,6 +190,7 @@ public sealed record ChannelPlan
             PostLowPassHz = postLp,
             Description = description,
             MirrorKept = !complex && !filter,
+            Crowded = crowded,
         };
     }
 

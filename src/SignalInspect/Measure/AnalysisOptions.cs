@@ -57,8 +57,23 @@ public sealed record AnalysisOptions
     /// null for the default (about 100 ms, a whole number of modulating-tone periods when one is found).</summary>
     public double? TrackIntervalS { get; init; }
 
+    /// <summary>The receiver reads RF frequencies this many ppm high, as measured against a standard (negative: low);
+    /// null when not declared. Needs <see cref="ReceiverErrorUncertaintyPpm"/>.</summary>
+    public double? ReceiverErrorPpm { get; init; }
+
+    /// <summary>Standard uncertainty (k = 1) of <see cref="ReceiverErrorPpm"/>, ppm.</summary>
+    public double? ReceiverErrorUncertaintyPpm { get; init; }
+
+    /// <summary>A carrier in the capture known to be at this RF frequency, Hz: its apparent error corrects every
+    /// frequency; null for none.</summary>
+    public double? ReferenceCarrierHz { get; init; }
+
     /// <summary>Worker threads for the spectrum; null for one per core.</summary>
     public int? Threads { get; init; }
+
+    /// <summary>Largest receiver error accepted, ppm (a receiver further off needs retuning, not a
+    /// correction).</summary>
+    public const double MaxReceiverErrorPpm = 1000;
 
     /// <summary>Checks every option; the message names it.</summary>
     public void Validate()
@@ -81,6 +96,39 @@ public sealed record AnalysisOptions
             throw new SettingException(nameof(TrackIntervalS), ti, "must be from 0.002 to 3600 seconds");
         if (DurationS is { } d && !(d > 0 && double.IsFinite(d)))
             throw new SettingException(nameof(DurationS), d, "must be a positive number of seconds");
+        if (ReceiverErrorPpm is { } e && !(Math.Abs(e) <= MaxReceiverErrorPpm))
+            throw new SettingException(
+                nameof(ReceiverErrorPpm),
+                e,
+                $"must be a number of ppm within +/-{MaxReceiverErrorPpm}"
+            );
+        if (ReceiverErrorUncertaintyPpm is { } ue && !(ue >= 0 && ue <= MaxReceiverErrorPpm))
+            throw new SettingException(
+                nameof(ReceiverErrorUncertaintyPpm),
+                ue,
+                $"must be a standard uncertainty of 0 to {MaxReceiverErrorPpm} ppm"
+            );
+        if (ReceiverErrorPpm is not null && ReceiverErrorUncertaintyPpm is null)
+            throw new SettingException(
+                nameof(ReceiverErrorUncertaintyPpm),
+                null,
+                "must be given with the declared receiver error (its standard uncertainty, k = 1; 0 to take it as "
+                    + "exact)"
+            );
+        if (ReceiverErrorPpm is null && ReceiverErrorUncertaintyPpm is not null)
+            throw new SettingException(
+                nameof(ReceiverErrorUncertaintyPpm),
+                ReceiverErrorUncertaintyPpm,
+                "is the uncertainty of a declared receiver error, and none was declared"
+            );
+        if (ReferenceCarrierHz is { } rc && !(rc > 0 && double.IsFinite(rc)))
+            throw new SettingException(nameof(ReferenceCarrierHz), rc, "must be a positive RF frequency in Hz");
+        if (ReferenceCarrierHz is not null && ReceiverErrorPpm is not null)
+            throw new SettingException(
+                nameof(ReferenceCarrierHz),
+                ReferenceCarrierHz,
+                "and a declared receiver error cannot both correct the frequencies (which would decide?)"
+            );
     }
 }
 

@@ -126,6 +126,10 @@ public sealed record AnalysisResult
     /// <summary>The carrier, modulation and level against time (null without a carrier).</summary>
     public Timeline? Timeline { get; init; }
 
+    /// <summary>The receiver's frequency reference correction applied to every frequency; null when none was (the
+    /// frequencies are as the receiver read them).</summary>
+    public FrequencyReference? FrequencyReference { get; init; }
+
     /// <summary>How the figures were obtained, beyond the method record (one line each).</summary>
     public IReadOnlyList<string> Notes { get; init; } = [];
 }

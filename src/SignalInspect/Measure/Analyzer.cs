@@ -34,23 +34,61 @@ public static class Analyzer
         Action<long>? progress = null,
         CancellationToken cancel = default,
         StageTimer? timer = null
-    ) => Run(source, options, progress, cancel, timer, hash: null, split: true);
-
-    /// <summary>The analysis of <see cref="Analyze"/>; <paramref name="split"/>: a capture of several transmissions
-    /// (or one with silence around it) is measured transmission by transmission (each a call without it), sharing
-    /// the file's <paramref name="hash"/>.</summary>
-    private static AnalysisResult Run(
-        CaptureSource source,
-        AnalysisOptions? options,
-        Action<long>? progress,
-        CancellationToken cancel,
-        StageTimer? timer,
-        Task<string>? hash,
-        bool split
     )
     {
         options ??= new AnalysisOptions();
         options.Validate();
+        CaptureInfo info = source.Info;
+        Task<string> hash = Task.Run(() => FileHash.Sha256(info.DataPath ?? info.Path), cancel);
+        FrequencyReference? reference = null;
+        double? referenceAxisHz = null;
+        if (options.ReceiverErrorPpm is { } e)
+        {
+            ReferenceCarrierMeasurement.RequireRf(info, nameof(AnalysisOptions.ReceiverErrorPpm), e);
+            reference = new FrequencyReference
+            {
+                Source = FrequencyReference.Declared,
+                ErrorPpm = e,
+                StandardUncertaintyPpm = options.ReceiverErrorUncertaintyPpm ?? 0,
+            };
+        }
+        else if (options.ReferenceCarrierHz is { } known)
+            (reference, referenceAxisHz) = ReferenceCarrierMeasurement.Measure(source, options, known, hash, cancel);
+        AnalysisResult r = Run(source, options, progress, cancel, timer, hash, split: true, referenceAxisHz);
+        if (reference is null)
+            return r;
+        r = FrequencyCorrection.Apply(r, reference, options.NominalHz);
+        return
+            reference.Source == FrequencyReference.ByReferenceCarrier
+            && Math.Abs(reference.ErrorPpm) > ReferenceCarrierMeasurement.UnusualErrorPpm
+            ? r with
+            {
+                Warnings =
+                [
+                    .. r.Warnings,
+                    string.Create(
+                        CultureInfo.InvariantCulture,
+                        $"the reference carrier reads {reference.ErrorPpm:+0.##;-0.##} ppm from its stated frequency, "
+                    ) + "more than a receiver's reference usually errs: make sure it is the carrier meant",
+                ],
+            }
+            : r;
+    }
+
+    /// <summary>The analysis of <see cref="Analyze"/>; <paramref name="split"/>: a capture of several transmissions
+    /// (or one with silence around it) is measured transmission by transmission (each a call without it), sharing
+    /// the file's <paramref name="hash"/>.</summary>
+    internal static AnalysisResult Run(
+        CaptureSource source,
+        AnalysisOptions options,
+        Action<long>? progress,
+        CancellationToken cancel,
+        StageTimer? timer,
+        Task<string> hash,
+        bool split,
+        double? excludeAxisHz
+    )
+    {
         timer ??= StageTimer.Off;
         CaptureInfo info = source.Info;
         double fs = info.SampleRateHz;
@@ -67,16 +105,6 @@ public static class Analyzer
                 )
             );
         timer.Note($"start: {StageTimer.Memory()}");
-        double hashDoneS = 0;
-        hash ??= Task.Run(
-            () =>
-            {
-                string h = FileHash.Sha256(info.DataPath ?? info.Path);
-                hashDoneS = timer.ElapsedS;
-                return h;
-            },
-            cancel
-        );
         var warnings = new List<string>(info.Warnings);
 
         // Pass A: the spectrum, the bandwidths and a first carrier estimate.
@@ -91,7 +119,7 @@ public static class Analyzer
                     : "holds only zero samples (a silent or empty recording): there is nothing to measure"
             );
         // The emission to measure, alone: other emissions, spurs and an IQ image are set to the floor.
-        Selection selection = EmissionSelection.Select(info, spectrum.Mean, options.Signal);
+        Selection selection = EmissionSelection.Select(info, spectrum.Mean, options.Signal, excludeAxisHz);
         BandwidthResult bw = Bandwidths(selection, options);
         // A narrow emission in a wide capture: the spectrum again, with enough bins across the emission.
         if (
@@ -103,7 +131,7 @@ public static class Analyzer
             SpectrumResult again = WelchEstimator.Estimate(source, finer, first, count, null, cancel);
             timer.Stage("finer spectrum pass");
             var at = new SignalSelection(FrequencyAxis.Of(info).ToReported(seen.CentreHz), options.Signal?.WidthHz);
-            Selection refined = EmissionSelection.Select(info, again.Mean, options.Signal ?? at);
+            Selection refined = EmissionSelection.Select(info, again.Mean, options.Signal ?? at, excludeAxisHz);
             CultureInfo ci = CultureInfo.InvariantCulture;
             warnings.Add(
                 string.Create(ci, $"the emission spans {bw.OccupiedHz / spectrum.Mean.BinWidthHz:0.#} bins of the ")
@@ -124,17 +152,22 @@ public static class Analyzer
                 info.Path,
                 "the real signal has its power at 0 Hz: there is no carrier in the audio band to analyse"
             );
+        // The channel is centred on the occupied band (an FM signal's strongest line may be a sideband) and ends
+        // before the nearest other emission.
         ChannelPlan channel = ChannelPlan.Design(
             psd,
             info.IsComplex,
-            coarse,
+            ChannelCentre(coarse, bw, psd.BinWidthHz),
             bw.LowerEdgeHz,
             bw.UpperEdgeHz,
             bw.NoiseFloorDensity,
-            options.PostLowPassHz
+            options.PostLowPassHz,
+            [.. selection.Others.Select(o => (o.LowHz, o.HighHz))]
         );
         if (channel.MirrorKept)
             warnings.Add(MeasurementWarnings.MirrorKept);
+        if (channel.Crowded)
+            warnings.Add(MeasurementWarnings.Crowded);
         warnings.AddRange(EmissionSelection.Warnings(info, selection));
         int threads = Math.Max(1, options.Threads ?? Environment.ProcessorCount);
         PassPlan plan = channel.ForPass(source, first, count, options.PostHighPassHz, options.DeEmphasisUs, threads);
@@ -145,7 +178,8 @@ public static class Analyzer
         if (b.Samples < 16)
             throw CaptureException.ForFile(info.Path, "too few samples remain after the channel filter to demodulate");
         double fsd = channel.DecimatedRateHz;
-        double carrierAxisHz = coarse + b.Slope * fsd / (2 * Math.PI); // the slope is in rad per decimated sample
+        // The slope is in rad per decimated sample, about the channel's centre.
+        double carrierAxisHz = channel.CarrierHz + b.Slope * fsd / (2 * Math.PI);
 
         // Transmissions: the channel's power against time. Silence must not read as modulation: a capture with
         // carrier-off time is measured again, transmission by transmission.
@@ -159,7 +193,7 @@ public static class Analyzer
             channelNoise
         );
         if (split && TransmissionFinder.Splits(transmissions, count / fs))
-            return ByTransmission(source, options, cancel, hash, transmissions, selection, info);
+            return ByTransmission(source, options, cancel, hash, transmissions, selection, info, excludeAxisHz);
 
         // Classification, then the modulating frequency from the demodulated spectra.
         var features = DemodulatedFeatures.From(b, bw.NoiseFloorDensity * 2 * channel.HalfWidthHz);
@@ -327,7 +361,6 @@ public static class Analyzer
         };
         string sha = hash.Result;
         timer.Stage("results, hash wait");
-        timer.Note($"hash done at {hashDoneS:0.000} s, analysis at {timer.ElapsedS:0.000} s");
         var (waveT, waveV, waveLabel) = PlotTraces.Waveform(b, kind, tone?.Value, fsd, features.MeanDeviationHz);
         var (longT, longHigh, longLow, trendStep) = PlotTraces.Trend(b, kind, blockS, first / fs, b.FreqMean);
         return new AnalysisResult
@@ -371,7 +404,8 @@ public static class Analyzer
         Task<string> hash,
         IReadOnlyList<Transmission> found,
         Selection selection,
-        CaptureInfo info
+        CaptureInfo info,
+        double? excludeAxisHz
     )
     {
         SignalSelection? pinned = options.Signal
@@ -385,7 +419,7 @@ public static class Analyzer
         {
             var (from, to) = TransmissionFinder.Steady(t);
             AnalysisOptions one = options with { StartS = from, DurationS = to - from, Signal = pinned };
-            AnalysisResult result = Run(source, one, null, cancel, null, hash, split: false);
+            AnalysisResult result = Run(source, one, null, cancel, null, hash, split: false, excludeAxisHz);
             measured.Add(
                 t with
                 {
@@ -417,6 +451,15 @@ public static class Analyzer
             )
             + "transients)";
         return top with { Transmissions = measured, MeasuredTransmission = longest, Notes = [.. top.Notes, note] };
+    }
+
+    /// <summary>The channel's centre: the first carrier estimate when it lies near the middle of the occupied band
+    /// (within a tenth of the band and two bins), else that middle (the strongest line of FM at an index near 2 is a
+    /// first sideband, a modulating frequency away from the carrier).</summary>
+    private static double ChannelCentre(double coarse, BandwidthResult bw, double binHz)
+    {
+        double middle = (bw.LowerEdgeHz + bw.UpperEdgeHz) / 2;
+        return Math.Abs(coarse - middle) <= 0.1 * bw.OccupiedHz + 2 * binHz ? coarse : middle;
     }
 
     /// <summary>Bins across the occupied bandwidth the default spectrum should give (the emission's shape, not the
@@ -476,7 +519,7 @@ public static class Analyzer
 
     /// <summary>The spectrum pass's settings: the FFT size asked for, or <see cref="DefaultFftSize"/> halved until
     /// the window holds eight segments (down to 64).</summary>
-    private static SpectrumSettings SpectrumSettingsFor(AnalysisOptions options, long count)
+    internal static SpectrumSettings SpectrumSettingsFor(AnalysisOptions options, long count)
     {
         int fft = options.FftSize ?? DefaultFftSize;
         if (options.FftSize is null)

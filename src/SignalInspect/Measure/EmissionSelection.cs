@@ -10,11 +10,14 @@ namespace SignalInspect.Measure;
 /// the noise floor: every spectral measurement (bandwidths, carrier, channel) reads this.</param>
 /// <param name="Others">The other emissions, strongest first.</param>
 /// <param name="NoiseFloorDensity">The noise density of the capture.</param>
+/// <param name="Reference">The reference carrier (one of <paramref name="Others"/>), never the measured emission;
+/// null without one.</param>
 internal sealed record Selection(
     Emission? Measured,
     PowerSpectrum Spectrum,
     IReadOnlyList<Emission> Others,
-    double NoiseFloorDensity
+    double NoiseFloorDensity,
+    Emission? Reference = null
 );
 
 /// <summary>
@@ -37,12 +40,38 @@ internal static class EmissionSelection
     /// receiver's IQ image.</summary>
     public const double ImageTolerance = 0.1;
 
-    /// <exception cref="SettingException">The frequency asked for is outside the band, the width wider than it, or no
-    /// emission stands at the frequency.</exception>
-    public static Selection Select(CaptureInfo info, PowerSpectrum psd, SignalSelection? asked)
+    /// <summary>The narrowest emission (the nearest among equals) whose centre lies within <paramref name="searchHz"/>
+    /// of <paramref name="axisHz"/>; null when none does.</summary>
+    public static Emission? Narrowest(PowerSpectrum psd, double axisHz, double searchHz) =>
+        EmissionFinder
+            .Find(psd, NoiseFloor.Estimate(psd))
+            .Where(e => Math.Abs(e.CentreHz - axisHz) <= searchHz)
+            .OrderBy(e => e.WidthHz)
+            .ThenBy(e => Math.Abs(e.CentreHz - axisHz))
+            .FirstOrDefault();
+
+    /// <exception cref="SettingException">The frequency asked for is outside the band, the width wider than it, no
+    /// emission stands at the frequency, or the one there is the reference carrier.</exception>
+    /// <param name="info">The capture.</param>
+    /// <param name="psd">Its mean spectrum.</param>
+    /// <param name="asked">The emission or channel asked for; null for the strongest.</param>
+    /// <param name="excludeAxisHz">Where a reference carrier stands (the capture's axis): the emission there is never
+    /// the one measured; null for none.</param>
+    public static Selection Select(
+        CaptureInfo info,
+        PowerSpectrum psd,
+        SignalSelection? asked,
+        double? excludeAxisHz = null
+    )
     {
         double floor = NoiseFloor.Estimate(psd);
         IReadOnlyList<Emission> all = EmissionFinder.Find(psd, floor);
+        Emission? reference = excludeAxisHz is { } x
+            ? all.Where(e => x >= e.LowHz - 2 * psd.BinWidthHz && x <= e.HighHz + 2 * psd.BinWidthHz)
+                .OrderBy(e => Math.Abs(e.CentreHz - x))
+                .FirstOrDefault()
+            : null;
+        IReadOnlyList<Emission> candidates = [.. all.Where(e => e != reference)];
         double lowest = psd.FrequenciesHz[0],
             highest = psd.FrequenciesHz[^1];
         if (asked is { } s)
@@ -74,12 +103,14 @@ internal static class EmissionSelection
                     );
                 int a = psd.BinOf(f - w / 2),
                     b = psd.BinOf(f + w / 2);
-                Emission? inside = all.FirstOrDefault(e => e.LastBin >= a && e.FirstBin <= b);
+                Emission? inside = candidates.FirstOrDefault(e => e.LastBin >= a && e.FirstBin <= b);
+                IReadOnlyList<(int, int)> cut = reference is { } rf ? [(rf.FirstBin, rf.LastBin)] : [];
                 return new Selection(
                     inside,
-                    psd.Only(a, b, [], floor),
-                    [.. all.Where(e => e.LastBin < a || e.FirstBin > b)],
-                    floor
+                    psd.Only(a, b, cut, floor),
+                    [.. all.Where(e => e.LastBin < a || e.FirstBin > b || e == reference)],
+                    floor,
+                    reference
                 );
             }
             Emission? at = all.Where(e => f >= e.LowHz - 2 * psd.BinWidthHz && f <= e.HighHz + 2 * psd.BinWidthHz)
@@ -91,18 +122,39 @@ internal static class EmissionSelection
                     "no emission stands out of the noise there (give a width to measure the channel anyway)",
                     info.Path
                 );
-            return Around(psd, at, all, floor);
+            if (at == reference)
+                throw new SettingException(
+                    nameof(AnalysisOptions.Signal),
+                    where,
+                    "is the reference carrier: it corrects the frequencies and is not the emission measured",
+                    info.Path
+                );
+            return Around(psd, at, all, floor, reference);
         }
-        return all.Count == 0 ? new Selection(null, psd, [], floor) : Around(psd, all[0], all, floor);
+        return candidates.Count == 0
+            ? new Selection(null, psd, all, floor, reference)
+            : Around(psd, candidates[0], all, floor, reference);
     }
 
-    private static Selection Around(PowerSpectrum psd, Emission e, IReadOnlyList<Emission> all, double floor)
+    private static Selection Around(
+        PowerSpectrum psd,
+        Emission e,
+        IReadOnlyList<Emission> all,
+        double floor,
+        Emission? reference
+    )
     {
         double margin = Math.Max(MarginBins * psd.BinWidthHz, MarginShare * e.WidthHz);
         int a = psd.BinOf(e.LowHz - margin),
             b = psd.BinOf(e.HighHz + margin);
         IReadOnlyList<Emission> others = [.. all.Where(x => x != e)];
-        return new Selection(e, psd.Only(a, b, others.Select(x => (x.FirstBin, x.LastBin)), floor), others, floor);
+        return new Selection(
+            e,
+            psd.Only(a, b, others.Select(x => (x.FirstBin, x.LastBin)), floor),
+            others,
+            floor,
+            reference
+        );
     }
 
     /// <summary>One warning per other emission: its frequency, width and level relative to the measured one, and
@@ -116,6 +168,13 @@ internal static class EmissionSelection
         foreach (Emission o in s.Others)
         {
             double db = 10 * Math.Log10(o.Power / m.Power);
+            if (o == s.Reference)
+            {
+                yield return string.Create(c, $"the reference carrier at {axis.ToReported(o.CentreHz):0.#} Hz ")
+                    + string.Create(c, $"({db:+0.0;-0.0} dB relative to the measured emission, as read) corrects the ")
+                    + "frequencies and is not part of the measured emission";
+                continue;
+            }
             bool image =
                 info.IsComplex
                 && Math.Abs(m.CentreHz) > m.WidthHz / 2

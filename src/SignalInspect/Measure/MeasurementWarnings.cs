@@ -29,6 +29,12 @@ internal static class MeasurementWarnings
         "the carrier sits close to 0 Hz or to half the sample rate for its bandwidth: the analytic signal keeps some "
         + "of the mirror image";
 
+    /// <summary>Another emission too near for the channel filter to stop it while passing the measured one.</summary>
+    public const string Crowded =
+        "another emission lies so near the measured one that the channel filter cannot stop it while passing the "
+        + "measured occupied band: deviation, depth and modulating components may be disturbed (give a narrower "
+        + "channel with a width to the selection, or record with the other emission off)";
+
     /// <summary>The low-SNR warning, or null.</summary>
     public static string? LowSnr(double snrDb, ModulationKind kind) =>
         snrDb < UnreliableSnrDb && kind != ModulationKind.Noise

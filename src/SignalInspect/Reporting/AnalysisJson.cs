@@ -33,6 +33,27 @@ public static class AnalysisJson
         return ms.ToArray();
     }
 
+    /// <summary>The receiver reference correction applied to every frequency (<c>applied</c> false, with the reason,
+    /// when none was).</summary>
+    private static void WriteCorrection(Utf8JsonWriter w, FrequencyReference? f)
+    {
+        w.WriteStartObject("correction");
+        w.WriteBoolean("applied", f is not null);
+        if (f is null)
+            w.WriteString("note", FrequencyReference.NotCorrected);
+        else
+        {
+            w.WriteString("source", f.Source);
+            w.WriteNumber("receiverErrorPpm", f.ErrorPpm);
+            w.WriteNumber("receiverErrorUncertaintyPpm", f.StandardUncertaintyPpm);
+            CaptureInfoJson.WriteNumberOrNull(w, "referenceCarrierHz", f.ReferenceCarrierHz);
+            CaptureInfoJson.WriteNumberOrNull(w, "referenceReadHz", f.ReferenceReadHz?.Value);
+            CaptureInfoJson.WriteNumberOrNull(w, "referenceReadUncertaintyHz", f.ReferenceReadHz?.StandardUncertainty);
+            w.WriteString("text", f.Text);
+        }
+        w.WriteEndObject();
+    }
+
     /// <summary>Writes the result as one JSON object; with <paramref name="judged"/> its limits, checks and verdict
     /// too.</summary>
     public static void Write(Utf8JsonWriter w, AnalysisResult r, MeasurementReport? judged = null)
@@ -40,7 +61,8 @@ public static class AnalysisJson
         var info = r.Capture;
         var axis = FrequencyAxis.Of(info);
         bool abs = axis.IsAbsolute;
-        double Abs(double axisHz) => axis.ToReported(axisHz);
+        double Abs(double axisHz) =>
+            r.FrequencyReference is { } f ? f.Correct(axis.ToReported(axisHz)) : axis.ToReported(axisHz);
         w.WriteStartObject();
         w.WriteString("schemaVersion", SchemaVersion);
         w.WriteString("software", "SignalInspect " + Version);
@@ -74,6 +96,7 @@ public static class AnalysisJson
             CaptureInfoJson.WriteNumberOrNull(w, "offsetPpm", c.OffsetPpm);
             w.WriteString("offsetReference", c.OffsetReference);
             w.WriteString("method", c.Method);
+            WriteCorrection(w, r.FrequencyReference);
             w.WriteEndObject();
         }
         else
@@ -83,6 +106,7 @@ public static class AnalysisJson
             w.WriteNull("frequencyUncertaintyHz");
             w.WriteNull("offsetHz");
             w.WriteNull("offsetPpm");
+            WriteCorrection(w, r.FrequencyReference);
             w.WriteEndObject();
         }
         var b = r.Bandwidth;

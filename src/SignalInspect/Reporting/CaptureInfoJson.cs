@@ -33,6 +33,8 @@ public static class CaptureInfoJson
         w.WriteString("checksum", info.ChecksumStatus);
         w.WriteString("hardware", info.Hardware);
         w.WriteString("recorder", info.Recorder);
+        w.WriteString("author", info.Author);
+        w.WriteString("location", info.Location);
         if (info.SelectedSegment is { } s)
             w.WriteNumber("segment", s);
         else

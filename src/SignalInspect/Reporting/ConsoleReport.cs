@@ -35,6 +35,7 @@ public static class ConsoleReport
             Line(i == 0 ? "transmissions" : "", transmissions[i]);
         if (ResultRows.TimelineSummary(a, k) is { } timeline)
             Line("carrier against time", timeline);
+        Line("frequency reference", a.FrequencyReference?.Text ?? "not corrected (as the receiver read)");
         foreach (string n in a.Notes)
             Line("note", n);
         foreach (ResultRow row in ResultRows.For(a, [], k))
@@ -56,13 +57,12 @@ public static class ConsoleReport
     {
         BandwidthResult b = a.Bandwidth;
         var axis = FrequencyAxis.Of(a.Capture);
+        double Rf(double axisHz) =>
+            a.FrequencyReference is { } f ? f.Correct(axis.ToReported(axisHz)) : axis.ToReported(axisHz);
         return key switch
         {
             "carrier.offset" => $", from {a.Carrier!.OffsetReference}",
-            "bandwidth.occupied" => string.Create(
-                C,
-                $", edges {axis.ToReported(b.LowerEdgeHz):0.#} to {axis.ToReported(b.UpperEdgeHz):0.#} Hz"
-            ),
+            "bandwidth.occupied" => string.Create(C, $", edges {Rf(b.LowerEdgeHz):0.#} to {Rf(b.UpperEdgeHz):0.#} Hz"),
             "bandwidth.xdb" => string.Create(C, $", RBW {a.Method.RbwHz:0.##} Hz, noise floor ")
                 + (b.Treatment == NoiseFloorTreatment.Subtract ? "subtracted" : "kept"),
             "am.depth" when a.Am!.SidebandDepthPercent is { } sb => string.Create(C, $", sidebands give {sb:0.00} %"),

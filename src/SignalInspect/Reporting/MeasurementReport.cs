@@ -29,6 +29,9 @@ public sealed record ReportHeader
     /// <summary>Free notes.</summary>
     public string? Notes { get; init; }
 
+    /// <summary>Test conditions (temperature, supply voltage, set-up).</summary>
+    public string? Conditions { get; init; }
+
     /// <summary>Paper size of the PDF.</summary>
     public PaperSize Paper { get; init; } = PaperSize.A4;
 

@@ -63,6 +63,13 @@ public static class PdfReportWriter
     private static string Hz(double? v) =>
         v is { } x ? x.ToString(Math.Abs(x) >= 1e6 ? "#,0.###" : "0.###", C) + " Hz" : "unknown";
 
+    /// <summary>Who made the recording and where (SigMF core:author, core:geolocation).</summary>
+    private static string RecordedBy(Capture.CaptureInfo info) =>
+        string.Join("; ", new[] { info.Author, info.Location }.Where(x => x is not null).Select(SafeText.ForTerminal))
+            is { Length: > 0 } text
+            ? text
+            : "not stated in the file";
+
     private static void FirstPage(PdfLayout l, MeasurementReport r)
     {
         AnalysisResult a = r.Analysis;
@@ -100,6 +107,7 @@ public static class PdfReportWriter
                     ? hw
                     : "not stated in the file"
             ),
+            ("Recorded by", RecordedBy(info)),
             ("Sample rate", Hz(info.SampleRateHz)),
             ("Centre frequency", Hz(info.CenterFrequencyHz)),
             (
@@ -115,6 +123,14 @@ public static class PdfReportWriter
                 "Capture time",
                 info.StartTime?.UtcDateTime.ToString("yyyy-MM-dd HH:mm:ss.fff 'UTC'", C) ?? "not stated in the file"
             ),
+            ("Frequency reference", a.FrequencyReference?.Text ?? FrequencyReference.NotCorrected),
+            (
+                "Level calibration",
+                a.Spectrum.Mean.Settings.CalibrationDb is { } cal and not 0
+                    ? string.Create(C, $"{cal:+0.###;-0.###} dB applied to levels (dBFS to dBm, as given)")
+                    : "none: levels in dBFS"
+            ),
+            ("Test conditions", r.Header.Conditions ?? "not given"),
             (
                 "Limit profile",
                 r.Profile is { } p
@@ -475,7 +491,14 @@ public static class PdfReportWriter
                 "standard uncertainties: carrier from the least-squares fit (statistical); deviation, depth, phase "
                     + "and shift type-B from validation against synthesised signals, growing below 30 dB SNR; "
                     + "bandwidths from the resolution bandwidth; expanded with the coverage factor shown. "
-                    + "Not included: the recorder's calibration and frequency reference."
+                    + (
+                        a.FrequencyReference is { } fr
+                            ? "The receiver's frequency reference: corrected, its uncertainty in the carrier's budget ("
+                                + fr.Source
+                                + "). "
+                            : "Not included: the receiver's frequency reference (not corrected). "
+                    )
+                    + "Not included: the recorder's level calibration."
             ),
             ("Decision rule", Judgement.RuleText(r.Profile)),
         };
@@ -502,6 +525,15 @@ public static class PdfReportWriter
         l.Gap(6);
         l.Text("Standing of these results", l.H2);
         l.Text(MeasurementReport.Disclaimer, l.Body);
+        l.Gap(10);
+        l.Text("Sign-off", l.H2);
+        l.KeyValueTable(
+            [
+                ("Measured by", (r.Header.Operator ?? "") + "    signature ____________________    date ____________"),
+                ("Checked by", "____________________    signature ____________________    date ____________"),
+            ],
+            keyWidth: 105
+        );
         static Spectrum.PowerSpectrum psd(AnalysisResult x) => x.Spectrum.Mean;
     }
 }

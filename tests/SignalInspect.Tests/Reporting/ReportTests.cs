@@ -255,18 +255,95 @@ public class ReportTests
         )!;
         doc["global"]!["core:hw"] = "Quay-side receiver QR-7, 20 dB attenuator";
         doc["global"]!["core:recorder"] = "harbour-logger 2.1";
+        doc["global"]!["core:author"] = "J. Okafor";
+        // GeoJSON point, RFC 7946: [longitude, latitude, altitude].
+        doc["global"]!["core:geolocation"] = System.Text.Json.Nodes.JsonNode.Parse(
+            "{\"type\": \"Point\", \"coordinates\": [-4.2518, 55.8642, 35]}"
+        );
         File.WriteAllText(meta, doc.ToJsonString());
         var (code, json, stderr) = CliRunner.Run("info", meta, "--json");
         Assert.True(code == 0, stderr);
         JsonElement info = JsonDocument.Parse(json).RootElement;
         Assert.Equal("Quay-side receiver QR-7, 20 dB attenuator", info.GetProperty("hardware").GetString());
         Assert.Equal("harbour-logger 2.1", info.GetProperty("recorder").GetString());
+        Assert.Equal("J. Okafor", info.GetProperty("author").GetString());
+        Assert.Equal(
+            "latitude 55.8642, longitude -4.2518, altitude 35 m (WGS 84, from core:geolocation)",
+            info.GetProperty("location").GetString()
+        );
         string pdf = tmp.File("rx.pdf");
-        Assert.True(CliRunner.Run("analyze", meta, "--report", pdf).Code is 0 or 4);
+        string[] args = ["analyze", meta, "--report", pdf, "--conditions", "20 C, 13.6 V supply, 30 dB pad"];
+        Assert.True(CliRunner.Run(args).Code is 0 or 4);
         string text = PdfText(pdf);
         Assert.Contains("Receiver (from the file)", text);
         Assert.Contains("QR-7", text);
         Assert.Contains("recorded by harbour-logger 2.1", text);
+        Assert.Contains("J. Okafor", text);
+        Assert.Contains("latitude 55.8642, longitude -4.2518", text);
+        Assert.Contains("Test conditions 20 C, 13.6 V supply, 30 dB pad", text);
+        Assert.Contains("The receiver's frequency reference is not corrected", text);
+        Assert.Contains("Checked by", text);
+        Assert.Contains("Guarded acceptance", text); // the decision rule, stated
+    }
+
+    /// <summary>Issue 23: a reference correction is stated in the report, the JSON and the budget; a reference that
+    /// is not in the capture is one line and exit 2. The capture: a carrier truly at 460.0002 MHz and a reference
+    /// truly at 460.010 MHz recorded by a receiver reading 3 ppm high (testdata/REFERENCE-VALUES.md, [D]).</summary>
+    [Fact]
+    public void A_reference_correction_is_stated_in_the_report_and_the_json()
+    {
+        using var tmp = new TempDir();
+        string meta = tmp.File("ref.sigmf-meta");
+        double read = (460e6 + 200) * (1 + 3e-6) - 460e6,
+            spur = 460.010e6 * (1 + 3e-6) - (460e6 + 200) * (1 + 3e-6);
+        var inv = System.Globalization.CultureInfo.InvariantCulture;
+        var (code, _, err) = CliRunner.Run(
+            "synth",
+            "--kind",
+            "fm",
+            "--deviation",
+            "2000",
+            "--center-frequency",
+            "460M",
+            "--offset",
+            read.ToString("R", inv),
+            "--spur",
+            spur.ToString("R", inv) + ":-10",
+            "--snr",
+            "40",
+            meta
+        );
+        Assert.True(code == 0, err);
+        string pdf = tmp.File("ref.pdf");
+        (code, _, err) = CliRunner.Run(
+            "analyze",
+            meta,
+            "--nominal",
+            "460M",
+            "--reference-carrier",
+            "460.01M",
+            "--report",
+            pdf
+        );
+        Assert.True(code == 0, err);
+        string text = PdfText(pdf);
+        Assert.Contains("Frequency reference receiver reads +3 ppm", text);
+        Assert.Contains("from a reference carrier known at 460010000 Hz", text);
+        JsonElement carrier = JsonDocument
+            .Parse(File.ReadAllText(Path.ChangeExtension(pdf, ".json")))
+            .RootElement.GetProperty("analysis")
+            .GetProperty("carrier");
+        JsonElement correction = carrier.GetProperty("correction");
+        Assert.True(correction.GetProperty("applied").GetBoolean());
+        Assert.Equal("reference carrier", correction.GetProperty("source").GetString());
+        Near.Equal(3, correction.GetProperty("receiverErrorPpm").GetDouble(), 0.001, "receiver error");
+        Near.Equal(200 / 460e6 * 1e6, carrier.GetProperty("offsetPpm").GetDouble(), 0.05, "corrected ppm");
+        (code, string stdout, err) = CliRunner.Run("analyze", meta, "--reference-carrier", "460.05M");
+        Assert.Equal(2, code);
+        Assert.Single(err.Trim().Split('\n'));
+        Assert.Contains("--reference-carrier", err);
+        Assert.Contains("no carrier stands out", err);
+        Assert.Empty(stdout);
     }
 
     /// <summary>Rounding of a value with its U (GUM 7.2.6; two significant digits of U, common practice), worked by
