@@ -165,6 +165,11 @@ internal static class EmissionSelection
             yield break;
         var axis = FrequencyAxis.Of(info);
         CultureInfo c = CultureInfo.InvariantCulture;
+        foreach (var (hz, power) in m.UnmirroredLines)
+            yield return string.Create(c, $"a line at {axis.ToReported(hz):0.#} Hz inside the measured emission ")
+                + string.Create(c, $"({10 * Math.Log10(power / m.Power):+0.0;-0.0} dB relative to it) has no mirror ")
+                + "about its centre: a spur or another carrier within the channel, which no filter takes out; "
+                + "deviation, depth and modulating components may read wrong";
         foreach (Emission o in s.Others)
         {
             double db = 10 * Math.Log10(o.Power / m.Power);

@@ -157,6 +157,18 @@ internal static class MeasurementWarnings
             return false;
         around.Sort();
         double med = around[around.Count / 2];
-        return psd.Values[centre] > 10 * med && psd.Values[centre] > 10 * floor;
+        double at0 = psd.Values[centre];
+        if (!(at0 > 10 * med && at0 > 10 * floor))
+            return false;
+        // A line at 0 Hz mirrored about the carrier (as strong at twice the carrier's offset) is one of the
+        // emission's own sidebands, not the receiver's DC.
+        double mirrorHz = 2 * carrierAxisHz;
+        if (mirrorHz < psd.FrequenciesHz[0] || mirrorHz > psd.FrequenciesHz[^1])
+            return true;
+        int m = psd.BinOf(mirrorHz);
+        double mirror = 0;
+        for (int i = Math.Max(0, m - hw); i <= Math.Min(psd.Count - 1, m + hw); i++)
+            mirror = Math.Max(mirror, psd.Values[i]);
+        return mirror * 10 < at0;
     }
 }

@@ -24,6 +24,11 @@ public sealed record Emission(
 {
     /// <summary>Width between its edges, Hz.</summary>
     public double WidthHz => HighHz - LowHz;
+
+    /// <summary>Strong lines inside it with no mirror about its centre (frequency on the spectrum's axis, power in
+    /// the unit of <see cref="Power"/>): a spur or another carrier within the emission, which no channel filter
+    /// takes out.</summary>
+    public IReadOnlyList<(double Hz, double Power)> UnmirroredLines { get; init; } = [];
 }
 
 /// <summary>
@@ -62,9 +67,10 @@ public static class EmissionFinder
         double nu = NoiseFloor.EquivalentDof(psd);
         double threshold = floor * ChiSquared.InvCDF(nu, 1 - FalseAlarm) / nu;
         int gap = Math.Max(MinGapBins, (int)Math.Round(GapHz / psd.BinWidthHz));
-        // Regions: runs of bins above the threshold, gaps up to `gap` bridged. A lone bin barely above it is
-        // the threshold's own false alarm (one in 1 / FalseAlarm bins of noise), not a part of an emission.
-        var regions = new List<(int A, int B)>();
+        // Runs of bins above the threshold (gaps of MinGapBins bridged: one line's main lobe), then regions: runs
+        // closer than `gap`. A lone bin barely above the threshold is its own false alarm (one in 1 / FalseAlarm
+        // bins of noise), not a part of an emission.
+        var runs = new List<(int A, int B)>();
         int start = -1,
             last = -1;
         for (int i = 0; i < n; i++)
@@ -74,9 +80,9 @@ public static class EmissionFinder
             bool lone = (i == 0 || v[i - 1] <= threshold) && (i == n - 1 || v[i + 1] <= threshold);
             if (lone && v[i] < 2 * threshold)
                 continue;
-            if (start >= 0 && i - last > gap)
+            if (start >= 0 && i - last > MinGapBins)
             {
-                regions.Add((start, last));
+                runs.Add((start, last));
                 start = -1;
             }
             if (start < 0)
@@ -84,8 +90,16 @@ public static class EmissionFinder
             last = i;
         }
         if (start >= 0)
-            regions.Add((start, last));
-        var groups = regions.Select(r => new List<(int A, int B)> { r }).ToList();
+            runs.Add((start, last));
+        var groups = new List<List<(int A, int B)>>();
+        foreach (var run in runs)
+        {
+            if (groups.Count > 0 && run.A - groups[^1][^1].B <= gap)
+                groups[^1].Add(run);
+            else
+                groups.Add([run]);
+        }
+        groups = [.. groups.SelectMany(g => PeelUnmirrored(psd, g, floor))];
         // Mirrored pairs join the group they are symmetric about: the strongest group first.
         bool joined = true;
         while (joined)
@@ -130,20 +144,138 @@ public static class EmissionFinder
                     if (v[i] > v[peak])
                         peak = i;
             double half = psd.BinWidthHz / 2;
+            double centre = Centre(psd, group, floor);
+            var inside = new List<(double, double)>();
+            if (group.Count > 2)
+            {
+                double c = SymmetryCentre(psd, group, floor);
+                foreach (var run in group)
+                {
+                    bool holdsCentre = psd.FrequenciesHz[run.A] <= c && psd.FrequenciesHz[run.B] >= c;
+                    if (!holdsCentre && Unmirrored(psd, run, c, floor))
+                        inside.Add((Centre(psd, [run], floor), Power(psd, [run], floor)));
+                }
+            }
             emissions.Add(
                 new Emission(
                     first,
                     lastBin,
                     psd.FrequenciesHz[first] - half,
                     psd.FrequenciesHz[lastBin] + half,
-                    Centre(psd, group, floor),
+                    centre,
                     psd.FrequenciesHz[peak],
                     power,
                     snr
                 )
+                {
+                    UnmirroredLines = inside,
+                }
             );
         }
         return [.. emissions.OrderByDescending(e => e.Power)];
+    }
+
+    /// <summary>A line must stand this far over the floor (peak density, 20 dB) to be taken off a region as another
+    /// emission: weaker outer lines of a modulated carrier may lose their mirror to the noise.</summary>
+    public const double PeelOverFloor = 100;
+
+    /// <summary>
+    /// A region's outermost lines without a mirror about the region's centre of symmetry (a modulated
+    /// carrier's sidebands are mirrored: lines of equal power either side; a spur or a neighbour's edge within
+    /// <see cref="GapHz"/> is not) are taken off as another emission, from each side until a mirrored line is
+    /// reached. A line is taken off when it stands <see cref="PeelOverFloor"/> over the floor and the power at its
+    /// mirror is less than 1 / <see cref="MirrorPowerRatio"/> of its own.
+    /// </summary>
+    private static IEnumerable<List<(int A, int B)>> PeelUnmirrored(
+        PowerSpectrum psd,
+        List<(int A, int B)> region,
+        double floor
+    )
+    {
+        var core = new List<(int A, int B)>(region);
+        var low = new List<(int A, int B)>();
+        var high = new List<(int A, int B)>();
+        double centre = core.Count > 1 ? SymmetryCentre(psd, core, floor) : 0;
+        bool peeled = true;
+        while (peeled && core.Count > 1)
+        {
+            peeled = false;
+            foreach (bool upper in new[] { true, false })
+            {
+                if (core.Count < 2)
+                    break;
+                (int A, int B) run = upper ? core[^1] : core[0];
+                var rest = upper ? core.GetRange(0, core.Count - 1) : core.GetRange(1, core.Count - 1);
+                bool holdsCentre = psd.FrequenciesHz[run.A] <= centre && psd.FrequenciesHz[run.B] >= centre;
+                if (holdsCentre || !Unmirrored(psd, run, centre, floor))
+                    continue;
+                (upper ? high : low).Add(run);
+                core = rest;
+                peeled = true;
+            }
+        }
+        yield return core;
+        if (low.Count > 0)
+            yield return low;
+        if (high.Count > 0)
+            yield return high;
+    }
+
+    private static bool Unmirrored(PowerSpectrum psd, (int A, int B) run, double centreHz, double floor)
+    {
+        ReadOnlySpan<double> v = psd.Values;
+        double peak = 0;
+        for (int i = run.A; i <= run.B; i++)
+            peak = Math.Max(peak, v[i]);
+        return peak >= PeelOverFloor * floor
+            && MirrorPowerRatio * MirrorPower(psd, run, centreHz, floor) < Power(psd, [run], floor);
+    }
+
+    /// <summary>Lines whose centres and midpoints are tried as a group's centre of symmetry.</summary>
+    public const int SymmetryCandidates = 24;
+
+    /// <summary>Power above the floor in the bins of <paramref name="run"/> reflected about
+    /// <paramref name="centreHz"/>, widened by two bins either side (the centre's own uncertainty).</summary>
+    private static double MirrorPower(PowerSpectrum psd, (int A, int B) run, double centreHz, double floor)
+    {
+        ReadOnlySpan<double> v = psd.Values;
+        double f0 = 2 * centreHz - psd.FrequenciesHz[run.B],
+            f1 = 2 * centreHz - psd.FrequenciesHz[run.A];
+        if (f1 < psd.FrequenciesHz[0] || f0 > psd.FrequenciesHz[^1])
+            return 0;
+        int a = Math.Max(0, psd.BinOf(f0) - 2),
+            b = Math.Min(v.Length - 1, psd.BinOf(f1) + 2);
+        double mirror = 0;
+        for (int i = a; i <= b; i++)
+            mirror += Math.Max(0, v[i] - floor);
+        return mirror * psd.BinWidthHz;
+    }
+
+    /// <summary>The centre about which a group's lines are most nearly mirrored: among the lines' own centres and
+    /// the midpoints of every pair, the one that leaves the most power with a mirror (the sum over lines of the
+    /// lesser of a line's power and its mirror's). A spur inside the group moves the power centroid; it does not
+    /// move this.</summary>
+    private static double SymmetryCentre(PowerSpectrum psd, List<(int A, int B)> group, double floor)
+    {
+        double[] at = [.. group.Select(r => Centre(psd, [r], floor))];
+        double[] power = [.. group.Select(r => Power(psd, [r], floor))];
+        // Candidates from the strongest lines only (the centre of a modulated carrier lies between strong lines).
+        int[] strong = [.. Enumerable.Range(0, at.Length).OrderByDescending(k => power[k]).Take(SymmetryCandidates)];
+        double best = Centre(psd, group, floor),
+            bestScore = -1;
+        foreach (int i in strong)
+            foreach (int j in strong)
+            {
+                if (j < i)
+                    continue;
+                double c = (at[i] + at[j]) / 2,
+                    score = 0;
+                for (int k = 0; k < at.Length; k++)
+                    score += Math.Min(power[k], MirrorPower(psd, group[k], c, floor));
+                if (score > bestScore)
+                    (best, bestScore) = (c, score);
+            }
+        return best;
     }
 
     /// <summary>Two groups mirrored about <paramref name="centreHz"/>: their centres within a few bins (or half

@@ -48,6 +48,64 @@ public class EmissionSelectionTests
         Assert.Contains(r.Warnings, w => w.Contains("IQ image") && w.Contains("-28.0 dB"));
     }
 
+    /// <summary>A carrier a few kHz beyond the edge of FM 2 kHz by 1 kHz (99 % band +/-3 kHz, Bessel sums, [D]):
+    /// within the 3.5 kHz that joins a modulated carrier's lines, but without a mirror about its centre, so it is
+    /// another emission and the channel filter stops before it. It read 3836-4159 Hz of deviation for 2000 when it
+    /// was joined to the emission and passed by the filter.</summary>
+    [Theory]
+    [InlineData(6500, true)]
+    [InlineData(8000, false)]
+    public void A_carrier_just_beyond_the_emission_is_kept_out_of_its_channel(double spurHz, bool crowded)
+    {
+        using var tmp = new TempDir();
+        AnalysisResult r = Measuring.Analyze(
+            tmp,
+            Handheld(48000, 1000, 40) with
+            {
+                PeakDeviationHz = 2000,
+                Amplitude = 0.5,
+                Spurs = [new Spur(spurHz, -10)],
+            }
+        );
+        Assert.Equal(ModulationKind.Fm, r.Classification.Kind);
+        Near.Equal(2000, r.Fm!.PeakDeviationHz.Value, 20, "peak deviation (1 %)");
+        Assert.Contains(r.Warnings, w => w.Contains($"another emission at {1000 + spurHz} Hz") && w.Contains("-10.0"));
+        Assert.Equal(crowded, r.Warnings.Any(w => w.Contains("cannot stop it")));
+        // The lower first sideband sits at 0 Hz (carrier 1 kHz, tone 1 kHz): it is mirrored at 2 kHz, so it is not
+        // taken for the receiver's DC.
+        Assert.DoesNotContain(r.Warnings, w => w.Contains("spike sits at 0 Hz"));
+    }
+
+    /// <summary>A carrier on the fifth sideband of that FM (5 kHz from its carrier) cannot be filtered out: the
+    /// emission's line there has no mirror, and the reading is warned of rather than given as if clean.</summary>
+    [Fact]
+    public void A_carrier_inside_the_emission_is_warned_of()
+    {
+        using var tmp = new TempDir();
+        AnalysisResult r = Measuring.Analyze(
+            tmp,
+            Handheld(48000, 1000, 40) with
+            {
+                PeakDeviationHz = 2000,
+                Amplitude = 0.5,
+                Spurs = [new Spur(5000, -10)],
+            }
+        );
+        Assert.Contains(r.Warnings, w =>
+            w.Contains("a line at 6000 Hz inside the measured emission") && w.Contains("no mirror")
+        );
+        // Without the carrier no line is unmirrored.
+        AnalysisResult clean = Measuring.Analyze(
+            tmp,
+            Handheld(48000, 1000, 40) with
+            {
+                PeakDeviationHz = 2000,
+                Amplitude = 0.5,
+            }
+        );
+        Assert.DoesNotContain(clean.Warnings, w => w.Contains("no mirror"));
+    }
+
     [Theory]
     [InlineData(10.2, 0.01)] // 30 dB in the 25 kHz channel: 10 log10(2.4 MHz / 25 kHz) = 19.8 dB lower over the band
     [InlineData(0.2, 0.03)] // 20 dB in the channel
