@@ -90,7 +90,7 @@ public sealed record LimitCheck(
 /// when value + U is inside the limit, FAIL when value - U is outside it, INCONCLUSIVE otherwise
 /// (a guard-banded rule of the kind ILAC-G8:09/2019 describes).
 /// </summary>
-public static class Judgement
+public static partial class Judgement
 {
     /// <summary>The decision rule a profile names (guarded by default), as the report states it.</summary>
     public static string RuleText(LimitProfile? p) => p?.Rule == DecisionRuleKind.Simple ? SimpleRule : DecisionRule;
@@ -197,15 +197,21 @@ public static class Judgement
         string Unlike(string what) =>
             kind == ModulationKind.Noise ? noSignal : $"{what} does not apply to the class found ({kind.Name()})";
         if (p.Modulation.Count > 0)
-            checks.Add(ClassCheck(r, p, src, noSignal));
+            checks.Add(ClassCheck(r, p, p.SourceOf("modulation"), noSignal));
+        if (p.FrequencyRangeHz is { } range)
+            checks.Add(RangeCheck(r, p, range, noSignal));
         if (p.FrequencyTolerancePpm is not null || p.FrequencyToleranceHz is not null)
+        {
+            string tolSrc = p.SourceOf("frequencyTolerance");
             checks.Add(
                 r.Carrier is { } car
-                    ? ToleranceCheck(r, p, car, k, src)
-                    : LimitCheck.NotTested("carrier frequency error", "Hz", p.ToleranceText ?? "", src, noSignal)
+                    ? ToleranceCheck(r, p, car, k, tolSrc)
+                    : LimitCheck.NotTested("carrier frequency error", "Hz", p.ToleranceText ?? "", tolSrc, noSignal)
             );
+        }
         if (p.MaxPeakDeviationHz is { } maxDev)
         {
+            src = p.SourceOf("maxPeakDeviationHz");
             string text = string.Create(c, $"<= {maxDev:0.###} Hz");
             if (r.Fm is { } fm)
                 checks.Add(
@@ -246,6 +252,7 @@ public static class Judgement
         }
         if (p.MaxOccupiedBandwidthHz is { } maxObw)
         {
+            src = p.SourceOf("maxOccupiedBandwidthHz");
             string what = string.Create(c, $"occupied bandwidth ({100 * (1 - r.Bandwidth.Beta):0.#} %)");
             string text = string.Create(c, $"<= {maxObw:0.###} Hz");
             checks.Add(
@@ -264,6 +271,7 @@ public static class Judgement
         {
             if (limit is not { } max)
                 continue;
+            src = p.SourceOf("am");
             string text = string.Create(c, $"<= {max:0.##} %");
             checks.Add(
                 r.Am is { } am && value is { } v
@@ -276,43 +284,16 @@ public static class Judgement
         if (p.Mask is { } mask)
             checks.Add(
                 r.Carrier is not null
-                    ? MaskCheck(r, mask)
+                    ? MaskCheck(r, mask, p.Sources.GetValueOrDefault("mask"))
                     : LimitCheck.NotTested(
                         "emission mask: worst margin",
                         "dB",
                         ">= 0 dB above the mask attenuation",
-                        mask.Name,
+                        p.Sources.GetValueOrDefault("mask") ?? mask.Name,
                         noSignal
                     )
             );
         return checks;
-    }
-
-    /// <summary>The class found against the classes the profile is for.</summary>
-    private static LimitCheck ClassCheck(AnalysisResult r, LimitProfile p, string src, string noSignal)
-    {
-        ModulationKind kind = r.Classification.Kind;
-        string wanted = string.Join(" or ", p.Modulation.Select(m => m.Name()));
-        bool match = p.Modulation.Contains(kind);
-        string? reason =
-            match ? null
-            : kind == ModulationKind.Noise ? noSignal
-            : $"the profile is for {wanted}, the capture was classed {kind.Name()}: its limits are not those of this "
-                + "emission";
-        return new LimitCheck(
-            "modulation class",
-            double.NaN,
-            "",
-            double.NaN,
-            double.NaN,
-            wanted,
-            double.NaN,
-            match ? Verdict.Pass
-                : kind == ModulationKind.Noise ? Verdict.NotTested
-                : Verdict.Inconclusive,
-            src,
-            reason
-        );
     }
 
     private static LimitCheck ToleranceCheck(AnalysisResult r, LimitProfile p, CarrierResult car, double k, string src)
@@ -384,7 +365,7 @@ public static class Judgement
     )
     {
         CultureInfo c = CultureInfo.InvariantCulture;
-        string basis = tl.Rule ?? p.Source ?? p.Name;
+        string basis = p.Sources.GetValueOrDefault("transient") ?? tl.Rule ?? p.Source ?? p.Name;
         var parts = new (string What, KeyTransient? Key, double From, double To, double Max)[]
         {
             (
@@ -524,9 +505,9 @@ public static class Judgement
     /// signals). Bins at the capture's noise floor cannot show compliance where the mask is stricter
     /// than the floor: the check is then INCONCLUSIVE for lack of dynamic range, not FAIL.
     /// </summary>
-    private static LimitCheck MaskCheck(AnalysisResult r, EmissionMask mask)
+    private static LimitCheck MaskCheck(AnalysisResult r, EmissionMask mask, string? source)
     {
-        double carrierAxis = FrequencyAxis.Of(r.Capture).ToAxis(r.Carrier!.FrequencyHz.Value);
+        double carrierAxis = r.CarrierAxisHz!.Value;
         MaskMarginResult m = MaskMargin.Measure(
             r.Spectrum,
             r.Bandwidth.NoiseFloorDensity,
@@ -538,7 +519,7 @@ public static class Judgement
         double worst = m.WorstMarginDb,
             worstAt = m.WorstOffsetHz;
         bool floorLimited = m.FloorLimited;
-        string name = mask.Name;
+        string name = source is null ? mask.Name : $"{mask.Name} ({source})";
         string basis = string.Create(
             CultureInfo.InvariantCulture,
             $"{name}; max-hold PSD in {mask.ReferenceBandwidthHz:0.#} Hz against the mean total power; U = "

@@ -146,6 +146,31 @@ public sealed record LimitProfile
     /// <summary>Coverage factor k for expanded uncertainties (default 2, about 95 %).</summary>
     public double CoverageFactor { get; init; } = 2;
 
+    /// <summary>The RF range the profile's limits are for, Hz (lowest, highest); null for any.</summary>
+    public (double LowHz, double HighHz)? FrequencyRangeHz { get; init; }
+
+    /// <summary>Where each limit comes from (the paragraph of the rule), by its profile field name
+    /// (<c>frequencyTolerance</c>, <c>maxPeakDeviationHz</c>, ...); a limit without one cites
+    /// <see cref="Source"/>.</summary>
+    public IReadOnlyDictionary<string, string> Sources { get; init; } = new Dictionary<string, string>();
+
+    /// <summary>The profile fields that hold a limit (the keys <see cref="Sources"/> may name).</summary>
+    public static readonly IReadOnlyList<string> LimitFields =
+    [
+        "frequencyTolerance",
+        "maxPeakDeviationHz",
+        "maxOccupiedBandwidthHz",
+        "am",
+        "mask",
+        "transient",
+        "modulation",
+        "frequencyRangeHz",
+    ];
+
+    /// <summary>The source a check of the limit in <paramref name="field"/> cites: its own, else the profile's
+    /// source, else its name.</summary>
+    public string SourceOf(string field) => Sources.TryGetValue(field, out string? own) ? own : Source ?? Name;
+
     /// <summary>Reads a profile file.</summary>
     /// <exception cref="ProfileException">The file is missing or malformed; the message names the
     /// field.</exception>
@@ -197,6 +222,8 @@ public sealed record LimitProfile
             "modulation",
             "transient",
             "decisionRule",
+            "frequencyRangeHz",
+            "sources",
         };
         foreach (JsonProperty p in root.EnumerateObject())
             if (!known.Contains(p.Name))
@@ -335,6 +362,38 @@ public sealed record LimitProfile
                 Rule = Str(tr, "rule", "transient.rule"),
             };
         }
+        (double, double)? range = null;
+        if (root.TryGetProperty("frequencyRangeHz", out JsonElement fr))
+        {
+            if (
+                fr.ValueKind != JsonValueKind.Array
+                || fr.GetArrayLength() != 2
+                || fr[0].ValueKind != JsonValueKind.Number
+                || fr[1].ValueKind != JsonValueKind.Number
+                || !(
+                    fr[0].GetDouble() > 0 && fr[1].GetDouble() > fr[0].GetDouble() && double.IsFinite(fr[1].GetDouble())
+                )
+            )
+                throw Bad("frequencyRangeHz", "must be [lowest, highest] in Hz, 0 < lowest < highest");
+            range = (fr[0].GetDouble(), fr[1].GetDouble());
+        }
+        var sources = new Dictionary<string, string>(StringComparer.Ordinal);
+        if (root.TryGetProperty("sources", out JsonElement src))
+        {
+            if (src.ValueKind != JsonValueKind.Object)
+                throw Bad("sources", "must be an object naming the source of each limit");
+            foreach (JsonProperty p in src.EnumerateObject())
+            {
+                if (!LimitFields.Contains(p.Name))
+                    throw Bad($"sources.{p.Name}", $"is not a limit field (known: {string.Join(", ", LimitFields)})");
+                if (!root.TryGetProperty(p.Name, out _))
+                    throw Bad($"sources.{p.Name}", "names a limit the profile does not set");
+                sources[p.Name] =
+                    p.Value.ValueKind == JsonValueKind.String
+                        ? p.Value.GetString()!
+                        : throw Bad($"sources.{p.Name}", "must be a string");
+            }
+        }
         DecisionRuleKind decision = Str(root, "decisionRule", "decisionRule") switch
         {
             null or "guarded" => DecisionRuleKind.Guarded,
@@ -343,6 +402,8 @@ public sealed record LimitProfile
         };
         return new LimitProfile
         {
+            FrequencyRangeHz = range,
+            Sources = sources,
             Rule = decision,
             Transient = transient,
             Modulation = modulation,

@@ -130,6 +130,15 @@ public sealed record AnalysisResult
     /// frequencies are as the receiver read them).</summary>
     public FrequencyReference? FrequencyReference { get; init; }
 
+    /// <summary>The carrier on the capture's own axis (where the spectrum shows it: before any reference
+    /// correction); null without a carrier.</summary>
+    public double? CarrierAxisHz =>
+        Carrier is { } c
+            ? FrequencyAxis
+                .Of(Capture)
+                .ToAxis(FrequencyReference is { } f ? f.Read(c.FrequencyHz.Value) : c.FrequencyHz.Value)
+            : null;
+
     /// <summary>How the figures were obtained, beyond the method record (one line each).</summary>
     public IReadOnlyList<string> Notes { get; init; } = [];
 }

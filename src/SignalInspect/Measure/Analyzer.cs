@@ -54,7 +54,16 @@ public static class Analyzer
         }
         else if (options.ReferenceCarrierHz is { } known)
             (reference, referenceAxisHz) = ReferenceCarrierMeasurement.Measure(source, options, known, hash, cancel);
-        AnalysisResult r = Run(source, options, progress, cancel, timer, hash, split: true, referenceAxisHz);
+        // With a correction every frequency given is a true one: the emission asked for is sought where the
+        // receiver shows it.
+        AnalysisOptions asRead =
+            reference is not null && options.Signal is { } sig
+                ? options with
+                {
+                    Signal = sig with { FrequencyHz = reference.Read(sig.FrequencyHz) },
+                }
+                : options;
+        AnalysisResult r = Run(source, asRead, progress, cancel, timer, hash, split: true, referenceAxisHz);
         if (reference is null)
             return r;
         r = FrequencyCorrection.Apply(r, reference, options.NominalHz);

@@ -38,6 +38,9 @@ public sealed record FrequencyReference
     /// <summary>The true frequency of a reading, Hz.</summary>
     public double Correct(double readHz) => readHz / (1 + ErrorPpm * 1e-6);
 
+    /// <summary>What the receiver reads for a true frequency, Hz (the inverse of <see cref="Correct"/>).</summary>
+    public double Read(double trueHz) => trueHz * (1 + ErrorPpm * 1e-6);
+
     /// <summary>The standard uncertainty the reference adds to a corrected frequency of <paramref name="hz"/>,
     /// Hz.</summary>
     public double UncertaintyAt(double hz) => Math.Abs(hz) * StandardUncertaintyPpm * 1e-6;

@@ -249,7 +249,7 @@ public static class PdfReportWriter
         if (r.Profile?.Mask is { } mask && a.Carrier is { } car)
         {
             double total = 10 * Math.Log10(psd.TotalPower());
-            double carrierAxis = car.FrequencyHz.Value - shift;
+            double carrierAxis = a.CarrierAxisHz ?? car.FrequencyHz.Value - shift;
             var pts = new List<(double, double)>();
             for (int i = 0; i < psd.Count; i += Math.Max(1, psd.Count / 800))
             {
@@ -270,7 +270,13 @@ public static class PdfReportWriter
         double hSpec = 210;
         byte[] spec = SpectrumPlot.RenderPng(
             a.Spectrum.MaxHold is { } hold && limit is not null ? hold : psd,
-            "Spectrum (" + psd.Window.Name + ", RBW " + psd.RbwHz.ToString("0.##", C) + " Hz)",
+            "Spectrum ("
+                + psd.Window.Name
+                + ", RBW "
+                + psd.RbwHz.ToString("0.##", C)
+                + " Hz"
+                + (a.FrequencyReference is not null ? "; frequencies as the receiver read them, uncorrected" : "")
+                + ")",
             Px(w),
             Px(hSpec),
             Dpi / 96,

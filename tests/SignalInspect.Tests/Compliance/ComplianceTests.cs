@@ -70,9 +70,28 @@ public class ComplianceTests
         foreach (string f in files)
             Assert.False(string.IsNullOrWhiteSpace(LimitProfile.Load(f).Name));
         LimitProfile vhf = LimitProfile.Load(Path.Combine(dir, "land-mobile-12k5-vhf.json"));
-        Assert.Equal(2.5, vhf.FrequencyTolerancePpm);
         Assert.Equal(2500, vhf.MaxPeakDeviationHz);
         Assert.Equal("47cfr90.210d", vhf.Mask!.Rule);
+        // Station classes, 47 CFR 90.213(a) Table 1 (text read; testdata/REFERENCE-VALUES.md [R]): 150-174 MHz mobile
+        // stations 5 ppm, fixed and base stations with 12.5 kHz channels 2.5 ppm (footnote 5); 421-512 MHz fixed and
+        // base stations with 12.5 kHz channels 1.5 ppm (footnote 7), mobile 12.5 kHz 2.5 ppm (footnote 8, from
+        // memory). The handheld profile had the base stations' figure.
+        Assert.Equal(5, vhf.FrequencyTolerancePpm);
+        Assert.Equal(2.5, LimitProfile.Load(Path.Combine(dir, "land-mobile-12k5-vhf-base.json")).FrequencyTolerancePpm);
+        Assert.Equal(1.5, LimitProfile.Load(Path.Combine(dir, "land-mobile-12k5-uhf.json")).FrequencyTolerancePpm);
+        Assert.Equal(
+            2.5,
+            LimitProfile.Load(Path.Combine(dir, "land-mobile-12k5-uhf-mobile.json")).FrequencyTolerancePpm
+        );
+        Assert.Equal((150e6, 174e6), vhf.FrequencyRangeHz);
+        Assert.Contains("90.213(a) Table 1", vhf.SourceOf("frequencyTolerance"));
+        // Every limit of the land-mobile profiles names its own paragraph, or says it is from memory or practice.
+        foreach (string f in files.Where(f => Path.GetFileName(f).StartsWith("land-mobile")))
+        {
+            LimitProfile p = LimitProfile.Load(f);
+            foreach (string field in new[] { "frequencyTolerance", "maxPeakDeviationHz", "maxOccupiedBandwidthHz" })
+                Assert.True(p.Sources.ContainsKey(field), $"{Path.GetFileName(f)}: {field} has no source");
+        }
     }
 
     [Theory]
@@ -114,6 +133,21 @@ public class ComplianceTests
             + "\"t3Ms\": 5, \"t3MaxHz\": 1, \"t4Ms\": 3}}",
         "transient.t4Ms is not a field of transient"
     )]
+    // Issue 23: a malformed frequency range, a source for an unknown or absent limit.
+    [InlineData(
+        "{\"name\": \"x\", \"frequencyRangeHz\": [174e6, 150e6]}",
+        "frequencyRangeHz must be [lowest, highest]"
+    )]
+    [InlineData("{\"name\": \"x\", \"frequencyRangeHz\": \"150-174M\"}", "frequencyRangeHz must be [lowest, highest]")]
+    [InlineData(
+        "{\"name\": \"x\", \"sources\": {\"maxDeviation\": \"90.210\"}}",
+        "sources.maxDeviation is not a limit field"
+    )]
+    [InlineData(
+        "{\"name\": \"x\", \"sources\": {\"maxPeakDeviationHz\": \"90.210\"}}",
+        "sources.maxPeakDeviationHz names a limit the profile does not set"
+    )]
+    [InlineData("{\"name\": \"x\", \"decisionRule\": \"lenient\"}", "decisionRule 'lenient' is not guarded or simple")]
     public void A_bad_profile_gives_one_line_naming_the_field(string json, string message)
     {
         using var tmp = new TempDir();

@@ -17,6 +17,38 @@ public class EvidenceTests
 
     private static LimitProfile LandMobile => LimitProfile.Load(ProfilePath("land-mobile-12k5-vhf.json"));
 
+    /// <summary>Issue 23: a profile states the RF range it is for; a carrier outside it cannot PASS, and each check
+    /// cites its own limit's paragraph.</summary>
+    [Fact]
+    public void A_carrier_outside_the_profile_range_is_not_a_pass_and_checks_cite_their_paragraph()
+    {
+        using var tmp = new TempDir();
+        var spec = new SignalSpec
+        {
+            Kind = SignalKind.Fm,
+            PeakDeviationHz = 2000,
+            SampleRateHz = 48000,
+            DurationS = 1,
+            CenterFrequencyHz = 155.3125e6,
+            SnrDb = 40,
+        };
+        AnalysisResult inside = Measuring.Analyze(tmp, spec);
+        IReadOnlyList<LimitCheck> checks = Judgement.Check(inside, LandMobile);
+        LimitCheck range = Assert.Single(checks, c => c.Measurement.Contains("frequency range"));
+        Assert.Equal(Verdict.Pass, range.Verdict);
+        Assert.Contains(
+            "90.213(a) Table 1, 150-174 MHz, mobile",
+            Assert.Single(checks, c => c.Measurement.StartsWith("carrier frequency error")).Basis
+        );
+        Assert.Contains("common practice", Assert.Single(checks, c => c.Measurement == "FM peak deviation").Basis);
+        AnalysisResult outside = Measuring.Analyze(tmp, spec with { CenterFrequencyHz = 146.52e6 });
+        checks = Judgement.Check(outside, LandMobile);
+        range = Assert.Single(checks, c => c.Measurement.Contains("frequency range"));
+        Assert.Equal(Verdict.Inconclusive, range.Verdict);
+        Assert.Contains("lies outside the range", range.Reason);
+        Assert.NotEqual(Verdict.Pass, Judgement.Overall(checks));
+    }
+
     [Fact]
     public void An_AM_transmitter_judged_by_an_FM_profile_is_not_a_pass()
     {
@@ -43,7 +75,7 @@ public class EvidenceTests
         Assert.Contains("does not apply to the class found (am)", dev.Reason);
         Assert.NotEqual(Verdict.Pass, Judgement.Overall(checks));
         // The deviation limit is named even though nothing could be read against it.
-        Assert.Equal(8, checks.Count); // class, tolerance, deviation, OBW, transient t1 t2 t3, mask
+        Assert.Equal(9, checks.Count); // class, range, tolerance, deviation, OBW, transient t1 t2 t3, mask
     }
 
     [Fact]
@@ -121,7 +153,7 @@ public class EvidenceTests
         JsonElement j = JsonDocument.Parse(stdout).RootElement;
         Assert.Equal("INCONCLUSIVE", j.GetProperty("verdict").GetString());
         JsonElement[] checks = [.. j.GetProperty("checks").EnumerateArray()];
-        Assert.Equal(8, checks.Length); // class, tolerance, deviation, OBW, transient t1 t2 t3, mask
+        Assert.Equal(9, checks.Length); // class, range, tolerance, deviation, OBW, transient t1 t2 t3, mask
         Assert.Contains(checks, c =>
             c.GetProperty("verdict").GetString() == "INCONCLUSIVE"
             && c.GetProperty("measurement").GetString() == "FM peak deviation"

@@ -96,6 +96,24 @@ public class FrequencyReferenceTests
         Near.Equal(TruePpm + 3, plain.Carrier!.OffsetPpm!.Value, 0.05, "uncorrected offset reads the error too");
     }
 
+    /// <summary>With a correction the emission asked for is given at its true frequency: 20 ppm low, the handheld
+    /// shows 9.2 kHz below it.</summary>
+    [Fact]
+    public void The_emission_asked_for_is_given_at_its_true_frequency()
+    {
+        using var tmp = new TempDir();
+        var options = new AnalysisOptions
+        {
+            NominalHz = Tuned,
+            ReceiverErrorPpm = -20,
+            ReceiverErrorUncertaintyPpm = 0.01,
+            Signal = new SignalSelection(True),
+        };
+        AnalysisResult r = Measuring.Analyze(tmp, Capture(-20), options);
+        Near.Equal(TruePpm, r.Carrier!.OffsetPpm!.Value, 0.05, "corrected offset, ppm");
+        Assert.Equal(ModulationKind.Fm, r.Classification.Kind);
+    }
+
     [Fact]
     public void A_reference_that_is_missing_modulated_or_unusable_is_refused()
     {
@@ -144,7 +162,8 @@ public class FrequencyReferenceTests
             Measuring.Analyze(
                 tmp,
                 Capture(3),
-                new AnalysisOptions { ReferenceCarrierHz = Reference, Signal = new SignalSelection(Read(Reference, 3)) }
+                // With a correction a frequency asked for is a true one.
+                new AnalysisOptions { ReferenceCarrierHz = Reference, Signal = new SignalSelection(Reference) }
             )
         );
         Assert.Contains("is the reference carrier", e.Message);

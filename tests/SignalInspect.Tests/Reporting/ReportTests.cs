@@ -91,7 +91,8 @@ public class ReportTests
         Assert.Equal(
             [
                 "modulation class: PASS", // the profile is for fm or fsk
-                "carrier frequency error |f - f0|: PASS", // 350 Hz against 2.5 ppm of 151.625 MHz = 379 Hz
+                "carrier within the profile's frequency range: PASS", // 151.625 MHz in 150-174 MHz
+                "carrier frequency error |f - f0|: PASS", // 350 Hz against 5 ppm of 151.625 MHz = 758 Hz
                 "FM peak deviation: INCONCLUSIVE",
                 "occupied bandwidth (99 %): PASS", // 8.0 kHz against 11.25 kHz
                 // 47 CFR 90.214: the capture is one steady carrier, no key-up or key-down in it
