@@ -87,6 +87,7 @@ internal static class AnalyzeCommand
                 "Write a PDF measurement report to OUT.pdf, with the same report model as JSON beside it (OUT.json).",
             HelpName = "OUT.pdf",
         };
+        var decisionRule = DecisionRuleOption.Create();
         var limits = new Option<string?>("--limits")
         {
             Description =
@@ -132,6 +133,7 @@ internal static class AnalyzeCommand
             force,
             report,
             limits,
+            decisionRule,
             title,
             op,
             eut,
@@ -158,6 +160,7 @@ internal static class AnalyzeCommand
             }
             string? profilePath = r.GetValue(limits);
             LimitProfile? profile = profilePath is null ? null : LimitProfile.Load(profilePath);
+            profile = DecisionRuleOption.Apply(profile, r.GetValue(decisionRule));
             CaptureSource source = CaptureSource.Open(r.GetValue(capture)!, reader.Read(r));
             var (kind, beta) = spec.WindowKindOf(r);
             ModulationKind? expected = null;

@@ -27,6 +27,7 @@ internal static class BatchCommand
             Required = true,
             HelpName = "DIR",
         };
+        var decisionRule = DecisionRuleOption.Create();
         var limits = new Option<string?>("--limits")
         {
             Description = "Limit profile (see profiles/README.md): a verdict per capture.",
@@ -70,6 +71,7 @@ internal static class BatchCommand
             inputs,
             outDir,
             limits,
+            decisionRule,
             jobs,
             reports,
             resume,
@@ -83,6 +85,7 @@ internal static class BatchCommand
             var (index, count) = ParseShard(r.GetValue(shard));
             string? profilePath = r.GetValue(limits);
             LimitProfile? profile = profilePath is null ? null : LimitProfile.Load(profilePath);
+            profile = DecisionRuleOption.Apply(profile, r.GetValue(decisionRule));
             int j = r.GetValue(jobs) ?? Math.Max(1, Environment.ProcessorCount);
             if (j < 1 || j > 256)
                 throw new UsageException($"--jobs: {j} must be from 1 to 256");

@@ -34,14 +34,14 @@ public static partial class Judgement
         bool inside = f >= range.LowHz && f <= range.HighHz;
         return new LimitCheck(
             what,
-            f,
+            double.NaN,
             "Hz",
             double.NaN,
             double.NaN,
             text,
             double.NaN,
             inside ? Verdict.Pass : Verdict.Inconclusive,
-            src,
+            string.Create(c, $"{src}; carrier at {f / 1e6:0.######} MHz"),
             inside
                 ? null
                 : string.Create(c, $"the carrier at {f / 1e6:0.######} MHz lies outside the range the profile is for: ")

@@ -66,6 +66,7 @@ public static class AnalysisJson
         w.WriteStartObject();
         w.WriteString("schemaVersion", SchemaVersion);
         w.WriteString("software", "SignalInspect " + Version);
+        w.WriteString("softwareCommit", Commit);
         w.WriteStartObject("capture");
         w.WriteString("file", info.Path);
         w.WriteString("container", info.Container);
@@ -412,6 +413,17 @@ public static class AnalysisJson
 
     /// <summary>The software version written into outputs.</summary>
     public static string Version => typeof(AnalysisJson).Assembly.GetName().Version?.ToString(3) ?? "0";
+
+    /// <summary>The commit the engine was built from (the SDK writes it after '+' in the informational version when
+    /// built in a git checkout), or "unknown".</summary>
+    public static string Commit =>
+        typeof(AnalysisJson)
+            .Assembly.GetCustomAttributes(typeof(System.Reflection.AssemblyInformationalVersionAttribute), false)
+            .OfType<System.Reflection.AssemblyInformationalVersionAttribute>()
+            .Select(a => a.InformationalVersion.Split('+'))
+            .FirstOrDefault(p => p.Length == 2 && p[1].Length > 0)
+            ?[1]
+        ?? "unknown";
 
     /// <summary>
     /// <c>uncertaintyBudget</c>: for each measured value with a standard uncertainty, the components it was

@@ -83,7 +83,11 @@ public static class ConsoleReport
             return;
         o.WriteLine(
             $"{"limits",-LabelWidth}{profile.Name}"
-                + (profile.Rule == DecisionRuleKind.Simple ? " (simple acceptance: U stated, not used)" : string.Empty)
+                + (
+                    profile.Rule == DecisionRuleKind.Simple
+                        ? " (decision rule: simple acceptance, w = 0: U stated, not used)"
+                        : " (decision rule: guarded acceptance, w = U)"
+                )
         );
         foreach (ResultRow row in ResultRows.For(report.Analysis, report.Checks, profile.CoverageFactor))
         {

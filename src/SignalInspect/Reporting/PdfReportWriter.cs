@@ -85,6 +85,7 @@ public static class PdfReportWriter
         var block = new List<(string, string)>
         {
             ("Report ID", r.ReportId),
+            ("Software", $"SignalInspect {AnalysisJson.Version}, commit {AnalysisJson.Commit}"),
             ("Date", r.Created.UtcDateTime.ToString("yyyy-MM-dd HH:mm 'UTC'", C)),
             ("Operator", r.Header.Operator ?? "not given"),
             ("Equipment under test", r.Header.Equipment ?? "not given"),

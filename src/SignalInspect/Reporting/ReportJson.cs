@@ -27,6 +27,8 @@ public static class ReportJson
             w.WriteString("notes", report.Header.Notes);
             w.WriteString("commandLine", report.Header.CommandLine);
             w.WriteString("software", "SignalInspect " + AnalysisJson.Version);
+            w.WriteString("softwareCommit", AnalysisJson.Commit);
+            w.WriteString("conditions", report.Header.Conditions);
             w.WriteEndObject();
             w.WritePropertyName("analysis");
             AnalysisJson.Write(w, report.Analysis);

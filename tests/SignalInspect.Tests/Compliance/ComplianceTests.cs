@@ -195,4 +195,41 @@ public class ComplianceTests
         Assert.StartsWith("Guarded acceptance", Judgement.RuleText(guarded));
         Assert.Throws<ProfileException>(() => LimitProfile.Parse("{\"name\": \"x\", \"decisionRule\": \"lenient\"}"));
     }
+
+    /// <summary>Issue 23: --decision-rule chooses the rule over the profile's, is stated in the console and the JSON,
+    /// and sets the exit code: the same capture and profile (FRS: 2500 Hz, 2.5 ppm) exit 4 (INCONCLUSIVE) guarded and
+    /// 0 (PASS) simple. Without a profile it is refused.</summary>
+    [Fact]
+    public void The_decision_rule_is_chosen_on_the_command_line_and_stated()
+    {
+        string capture = TestData.Path("measure", "nbfm-151625.sigmf-meta"),
+            frs = TestData.Repo("profiles", "frs.json");
+        var (guarded, gOut, _) = CliRunner.Run("analyze", capture, "--limits", frs);
+        var (simple, sOut, _) = CliRunner.Run("analyze", capture, "--limits", frs, "--decision-rule", "simple");
+        Assert.Equal(4, guarded);
+        Assert.Contains("decision rule: guarded acceptance", gOut);
+        Assert.Equal(0, simple);
+        Assert.Contains("decision rule: simple acceptance", sOut);
+        var (_, json, _) = CliRunner.Run(
+            "analyze",
+            capture,
+            "--limits",
+            frs,
+            "--decision-rule",
+            "simple",
+            "--json",
+            "-"
+        );
+        Assert.StartsWith(
+            "Simple acceptance",
+            System
+                .Text.Json.JsonDocument.Parse(json)
+                .RootElement.GetProperty("limits")
+                .GetProperty("decisionRule")
+                .GetString()
+        );
+        var (bad, _, err) = CliRunner.Run("analyze", capture, "--decision-rule", "simple");
+        Assert.Equal(2, bad);
+        Assert.Contains("give --limits too", err);
+    }
 }

@@ -284,6 +284,15 @@ public class ReportTests
         Assert.Contains("Test conditions 20 C, 13.6 V supply, 30 dB pad", text);
         Assert.Contains("The receiver's frequency reference is not corrected", text);
         Assert.Contains("Checked by", text);
+        // The software and the commit it was built from (the SDK's informational version in a git checkout).
+        JsonElement report = JsonDocument
+            .Parse(File.ReadAllText(Path.ChangeExtension(pdf, ".json")))
+            .RootElement.GetProperty("report");
+        string commit = report.GetProperty("softwareCommit").GetString()!;
+        if (Directory.Exists(TestData.Repo(".git")))
+            Assert.Matches("^[0-9a-f]{40}$", commit);
+        Assert.Contains("commit " + commit, text.Replace("\n", " "));
+        Assert.Equal("20 C, 13.6 V supply, 30 dB pad", report.GetProperty("conditions").GetString());
         Assert.Contains("Guarded acceptance", text); // the decision rule, stated
     }
 
