@@ -60,8 +60,10 @@ public static class PdfReportWriter
 
     private static readonly CultureInfo C = CultureInfo.InvariantCulture;
 
+    /// <summary>A frequency as the report writes every number: no thousands separator (one convention throughout;
+    /// ISO 80000-1 allows only a thin space between groups, never a comma), a point for the decimals.</summary>
     private static string Hz(double? v) =>
-        v is { } x ? x.ToString(Math.Abs(x) >= 1e6 ? "#,0.###" : "0.###", C) + " Hz" : "unknown";
+        v is { } x ? x.ToString("0.###", C) + " Hz" : "unknown";
 
     /// <summary>Who made the recording and where (SigMF core:author, core:geolocation).</summary>
     private static string RecordedBy(Capture.CaptureInfo info) =>
@@ -94,7 +96,7 @@ public static class PdfReportWriter
                 Path.GetFileName(info.Path)
                     + (info.DataPath is { } dp && dp != info.Path ? $" (data: {Path.GetFileName(dp)})" : string.Empty)
             ),
-            ("File size", info.FileSizeBytes.ToString("#,0", C) + " bytes"),
+            ("File size", info.FileSizeBytes.ToString("0", C) + " bytes"),
             ("SHA-256 (sample data)", a.Sha256),
             (
                 "Format",
@@ -102,8 +104,12 @@ public static class PdfReportWriter
             ),
             (
                 "Receiver (from the file)",
-                SafeText.ForTerminal(info.Hardware)
-                    + (info.Recorder is { } rec ? $"; recorded by {SafeText.ForTerminal(rec)}" : string.Empty)
+                string.Join(
+                    "; ",
+                    new[] { info.Hardware, info.Recorder is { } rec ? "recorded by " + rec : null }
+                        .Where(x => !string.IsNullOrEmpty(x))
+                        .Select(SafeText.ForTerminal)
+                )
                     is { Length: > 0 } hw
                     ? hw
                     : "not stated in the file"
@@ -115,7 +121,7 @@ public static class PdfReportWriter
                 "Duration",
                 string.Create(
                     C,
-                    $"{info.DurationS:0.######} s ({info.SampleCount:#,0} samples); analysed "
+                    $"{info.DurationS:0.######} s ({info.SampleCount} samples); analysed "
                         + $"{a.Window.Count / info.SampleRateHz:0.######} s from "
                         + $"{a.Window.First / info.SampleRateHz:0.######} s"
                 )
@@ -212,15 +218,13 @@ public static class PdfReportWriter
                 row.ExpandedUncertainty is not null ? rounded
                 : row.Text is not null && row.Unit.Length == 0 ? ""
                 : "-";
-            string last =
-                row.Verdict is { } v ? v.Text()
-                : row.Text is not null ? row.Note ?? "-"
-                : "-";
+            // The verdict column holds verdicts only: a text row's note goes with its value.
+            string last = row.Verdict is { } v ? v.Text() : "-";
             cells.Add([
                 row.Quantity,
-                row.Verdict is null || row.ExpandedUncertainty is { } ue && double.IsFinite(ue) && ue > 0
-                    ? value
-                    : F(row.Value ?? double.NaN, "0.###"),
+                row.Text is not null && row.Note is { } note ? $"{value} ({note})"
+                : row.Verdict is null || row.ExpandedUncertainty is { } ue && double.IsFinite(ue) && ue > 0 ? value
+                : F(row.Value ?? double.NaN, "0.###"),
                 row.Unit,
                 u,
                 row.LimitText ?? "-",

@@ -98,15 +98,23 @@ public sealed record ResultRow
         // U rounded up to two digits may become three (99.6 -> 100): one place fewer then.
         if (Math.Round(u, Math.Max(places, 0)) >= Math.Pow(10, 2 - places))
             places--;
-        string F(double x)
+        // At most MaxSignificantDigits in the value: a statistical U far finer than that (an absolute carrier of
+        // 155 MHz fitted to 0.4 mHz) is rounded up to the coarser place, which GUM 7.2.6 allows (never down).
+        int whole = Math.Abs(value) >= 1 ? (int)Math.Floor(Math.Log10(Math.Abs(value))) + 1 : 1;
+        bool up = whole + places > MaxSignificantDigits;
+        if (up)
+            places = MaxSignificantDigits - whole;
+        string F(double x, bool ceiling)
         {
-            if (places >= 0)
-                return Unsigned0(Math.Round(x, places).ToString("F" + places, CultureInfo.InvariantCulture));
             double step = Math.Pow(10, -places);
-            return Unsigned0((Math.Round(x / step) * step).ToString("0", CultureInfo.InvariantCulture));
+            double r = ceiling ? Math.Ceiling(x / step) * step : Math.Round(x / step) * step;
+            return Unsigned0(r.ToString(places >= 0 ? "F" + places : "0", CultureInfo.InvariantCulture));
         }
-        return (F(value), F(u));
+        return (F(value, false), F(u, up));
     }
+
+    /// <summary>Most significant digits a printed value carries.</summary>
+    public const int MaxSignificantDigits = 10;
 
     private static string Plain(double x, string format) => Unsigned0(x.ToString(format, CultureInfo.InvariantCulture));
 

@@ -238,6 +238,11 @@ public class ReportTests
         string text = PdfText(pdf);
         Assert.Contains("Transmissions (carrier-on intervals", text);
         Assert.Contains("2: 1.8-2.6", text);
+        // One number convention: no thousands separators (issue 23 item 3); the verdict column holds verdicts only,
+        // so the class's confidence stands with its value.
+        Assert.Contains("Centre frequency 151625000 Hz", text);
+        Assert.DoesNotContain("151,625", text);
+        Assert.Contains("FM (conf.", text);
         Assert.Contains("Where the deciding readings are", text);
         Assert.Contains("Frequency at key-up", text);
         Assert.Contains("Shaded: the transmissions found", text);
@@ -364,6 +369,10 @@ public class ReportTests
     [InlineData(350.000091, 0.000523, "350.00009", "0.00052")]
     [InlineData(1234.5, 99.6, "1230", "100")]
     [InlineData(-0.0004, 0.013, "0.000", "0.013")]
+    // At most ten significant digits: U rounded up to that place (GUM 7.2.6 allows rounding up, never down).
+    [InlineData(155312680.00003, 0.00039, "155312680.0", "0.1")]
+    [InlineData(460000200.00008, 0.00041, "460000200.0", "0.1")]
+    [InlineData(97980000.00046, 0.00061, "97980000.00", "0.01")]
     public void A_value_is_rounded_with_its_uncertainty(double value, double u, string v, string uText) =>
         Assert.Equal((v, uText), SignalInspect.Reporting.ResultRow.RoundPair(value, u));
 }
