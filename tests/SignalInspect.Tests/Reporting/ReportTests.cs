@@ -46,6 +46,11 @@ public class ReportTests
         JsonElement model = JsonDocument.Parse(File.ReadAllText(Path.ChangeExtension(pdf, ".json"))).RootElement;
         string sha = model.GetProperty("analysis").GetProperty("capture").GetProperty("sha256").GetString()!;
         Assert.Contains(sha, text.Replace(" ", string.Empty).Replace("\n", string.Empty));
+        // One number convention: no thousands separators (issue 23 item 3); the verdict column holds verdicts only,
+        // so the class's confidence stands with its value.
+        Assert.Contains("Centre frequency 151625000 Hz", text);
+        Assert.DoesNotContain("151,625", text);
+        Assert.Contains("FM (conf.", text);
         Assert.Contains("A. Mensah", text);
         Assert.Contains("Reference generator", text);
         var pages = System.Text.RegularExpressions.Regex.Matches(text, @"page (\d+) of (\d+)");
@@ -238,11 +243,6 @@ public class ReportTests
         string text = PdfText(pdf);
         Assert.Contains("Transmissions (carrier-on intervals", text);
         Assert.Contains("2: 1.8-2.6", text);
-        // One number convention: no thousands separators (issue 23 item 3); the verdict column holds verdicts only,
-        // so the class's confidence stands with its value.
-        Assert.Contains("Centre frequency 151625000 Hz", text);
-        Assert.DoesNotContain("151,625", text);
-        Assert.Contains("FM (conf.", text);
         Assert.Contains("Where the deciding readings are", text);
         Assert.Contains("Frequency at key-up", text);
         Assert.Contains("Shaded: the transmissions found", text);
