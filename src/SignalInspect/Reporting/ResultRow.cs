@@ -128,6 +128,20 @@ public static class ResultRows
 {
     private static readonly CultureInfo C = CultureInfo.InvariantCulture;
 
+    /// <summary>An RF frequency not judged against a limit, in MHz (155.3126800 MHz reads where 155312680.0 Hz does
+    /// not); judged rows keep the unit of their limit.</summary>
+    private static ResultRow Natural(ResultRow r) =>
+        r.Verdict is null && r.Unit == "Hz" && r.Value is { } v && Math.Abs(v) >= 1e6
+            ? r with
+            {
+                Value = v / 1e6,
+                StandardUncertainty = r.StandardUncertainty / 1e6,
+                ExpandedUncertainty = r.ExpandedUncertainty / 1e6,
+                Unit = "MHz",
+                Format = "0.#########",
+            }
+            : r;
+
     /// <summary>
     /// The rows: first one per limit check (in the profile's order), then every measurement not
     /// already judged, in a fixed order (class, carrier, bandwidths, the modulation's own, tone,
@@ -363,7 +377,7 @@ public static class ResultRows
                 "",
                 a.NecessaryBandwidthHz is { } nb ? $"Bn {nb.ToString("0", C)} Hz" : "-"
             );
-        return rows;
+        return [.. rows.Select(Natural)];
     }
 
     /// <summary>

@@ -51,6 +51,8 @@ public class ReportTests
         Assert.Contains("Centre frequency 151625000 Hz", text);
         Assert.DoesNotContain("151,625", text);
         Assert.Contains("FM (conf.", text);
+        // An RF frequency reads in MHz (151625350 Hz: construction, MANIFEST.md), to ten significant digits.
+        Assert.Contains("carrier frequency 151.6253500 MHz", text);
         Assert.Contains("A. Mensah", text);
         Assert.Contains("Reference generator", text);
         var pages = System.Text.RegularExpressions.Regex.Matches(text, @"page (\d+) of (\d+)");
