@@ -51,6 +51,18 @@ public sealed record BatchRecord
     /// <summary>AM depth, percent.</summary>
     public double? DepthPercent { get; init; }
 
+    /// <summary>Expanded uncertainty (k = 2) of the carrier frequency and offset, Hz.</summary>
+    public double? CarrierUncertaintyHz { get; init; }
+
+    /// <summary>Expanded uncertainty (k = 2) of the occupied bandwidth, Hz.</summary>
+    public double? OccupiedUncertaintyHz { get; init; }
+
+    /// <summary>Expanded uncertainty (k = 2) of the peak deviation, Hz.</summary>
+    public double? PeakDeviationUncertaintyHz { get; init; }
+
+    /// <summary>Expanded uncertainty (k = 2) of the AM depth, percent.</summary>
+    public double? DepthUncertaintyPercent { get; init; }
+
     /// <summary>Emission designator.</summary>
     public string? EmissionDesignator { get; init; }
 
@@ -82,6 +94,10 @@ public sealed record BatchRecord
         "depthPercent",
         "verdict",
         "error",
+        "carrierUncertaintyHz",
+        "occupiedUncertaintyHz",
+        "peakDeviationUncertaintyHz",
+        "depthUncertaintyPercent",
         "confidence",
         "channelSnrDb",
         "emissionDesignator",
@@ -106,6 +122,10 @@ public sealed record BatchRecord
             DepthPercent,
             Verdict,
             Error,
+            CarrierUncertaintyHz,
+            OccupiedUncertaintyHz,
+            PeakDeviationUncertaintyHz,
+            DepthUncertaintyPercent,
             Confidence,
             ChannelSnrDb,
             EmissionDesignator,
@@ -153,21 +173,46 @@ public sealed record BatchRecord
     }
 
     /// <summary>One CSV row (RFC 4180 quoting, invariant numbers).</summary>
-    public string ToCsvRow() =>
-        string.Join(
+    public string ToCsvRow()
+    {
+        // A value with an uncertainty is written rounded with it (GUM 7.2.6, as the reports print it); the JSON lines
+        // keep every digit.
+        var rounded = new Dictionary<string, string>();
+        void Pair(string value, double? v, string? uKey, double? u)
+        {
+            if (v is { } x && u is { } e && double.IsFinite(x) && double.IsFinite(e) && e > 0)
+            {
+                var (vt, ut) = Reporting.ResultRow.RoundPair(x, e);
+                rounded[value] = vt;
+                if (uKey is not null)
+                    rounded[uKey] = ut;
+            }
+        }
+        Pair("carrierFrequencyHz", CarrierFrequencyHz, "carrierUncertaintyHz", CarrierUncertaintyHz);
+        Pair("offsetHz", OffsetHz, null, CarrierUncertaintyHz);
+        Pair("occupiedHz", OccupiedHz, "occupiedUncertaintyHz", OccupiedUncertaintyHz);
+        Pair("peakDeviationHz", PeakDeviationHz, "peakDeviationUncertaintyHz", PeakDeviationUncertaintyHz);
+        Pair("depthPercent", DepthPercent, "depthUncertaintyPercent", DepthUncertaintyPercent);
+        object?[] values = Values();
+        return string.Join(
             ',',
-            Values()
-                .Select(v =>
-                    v switch
-                    {
-                        null => string.Empty,
-                        double d => double.IsFinite(d) ? d.ToString("R", CultureInfo.InvariantCulture) : string.Empty,
-                        long l => l.ToString(CultureInfo.InvariantCulture),
-                        string s => Quote(Diagnostics.SafeText.ForSpreadsheet(s)),
-                        _ => string.Empty,
-                    }
-                )
+            Columns.Select(
+                (column, i) =>
+                    rounded.TryGetValue(column, out string? text)
+                        ? text
+                        : values[i] switch
+                        {
+                            null => string.Empty,
+                            double d => double.IsFinite(d)
+                                ? d.ToString("R", CultureInfo.InvariantCulture)
+                                : string.Empty,
+                            long l => l.ToString(CultureInfo.InvariantCulture),
+                            string s => Quote(Diagnostics.SafeText.ForSpreadsheet(s)),
+                            _ => string.Empty,
+                        }
+            )
         );
+    }
 
     private static string Quote(string s) =>
         s.IndexOfAny([',', '"', '\n', '\r']) >= 0 ? "\"" + s.Replace("\"", "\"\"") + "\"" : s;
@@ -200,6 +245,10 @@ public sealed record BatchRecord
                 OccupiedHz = D("occupiedHz"),
                 PeakDeviationHz = D("peakDeviationHz"),
                 DepthPercent = D("depthPercent"),
+                CarrierUncertaintyHz = D("carrierUncertaintyHz"),
+                OccupiedUncertaintyHz = D("occupiedUncertaintyHz"),
+                PeakDeviationUncertaintyHz = D("peakDeviationUncertaintyHz"),
+                DepthUncertaintyPercent = D("depthUncertaintyPercent"),
                 EmissionDesignator = S("emissionDesignator"),
                 Verdict = S("verdict"),
                 Warnings = S("warnings"),

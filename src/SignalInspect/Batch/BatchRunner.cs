@@ -324,6 +324,13 @@ public static class BatchRunner
                 OccupiedHz = r.Bandwidth.OccupiedHz,
                 PeakDeviationHz = r.Fm?.PeakDeviationHz.Value ?? r.Fsk?.DeviationHz,
                 DepthPercent = r.Am?.DepthPercent.Value,
+                CarrierUncertaintyHz = 2 * r.Carrier?.FrequencyHz.StandardUncertainty,
+                OccupiedUncertaintyHz = 2 * r.OccupiedUncertaintyHz,
+                PeakDeviationUncertaintyHz =
+                    r.Fm is { } fm ? 2 * fm.PeakDeviationHz.StandardUncertainty
+                    : r.Fsk is { } fsk ? fsk.ShiftHz.StandardUncertainty
+                    : null,
+                DepthUncertaintyPercent = 2 * r.Am?.DepthPercent.StandardUncertainty,
                 EmissionDesignator = r.EmissionDesignator,
                 Verdict = overall?.Text(),
                 Warnings = r.Warnings.Count > 0 ? string.Join("; ", r.Warnings) : null,

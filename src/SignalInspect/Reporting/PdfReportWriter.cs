@@ -62,8 +62,7 @@ public static class PdfReportWriter
 
     /// <summary>A frequency as the report writes every number: no thousands separator (one convention throughout;
     /// ISO 80000-1 allows only a thin space between groups, never a comma), a point for the decimals.</summary>
-    private static string Hz(double? v) =>
-        v is { } x ? x.ToString("0.###", C) + " Hz" : "unknown";
+    private static string Hz(double? v) => v is { } x ? x.ToString("0.###", C) + " Hz" : "unknown";
 
     /// <summary>Who made the recording and where (SigMF core:author, core:geolocation).</summary>
     private static string RecordedBy(Capture.CaptureInfo info) =>

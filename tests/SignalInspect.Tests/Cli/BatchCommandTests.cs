@@ -92,6 +92,22 @@ public class BatchCommandTests
             Csv(outDir)
         );
         Assert.True(new FileInfo(Path.Combine(outDir, "summary.pdf")).Length > 1000);
+        // The CSV writes each value rounded with its expanded uncertainty (GUM 7.2.6; issue 23 item 3), U beside it;
+        // the JSON lines keep every digit.
+        string[] header = File.ReadAllLines(Path.Combine(outDir, "summary.csv"))[0].Split(',');
+        string[] row = File.ReadAllLines(Path.Combine(outDir, "summary.csv"))
+            .Single(l => l.Contains("nbfm-151625.sigmf-meta"))
+            .Split(',');
+        string Cell(string column) => row[Array.IndexOf(header, column)];
+        double dev = nbfm.GetProperty("peakDeviationHz").GetDouble(),
+            devU = nbfm.GetProperty("peakDeviationUncertaintyHz").GetDouble();
+        Assert.True(devU > 0);
+        Assert.Equal(SignalInspect.Reporting.ResultRow.RoundPair(dev, devU).Value, Cell("peakDeviationHz"));
+        Assert.Equal(
+            SignalInspect.Reporting.ResultRow.RoundPair(dev, devU).Uncertainty,
+            Cell("peakDeviationUncertaintyHz")
+        );
+        Assert.NotEqual(dev.ToString("R", System.Globalization.CultureInfo.InvariantCulture), Cell("peakDeviationHz"));
     }
 
     [Fact]
