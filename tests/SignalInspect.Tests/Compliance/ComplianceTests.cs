@@ -196,6 +196,31 @@ public class ComplianceTests
         Assert.Throws<ProfileException>(() => LimitProfile.Parse("{\"name\": \"x\", \"decisionRule\": \"lenient\"}"));
     }
 
+    /// <summary>Issue 23 acceptance: each rule on a reading inside, on and outside its limit with U crossing it
+    /// (ILAC-G8:09/2019 4.2: guarded, w = U, leaves all three INCONCLUSIVE; simple acceptance, w = 0, passes a
+    /// reading at or inside the limit and fails one beyond it). The limits are set about the capture's own reading,
+    /// a few Hz away, well within its U of about 13 Hz.</summary>
+    [Theory]
+    [InlineData(+5, Verdict.Pass)] // limit 5 Hz above the reading: inside
+    [InlineData(0, Verdict.Pass)] // on the limit
+    [InlineData(-5, Verdict.Fail)] // limit 5 Hz below: outside
+    public void Each_rule_on_readings_inside_on_and_outside_the_limit(double limitAboveReading, Verdict simple)
+    {
+        AnalysisResult r = Analyzer.Analyze(CaptureSource.Open(TestData.Path("measure", "nbfm-151625.sigmf-meta")));
+        double limit = r.Fm!.PeakDeviationHz.Value + limitAboveReading;
+        Assert.True(2 * r.Fm.PeakDeviationHz.StandardUncertainty > 5);
+        string json = string.Create(
+            System.Globalization.CultureInfo.InvariantCulture,
+            $"\"maxPeakDeviationHz\": {limit:R}"
+        );
+        LimitCheck Of(string rule) =>
+            Judgement
+                .Check(r, LimitProfile.Parse($"{{\"name\": \"x\", \"decisionRule\": \"{rule}\", {json}}}"))
+                .Single();
+        Assert.Equal(Verdict.Inconclusive, Of("guarded").Verdict);
+        Assert.Equal(simple, Of("simple").Verdict);
+    }
+
     /// <summary>Issue 23: --decision-rule chooses the rule over the profile's, is stated in the console and the JSON,
     /// and sets the exit code: the same capture and profile (FRS: 2500 Hz, 2.5 ppm) exit 4 (INCONCLUSIVE) guarded and
     /// 0 (PASS) simple. Without a profile it is refused.</summary>
