@@ -59,6 +59,7 @@ internal static class OptionNames
             ["PulseAmDepth"] = "--pulse-am",
             ["PulsePositionS"] = "--pulse-ppm",
             ["ImageDbc"] = "--image",
+            ["NoiseBandHz"] = "--noise-band",
         };
 
     /// <summary>The option for a setting (the setting's own name when the command line has none).</summary>

@@ -106,6 +106,11 @@ internal static class SynthCommand
                 + "14k:0.003.",
             HelpName = "EXCURSION:TAU",
         };
+        var noiseBand = Units.SiOption(
+            "--noise-band",
+            "A band-limited receiver: noise only within +/-HZ of the centre (its filter), at the density the SNR gives "
+                + "inside; default noise over the whole band."
+        );
         var image = new Option<double?>("--image")
         {
             Description = "An IQ image (the receiver's I/Q imbalance) this many dB below the signal, e.g. -28.",
@@ -181,6 +186,7 @@ internal static class SynthCommand
             burst,
             keyUp,
             image,
+            noiseBand,
             snr,
             seed,
             real,
@@ -226,6 +232,7 @@ internal static class SynthCommand
                 ],
                 Spurs = [.. (r.GetValue(spur) ?? []).Select(t => Pair("--spur", t)).Select(p => new Spur(p.A, p.B))],
                 ImageDbc = r.GetValue(image),
+                NoiseBandHz = r.GetValue(noiseBand),
                 Bursts = [.. (r.GetValue(burst) ?? []).Select(t => ParseBurst(t, r.GetValue(kind) == "am"))],
                 KeyUp = r.GetValue(keyUp) is { } ku
                     ? Pair("--key-up", ku) is var (e, tau)

@@ -154,6 +154,9 @@ public static class Analyzer
             bw = Bandwidths(selection, options);
         }
         PowerSpectrum psd = selection.Spectrum;
+        var notes = new List<string>();
+        if (NoiseFloor.Passband(spectrum.Mean) is { } pass)
+            notes.Add(PassbandNote(info, spectrum.Mean, pass));
         double snrDb = BandwidthMeasurement.SnrDb(psd, bw);
         double coarse = CarrierMeasurement.Coarse(psd, bw);
         if (!info.IsComplex && coarse <= psd.BinWidthHz)
@@ -401,7 +404,19 @@ public static class Analyzer
             WaveformLabel = waveLabel,
             Transmissions = transmissions,
             Timeline = timeline,
+            Notes = notes,
         };
+    }
+
+    /// <summary>What the analysis says of a receiver's passband found in the spectrum.</summary>
+    private static string PassbandNote(CaptureInfo info, PowerSpectrum mean, (int First, int Last) pass)
+    {
+        var axis = FrequencyAxis.Of(info);
+        CultureInfo c = CultureInfo.InvariantCulture;
+        return string.Create(c, $"the noise falls off outside {axis.ToReported(mean.FrequenciesHz[pass.First]):0} to ")
+            + string.Create(c, $"{axis.ToReported(mean.FrequenciesHz[pass.Last]):0} Hz (the receiver's filter): the ")
+            + "noise floor and every SNR are taken within that passband (a flat emission over that band, centred in "
+            + "the capture, would be taken for noise)";
     }
 
     /// <summary>Each transmission measured on its own (the emission found in the whole capture pinned); the result

@@ -15,6 +15,9 @@ public sealed class SignalGenerator
     private long _symbol = -1;
     private int _bit;
     private double? _spareGaussian;
+    private readonly double[]? _noiseTaps;
+    private readonly double[] _noiseRing = [];
+    private int _noiseAt;
 
     /// <summary>Creates a generator at sample 0.</summary>
     /// <exception cref="SettingException">The spec is invalid (named by its property).</exception>
@@ -26,6 +29,34 @@ public sealed class SignalGenerator
         _noiseSigma = spec.SnrDb is { } snr ? Math.Sqrt(spec.SignalPower / Math.Pow(10, snr / 10)) : 0;
         if (spec.Kind == SignalKind.Noise)
             _noiseSigma = Math.Sqrt(spec.SignalPower);
+        if (spec.NoiseBandHz is { } band)
+        {
+            _noiseTaps = Dsp.FirDesign.LowPass(band, spec.SampleRateHz, 0.1 * band, 80, 4095);
+            _noiseRing = new double[2 * _noiseTaps.Length];
+        }
+    }
+
+    /// <summary>The next complex noise sample: white, or through the receiver's filter (unit gain in its passband,
+    /// so the density there is the white noise's).</summary>
+    private (double I, double Q) NextNoise()
+    {
+        double wi = Gaussian() * _noiseSigma / Math.Sqrt(2),
+            wq = Gaussian() * _noiseSigma / Math.Sqrt(2);
+        if (_noiseTaps is not { } h)
+            return (wi, wq);
+        int l = h.Length;
+        _noiseAt = (_noiseAt + 1) % l;
+        _noiseRing[2 * _noiseAt] = wi;
+        _noiseRing[2 * _noiseAt + 1] = wq;
+        double ni = 0,
+            nq = 0;
+        for (int k = 0; k < l; k++)
+        {
+            int j = (_noiseAt - k + l) % l;
+            ni += h[k] * _noiseRing[2 * j];
+            nq += h[k] * _noiseRing[2 * j + 1];
+        }
+        return (ni, nq);
     }
 
     /// <summary>Values per sample: 2 for complex, 1 for real.</summary>
@@ -125,10 +156,7 @@ public sealed class SignalGenerator
                 double ni = 0,
                     nq = 0;
                 if (_noiseSigma > 0)
-                {
-                    ni = Gaussian() * _noiseSigma / Math.Sqrt(2);
-                    nq = Gaussian() * _noiseSigma / Math.Sqrt(2);
-                }
+                    (ni, nq) = NextNoise();
                 destination[2 * i] = zi + ni;
                 destination[2 * i + 1] = zq + nq;
             }

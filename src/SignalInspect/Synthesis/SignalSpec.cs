@@ -139,6 +139,11 @@ public sealed record SignalSpec
     /// <summary>Level of the IQ image relative to the signal, dB (complex output only); null for none.</summary>
     public double? ImageDbc { get; init; }
 
+    /// <summary>A band-limited receiver: the noise only within +/- this many Hz of the centre (its filter, 80 dB
+    /// down beyond a transition of a tenth of it), flat inside at the density the SNR gives; null for noise over the
+    /// whole band (complex output only).</summary>
+    public double? NoiseBandHz { get; init; }
+
     /// <summary>Transmissions of a keyed capture (the carrier is off outside them); empty for a carrier on
     /// throughout. The SNR is the signal's while on.</summary>
     public IReadOnlyList<Burst> Bursts { get; init; } = [];
@@ -284,6 +289,13 @@ public sealed record SignalSpec
                     sp.OffsetHz,
                     "a spur must lie inside the sampled band and be at most as strong as the carrier (0 dBc)"
                 );
+        if (NoiseBandHz is { } nb && (!IsComplex || !(nb > 0 && nb * 1.1 < SampleRateHz / 2)))
+            throw new SettingException(
+                nameof(NoiseBandHz),
+                nb,
+                "a receiver's noise band needs complex output and must end (with its transition) inside the "
+                    + "sampled band"
+            );
         if (ImageDbc is { } img && (!IsComplex || !(img < 0)))
             throw new SettingException(
                 nameof(ImageDbc),
