@@ -171,6 +171,9 @@ public sealed record LimitProfile
     /// source, else its name.</summary>
     public string SourceOf(string field) => Sources.TryGetValue(field, out string? own) ? own : Source ?? Name;
 
+    /// <summary>Widest reference bandwidth a mask may name, Hz (masks use 100 Hz to 1 MHz: common practice).</summary>
+    public const double MaxReferenceBandwidthHz = 1e9;
+
     /// <summary>Reads a profile file.</summary>
     /// <exception cref="ProfileException">The file is missing or malformed; the message names the
     /// field.</exception>
@@ -340,7 +343,11 @@ public sealed record LimitProfile
                 Name = Str(m, "name", "mask.name") ?? rule ?? "emission mask",
                 Rule = rule,
                 Points = points,
-                ReferenceBandwidthHz = Num(m, "referenceBandwidthHz", "mask.referenceBandwidthHz") ?? 100,
+                ReferenceBandwidthHz = Num(m, "referenceBandwidthHz", "mask.referenceBandwidthHz") is { } rbw
+                    ? rbw <= MaxReferenceBandwidthHz
+                        ? rbw
+                        : throw Bad("mask.referenceBandwidthHz", $"must be at most {MaxReferenceBandwidthHz:0} Hz")
+                    : 100,
                 TransmitterPowerW = Num(m, "transmitterPowerW", "mask.transmitterPowerW"),
             };
         }

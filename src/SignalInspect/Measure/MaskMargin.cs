@@ -47,7 +47,8 @@ public static class MaskMargin
         bool floorLimited = false;
         // Power in the reference bandwidth around each bin: the density summed over the bins within
         // +/- B/2 (right for lines and for continuous spectra alike).
-        int halfBins = Math.Max(0, (int)Math.Round(referenceBandwidthHz / hold.BinWidthHz / 2));
+        // (A reference bandwidth wider than the capture covers it all: the count is clamped before it is an int.)
+        int halfBins = (int)Math.Clamp(Math.Round(referenceBandwidthHz / hold.BinWidthHz / 2), 0, hold.Count);
         var prefix = new double[hold.Count + 1];
         for (int i = 0; i < hold.Count; i++)
             prefix[i + 1] = prefix[i] + hold.Values[i] * hold.BinWidthHz;

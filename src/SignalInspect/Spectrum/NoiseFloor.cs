@@ -79,12 +79,14 @@ public static class NoiseFloor
         bool wide = hi - lo + 1 >= 0.4 * PassbandBlocks,
             centred = Math.Abs(lo - (PassbandBlocks - 1 - hi)) <= 2,
             deep = med[0] * StopbandDepth <= shelf && med[^1] * StopbandDepth <= shelf;
+        if (!(wide && centred && deep))
+            return null;
         // Flat: the inner blocks' medians (the transition blocks at its ends left out) within 3 dB between their
         // quartiles (an emission may raise a few blocks).
         double[] inner = med[(lo + 1)..hi];
         Array.Sort(inner);
         bool flat = inner.Length >= 4 && inner[3 * inner.Length / 4] <= 2 * inner[inner.Length / 4];
-        return wide && centred && deep && flat ? (lo * w, (hi + 1) * w - 1) : null;
+        return flat ? (lo * w, (hi + 1) * w - 1) : null;
     }
 
     /// <summary>The <see cref="Quantile"/> of chi-square(nu) / nu.</summary>
