@@ -20,12 +20,12 @@ internal static class SynthCommand
         {
             Description =
                 "Signal: cw (unmodulated carrier), am, fm, pm, fsk (binary, continuous phase), ook (carrier keyed "
-                + "on and off by random bits at --symbol-rate), pulse (a pulse train: --pulse-width, --pulse-period) "
-                + "or noise.",
+                + "on and off by random bits at --symbol-rate), pulse (a pulse train: --pulse-width, --pulse-period), "
+                + "qam (16-QAM at --symbol-rate: envelope and phase both keyed) or noise.",
             DefaultValueFactory = _ => "cw",
-            HelpName = "cw|am|fm|pm|fsk|ook|pulse|noise",
+            HelpName = "cw|am|fm|pm|fsk|ook|pulse|qam|noise",
         };
-        kind.AcceptOnlyFromAmong("cw", "am", "fm", "pm", "fsk", "ook", "pulse", "noise");
+        kind.AcceptOnlyFromAmong("cw", "am", "fm", "pm", "fsk", "ook", "pulse", "qam", "noise");
         var rate = Units.SiOption("--sample-rate", "Sample rate in Hz.", 48_000, "HZ");
         var duration = Units.SiOption("--duration", "Duration in seconds.", 1.0, "S");
         var centre = Units.SiOption(

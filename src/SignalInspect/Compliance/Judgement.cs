@@ -190,10 +190,11 @@ public static partial class Judgement
         CultureInfo c = CultureInfo.InvariantCulture;
         string src = p.Source is { } s ? s : p.Name;
         ModulationKind kind = r.Classification.Kind;
-        string noSignal = string.Create(
-            c,
-            $"no signal was found (SNR in band {r.ChannelSnrDb:0.#} dB): nothing to measure"
-        );
+        // Without a carrier: no signal, or a signal of no known class (whose mean frequency is no carrier).
+        string noSignal =
+            kind == ModulationKind.Unknown
+                ? "the class found (unknown: neither AM nor angle modulation) has no carrier to measure against it"
+                : string.Create(c, $"no signal was found (SNR in band {r.ChannelSnrDb:0.#} dB): nothing to measure");
         string Unlike(string what) =>
             kind == ModulationKind.Noise ? noSignal : $"{what} does not apply to the class found ({kind.Name()})";
         if (p.Modulation.Count > 0)

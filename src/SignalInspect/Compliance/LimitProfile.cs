@@ -274,7 +274,7 @@ public sealed record LimitProfile
                     || !Enum.IsDefined(k)
                     || int.TryParse(word, out _)
                 )
-                    throw Bad("modulation", $"'{w}' is not one of am, fm, pm, fsk, cw, noise");
+                    throw Bad("modulation", $"'{w}' is not one of am, fm, pm, fsk, cw, ook, unknown, noise");
                 modulation.Add(k);
             }
         }

@@ -333,10 +333,9 @@ public static class Analyzer
                 break;
         }
 
-        CarrierResult? carrier =
-            kind == ModulationKind.Noise
-                ? null
-                : CarrierMeasurement.Make(info, options.NominalHz, carrierAxisHz, [.. carrierBudget], kind);
+        CarrierResult? carrier = kind is ModulationKind.Noise or ModulationKind.Unknown
+            ? null
+            : CarrierMeasurement.Make(info, options.NominalHz, carrierAxisHz, [.. carrierBudget], kind);
         Timeline? timeline =
             carrier is null ? null
             : TimelineMeasurement.Measure(track, blockS, first / fs, windowS, channelNoise, carrier, kind) is { } tl

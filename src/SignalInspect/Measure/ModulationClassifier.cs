@@ -50,6 +50,10 @@ internal static class ModulationClassifier
     /// <summary>Below this SNR (dB) the confidence is scaled down.</summary>
     public const double ConfidentSnrDb = 15;
 
+    /// <summary>An envelope varying this much beyond the noise (20 %) while the phase also varies is neither AM nor
+    /// angle modulation (a channel filter's ripple on FM stays well below it).</summary>
+    public const double MixedEnvelopeDepth = 0.2;
+
     /// <summary>Classifies; with <paramref name="expect"/> the kind measured is the one given, and the reason says
     /// what the classifier found.</summary>
     public static Classification Classify(double snrDb, DemodulatedFeatures f, double dwell, ModulationKind? expect)
@@ -113,6 +117,16 @@ internal static class ModulationClassifier
                         $"steady phase (rms {sigmaPhase:0.###} rad) and envelope (depth {100 * mEnv:0.##} %): an "
                     ) + "unmodulated carrier";
             }
+        }
+        else if (mEnv > MixedEnvelopeDepth)
+        {
+            // Angle modulation keeps its envelope; AM keeps its phase. Both moving is neither.
+            detected = ModulationKind.Unknown;
+            conf = Math.Clamp(0.5 + (mEnv - MixedEnvelopeDepth), 0.5, 0.9);
+            why =
+                string.Create(c, $"both the envelope (depth {100 * mEnv:0} % beyond the noise) and the phase (rms ")
+                + string.Create(c, $"{sigmaPhase:0.##} rad) vary: neither AM nor angle modulation (a digital or ")
+                + "combined modulation); measured for its bandwidths only";
         }
         else if (dwell > FskDwell)
         {

@@ -23,12 +23,17 @@ public enum ModulationKind
 
     /// <summary>On-off keying: the carrier present part of the time, steady while present.</summary>
     Ook,
+
+    /// <summary>None of the classes: envelope and phase both vary (a digital or combined modulation, a carrier keyed
+    /// down with phase keying). Measured for its bandwidths only: no carrier (its mean frequency is none), no
+    /// designator.</summary>
+    Unknown,
 }
 
 /// <summary>Names of the modulation kinds as the command line and JSON write them.</summary>
 public static class ModulationKindNames
 {
-    /// <summary>Lower-case name: noise, cw, am, fm, pm, fsk.</summary>
+    /// <summary>Lower-case name: noise, cw, am, fm, pm, fsk, ook, unknown.</summary>
     public static string Name(this ModulationKind k) => k.ToString().ToLowerInvariant();
 
     /// <summary>Parses a name.</summary>

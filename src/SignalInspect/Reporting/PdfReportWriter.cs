@@ -486,7 +486,12 @@ public static class PdfReportWriter
                     + (m.DeEmphasisUs is { } de ? string.Create(C, $", de-emphasis {de:0.#} us") : string.Empty)
             ),
             ("Peaks", m.PeakStatistic),
-            ("Carrier", a.Carrier is { } c ? $"{c.Method}; offset from {c.OffsetReference}" : "no carrier (noise)"),
+            (
+                "Carrier",
+                a.Carrier is { } c
+                    ? $"{c.Method}; offset from {c.OffsetReference}"
+                    : $"no carrier ({a.Classification.Kind.Name()})"
+            ),
             (
                 "Classification",
                 a.Classification.Reason + string.Create(C, $" (SNR in the occupied bandwidth {a.ChannelSnrDb:0.#} dB)")

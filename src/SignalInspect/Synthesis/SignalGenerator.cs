@@ -132,6 +132,19 @@ public sealed class SignalGenerator
                 case SignalKind.Pulse:
                     a *= PulseAmplitude(s, t);
                     break;
+                case SignalKind.Qam:
+                    long q = (long)Math.Floor(_n * s.SymbolRateBd / fs);
+                    while (_symbol < q)
+                    {
+                        _bit = _random.Next(16);
+                        _symbol++;
+                    }
+                    // I and Q from +/-1, +/-3, scaled so that the corner point (3, 3) has amplitude a.
+                    double si = 2 * (_bit & 3) - 3,
+                        sq = 2 * (_bit >> 2) - 3;
+                    a *= Math.Sqrt(si * si + sq * sq) / Math.Sqrt(18);
+                    phi = Math.Atan2(sq, si);
+                    break;
                 case SignalKind.Noise:
                     a = 0;
                     break;

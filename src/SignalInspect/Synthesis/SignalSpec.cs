@@ -27,6 +27,10 @@ public enum SignalKind
     /// <summary>A pulse train: the carrier on for the pulse width every pulse period, each pulse's amplitude and
     /// position optionally modulated by the tone.</summary>
     Pulse,
+
+    /// <summary>16-point quadrature amplitude modulation: random symbols at the symbol rate, rectangular pulses
+    /// (envelope and phase both keyed: a signal of none of the analyser's classes).</summary>
+    Qam,
 }
 
 /// <summary>One more modulating tone (AM, FM, PM), added to the main one.</summary>
@@ -195,6 +199,7 @@ public sealed record SignalSpec
                     * (1 + AmDepth * AmDepth / 2 + ExtraTones.Sum(t => t.Amount * t.Amount / 2)),
                 SignalKind.Am => Amplitude * Amplitude * ClippedEnvelopePower(),
                 SignalKind.Ook => Amplitude * Amplitude / 2,
+                SignalKind.Qam => Amplitude * Amplitude * 10.0 / 18, // mean of (i^2 + q^2) / 18 over i, q in +/-1, 3
                 SignalKind.Pulse => Amplitude
                     * Amplitude
                     * (1 + PulseAmDepth * PulseAmDepth / 2)
@@ -321,7 +326,7 @@ public sealed record SignalSpec
                     "must be 0 or more and keep each pulse within half a period of its place"
                 );
         }
-        if (Kind is SignalKind.Fsk or SignalKind.Ook)
+        if (Kind is SignalKind.Fsk or SignalKind.Ook or SignalKind.Qam)
             Positive(SymbolRateBd, nameof(SymbolRateBd));
         if (Kind == SignalKind.Fsk)
         {

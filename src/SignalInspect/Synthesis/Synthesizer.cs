@@ -35,6 +35,7 @@ public static class Synthesizer
             ),
             SignalKind.Fsk => string.Format(c, "2-FSK shift {0:R} Hz at {1:R} Bd", s.FskShiftHz, s.SymbolRateBd),
             SignalKind.Ook => string.Format(c, "on-off keying at {0:R} Bd", s.SymbolRateBd),
+            SignalKind.Qam => string.Format(c, "16-QAM at {0:R} Bd, rectangular pulses", s.SymbolRateBd),
             SignalKind.Pulse => string.Format(
                 c,
                 "pulses of {0:R} s every {1:R} s, amplitude modulated {2:R} %, position modulated {3:R} s by {4:R} Hz",

@@ -70,7 +70,7 @@ public class BadInputTests
     [InlineData("info", "--no-such-option")]
     [InlineData("info", "x.wav", "--sample-rate", "fast")]
     [InlineData("frobnicate")]
-    [InlineData("synth", "out.cf32", "--kind", "qam")]
+    [InlineData("synth", "out.cf32", "--kind", "qpsk")]
     public void Usage_errors_exit_with_2(params string[] args)
     {
         var (code, stdout, stderr) = CliRunner.Run(args);
