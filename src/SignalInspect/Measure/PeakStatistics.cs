@@ -234,6 +234,12 @@ internal static class TonePeaks
                 : OneToneCarries(components) ? "raw percentiles"
                 : $"raw percentiles ({components.Count} modulating components: the peak of their sum is read, no "
                     + "single-tone noise correction)"
+                    + (
+                        kind == ModulationKind.Fm
+                            ? "; or, when larger, the extreme less sqrt(2 ln N) times the discriminator's noise rms "
+                                + "(a composite's peak is rare and a percentile reads it low)"
+                            : ""
+                    )
             );
     }
 }

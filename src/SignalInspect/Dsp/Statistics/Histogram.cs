@@ -190,6 +190,13 @@ public sealed class Histogram
         return _lo + _bins * _width;
     }
 
+    /// <summary>The upper edge of the highest occupied bin: the largest value, read up to one bin high, never low;
+    /// NaN when empty.</summary>
+    public double Max => Count == 0 ? double.NaN : _lo + (_last + 1) * _width;
+
+    /// <summary>The lower edge of the lowest occupied bin: the smallest value, read up to one bin low.</summary>
+    public double Min => Count == 0 ? double.NaN : _lo + _first * _width;
+
     /// <summary>Fraction of the values within [<paramref name="a"/>, <paramref name="b"/>].</summary>
     public double FractionBetween(double a, double b)
     {
