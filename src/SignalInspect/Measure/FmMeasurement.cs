@@ -72,9 +72,13 @@ internal static class FmMeasurement
         {
             double sigma = DiscriminatorNoiseHz(m),
                 lift = sigma * Math.Sqrt(2 * Math.Log(Math.Max(m.Pass.Samples, 2)));
-            pPos = Math.Max(pPos, m.Pass.Freq.Max - m.Pass.FreqMean - lift);
-            pNeg = Math.Max(pNeg, m.Pass.FreqMean - m.Pass.Freq.Min - lift);
-            extremeNoise = lift / 2;
+            double xPos = m.Pass.Freq.Max - m.Pass.FreqMean - lift,
+                xNeg = m.Pass.FreqMean - m.Pass.Freq.Min - lift;
+            // The budget carries the noise taken off an extreme only where the extreme decides.
+            if (Math.Max(xPos, xNeg) > Math.Max(pPos, pNeg))
+                extremeNoise = lift / 2;
+            pPos = Math.Max(pPos, xPos);
+            pNeg = Math.Max(pNeg, xNeg);
         }
         double peak = Math.Max(pPos, pNeg);
         UncertaintyComponent[] budget = PeakBudget.Of(
