@@ -85,10 +85,12 @@ public static class BatchRunner
             }
             else if (input.IndexOfAny(['*', '?']) >= 0)
             {
-                string dir = Path.GetDirectoryName(input) is { Length: > 0 } d ? d : ".";
-                if (!Directory.Exists(dir))
-                    throw CaptureException.ForFile(input, "the folder of this pattern does not exist");
-                foreach (string f in Directory.EnumerateFiles(dir, Path.GetFileName(input)))
+                // Expanded here when the shell did not (a quoted pattern, or a shell without globbing): * and ? in
+                // any part of the path, ** for any depth of folders.
+                IReadOnlyList<string> matches = PathPattern.Expand(input);
+                if (matches.Count == 0)
+                    throw CaptureException.ForFile(input, "the pattern matches no file");
+                foreach (string f in matches)
                     if (!f.EndsWith(CaptureFormats.SidecarSuffix, StringComparison.Ordinal))
                         Add(found, f, Path.GetFileName(f), defaults);
             }

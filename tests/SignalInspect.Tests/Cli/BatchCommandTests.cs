@@ -185,6 +185,38 @@ public class BatchCommandTests
         Assert.Contains("no such file, folder or pattern", stderr);
     }
 
+    /// <summary>Issue 25 item 3: a pattern the shell did not expand (quoted) is expanded by the tool, with * in a
+    /// folder part and ** for any depth; a pattern matching nothing is one line, exit 2.</summary>
+    [Fact]
+    public void Patterns_the_shell_left_are_expanded()
+    {
+        using var tmp = new TempDir();
+        string field = tmp.File("field");
+        foreach (string site in new[] { "north", "south" })
+        {
+            Directory.CreateDirectory(Path.Combine(field, site, "day1"));
+            File.Copy(TestData.Path("measure", "cw-462.sigmf-meta"), Path.Combine(field, site, "cw.sigmf-meta"));
+            File.Copy(TestData.Path("measure", "cw-462.sigmf-data"), Path.Combine(field, site, "cw.sigmf-data"));
+            File.Copy(TestData.Path("measure", "am-audio-12k.wav"), Path.Combine(field, site, "day1", "am.wav"));
+        }
+        var all = SignalInspect.Batch.PathPattern.Expand(Path.Combine(field, "**", "*.wav"));
+        Assert.Equal(2, all.Count);
+        Assert.All(all, f => Assert.EndsWith(Path.Combine("day1", "am.wav"), f));
+        Assert.Equal(2, SignalInspect.Batch.PathPattern.Expand(Path.Combine(field, "*", "*.sigmf-meta")).Count);
+        Assert.Single(SignalInspect.Batch.PathPattern.Expand(Path.Combine(field, "n?rth", "cw.sigmf-meta")));
+        var (code, stdout, stderr) = CliRunner.Run(
+            "batch",
+            Path.Combine(field, "*", "*.sigmf-meta"),
+            "--out",
+            tmp.File("o")
+        );
+        Assert.True(code == 0, stderr);
+        Assert.Contains("captures              2", stdout);
+        (code, _, stderr) = CliRunner.Run("batch", Path.Combine(field, "*", "*.cu8"), "--out", tmp.File("o2"));
+        Assert.Equal(2, code);
+        Assert.Contains("the pattern matches no file", stderr);
+    }
+
     /// <summary>Issue 27 item 7: the same bytes at two paths are two captures (resume matched by content alone and
     /// lost a row); a torn last line (a killed run) does not block --resume.</summary>
     [Fact]
