@@ -66,6 +66,16 @@ public sealed record BatchRecord
     /// <summary>Emission designator.</summary>
     public string? EmissionDesignator { get; init; }
 
+    /// <summary>The capture's centre frequency, Hz (null when not stated).</summary>
+    public double? CenterFrequencyHz { get; init; }
+
+    /// <summary>When the capture started (UTC, RFC 3339), null when not stated.</summary>
+    public string? StartTime { get; init; }
+
+    /// <summary>The first check that did not pass (a FAIL before any other), with its reason; null when all
+    /// passed or no profile was given.</summary>
+    public string? FirstIssue { get; init; }
+
     /// <summary>Overall verdict when limits were given (PASS, FAIL, INCONCLUSIVE).</summary>
     public string? Verdict { get; init; }
 
@@ -98,6 +108,9 @@ public sealed record BatchRecord
         "occupiedUncertaintyHz",
         "peakDeviationUncertaintyHz",
         "depthUncertaintyPercent",
+        "firstIssue",
+        "centerFrequencyHz",
+        "startTime",
         "confidence",
         "channelSnrDb",
         "emissionDesignator",
@@ -126,6 +139,9 @@ public sealed record BatchRecord
             OccupiedUncertaintyHz,
             PeakDeviationUncertaintyHz,
             DepthUncertaintyPercent,
+            FirstIssue,
+            CenterFrequencyHz,
+            StartTime,
             Confidence,
             ChannelSnrDb,
             EmissionDesignator,
@@ -204,7 +220,7 @@ public sealed record BatchRecord
                         {
                             null => string.Empty,
                             double d => double.IsFinite(d)
-                                ? d.ToString("R", CultureInfo.InvariantCulture)
+                                ? d.ToString(CsvFixed, CultureInfo.InvariantCulture)
                                 : string.Empty,
                             long l => l.ToString(CultureInfo.InvariantCulture),
                             string s => Quote(Diagnostics.SafeText.ForSpreadsheet(s)),
@@ -216,6 +232,10 @@ public sealed record BatchRecord
 
     private static string Quote(string s) =>
         s.IndexOfAny([',', '"', '\n', '\r']) >= 0 ? "\"" + s.Replace("\"", "\"\"") + "\"" : s;
+
+    /// <summary>The CSV's format of a number written without an uncertainty: up to nine decimals, never
+    /// e-notation (a spreadsheet reads either, a person only one).</summary>
+    public const string CsvFixed = "0.#########";
 
     /// <summary>Reads a JSON line back.</summary>
     /// <exception cref="Capture.CaptureException">The line is not a summary record.</exception>
@@ -249,6 +269,9 @@ public sealed record BatchRecord
                 OccupiedUncertaintyHz = D("occupiedUncertaintyHz"),
                 PeakDeviationUncertaintyHz = D("peakDeviationUncertaintyHz"),
                 DepthUncertaintyPercent = D("depthUncertaintyPercent"),
+                CenterFrequencyHz = D("centerFrequencyHz"),
+                StartTime = S("startTime"),
+                FirstIssue = S("firstIssue"),
                 EmissionDesignator = S("emissionDesignator"),
                 Verdict = S("verdict"),
                 Warnings = S("warnings"),

@@ -334,6 +334,16 @@ public static class BatchRunner
                     : null,
                 DepthUncertaintyPercent = 2 * r.Am?.DepthPercent.StandardUncertainty,
                 EmissionDesignator = r.EmissionDesignator,
+                CenterFrequencyHz = source.Info.CenterFrequencyHz,
+                StartTime = source.Info.StartTime?.UtcDateTime.ToString(
+                    "yyyy-MM-dd'T'HH:mm:ss.FFFFFFF'Z'",
+                    System.Globalization.CultureInfo.InvariantCulture
+                ),
+                FirstIssue = model
+                    .Checks.Where(c => c.Verdict != Verdict.Pass)
+                    .OrderByDescending(c => c.Verdict == Verdict.Fail)
+                    .Select(c => $"{c.Verdict.Text()}: {c.Measurement}" + (c.Reason is { } why ? $" ({why})" : ""))
+                    .FirstOrDefault(),
                 Verdict = overall?.Text(),
                 Warnings = r.Warnings.Count > 0 ? string.Join("; ", r.Warnings) : null,
                 Report = reportRel?.Replace('\\', '/'),

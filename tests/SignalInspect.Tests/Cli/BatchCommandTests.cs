@@ -108,6 +108,13 @@ public class BatchCommandTests
             Cell("peakDeviationUncertaintyHz")
         );
         Assert.NotEqual(dev.ToString("R", System.Globalization.CultureInfo.InvariantCulture), Cell("peakDeviationHz"));
+        // The capture's centre and start (testdata/MANIFEST.md: 151.625 MHz), and no number in e-notation.
+        Assert.Equal("151625000", Cell("centerFrequencyHz"));
+        Assert.False(string.IsNullOrEmpty(Cell("startTime")));
+        Assert.DoesNotContain(row, c =>
+            c.Contains('E', StringComparison.OrdinalIgnoreCase)
+            && double.TryParse(c, System.Globalization.CultureInfo.InvariantCulture, out _)
+        );
     }
 
     [Fact]
@@ -124,6 +131,16 @@ public class BatchCommandTests
         CliRunner.Run("batch", dir, "--out", tmp.File("serial"), "--jobs", "1", "--limits", profile);
         CliRunner.Run("batch", dir, "--out", tmp.File("parallel"), "--jobs", "3", "--limits", profile);
         Assert.Equal(Csv(tmp.File("serial")), Csv(tmp.File("parallel")));
+        // Each judged row names its first check not passed (a FAIL first): the AM capture judged by an FM profile
+        // fails none but is not of the profile's class.
+        var rows = File.ReadAllLines(Path.Combine(tmp.File("serial"), "summary.jsonl"))
+            .Select(l => JsonDocument.Parse(l).RootElement)
+            .ToList();
+        JsonElement am = rows.Single(r => r.GetProperty("file").GetString()!.EndsWith("am-audio-12k.wav"));
+        Assert.StartsWith("INCONCLUSIVE: modulation class", am.GetProperty("firstIssue").GetString());
+        Assert.All(rows.Where(r => r.GetProperty("verdict").GetString() == "FAIL"), r =>
+            Assert.StartsWith("FAIL: ", r.GetProperty("firstIssue").GetString())
+        );
         for (int i = 1; i <= 3; i++)
             CliRunner.Run("batch", dir, "--out", tmp.File($"shard{i}"), "--shard", $"{i}/3", "--limits", profile);
         int parts = Enumerable
