@@ -13,68 +13,12 @@ internal static class AnalyzeCommand
     public static Command Create(TextWriter stdout, TextWriter stderr)
     {
         var capture = new Argument<string>("capture") { Description = "The capture file (see 'info')." };
-        var nominal = Units.SiOption(
-            "--nominal",
-            "Nominal (assigned) carrier frequency in Hz: offsets and ppm are taken from it (absolute RF when the "
-                + "centre is known)."
-        );
-        var signal = new Option<string?>("--signal")
-        {
-            Description =
-                "The emission to measure, FREQ[:WIDTH] (default: the strongest): FREQ in Hz, absolute RF when the "
-                + "capture's centre is known, else an offset from the centre (audio frequency for real input); "
-                + "WIDTH sets the channel the measurement sees. SI suffixes: --signal 459.9875M:12.5k.",
-            HelpName = "FREQ[:WIDTH]",
-        };
-        var expect = new Option<string?>("--expect")
-        {
-            Description = "Measure as this modulation instead of classifying: am, fm, pm, fsk, cw, noise.",
-            HelpName = "KIND",
-        };
         var json = new Option<string?>("--json")
         {
             Description = "Write the results as JSON to OUT, or to standard output with '-'.",
             HelpName = "OUT|-",
         };
-        var obw = new Option<double>("--obw-percent")
-        {
-            Description = "Occupied-bandwidth percentage (ITU-R SM.328).",
-            DefaultValueFactory = _ => 99,
-            HelpName = "PERCENT",
-        };
-        var xdb = new Option<double>("--xdb")
-        {
-            Description = "The x of the x-dB bandwidth, dB.",
-            DefaultValueFactory = _ => 26,
-            HelpName = "DB",
-        };
-        var obwNoise = new Option<string>("--obw-noise")
-        {
-            Description = "Noise floor in the occupied bandwidth: subtract or keep.",
-            DefaultValueFactory = _ => "subtract",
-            HelpName = "subtract|keep",
-        };
-        obwNoise.AcceptOnlyFromAmong("subtract", "keep");
-        var lp = Units.SiOption(
-            "--post-lowpass",
-            "Post-detection low-pass cutoff in Hz (default: the channel filter's width, so every modulating frequency "
-                + "the occupied bandwidth allows passes)."
-        );
-        var hp = Units.SiOption("--post-highpass", "Post-detection high-pass corner in Hz (default off).");
-        var deemph = new Option<double?>("--deemphasis")
-        {
-            Description = "De-emphasis time constant in microseconds (e.g. 50 or 75; default off).",
-            HelpName = "US",
-        };
-        var interval = new Option<double?>("--track-interval")
-        {
-            Description =
-                "Length in seconds of the windows the carrier, deviation or depth and level are followed in (default "
-                + "about 0.1 s, a whole number of periods of the modulating tone); the frequency tolerance is judged "
-                + "on the worst window.",
-            HelpName = "S",
-        };
-        var reference = new ReferenceOptionSet();
+        var measure = new MeasurementOptionSet();
         var conditions = new Option<string?>("--conditions")
         {
             Description = "Test conditions for the report (temperature, supply voltage, set-up).",
@@ -111,7 +55,6 @@ internal static class AnalyzeCommand
         };
         paper.AcceptOnlyFromAmong("a4", "letter");
         var reader = new ReaderOptionSet();
-        var spec = new SpectrumCommand.SpectrumOptionSet();
         var cmd = new Command(
             "analyze",
             "Measure a capture: modulation type, carrier frequency and offset (Hz, ppm), occupied and x-dB bandwidth, "
@@ -119,17 +62,7 @@ internal static class AnalyzeCommand
         )
         {
             capture,
-            signal,
-            nominal,
-            expect,
             json,
-            obw,
-            xdb,
-            obwNoise,
-            lp,
-            hp,
-            deemph,
-            interval,
             force,
             report,
             limits,
@@ -141,9 +74,8 @@ internal static class AnalyzeCommand
             conditions,
             paper,
         };
-        reference.AddTo(cmd);
+        measure.AddTo(cmd);
         reader.AddTo(cmd);
-        spec.AddTo(cmd);
         cmd.SetAction(r =>
         {
             string? jsonOut = r.GetValue(json);
@@ -162,36 +94,7 @@ internal static class AnalyzeCommand
             LimitProfile? profile = profilePath is null ? null : LimitProfile.Load(profilePath);
             profile = DecisionRuleOption.Apply(profile, r.GetValue(decisionRule));
             CaptureSource source = CaptureSource.Open(r.GetValue(capture)!, reader.Read(r));
-            var (kind, beta) = spec.WindowKindOf(r);
-            ModulationKind? expected = null;
-            if (r.GetValue(expect) is { } e)
-                expected = ModulationKindNames.Parse(e);
-            var options = new AnalysisOptions
-            {
-                NominalHz = r.GetValue(nominal),
-                Expect = expected,
-                Signal = r.GetValue(signal) is { } sig ? ParseSignal(sig) : null,
-                ObwPercent = r.GetValue(obw),
-                Xdb = r.GetValue(xdb),
-                ObwNoise = r.GetValue(obwNoise) == "keep" ? NoiseFloorTreatment.Keep : NoiseFloorTreatment.Subtract,
-                FftSize = r.GetValue(spec.Fft)
-                    ?? (
-                        r.GetValue(spec.Rbw) is { } rbw
-                            ? Spectrum.SpectrumSettings.FftSizeForRbw(rbw, source.Info.SampleRateHz, kind, beta)
-                            : null
-                    ),
-                Window = kind,
-                PostLowPassHz = r.GetValue(lp),
-                PostHighPassHz = r.GetValue(hp),
-                DeEmphasisUs = r.GetValue(deemph),
-                TrackIntervalS = r.GetValue(interval),
-                SuppressDc = r.GetValue(spec.SuppressDc),
-                StartS = r.GetValue(spec.Start) ?? 0,
-                DurationS = r.GetValue(spec.Duration),
-                Threads = r.GetValue(spec.Threads),
-                KeepSpectrogram = pdfOut is not null,
-            };
-            options = reference.Apply(r, options);
+            AnalysisOptions options = measure.Read(r, source.Info) with { KeepSpectrogram = pdfOut is not null };
             var settings = new InspectionSettings
             {
                 Analysis = options,
@@ -246,20 +149,6 @@ internal static class AnalyzeCommand
             return ExitCodes.ForVerdict(model.Overall);
         });
         return cmd;
-    }
-
-    /// <summary>Parses FREQ[:WIDTH], each a number with an optional SI suffix.</summary>
-    private static SignalSelection ParseSignal(string text)
-    {
-        string[] p = text.Split(':');
-        if (p.Length is 1 or 2 && Units.TryParseSi(p[0], out double f))
-        {
-            if (p.Length == 1)
-                return new SignalSelection(f);
-            if (Units.TryParseSi(p[1], out double w))
-                return new SignalSelection(f, w);
-        }
-        throw new UsageException($"--signal: '{text}' is not FREQ or FREQ:WIDTH in Hz (e.g. 459.9875M:12.5k)");
     }
 
     private static string Quote(string a) => a.Contains(' ') ? $"\"{a}\"" : a;

@@ -61,6 +61,7 @@ internal static class BatchCommand
             HelpName = "I/N",
         };
         var reader = new ReaderOptionSet();
+        var measure = new MeasurementOptionSet();
         var cmd = new Command(
             "batch",
             "Triage many captures: analyse each (in parallel, bounded memory), one bad file becomes an error row, and "
@@ -78,6 +79,7 @@ internal static class BatchCommand
             force,
             shard,
         };
+        measure.AddTo(cmd);
         reader.AddTo(cmd);
         cmd.Add(MergeCommand(stdout, stderr));
         cmd.SetAction(r =>
@@ -108,6 +110,7 @@ internal static class BatchCommand
                 Reader = reader.Read(r),
                 Inspection = new InspectionSettings
                 {
+                    Analysis = measure.Read(r, null),
                     Profile = profile,
                     ProfilePath = profilePath,
                     Header = new ReportHeader { CommandLine = "signalinspect batch" },

@@ -1,4 +1,4 @@
-using SignalInspect.Dsp;
+using SignalInspect.Spectrum;
 
 namespace SignalInspect.Measure;
 
@@ -28,8 +28,14 @@ public sealed record AnalysisOptions
     /// <summary>FFT size of the bandwidth spectrum; null to choose (4096, smaller for short captures).</summary>
     public int? FftSize { get; init; }
 
-    /// <summary>Window of the bandwidth spectrum.</summary>
-    public WindowKind Window { get; init; } = WindowKind.Hann;
+    /// <summary>Resolution bandwidth wanted, Hz: the FFT size is the power of two nearest to it (per capture, from
+    /// its sample rate); null for <see cref="FftSize"/> or the default. <see cref="FftSize"/> wins.</summary>
+    public double? RbwHz { get; init; }
+
+    /// <summary>The Welch pass's window (and Kaiser beta), overlap, level calibration and DC suppression; its FFT
+    /// size, threads and spectrogram are set per analysis (<see cref="FftSize"/>, <see cref="RbwHz"/>,
+    /// <see cref="Threads"/>, <see cref="KeepSpectrogram"/>).</summary>
+    public SpectrumSettings SpectrumBase { get; init; } = new();
 
     /// <summary>Post-detection low-pass cutoff, Hz; null for the default (the channel filter's width).</summary>
     public double? PostLowPassHz { get; init; }
@@ -39,9 +45,6 @@ public sealed record AnalysisOptions
 
     /// <summary>De-emphasis time constant in microseconds (e.g. 50 or 75), null for none.</summary>
     public double? DeEmphasisUs { get; init; }
-
-    /// <summary>Interpolate over a receiver DC spike in the spectrum.</summary>
-    public bool SuppressDc { get; init; }
 
     /// <summary>Start of the analysed window, s.</summary>
     public double StartS { get; init; }

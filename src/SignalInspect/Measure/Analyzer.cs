@@ -117,7 +117,7 @@ public static class Analyzer
         var warnings = new List<string>(info.Warnings);
 
         // Pass A: the spectrum, the bandwidths and a first carrier estimate.
-        SpectrumSettings spectrumSettings = SpectrumSettingsFor(options, count);
+        SpectrumSettings spectrumSettings = SpectrumSettingsFor(options, count, fs);
         SpectrumResult spectrum = WelchEstimator.Estimate(source, spectrumSettings, first, count, progress, cancel);
         timer.Stage("spectrum pass");
         if (!(spectrum.Mean.TotalPower() > 1e-30))
@@ -133,6 +133,7 @@ public static class Analyzer
         // A narrow emission in a wide capture: the spectrum again, with enough bins across the emission.
         if (
             options.FftSize is null
+            && options.RbwHz is null
             && selection.Measured is { } seen
             && Finer(spectrumSettings, spectrum.Mean.BinWidthHz, bw, count) is { } finer
         )
@@ -353,7 +354,7 @@ public static class Analyzer
                 carrierAxisHz,
                 b.NearFullScale,
                 count,
-                options.SuppressDc,
+                options.SpectrumBase.SuppressDc,
                 spectrum.NonFiniteSegments,
                 snrDb
             )
@@ -542,17 +543,26 @@ public static class Analyzer
 
     /// <summary>The spectrum pass's settings: the FFT size asked for, or <see cref="DefaultFftSize"/> halved until
     /// the window holds eight segments (down to 64).</summary>
-    internal static SpectrumSettings SpectrumSettingsFor(AnalysisOptions options, long count)
+    internal static SpectrumSettings SpectrumSettingsFor(AnalysisOptions options, long count, double sampleRateHz)
     {
-        int fft = options.FftSize ?? DefaultFftSize;
-        if (options.FftSize is null)
+        int? asked = options.FftSize
+            ?? (
+                options.RbwHz is { } rbw
+                    ? SpectrumSettings.FftSizeForRbw(
+                        rbw,
+                        sampleRateHz,
+                        options.SpectrumBase.Window,
+                        options.SpectrumBase.KaiserBeta
+                    )
+                    : null
+            );
+        int fft = asked ?? DefaultFftSize;
+        if (asked is null)
             while (fft > 64 && count < 8L * fft)
                 fft /= 2;
-        return new SpectrumSettings
+        return options.SpectrumBase with
         {
             FftSize = fft,
-            Window = options.Window,
-            SuppressDc = options.SuppressDc,
             Threads = options.Threads,
             KeepSpectrogram = options.KeepSpectrogram,
         };

@@ -52,7 +52,10 @@ internal static class ReferenceCarrierMeasurement
         var axis = FrequencyAxis.Of(info);
         CultureInfo c = CultureInfo.InvariantCulture;
         var (first, count) = source.WindowSamples(options.StartS, options.DurationS);
-        SpectrumSettings settings = Analyzer.SpectrumSettingsFor(options, count) with { KeepSpectrogram = false };
+        SpectrumSettings settings = Analyzer.SpectrumSettingsFor(options, count, info.SampleRateHz) with
+        {
+            KeepSpectrogram = false,
+        };
         SpectrumResult spectrum = WelchEstimator.Estimate(source, settings, first, count, null, cancel);
         double search = Math.Max(ReferenceSearchPpm * 1e-6 * knownHz, 4 * spectrum.Mean.BinWidthHz);
         Emission? found = EmissionSelection.Narrowest(spectrum.Mean, axis.ToAxis(knownHz), search);

@@ -237,6 +237,7 @@ public static class AnalysisJson
         w.WriteString("window", r.Spectrum.Mean.Window.Name);
         w.WriteNumber("fftSize", m.Spectrum.FftSize);
         w.WriteNumber("overlapPercent", 100.0 * m.Spectrum.OverlapSamples / m.Spectrum.FftSize);
+        w.WriteNumber("calibrationDb", m.Spectrum.CalibrationDb);
         w.WriteNumber("segments", r.Spectrum.Mean.Segments);
         w.WriteString("channelFilter", m.ChannelFilter);
         w.WriteNumber("demodRateHz", m.DemodRateHz);
