@@ -66,6 +66,10 @@ public sealed record BatchRecord
     /// <summary>Emission designator.</summary>
     public string? EmissionDesignator { get; init; }
 
+    /// <summary>What decided the numbers (<see cref="BatchRunner.SettingsHash"/>): --resume keeps only records made
+    /// with the same.</summary>
+    public string? Settings { get; init; }
+
     /// <summary>The capture's centre frequency, Hz (null when not stated).</summary>
     public double? CenterFrequencyHz { get; init; }
 
@@ -121,6 +125,7 @@ public sealed record BatchRecord
         "warnings",
         "report",
         "thumbnail",
+        "settings",
     ];
 
     private object?[] Values() =>
@@ -152,6 +157,7 @@ public sealed record BatchRecord
             Warnings,
             Report,
             Thumbnail,
+            Settings,
         ];
 
     /// <summary>One JSON line, keys in <see cref="Columns"/> order.</summary>
@@ -272,6 +278,7 @@ public sealed record BatchRecord
                 CenterFrequencyHz = D("centerFrequencyHz"),
                 StartTime = S("startTime"),
                 FirstIssue = S("firstIssue"),
+                Settings = S("settings"),
                 EmissionDesignator = S("emissionDesignator"),
                 Verdict = S("verdict"),
                 Warnings = S("warnings"),

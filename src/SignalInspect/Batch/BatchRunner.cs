@@ -1,4 +1,5 @@
 using System.Collections.Concurrent;
+using System.Security.Cryptography;
 using System.Text;
 using SignalInspect.Capture;
 using SignalInspect.Compliance;
@@ -208,10 +209,21 @@ public static class BatchRunner
         // Resume: a capture is done when its path and its content are (the same bytes at two paths are two
         // captures); one that ended in an error is tried again (the error may have been the machine's).
         var done = new Dictionary<string, BatchRecord>(StringComparer.Ordinal);
+        string settings = SettingsHash(options);
         if (options.Resume && File.Exists(jsonl))
             foreach (BatchRecord r in ReadJsonlForResume(jsonl))
+            {
+                // Records made with other settings would mix two measurements in one summary.
+                if (r.Settings != settings)
+                    throw OutputException.ForFile(
+                        options.OutDir,
+                        $"holds a summary made with other settings (measurement options, profile or reading "
+                            + $"options: {r.Settings ?? "not recorded"} against {settings}): resuming would mix "
+                            + "them; replace the summary or write to another folder"
+                    );
                 if (r.Status != "error")
                     done[ResumeKey(r.ContentSha256, r.File)] = r;
+            }
         if (File.Exists(jsonl))
         {
             // The kept records are written again below, so a torn or failed line leaves no trace.
@@ -345,6 +357,7 @@ public static class BatchRunner
                     .Select(c => $"{c.Verdict.Text()}: {c.Measurement}" + (c.Reason is { } why ? $" ({why})" : ""))
                     .FirstOrDefault(),
                 Verdict = overall?.Text(),
+                Settings = SettingsHash(o),
                 Warnings = r.Warnings.Count > 0 ? string.Join("; ", r.Warnings) : null,
                 Report = reportRel?.Replace('\\', '/'),
                 Thumbnail = thumbRel.Replace('\\', '/'),
@@ -360,11 +373,36 @@ public static class BatchRunner
                 ContentSha256 = hash,
                 Bytes = input.Bytes,
                 Error = message.ReplaceLineEndings(" ").Trim(),
+                Settings = SettingsHash(o),
             };
         }
     }
 
     private static string ResumeKey(string? hash, string file) => (hash ?? "-") + "|" + file;
+
+    /// <summary>
+    /// The first 16 hex digits of the SHA-256 of what decides a record's numbers: the measurement options (threads
+    /// and the spectrogram aside: they do not change a number), the reading defaults, the profile file's bytes and the
+    /// decision rule. Written in every record; --resume keeps only records with the same.
+    /// </summary>
+    public static string SettingsHash(BatchOptions o)
+    {
+        AnalysisOptions a = o.Inspection.Analysis with { Threads = null, KeepSpectrogram = true };
+        string profile =
+            o.Inspection.ProfilePath is { } path && File.Exists(path)
+                ? Convert.ToHexString(SHA256.HashData(File.ReadAllBytes(path)))
+                : "none";
+        string text = string.Join(
+            "\n",
+            a.ToString(),
+            a.SpectrumBase.ToString(),
+            a.Signal?.ToString() ?? "",
+            o.Reader.ToString(),
+            profile,
+            o.Inspection.Profile?.Rule.ToString() ?? ""
+        );
+        return Convert.ToHexString(SHA256.HashData(Encoding.UTF8.GetBytes(text)))[..16].ToLowerInvariant();
+    }
 
     /// <summary>Holds the output folder for this run: a second batch into the same folder would interleave its
     /// lines with this one's and one would lose its rows.</summary>

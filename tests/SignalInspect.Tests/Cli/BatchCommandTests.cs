@@ -202,6 +202,43 @@ public class BatchCommandTests
         Assert.Contains("no such file, folder or pattern", stderr);
     }
 
+    /// <summary>Issue 25 item 3: records carry a hash of the settings that decided them; --resume refuses a summary
+    /// made with other settings (other measurement options or another profile) rather than mix two measurements, and
+    /// keeps one made with the same.</summary>
+    [Fact]
+    public void Resume_refuses_a_summary_made_with_other_settings()
+    {
+        using var tmp = new TempDir();
+        string dir = tmp.File("in");
+        Directory.CreateDirectory(dir);
+        File.Copy(TestData.Path("measure", "cw-462.sigmf-meta"), Path.Combine(dir, "cw.sigmf-meta"));
+        File.Copy(TestData.Path("measure", "cw-462.sigmf-data"), Path.Combine(dir, "cw.sigmf-data"));
+        string outDir = tmp.File("out");
+        Assert.Equal(0, CliRunner.Run("batch", dir, "--out", outDir).Code);
+        string settings = JsonDocument
+            .Parse(File.ReadAllLines(Path.Combine(outDir, "summary.jsonl"))[0])
+            .RootElement.GetProperty("settings")
+            .GetString()!;
+        Assert.Matches("^[0-9a-f]{16}$", settings);
+        var (code, _, err) = CliRunner.Run("batch", dir, "--out", outDir, "--resume", "--nominal", "462.5M");
+        Assert.Equal(2, code);
+        Assert.Contains("made with other settings", err);
+        (code, _, err) = CliRunner.Run(
+            "batch",
+            dir,
+            "--out",
+            outDir,
+            "--resume",
+            "--limits",
+            TestData.Repo("profiles", "frs.json")
+        );
+        Assert.Equal(2, code);
+        Assert.Contains("made with other settings", err);
+        var (same, stdout, sameErr) = CliRunner.Run("batch", dir, "--out", outDir, "--resume");
+        Assert.True(same == 0, sameErr);
+        Assert.Contains("skipped 1", stdout);
+    }
+
     /// <summary>Issue 25 item 3: a pattern the shell did not expand (quoted) is expanded by the tool, with * in a
     /// folder part and ** for any depth; a pattern matching nothing is one line, exit 2.</summary>
     [Fact]
