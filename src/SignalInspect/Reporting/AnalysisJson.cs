@@ -12,7 +12,7 @@ namespace SignalInspect.Reporting;
 public static class AnalysisJson
 {
     /// <summary>Format version of this JSON.</summary>
-    public const string SchemaVersion = "2";
+    public const string SchemaVersion = "3";
 
     /// <summary>Serialises the result to UTF-8 JSON bytes.</summary>
     public static byte[] ToBytes(AnalysisResult r, bool indented = true)
@@ -39,24 +39,31 @@ public static class AnalysisJson
     {
         w.WriteStartObject("correction");
         w.WriteBoolean("applied", f is not null);
-        if (f is null)
-            w.WriteString("note", FrequencyReference.NotCorrected);
-        else
-        {
-            w.WriteString("source", f.Source);
-            w.WriteNumber("receiverErrorPpm", f.ErrorPpm);
-            w.WriteNumber("receiverErrorUncertaintyPpm", f.StandardUncertaintyPpm);
-            CaptureInfoJson.WriteNumberOrNull(w, "referenceCarrierHz", f.ReferenceCarrierHz);
-            CaptureInfoJson.WriteNumberOrNull(w, "referenceReadHz", f.ReferenceReadHz?.Value);
-            CaptureInfoJson.WriteNumberOrNull(w, "referenceReadUncertaintyHz", f.ReferenceReadHz?.StandardUncertainty);
-            w.WriteString("text", f.Text);
-        }
+        w.WriteString("note", f is null ? FrequencyReference.NotCorrected : null);
+        w.WriteString("source", f?.Source);
+        CaptureInfoJson.WriteNumberOrNull(w, "receiverErrorPpm", f?.ErrorPpm);
+        CaptureInfoJson.WriteNumberOrNull(w, "receiverErrorUncertaintyPpm", f?.StandardUncertaintyPpm);
+        CaptureInfoJson.WriteNumberOrNull(w, "referenceCarrierHz", f?.ReferenceCarrierHz);
+        CaptureInfoJson.WriteNumberOrNull(w, "referenceReadHz", f?.ReferenceReadHz?.Value);
+        CaptureInfoJson.WriteNumberOrNull(w, "referenceReadUncertaintyHz", f?.ReferenceReadHz?.StandardUncertainty);
+        w.WriteString("text", f?.Text);
         w.WriteEndObject();
     }
 
     /// <summary>Writes the result as one JSON object; with <paramref name="judged"/> its limits, checks and verdict
     /// too.</summary>
-    public static void Write(Utf8JsonWriter w, AnalysisResult r, MeasurementReport? judged = null)
+    /// <param name="w">The writer.</param>
+    /// <param name="r">The analysis.</param>
+    /// <param name="judged">The report whose judgement follows the analysis's keys; null for none.</param>
+    /// <param name="judgementKeys">Whether to write <c>limits</c>, <c>checks</c> and <c>verdict</c> (null and empty
+    /// without <paramref name="judged"/>); false inside the report model, which writes them beside the
+    /// analysis.</param>
+    public static void Write(
+        Utf8JsonWriter w,
+        AnalysisResult r,
+        MeasurementReport? judged = null,
+        bool judgementKeys = true
+    )
     {
         var info = r.Capture;
         var axis = FrequencyAxis.Of(info);
@@ -107,6 +114,8 @@ public static class AnalysisJson
             w.WriteNull("frequencyUncertaintyHz");
             w.WriteNull("offsetHz");
             w.WriteNull("offsetPpm");
+            w.WriteNull("offsetReference");
+            w.WriteNull("method");
             WriteCorrection(w, r.FrequencyReference);
             w.WriteEndObject();
         }
@@ -141,8 +150,10 @@ public static class AnalysisJson
         else
         {
             w.WriteNull("depthPercent");
+            w.WriteNull("depthUncertaintyPercent");
             w.WriteNull("positivePeakPercent");
             w.WriteNull("negativePeakPercent");
+            w.WriteNull("sidebandDepthPercent");
         }
         w.WriteEndObject();
         w.WriteStartObject("fm");
@@ -160,9 +171,13 @@ public static class AnalysisJson
         else
         {
             w.WriteNull("peakDeviationHz");
+            w.WriteNull("peakDeviationUncertaintyHz");
             w.WriteNull("positivePeakHz");
             w.WriteNull("negativePeakHz");
+            w.WriteNull("halfPeakToPeakHz");
             w.WriteNull("rmsDeviationHz");
+            w.WriteNull("modulationIndex");
+            w.WriteNull("peakPhaseRad");
         }
         w.WriteEndObject();
         w.WriteStartObject("pm");
@@ -175,7 +190,13 @@ public static class AnalysisJson
             CaptureInfoJson.WriteNumberOrNull(w, "peakDeviationHz", pm.PeakDeviationHz);
         }
         else
+        {
             w.WriteNull("peakDeviationRad");
+            w.WriteNull("peakDeviationUncertaintyRad");
+            w.WriteNull("positivePeakRad");
+            w.WriteNull("negativePeakRad");
+            w.WriteNull("peakDeviationHz");
+        }
         w.WriteEndObject();
         w.WriteStartObject("fsk");
         if (r.Fsk is { } fsk)
@@ -194,7 +215,11 @@ public static class AnalysisJson
         else
         {
             w.WriteNull("shiftHz");
+            w.WriteNull("shiftUncertaintyHz");
+            w.WriteNull("deviationHz");
             w.WriteNull("symbolRateBd");
+            w.WriteNull("symbolRateUncertaintyBd");
+            w.WriteNull("modulationIndex");
             w.WriteStartArray("toneFrequenciesHz");
             w.WriteEndArray();
         }
@@ -255,8 +280,16 @@ public static class AnalysisJson
         foreach (string s in r.Warnings)
             w.WriteStringValue(s);
         w.WriteEndArray();
+        // The judgement's keys are always there: null, empty and null without a profile.
         if (judged is not null)
             ReportJson.WriteJudgement(w, judged);
+        else if (judgementKeys)
+        {
+            w.WriteNull("limits");
+            w.WriteStartArray("checks");
+            w.WriteEndArray();
+            w.WriteNull("verdict");
+        }
         w.WriteEndObject();
     }
 

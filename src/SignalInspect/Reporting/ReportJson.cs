@@ -31,7 +31,7 @@ public static class ReportJson
             w.WriteString("conditions", report.Header.Conditions);
             w.WriteEndObject();
             w.WritePropertyName("analysis");
-            AnalysisJson.Write(w, report.Analysis);
+            AnalysisJson.Write(w, report.Analysis, judgementKeys: false);
             WriteJudgement(w, report);
             w.WriteEndObject();
         }

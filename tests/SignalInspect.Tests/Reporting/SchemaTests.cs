@@ -1,0 +1,125 @@
+using System.Text.Json.Nodes;
+using Json.Schema;
+
+namespace SignalInspect.Tests.Reporting;
+
+/// <summary>
+/// The published JSON Schemas (issue 25, item 2; JSON Schema 2020-12, docs/schema/) against real outputs, validated
+/// with JsonSchema.Net: analyze for every modulation class, keyed transmissions, a judged failing capture and a
+/// reference correction; the report model; info; batch records (good and error rows). Every key a schema lists is
+/// required and no other is allowed, so a key dropped or added without the schema fails here.
+/// </summary>
+public class SchemaTests
+{
+    private static JsonSchema Schema(string name) =>
+        JsonSchema.FromText(File.ReadAllText(TestData.Repo("docs", "schema", name + ".schema.json")));
+
+    private static void Valid(JsonSchema schema, string json, string what)
+    {
+        EvaluationResults r = schema.Evaluate(
+            JsonNode.Parse(json),
+            new EvaluationOptions { OutputFormat = OutputFormat.List }
+        );
+        string errors = string.Join(
+            "; ",
+            r.Details.Where(d => d.Errors is { Count: > 0 })
+                .Select(d => $"{d.InstanceLocation}: {string.Join(", ", d.Errors!.Values)}")
+                .Take(5)
+        );
+        Assert.True(r.IsValid, $"{what}: {errors}");
+    }
+
+    private static string Synth(TempDir tmp, string name, params string[] args)
+    {
+        string path = tmp.File(name + ".sigmf-meta");
+        string[] all = ["synth", path, "--sample-rate", "48k", "--center-frequency", "155M", "--snr", "30", .. args];
+        var (code, _, err) = CliRunner.Run(all);
+        Assert.True(code == 0, err);
+        return path;
+    }
+
+    [Fact]
+    public void Analyze_info_report_and_batch_outputs_follow_their_schemas()
+    {
+        using var tmp = new TempDir();
+        JsonSchema analyze = Schema("analyze"),
+            report = Schema("report"),
+            info = Schema("info"),
+            batch = Schema("batch-record");
+        var captures = new List<string>();
+        foreach (string kind in new[] { "fm", "am", "cw", "fsk", "ook", "qam", "noise", "pulse" })
+            captures.Add(Synth(tmp, kind, "--kind", kind, "--offset", "2000"));
+        captures.Add(Synth(tmp, "burst", "--kind", "fm", "--duration", "5", "--burst", "1:2.5", "--burst", "3.2:4.5"));
+        foreach (string c in captures)
+        {
+            var (code, json, err) = CliRunner.Run("analyze", c, "--json", "-");
+            Assert.True(code == 0, err);
+            Valid(analyze, json, Path.GetFileName(c));
+            (code, json, err) = CliRunner.Run("info", c, "--json");
+            Assert.True(code == 0, err);
+            Valid(info, json, "info " + Path.GetFileName(c));
+        }
+        string fm = captures[0];
+        // Judged: the keyed capture against the land-mobile profile has checks of every kind, transients included.
+        string profile = TestData.Repo("profiles", "land-mobile-12k5-vhf.json");
+        var (judged, judgedJson, judgedErr) = CliRunner.Run(
+            "analyze",
+            captures[^1],
+            "--limits",
+            profile,
+            "--json",
+            "-"
+        );
+        Assert.True(judged is 0 or 1 or 4, judgedErr);
+        Valid(analyze, judgedJson, "judged");
+        var (pm, pmJson, _) = CliRunner.Run("analyze", fm, "--expect", "pm", "--json", "-");
+        Assert.Equal(0, pm);
+        Valid(analyze, pmJson, "pm");
+        // Over-deviation against FRS: a FAIL.
+        string wide = Synth(tmp, "wide", "--kind", "fm", "--deviation", "4000");
+        var (fail, failJson, _) = CliRunner.Run(
+            "analyze",
+            wide,
+            "--limits",
+            TestData.Repo("profiles", "frs.json"),
+            "--json",
+            "-"
+        );
+        Assert.Equal(1, fail);
+        Valid(analyze, failJson, "failing");
+        string pdf = tmp.File("r.pdf");
+        Assert.True(CliRunner.Run("analyze", captures[^1], "--limits", profile, "--report", pdf).Code is 0 or 1 or 4);
+        Valid(report, File.ReadAllText(Path.ChangeExtension(pdf, ".json")), "report");
+        Assert.True(CliRunner.Run("analyze", fm, "--report", tmp.File("plain.pdf")).Code == 0);
+        Valid(report, File.ReadAllText(tmp.File("plain.json")), "report without limits");
+        string folder = tmp.File("batch");
+        Directory.CreateDirectory(folder);
+        foreach (string c in captures.Take(3))
+        {
+            File.Copy(c, Path.Combine(folder, Path.GetFileName(c)));
+            File.Copy(
+                Path.ChangeExtension(c, ".sigmf-data"),
+                Path.Combine(folder, Path.GetFileNameWithoutExtension(c) + ".sigmf-data")
+            );
+        }
+        File.WriteAllText(Path.Combine(folder, "broken.sigmf-meta"), "{ not json");
+        CliRunner.Run("batch", folder, "--out", tmp.File("out"), "--limits", TestData.Repo("profiles", "frs.json"));
+        string[] lines = File.ReadAllLines(Path.Combine(tmp.File("out"), "summary.jsonl"));
+        Assert.Equal(4, lines.Length);
+        foreach (string l in lines)
+            Valid(batch, l, "batch record");
+    }
+
+    [Fact]
+    public void A_key_the_schema_does_not_list_fails()
+    {
+        JsonSchema info = Schema("info");
+        var (_, json, _) = CliRunner.Run("info", TestData.Path("measure", "cw-462.sigmf-meta"), "--json");
+        JsonNode node = JsonNode.Parse(json)!;
+        node["unlisted"] = 1;
+        Assert.False(info.Evaluate(node).IsValid);
+        node.AsObject().Remove("unlisted");
+        node.AsObject().Remove("sampleRateHz");
+        Assert.False(info.Evaluate(node).IsValid);
+    }
+}
