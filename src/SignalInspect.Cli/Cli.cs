@@ -26,14 +26,21 @@ public static class Cli
         }
         try
         {
-            return parsed.Invoke(
+            // Help is written through a buffer so that its usage line can be put right: a subcommand's line also
+            // shows its parent's arguments ("batch <inputs>... merge <dirs>..."), which the subcommand does not take.
+            bool help = parsed.Action is System.CommandLine.Help.HelpAction;
+            var output = help ? new StringWriter() : stdout;
+            int code = parsed.Invoke(
                 new InvocationConfiguration
                 {
                     EnableDefaultExceptionHandler = false,
-                    Output = stdout,
+                    Output = output,
                     Error = stderr,
                 }
             );
+            if (help)
+                stdout.Write(output.ToString()!.Replace("batch <inputs>... merge", "batch merge"));
+            return code;
         }
         catch (Exception e) when (UserMessage(e) is { } message)
         {

@@ -26,6 +26,16 @@ public class HelpTests
         }
     }
 
+    /// <summary>Issue 25 item 6: the merge subcommand's usage line showed batch's own arguments before it.</summary>
+    [Fact]
+    public void The_merge_usage_line_is_right()
+    {
+        var (code, help, _) = CliRunner.Run("batch", "merge", "--help");
+        Assert.Equal(0, code);
+        Assert.Contains(" batch merge <dirs>... [options]", help);
+        Assert.DoesNotContain("<inputs>... merge", help);
+    }
+
     private static HashSet<string> Options(string command) =>
         [
             .. System
