@@ -47,6 +47,17 @@ internal static class FmMeasurement
         return a2 > 0 ? Math.Sqrt(n0 * b * b * b / (3 * a2)) : 0;
     }
 
+    /// <summary>
+    /// How far below a composite's peak the nearest reading may lie: where the components align the sum is
+    /// D - 2 pi^2 sum(D_i f_i^2) t^2 near its peak (each D_i cos(2 pi f_i t) to second order), and a reading falls at
+    /// most one sample interval dt from it (one pseudo-random instant per interval).
+    /// </summary>
+    private static double SharpPeakLossHz(MeasurementInputs m)
+    {
+        double dt = 1 / m.Channel.DecimatedRateHz;
+        return 2 * Math.PI * Math.PI * m.Components.Sum(c => c.PeakAmount * c.FrequencyHz * c.FrequencyHz) * dt * dt;
+    }
+
     /// <summary>Measures an FM signal.</summary>
     public static (FmResult Result, MeasurementExtras Extras) Measure(MeasurementInputs m)
     {
@@ -124,6 +135,12 @@ internal static class FmMeasurement
                     "noise at the extreme",
                     extremeNoise,
                     "half the sqrt(2 ln N) sigma taken off the extreme: the noise at a sharp peak adds less"
+                ),
+                new(
+                    "sampling of a sharp peak",
+                    SharpPeakLossHz(m) / Math.Sqrt(3),
+                    "curvature of the components' aligned peak, 2 pi^2 sum(D_i f_i^2) dt^2, over one sample "
+                        + "interval dt (rectangular, u = bound / sqrt 3)"
                 ),
             ];
         if (!corrected && m.Components.Count >= 2)

@@ -10,8 +10,9 @@ namespace SignalInspect.Tests.Measure;
 /// computed here from the construction (the generator's instantaneous frequency is sum D_i cos(2 pi f_i t); the
 /// tones' odd frequencies all reach -D_i at 0.5 s, so the sum's peak, 3720 Hz, lies inside the analysed window).
 /// The 99.9th percentile read 2825 Hz (24 % low: the unsafe direction). With the extreme less what the noise can
-/// add, it reads about 3570 Hz: within 5 % below, not yet within its U (the sampling of so sharp a peak and the noise
-/// taken off it are not fully in the budget; issue 27 stays open on this).
+/// add, it reads about 3570 Hz, within 5 % below, and its U covers the truth: the budget carries the noise taken off
+/// the extreme and the sampling of so sharp a peak (the components' curvature over one sample interval, a bound
+/// of about 225 Hz here, so U is wide: 270 Hz).
 /// </summary>
 public class ProgrammePeakTests
 {
@@ -52,7 +53,10 @@ public class ProgrammePeakTests
         double dev = r.Fm!.PeakDeviationHz.Value,
             u = 2 * r.Fm.PeakDeviationHz.StandardUncertainty;
         Assert.Equal(3720, truePeak, 1e-6);
-        Assert.True(dev >= 0.95 * truePeak && dev <= truePeak + u, $"read {dev} Hz (U {u}) for {truePeak:0} Hz");
+        Assert.True(
+            dev >= 0.95 * truePeak && Math.Abs(dev - truePeak) <= u,
+            $"read {dev} Hz (U {u}) for {truePeak:0} Hz"
+        );
         Assert.Contains("the extreme less sqrt(2 ln N)", r.Method.PeakStatistic);
     }
 }
