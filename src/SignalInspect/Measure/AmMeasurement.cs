@@ -61,16 +61,15 @@ internal static class AmMeasurement
         // Several components (programme material): their sum's peaks are rare and a percentile reads them low (eight
         // tones aligning: 61.6 % for 83 %). The extremes are read instead, less what the noise can add to an extreme:
         // sqrt(2 ln N) times the envelope's noise rms, the in-phase half of the channel's noise, sqrt(N0 W / 2).
-        double extremeNoise = 0;
+        double extremeLift = 0;
         if (!corrected && m.Components.Count >= 2 && aMean > 0)
         {
             double n0 = m.Bandwidth.NoiseFloorDensity * (m.Info.IsComplex ? 1 : 2),
-                sigma = Math.Sqrt(n0 * m.Channel.HalfWidthHz),
-                lift = sigma * Math.Sqrt(2 * Math.Log(Math.Max(m.Pass.Samples, 2)));
+                lift = TonePeaks.ExtremeLift(Math.Sqrt(n0 * m.Channel.HalfWidthHz), m.Pass.Samples);
             double xMax = m.Pass.Envelope.Max - lift,
                 xMin = Math.Max(0, m.Pass.Envelope.Min + lift);
             if (xMax > aMax || xMin < aMin)
-                extremeNoise = 100 * lift / 2 / aMean;
+                extremeLift = lift;
             aMax = Math.Max(aMax, xMax);
             aMin = Math.Min(aMin, xMin);
             depth = (aMax - aMin) / (aMax + aMin);
@@ -80,31 +79,12 @@ internal static class AmMeasurement
         [
             new("peak statistic", TypeB.AmDepthPoints * m.NoiseGrowth, "TypeB.AmDepthPoints x TypeB.NoiseGrowth"),
         ];
-        if (extremeNoise > 0)
-        {
-            double dt = 1 / m.Channel.DecimatedRateHz;
+        if (extremeLift > 0)
             budget =
             [
                 .. budget,
-                new(
-                    "noise at the extreme",
-                    extremeNoise,
-                    "half the sqrt(2 ln N) sigma taken off the extreme: the noise at a sharp peak adds less"
-                ),
-                new(
-                    "sampling of a sharp peak",
-                    2
-                        * Math.PI
-                        * Math.PI
-                        * m.Components.Sum(c => c.PeakAmount * c.FrequencyHz * c.FrequencyHz)
-                        * dt
-                        * dt
-                        / Math.Sqrt(3),
-                    "curvature of the components' aligned peak, 2 pi^2 sum(m_i f_i^2) dt^2, over one sample "
-                        + "interval dt (rectangular, u = bound / sqrt 3)"
-                ),
+                .. TonePeaks.ExtremeBudget(extremeLift, m.Components, m.Channel.DecimatedRateHz, 100 / aMean),
             ];
-        }
         if (m.Tone is { } tn && aMean > 0)
             budget =
             [

@@ -47,17 +47,6 @@ internal static class FmMeasurement
         return a2 > 0 ? Math.Sqrt(n0 * b * b * b / (3 * a2)) : 0;
     }
 
-    /// <summary>
-    /// How far below a composite's peak the nearest reading may lie: where the components align the sum is
-    /// D - 2 pi^2 sum(D_i f_i^2) t^2 near its peak (each D_i cos(2 pi f_i t) to second order), and a reading falls at
-    /// most one sample interval dt from it (one pseudo-random instant per interval).
-    /// </summary>
-    private static double SharpPeakLossHz(MeasurementInputs m)
-    {
-        double dt = 1 / m.Channel.DecimatedRateHz;
-        return 2 * Math.PI * Math.PI * m.Components.Sum(c => c.PeakAmount * c.FrequencyHz * c.FrequencyHz) * dt * dt;
-    }
-
     /// <summary>Measures an FM signal.</summary>
     public static (FmResult Result, MeasurementExtras Extras) Measure(MeasurementInputs m)
     {
@@ -78,16 +67,15 @@ internal static class FmMeasurement
         // Several components: the peak of their sum is rare (tones align seldom) and a percentile reads it low (eight
         // tones: 2825 Hz for 3720). Each side's peak is then the larger of the percentile and the extreme less what
         // the noise can add to an extreme (sqrt(2 ln N) of its rms, from the channel's SNR alone).
-        double extremeNoise = 0;
+        double extremeLift = 0;
         if (!corrected && m.Components.Count >= 2)
         {
-            double sigma = DiscriminatorNoiseHz(m),
-                lift = sigma * Math.Sqrt(2 * Math.Log(Math.Max(m.Pass.Samples, 2)));
+            double lift = TonePeaks.ExtremeLift(DiscriminatorNoiseHz(m), m.Pass.Samples);
             double xPos = m.Pass.Freq.Max - m.Pass.FreqMean - lift,
                 xNeg = m.Pass.FreqMean - m.Pass.Freq.Min - lift;
-            // The budget carries the noise taken off an extreme only where the extreme decides.
+            // The budget carries the extreme's terms only where the extreme decides.
             if (Math.Max(xPos, xNeg) > Math.Max(pPos, pNeg))
-                extremeNoise = lift / 2;
+                extremeLift = lift;
             pPos = Math.Max(pPos, xPos);
             pNeg = Math.Max(pNeg, xNeg);
         }
@@ -127,22 +115,8 @@ internal static class FmMeasurement
                     "rms of the demodulated noise (band power less the modulating components')"
                 ),
             ];
-        if (extremeNoise > 0)
-            budget =
-            [
-                .. budget,
-                new(
-                    "noise at the extreme",
-                    extremeNoise,
-                    "half the sqrt(2 ln N) sigma taken off the extreme: the noise at a sharp peak adds less"
-                ),
-                new(
-                    "sampling of a sharp peak",
-                    SharpPeakLossHz(m) / Math.Sqrt(3),
-                    "curvature of the components' aligned peak, 2 pi^2 sum(D_i f_i^2) dt^2, over one sample "
-                        + "interval dt (rectangular, u = bound / sqrt 3)"
-                ),
-            ];
+        if (extremeLift > 0)
+            budget = [.. budget, .. TonePeaks.ExtremeBudget(extremeLift, m.Components, m.Channel.DecimatedRateHz)];
         if (!corrected && m.Components.Count >= 2)
             budget =
             [

@@ -207,6 +207,44 @@ internal static class TonePeaks
         return Math.Sqrt(Math.Max(0, tone + noise - lines));
     }
 
+    /// <summary>What noise of rms <paramref name="sigma"/> can add to the extreme of <paramref name="samples"/>
+    /// readings: sqrt(2 ln N) sigma (the largest of N Gaussian values, to first order).</summary>
+    public static double ExtremeLift(double sigma, long samples) =>
+        sigma * Math.Sqrt(2 * Math.Log(Math.Max(samples, 2)));
+
+    /// <summary>
+    /// The budget of a peak read as an extreme less <paramref name="lift"/>: half the lift (the noise at a sharp
+    /// peak adds less than at a broad one) and the sampling of a sharp peak: where the components align their sum
+    /// is A - 2 pi^2 sum(a_i f_i^2) t^2 near its peak (each a_i cos(2 pi f_i t) to second order), and a reading falls
+    /// at most one interval of <paramref name="rateHz"/> from it (rectangular, u = bound / sqrt 3). In the
+    /// components' unit times <paramref name="scale"/>.
+    /// </summary>
+    public static UncertaintyComponent[] ExtremeBudget(
+        double lift,
+        IReadOnlyList<ModulatingComponent> components,
+        double rateHz,
+        double scale = 1
+    )
+    {
+        double dt = 1 / rateHz;
+        double bound =
+            2 * Math.PI * Math.PI * components.Sum(c => c.PeakAmount * c.FrequencyHz * c.FrequencyHz) * dt * dt;
+        return
+        [
+            new(
+                "noise at the extreme",
+                scale * lift / 2,
+                "half the sqrt(2 ln N) sigma taken off the extreme: the noise at a sharp peak adds less"
+            ),
+            new(
+                "sampling of a sharp peak",
+                bound / Math.Sqrt(3),
+                "curvature of the components' aligned peak, 2 pi^2 sum(a_i f_i^2) dt^2, over one sample interval dt "
+                    + "(rectangular, u = bound / sqrt 3)"
+            ),
+        ];
+    }
+
     /// <summary>True when at most one modulating component was found, or the strongest holds at least
     /// <see cref="OneComponentShare"/> of their power.</summary>
     public static bool OneToneCarries(IReadOnlyList<ModulatingComponent> components) =>
