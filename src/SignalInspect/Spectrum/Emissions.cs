@@ -152,7 +152,7 @@ public static class EmissionFinder
                 foreach (var run in group)
                 {
                     bool holdsCentre = psd.FrequenciesHz[run.A] <= c && psd.FrequenciesHz[run.B] >= c;
-                    if (!holdsCentre && Unmirrored(psd, run, c, floor))
+                    if (!holdsCentre && Unmirrored(psd, run, c, floor, power))
                         inside.Add((Centre(psd, [run], floor), Power(psd, [run], floor)));
                 }
             }
@@ -195,7 +195,8 @@ public static class EmissionFinder
         var core = new List<(int A, int B)>(region);
         var low = new List<(int A, int B)>();
         var high = new List<(int A, int B)>();
-        double centre = core.Count > 1 ? SymmetryCentre(psd, core, floor) : 0;
+        double centre = core.Count > 1 ? SymmetryCentre(psd, core, floor) : 0,
+            total = Power(psd, region, floor);
         bool peeled = true;
         while (peeled && core.Count > 1)
         {
@@ -207,7 +208,7 @@ public static class EmissionFinder
                 (int A, int B) run = upper ? core[^1] : core[0];
                 var rest = upper ? core.GetRange(0, core.Count - 1) : core.GetRange(1, core.Count - 1);
                 bool holdsCentre = psd.FrequenciesHz[run.A] <= centre && psd.FrequenciesHz[run.B] >= centre;
-                if (holdsCentre || !Unmirrored(psd, run, centre, floor))
+                if (holdsCentre || !Unmirrored(psd, run, centre, floor, total))
                     continue;
                 (upper ? high : low).Add(run);
                 core = rest;
@@ -221,15 +222,28 @@ public static class EmissionFinder
             yield return high;
     }
 
-    private static bool Unmirrored(PowerSpectrum psd, (int A, int B) run, double centreHz, double floor)
+    private static bool Unmirrored(
+        PowerSpectrum psd,
+        (int A, int B) run,
+        double centreHz,
+        double floor,
+        double groupPower
+    )
     {
         ReadOnlySpan<double> v = psd.Values;
         double peak = 0;
         for (int i = run.A; i <= run.B; i++)
             peak = Math.Max(peak, v[i]);
+        double power = Power(psd, [run], floor);
         return peak >= PeelOverFloor * floor
-            && MirrorPowerRatio * MirrorPower(psd, run, centreHz, floor) < Power(psd, [run], floor);
+            && power >= RelevantShare * groupPower
+            && MirrorPowerRatio * MirrorPower(psd, run, centreHz, floor) < power;
     }
+
+    /// <summary>A line weaker than this share of its region's power (60 dB down) is left where it is: a carrier that
+    /// weak moves an FM reading by less than a thousandth of its distance (the rounding spurs of an undithered
+    /// 16-bit recording, 105-112 dB down, were named as spurs).</summary>
+    public const double RelevantShare = 1e-6;
 
     /// <summary>Lines whose centres and midpoints are tried as a group's centre of symmetry.</summary>
     public const int SymmetryCandidates = 24;

@@ -106,6 +106,19 @@ public class EmissionSelectionTests
         Assert.DoesNotContain(clean.Warnings, w => w.Contains("no mirror"));
     }
 
+    /// <summary>Lines 60 dB and more below the emission move an FM reading by less than a thousandth of their
+    /// distance: the rounding spurs of an undithered 16-bit recording (testdata nbfm-ci16, 105-112 dB down) are
+    /// neither split off as emissions nor warned of as spurs inside the channel.</summary>
+    [Fact]
+    public void Lines_far_below_the_emission_are_left_where_they_are()
+    {
+        AnalysisResult r = Analyzer.Analyze(
+            SignalInspect.Capture.CaptureSource.Open(TestData.Path("sigmf", "nbfm-ci16.sigmf-meta"))
+        );
+        Assert.Equal(ModulationKind.Fm, r.Classification.Kind);
+        Assert.DoesNotContain(r.Warnings, w => w.Contains("no mirror") || w.Contains("another emission"));
+    }
+
     [Theory]
     [InlineData(10.2, 0.01)] // 30 dB in the 25 kHz channel: 10 log10(2.4 MHz / 25 kHz) = 19.8 dB lower over the band
     [InlineData(0.2, 0.03)] // 20 dB in the channel
