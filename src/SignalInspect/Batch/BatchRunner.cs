@@ -264,7 +264,7 @@ public static class BatchRunner
                         Interlocked.Increment(ref skipped);
                         return;
                     }
-                    BatchRecord rec = AnalyseOne(input, hash, options);
+                    BatchRecord rec = AnalyseOne(input, hash, options, settings);
                     lock (gate)
                     {
                         append.WriteLine(rec.ToJsonLine());
@@ -290,7 +290,7 @@ public static class BatchRunner
         return new BatchOutcome(all, analysed, skipped, cancelled);
     }
 
-    private static BatchRecord AnalyseOne(BatchInput input, string? hash, BatchOptions o)
+    private static BatchRecord AnalyseOne(BatchInput input, string? hash, BatchOptions o, string settingsHash)
     {
         string file = input.Path;
         try
@@ -357,7 +357,7 @@ public static class BatchRunner
                     .Select(c => $"{c.Verdict.Text()}: {c.Measurement}" + (c.Reason is { } why ? $" ({why})" : ""))
                     .FirstOrDefault(),
                 Verdict = overall?.Text(),
-                Settings = SettingsHash(o),
+                Settings = settingsHash,
                 Warnings = r.Warnings.Count > 0 ? string.Join("; ", r.Warnings) : null,
                 Report = reportRel?.Replace('\\', '/'),
                 Thumbnail = thumbRel.Replace('\\', '/'),
@@ -373,7 +373,7 @@ public static class BatchRunner
                 ContentSha256 = hash,
                 Bytes = input.Bytes,
                 Error = message.ReplaceLineEndings(" ").Trim(),
-                Settings = SettingsHash(o),
+                Settings = settingsHash,
             };
         }
     }

@@ -84,22 +84,16 @@ public static class TransientMeasurement
         int n = (int)(last - first);
         if (n <= h.Length + 8 * d)
             return null;
-        Complex[] z = Read(source, first, n, fc, fs);
-        // Decimating FIR: output m is centred on input sample half + m d (the filter's delay taken out).
-        int outputs = (n - h.Length) / d + 1;
-        var y = new Complex[outputs];
-        for (int m = 0; m < outputs; m++)
-        {
-            double re = 0,
-                im = 0;
-            int at = m * d;
-            for (int k = 0; k < h.Length; k++)
-            {
-                re += h[k] * z[at + k].Real;
-                im += h[k] * z[at + k].Imaginary;
-            }
-            y[m] = new Complex(re, im);
-        }
+        // The channel decimator shifts, filters and decimates. Its output k has input (d - 1) + k d as its newest;
+        // starting it s samples in makes the newest inputs L - 1 + m d, so that output m is centred on input
+        // half + m d (the filter's delay taken out), the first whose window lies wholly inside the read.
+        int s = (h.Length - d) % d;
+        if (s < 0)
+            s += d;
+        int outputs = (n - h.Length) / d + 1,
+            skip = (h.Length - 1 - s - (d - 1)) / d;
+        Complex[] y = Decimate(source, first, n, s, new ChannelDecimator(h, d, -fc, fs, info.IsComplex), skip, outputs);
+        outputs = y.Length;
         double TimeOf(double m) => (first + half + m * d) / fs;
         // Power and frequency averaged over StepS.
         int l = Math.Max(1, (int)Math.Round(StepS * fsd));
@@ -194,24 +188,35 @@ public static class TransientMeasurement
         );
     }
 
-    /// <summary>Reads <paramref name="n"/> samples from <paramref name="first"/>, shifted down by
-    /// <paramref name="fc"/> Hz (a real capture becomes complex: its mirror is removed by the low-pass).</summary>
-    private static Complex[] Read(CaptureSource source, long first, int n, double fc, double fs)
+    /// <summary>Samples <paramref name="first"/> + <paramref name="start"/> to <paramref name="first"/> +
+    /// <paramref name="n"/> through <paramref name="decimator"/>; its outputs from <paramref name="skip"/> on, at
+    /// most <paramref name="outputs"/> (a real capture becomes complex: its mirror is removed by the
+    /// low-pass).</summary>
+    private static Complex[] Decimate(
+        CaptureSource source,
+        long first,
+        int n,
+        int start,
+        ChannelDecimator decimator,
+        int skip,
+        int outputs
+    )
     {
-        using CaptureReader reader = source.OpenReader(first, n);
+        using CaptureReader reader = source.OpenReader(first + start, n - start);
         int vps = reader.ValuesPerSample;
-        var buf = new double[n * vps];
+        var buf = new double[(n - start) * vps];
         int got = 0,
             r;
-        while (got < n && (r = reader.Read(buf.AsSpan(got * vps))) > 0)
+        while (got < n - start && (r = reader.Read(buf.AsSpan(got * vps))) > 0)
             got += r;
-        var z = new Complex[n];
-        for (int i = 0; i < got; i++)
-        {
-            double a = -2 * Math.PI * (fc * ((first + i) / fs) % 1.0);
-            var rot = new Complex(Math.Cos(a), Math.Sin(a));
-            z[i] = (vps == 2 ? new Complex(buf[2 * i], buf[2 * i + 1]) : new Complex(buf[i], 0)) * rot;
-        }
-        return z;
+        decimator.Reset(first + start);
+        var re = new double[got + 1];
+        var im = new double[got + 1];
+        int produced = decimator.Process(buf.AsSpan(0, got * vps), re, im);
+        int count = Math.Max(0, Math.Min(outputs, produced - skip));
+        var y = new Complex[count];
+        for (int m = 0; m < count; m++)
+            y[m] = new Complex(re[skip + m], im[skip + m]);
+        return y;
     }
 }
