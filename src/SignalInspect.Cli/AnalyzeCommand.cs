@@ -136,19 +136,29 @@ internal static class AnalyzeCommand
                 summary.WriteLine($"wrote {pdfOut} and {CaptureInspection.ModelPathFor(pdfOut)}");
             }
             if (jsonOut is not null)
-            {
-                byte[] bytes = profile is null ? AnalysisJson.ToBytes(model.Analysis) : AnalysisJson.ToBytes(model);
-                if (toStdout)
-                    stdout.WriteLine(System.Text.Encoding.UTF8.GetString(bytes));
-                else
-                {
-                    AtomicFile.Write(jsonOut, overwrite, s => s.Write(bytes));
-                    summary.WriteLine($"wrote {jsonOut}");
-                }
-            }
+                WriteJson(
+                    jsonOut,
+                    profile is null ? AnalysisJson.ToBytes(model.Analysis) : AnalysisJson.ToBytes(model),
+                    overwrite,
+                    stdout,
+                    summary
+                );
             return ExitCodes.ForVerdict(model.Overall);
         });
         return cmd;
+    }
+
+    /// <summary>Writes JSON <paramref name="bytes"/> to <paramref name="jsonOut"/> (atomically, saying so on
+    /// <paramref name="summary"/>) or to standard output for '-'.</summary>
+    internal static void WriteJson(string jsonOut, byte[] bytes, bool overwrite, TextWriter stdout, TextWriter summary)
+    {
+        if (jsonOut == "-")
+        {
+            stdout.WriteLine(System.Text.Encoding.UTF8.GetString(bytes));
+            return;
+        }
+        AtomicFile.Write(jsonOut, overwrite, s => s.Write(bytes));
+        summary.WriteLine($"wrote {jsonOut}");
     }
 
     private static string Quote(string a) => a.Contains(' ') ? $"\"{a}\"" : a;

@@ -95,6 +95,7 @@ public static class Cli
             SynthCommand.Create(stdout, stderr),
             SpectrumCommand.Create(stdout, stderr),
             AnalyzeCommand.Create(stdout, stderr),
+            SurveyCommand.Create(stdout, stderr),
             BatchCommand.Create(stdout, stderr),
             DemoCommand.Create(stdout, stderr),
         };

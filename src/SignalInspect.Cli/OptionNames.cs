@@ -60,6 +60,13 @@ internal static class OptionNames
             ["PulsePositionS"] = "--pulse-ppm",
             ["ImageDbc"] = "--image",
             ["NoiseBandHz"] = "--noise-band",
+            ["Others"] = "--also",
+            // Survey (SurveySettings)
+            ["MinSnrDb"] = "--min-snr",
+            ["Rows"] = "--time-steps",
+            ["ChannelGrid"] = "--channels",
+            ["OccupancyThresholdDb"] = "--occupancy-threshold",
+            ["MaxMeasured"] = "--max-measured",
         };
 
     /// <summary>The option for a setting (the setting's own name when the command line has none).</summary>

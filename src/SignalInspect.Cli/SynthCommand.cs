@@ -98,6 +98,16 @@ internal static class SynthCommand
             HelpName = "START:END[:OFFSET[:AMOUNT]]",
             AllowMultipleArgumentsPerToken = false,
         };
+        var also = new Option<string[]>("--also")
+        {
+            Description =
+                "Another emission in the same capture, KIND:OFFSET:DBC[:NAME=VALUE...] (repeatable): its kind (as "
+                + "--kind), carrier offset in Hz, level in dB relative to the main carrier, then any of tone=HZ, "
+                + "dev=HZ, depth=PERCENT, phase=RAD, shift=HZ, rate=BD and on=START-END[+START-END...] (keyed only "
+                + "then, s). The noise (--snr) stays the main signal's; e.g. --also fsk:120k:-6:shift=2k:on=1-3.",
+            HelpName = "KIND:OFFSET:DBC[:NAME=VALUE...]",
+            AllowMultipleArgumentsPerToken = false,
+        };
         var keyUp = new Option<string?>("--key-up")
         {
             Description =
@@ -184,6 +194,7 @@ internal static class SynthCommand
             addTone,
             spur,
             burst,
+            also,
             keyUp,
             image,
             noiseBand,
@@ -239,6 +250,10 @@ internal static class SynthCommand
                         ? new KeyUpTransient(e, tau)
                         : null
                     : null,
+            };
+            spec = spec with
+            {
+                Others = [.. (r.GetValue(also) ?? []).Select((t, i) => ParseOther(t, spec, spec.Seed + 1 + i))],
             };
             SampleFormat format = ChooseFormat(path, r.GetValue(datatype), isReal);
             DateTimeOffset? start = null;
@@ -310,6 +325,61 @@ internal static class SynthCommand
         throw new UsageException(
             $"--burst: '{text}' is not START:END[:OFFSET[:AMOUNT]] (e.g. 0.5:2.5 or 3:5:150:3000)"
         );
+    }
+
+    /// <summary>Parses one --also emission: KIND:OFFSET:DBC[:NAME=VALUE...], on the main spec's rate and
+    /// duration.</summary>
+    private static SignalSpec ParseOther(string text, SignalSpec main, int seed)
+    {
+        string[] p = text.Split(':');
+        string usage = $"--also: '{text}' is not KIND:OFFSET:DBC[:NAME=VALUE...] (e.g. fsk:120k:-6:shift=2k:on=1-3)";
+        if (
+            p.Length < 3
+            || !Enum.TryParse(p[0], ignoreCase: true, out SignalKind kind)
+            || !Units.TryParseSi(p[1], out double offset)
+            || !Units.TryParseSi(p[2], out double dbc)
+        )
+            throw new UsageException(usage);
+        var o = main with
+        {
+            Kind = kind,
+            CarrierOffsetHz = offset,
+            Amplitude = main.Amplitude * Math.Pow(10, dbc / 20),
+            ExtraTones = [],
+            Spurs = [],
+            ImageDbc = null,
+            Bursts = [],
+            KeyUp = null,
+            DriftHzPerS = 0,
+            Seed = seed,
+            Others = [],
+        };
+        foreach (string nv in p.Skip(3))
+        {
+            string[] kv = nv.Split('=', 2);
+            if (kv.Length != 2)
+                throw new UsageException(usage);
+            if (kv[0] == "on")
+            {
+                o = o with { Bursts = [.. kv[1].Split('+').Select(b => ParseBurst(b.Replace('-', ':'), false))] };
+                continue;
+            }
+            if (!Units.TryParseSi(kv[1], out double v))
+                throw new UsageException(usage);
+            o = kv[0] switch
+            {
+                "tone" => o with { ModulatingFrequencyHz = v },
+                "dev" => o with { PeakDeviationHz = v },
+                "depth" => o with { AmDepth = v / 100 },
+                "phase" => o with { PeakPhaseRad = v },
+                "shift" => o with { FskShiftHz = v },
+                "rate" => o with { SymbolRateBd = v },
+                _ => throw new UsageException(
+                    $"--also: '{kv[0]}' is not one of tone, dev, depth, phase, shift, rate, on"
+                ),
+            };
+        }
+        return o;
     }
 
     private static (double A, double B) Pair(string option, string text)

@@ -28,8 +28,6 @@ internal static class SigMfReader
                 path,
                 $"metadata file {Path.GetFileName(metaPath)} not found beside the data"
             );
-        if (!File.Exists(dataPath))
-            throw CaptureException.ForFile(metaPath, $"data file {Path.GetFileName(dataPath)} not found");
         long metaSize = ByteSource.LengthOf(metaPath);
         if (metaSize == 0)
             throw CaptureException.ForFile(metaPath, "metadata file is empty");
@@ -44,8 +42,37 @@ internal static class SigMfReader
             json = new byte[metaSize];
             fs.ReadExactly(json);
         }
+        // A non-conforming dataset: the metadata names its data file (SigMF global core:dataset), relative to the
+        // metadata's folder.
+        if (DatasetName(json) is { } named)
+            dataPath = Path.Combine(Path.GetDirectoryName(Path.GetFullPath(metaPath)) ?? ".", named);
+        if (!File.Exists(dataPath))
+            throw CaptureException.ForFile(metaPath, $"data file {Path.GetFileName(dataPath)} not found");
         long dataSize = ByteSource.LengthOf(dataPath);
         return Build(metaPath, json, dataPath, 0, dataSize, "SigMF", metaSize + dataSize, options);
+    }
+
+    /// <summary>The global core:dataset of a metadata file, when it is a non-empty string; null otherwise (invalid
+    /// JSON is reported by the full parse).</summary>
+    private static string? DatasetName(byte[] json)
+    {
+        try
+        {
+            using var doc = JsonDocument.Parse(json, new JsonDocumentOptions { MaxDepth = 64 });
+            return
+                doc.RootElement.ValueKind == JsonValueKind.Object
+                && doc.RootElement.TryGetProperty("global", out JsonElement g)
+                && g.ValueKind == JsonValueKind.Object
+                && g.TryGetProperty("core:dataset", out JsonElement d)
+                && d.ValueKind == JsonValueKind.String
+                && d.GetString() is { Length: > 0 } name
+                ? name
+                : null;
+        }
+        catch (JsonException)
+        {
+            return null;
+        }
     }
 
     public static CaptureSource OpenArchive(string path, ReaderOptions options)

@@ -53,6 +53,13 @@ public static class EmissionFinder
     /// <summary>A region pairs with its mirror when their powers are within this factor (10 dB).</summary>
     public const double MirrorPowerRatio = 10;
 
+    /// <summary>Two mirrored regions differ in width by at most a factor of two plus this many bins (a line's main
+    /// lobe).</summary>
+    public const int MirrorWidthBins = 4;
+
+    /// <summary>Two mirrored regions: at least this share of each one's bins mirror into the other.</summary>
+    public const double MirrorShare = 0.6;
+
     /// <summary>An emission holds at least this SNR in its own bins, dB.</summary>
     public const double MinSnrDb = 6;
 
@@ -60,12 +67,20 @@ public static class EmissionFinder
     /// <paramref name="floor"/>, strongest first.</summary>
     public static IReadOnlyList<Emission> Find(PowerSpectrum psd, double floor)
     {
+        double nu = NoiseFloor.EquivalentDof(psd);
+        return Find(psd, floor, floor * ChiSquared.InvCDF(nu, 1 - FalseAlarm) / nu, MinSnrDb);
+    }
+
+    /// <summary>The emissions of <paramref name="psd"/> whose bins stand above <paramref name="threshold"/> (the
+    /// caller's detection threshold, e.g. for a max-hold of spectrogram rows), with the noise's mean level
+    /// <paramref name="floor"/> in that spectrum and at least <paramref name="minSnrDb"/> in their own bins,
+    /// strongest first.</summary>
+    public static IReadOnlyList<Emission> Find(PowerSpectrum psd, double floor, double threshold, double minSnrDb)
+    {
         ReadOnlySpan<double> v = psd.Values;
         int n = v.Length;
         if (!(floor > 0) || n < 8)
             return [];
-        double nu = NoiseFloor.EquivalentDof(psd);
-        double threshold = floor * ChiSquared.InvCDF(nu, 1 - FalseAlarm) / nu;
         int gap = Math.Max(MinGapBins, (int)Math.Round(GapHz / psd.BinWidthHz));
         // Runs of bins above the threshold (gaps of MinGapBins bridged: one line's main lobe), then regions: runs
         // closer than `gap`. A lone bin barely above the threshold is its own false alarm (one in 1 / FalseAlarm
@@ -108,6 +123,10 @@ public static class EmissionFinder
             groups.Sort((x, y) => Power(psd, y, floor).CompareTo(Power(psd, x, floor)));
             for (int g = 0; g < groups.Count && !joined; g++)
             {
+                // Only an emission in its own right anchors sidebands (a few bins of noise over the threshold with
+                // two emissions placed symmetrically about them do not make one emission of the three).
+                if (Snr(psd, groups[g], floor, threshold) < minSnrDb)
+                    continue;
                 double c = Centre(psd, groups[g], floor);
                 for (int a = 0; a < groups.Count && !joined; a++)
                     for (int b = a + 1; b < groups.Count && !joined; b++)
@@ -130,13 +149,8 @@ public static class EmissionFinder
             int first = group.Min(r => r.A),
                 lastBin = group.Max(r => r.B);
             double power = Power(psd, group, floor);
-            int bins = 0;
-            foreach (var (a, b) in group)
-                for (int i = a; i <= b; i++)
-                    if (v[i] > threshold)
-                        bins++;
-            double snr = 10 * Math.Log10(Math.Max(power, 1e-300) / (floor * bins * psd.BinWidthHz));
-            if (snr < MinSnrDb)
+            double snr = Snr(psd, group, floor, threshold);
+            if (snr < minSnrDb)
                 continue;
             int peak = first;
             foreach (var (a, b) in group)
@@ -306,12 +320,54 @@ public static class EmissionFinder
             cy = Centre(psd, y, floor) - centreHz;
         if (Math.Sign(cx) == Math.Sign(cy))
             return false;
-        double widths = Width(psd, x) + Width(psd, y);
-        if (Math.Abs(cx + cy) > Math.Max(4 * psd.BinWidthHz, 0.25 * widths))
+        double wx = Width(psd, x),
+            wy = Width(psd, y);
+        if (Math.Abs(cx + cy) > Math.Max(4 * psd.BinWidthHz, 0.25 * (wx + wy)))
+            return false;
+        // Sidebands are mirror images: of like width (a line's few bins aside). A carrier and a keyed data signal
+        // placed symmetrically about a third emission are not.
+        if (Math.Max(wx, wy) > 2 * Math.Min(wx, wy) + MirrorWidthBins * psd.BinWidthHz)
+            return false;
+        // And of like shape: most bins of each have their mirror image inside the other (within a line's lobe).
+        if (MirrorOverlap(psd, x, y, centreHz) < MirrorShare || MirrorOverlap(psd, y, x, centreHz) < MirrorShare)
             return false;
         double px = Power(psd, x, floor),
             py = Power(psd, y, floor);
         return px > 0 && py > 0 && Math.Max(px, py) <= MirrorPowerRatio * Math.Min(px, py);
+    }
+
+    /// <summary>The share of the bins of <paramref name="x"/> whose mirror about <paramref name="centreHz"/> lies in
+    /// <paramref name="y"/> (to within <see cref="MirrorWidthBins"/> / 2 bins).</summary>
+    private static double MirrorOverlap(
+        PowerSpectrum psd,
+        List<(int A, int B)> x,
+        List<(int A, int B)> y,
+        double centreHz
+    )
+    {
+        int slack = MirrorWidthBins / 2,
+            hit = 0,
+            all = 0;
+        foreach (var (a, b) in x)
+            for (int i = a; i <= b; i++)
+            {
+                all++;
+                int j = psd.BinOf(2 * centreHz - psd.FrequenciesHz[i]);
+                if (y.Any(r => j >= r.A - slack && j <= r.B + slack))
+                    hit++;
+            }
+        return all > 0 ? (double)hit / all : 0;
+    }
+
+    /// <summary>A group's power over the noise in its bins above the threshold, dB.</summary>
+    private static double Snr(PowerSpectrum psd, List<(int A, int B)> g, double floor, double threshold)
+    {
+        int bins = 0;
+        foreach (var (a, b) in g)
+            for (int i = a; i <= b; i++)
+                if (psd.Values[i] > threshold)
+                    bins++;
+        return 10 * Math.Log10(Math.Max(Power(psd, g, floor), 1e-300) / (floor * Math.Max(bins, 1) * psd.BinWidthHz));
     }
 
     private static double Width(PowerSpectrum psd, List<(int A, int B)> g) =>

@@ -18,6 +18,8 @@ public sealed class SignalGenerator
     private readonly double[]? _noiseTaps;
     private readonly double[] _noiseRing = [];
     private int _noiseAt;
+    private readonly SignalGenerator[] _others;
+    private double[] _otherBuffer = [];
 
     /// <summary>Creates a generator at sample 0.</summary>
     /// <exception cref="SettingException">The spec is invalid (named by its property).</exception>
@@ -29,6 +31,7 @@ public sealed class SignalGenerator
         _noiseSigma = spec.SnrDb is { } snr ? Math.Sqrt(spec.SignalPower / Math.Pow(10, snr / 10)) : 0;
         if (spec.Kind == SignalKind.Noise)
             _noiseSigma = Math.Sqrt(spec.SignalPower);
+        _others = [.. spec.Others.Select(o => new SignalGenerator(o with { SnrDb = null, NoiseBandHz = null }))];
         if (spec.NoiseBandHz is { } band)
         {
             _noiseTaps = Dsp.FirDesign.LowPass(band, spec.SampleRateHz, 0.1 * band, 80, 4095);
@@ -67,6 +70,23 @@ public sealed class SignalGenerator
 
     /// <summary>Fills <paramref name="destination"/> with the next samples; returns how many.</summary>
     public int Generate(Span<double> destination)
+    {
+        int count = GenerateOwn(destination);
+        if (_others.Length == 0)
+            return count;
+        int values = count * ValuesPerSample;
+        if (_otherBuffer.Length < values)
+            _otherBuffer = new double[values];
+        foreach (SignalGenerator o in _others)
+        {
+            o.GenerateOwn(_otherBuffer.AsSpan(0, values));
+            for (int i = 0; i < values; i++)
+                destination[i] += _otherBuffer[i];
+        }
+        return count;
+    }
+
+    private int GenerateOwn(Span<double> destination)
     {
         int count = (int)Math.Min(destination.Length / ValuesPerSample, Remaining);
         SignalSpec s = _spec;

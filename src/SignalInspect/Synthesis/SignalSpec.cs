@@ -162,6 +162,12 @@ public sealed record SignalSpec
         return null;
     }
 
+    /// <summary>Other emissions in the same capture (a band holding several signals): each is generated as its own
+    /// spec (its own kind, offset, amplitude, bursts and seed) and added to this one; their noise settings are
+    /// ignored (this spec's noise is the capture's, its SNR relative to this signal). Same rate, duration and
+    /// complex or real output as this one.</summary>
+    public IReadOnlyList<SignalSpec> Others { get; init; } = [];
+
     /// <summary>Pulse width, s (pulse trains).</summary>
     public double PulseWidthS { get; init; } = 0.001;
 
@@ -360,5 +366,17 @@ public sealed record SignalSpec
             throw new SettingException(nameof(DriftHzPerS), DriftHzPerS, "must be a number");
         if (SnrDb is { } s && !double.IsFinite(s))
             throw new SettingException(nameof(SnrDb), s, "must be a number in dB");
+        foreach (SignalSpec o in Others)
+        {
+            if (o.SampleRateHz != SampleRateHz || o.DurationS != DurationS || o.IsComplex != IsComplex)
+                throw new SettingException(
+                    nameof(Others),
+                    o.CarrierOffsetHz,
+                    "another emission must share the capture's rate, duration and complex or real output"
+                );
+            if (o.Others.Count > 0)
+                throw new SettingException(nameof(Others), o.CarrierOffsetHz, "another emission holds no others");
+            o.Validate();
+        }
     }
 }

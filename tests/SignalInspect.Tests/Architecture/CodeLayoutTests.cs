@@ -51,6 +51,7 @@ public class CodeLayoutTests
         "Compliance",
         "Reporting",
         "Inspection",
+        "Survey",
         "Batch",
     ];
 
@@ -59,7 +60,8 @@ public class CodeLayoutTests
     {
         var use = new Regex(@"^using SignalInspect\.(\w+)", RegexOptions.Multiline);
         var qualified = new Regex(
-            @"\b(Capture|Dsp|Synthesis|Spectrum|Demodulation|Measure|Compliance|Reporting|Inspection|Batch)\.[A-Z]\w*"
+            @"\b(Capture|Dsp|Synthesis|Spectrum|Demodulation|Measure|Compliance|Reporting|Inspection|Survey|Batch)"
+                + @"\.[A-Z]\w*"
         );
         string core = TestData.Repo("src", "SignalInspect");
         var problems = new List<string>();

@@ -36,7 +36,9 @@ public class OptionNamesTests
     public void Every_mapped_option_is_offered_by_a_command()
     {
         string help = string.Concat(
-            new[] { "info", "spectrum", "analyze", "synth", "batch" }.Select(c => CliRunner.Run(c, "--help").Out)
+            new[] { "info", "spectrum", "analyze", "survey", "synth", "batch" }.Select(c =>
+                CliRunner.Run(c, "--help").Out
+            )
         );
         foreach (string option in OptionNames.BySetting.Values.Distinct())
             Assert.Contains(option, help);
