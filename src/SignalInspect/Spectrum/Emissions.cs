@@ -53,8 +53,7 @@ public static class EmissionFinder
     /// <summary>A region pairs with its mirror when their powers are within this factor (10 dB).</summary>
     public const double MirrorPowerRatio = 10;
 
-    /// <summary>Two mirrored regions differ in width by at most a factor of two plus this many bins (a line's main
-    /// lobe).</summary>
+    /// <summary>A bin's mirror may miss the other region by half this many bins (a line's main lobe).</summary>
     public const int MirrorWidthBins = 4;
 
     /// <summary>Two mirrored regions: at least this share of each one's bins mirror into the other.</summary>
@@ -320,15 +319,10 @@ public static class EmissionFinder
             cy = Centre(psd, y, floor) - centreHz;
         if (Math.Sign(cx) == Math.Sign(cy))
             return false;
-        double wx = Width(psd, x),
-            wy = Width(psd, y);
-        if (Math.Abs(cx + cy) > Math.Max(4 * psd.BinWidthHz, 0.25 * (wx + wy)))
+        if (Math.Abs(cx + cy) > Math.Max(4 * psd.BinWidthHz, 0.25 * (Width(psd, x) + Width(psd, y))))
             return false;
-        // Sidebands are mirror images: of like width (a line's few bins aside). A carrier and a keyed data signal
-        // placed symmetrically about a third emission are not.
-        if (Math.Max(wx, wy) > 2 * Math.Min(wx, wy) + MirrorWidthBins * psd.BinWidthHz)
-            return false;
-        // And of like shape: most bins of each have their mirror image inside the other (within a line's lobe).
+        // Sidebands are mirror images: most bins of each have their mirror inside the other (to within a line's
+        // lobe). A carrier and a keyed data signal placed symmetrically about a third emission are not.
         if (MirrorOverlap(psd, x, y, centreHz) < MirrorShare || MirrorOverlap(psd, y, x, centreHz) < MirrorShare)
             return false;
         double px = Power(psd, x, floor),
