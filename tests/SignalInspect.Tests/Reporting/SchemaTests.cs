@@ -110,6 +110,54 @@ public class SchemaTests
             Valid(batch, l, "batch record");
     }
 
+    /// <summary>The survey's JSON: its emissions' analyses follow analyze.schema.json and its capture
+    /// info.schema.json (both registered by their $id, which the survey schema refers to).</summary>
+    [Fact]
+    public void Survey_outputs_follow_their_schema()
+    {
+        using var tmp = new TempDir();
+        foreach (string name in new[] { "analyze", "info" })
+            SchemaRegistry.Global.Register(Schema(name));
+        JsonSchema survey = Schema("survey");
+        string band = tmp.File("band.sigmf"),
+            quiet = tmp.File("quiet.sigmf");
+        string[] common = ["--sample-rate", "100k", "--duration", "1", "--center-frequency", "155M"];
+        Assert.Equal(
+            0,
+            CliRunner
+                .Run([
+                    "synth",
+                    band,
+                    "--kind",
+                    "fm",
+                    "--offset",
+                    "-20k",
+                    "--snr",
+                    "25",
+                    .. common,
+                    "--also",
+                    "fsk:25k:-6:on=0.2-0.6",
+                    "--also",
+                    "cw:5k:-10",
+                ])
+                .Code
+        );
+        Assert.Equal(0, CliRunner.Run(["synth", quiet, "--kind", "noise", .. common]).Code);
+        foreach (
+            string[] args in new[]
+            {
+                new[] { band, "--channels", "154.98M:12.5k:4" },
+                new[] { band, "--list-only" },
+                new[] { quiet },
+            }
+        )
+        {
+            var (code, json, err) = CliRunner.Run(["survey", .. args, "--json", "-"]);
+            Assert.True(code == 0, err);
+            Valid(survey, json, "survey " + string.Join(' ', args.Skip(1)));
+        }
+    }
+
     [Fact]
     public void A_key_the_schema_does_not_list_fails()
     {
