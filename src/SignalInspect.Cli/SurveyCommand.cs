@@ -32,6 +32,13 @@ internal static class SurveyCommand
                 + "pointing at the same data file (SigMF pairs only; the input is never changed).",
             HelpName = "OUT.sigmf-meta",
         };
+        var report = new Option<string?>("--report")
+        {
+            Description =
+                "Write a PDF survey report to OUT.pdf: the spectrum with the emissions numbered, the spectrogram, the "
+                + "table of emissions and the channels' occupancy.",
+            HelpName = "OUT.pdf",
+        };
         var channels = new Option<string?>("--channels")
         {
             Description =
@@ -81,6 +88,7 @@ internal static class SurveyCommand
             json,
             csv,
             annotate,
+            report,
             channels,
             minSnr,
             threshold,
@@ -96,8 +104,11 @@ internal static class SurveyCommand
             bool overwrite = r.GetValue(force);
             string? jsonOut = r.GetValue(json),
                 csvOut = r.GetValue(csv),
-                metaOut = r.GetValue(annotate);
-            foreach (string? o in new[] { jsonOut == "-" ? null : jsonOut, csvOut, metaOut })
+                metaOut = r.GetValue(annotate),
+                pdfOut = r.GetValue(report);
+            if (pdfOut is not null && !pdfOut.EndsWith(".pdf", StringComparison.OrdinalIgnoreCase))
+                throw new UsageException($"--report: '{pdfOut}' should end in .pdf");
+            foreach (string? o in new[] { jsonOut == "-" ? null : jsonOut, csvOut, metaOut, pdfOut })
                 if (o is not null)
                     AtomicFile.CheckWritable(o, overwrite);
             ChannelGrid? grid = r.GetValue(channels) is { } g ? ParseGrid(g) : null;
@@ -136,6 +147,11 @@ internal static class SurveyCommand
                     SurveyText.WriteCsv(w, result);
                 });
                 summary.WriteLine($"wrote {csvOut}");
+            }
+            if (pdfOut is not null)
+            {
+                AtomicFile.Write(pdfOut, overwrite, s => SurveyPdf.Write(result, s));
+                summary.WriteLine($"wrote {pdfOut}");
             }
             if (metaOut is not null)
             {

@@ -46,7 +46,8 @@ internal sealed class PdfLayout
         _y = Margin;
     }
 
-    private void Need(double h)
+    /// <summary>Starts a new page unless <paramref name="h"/> points fit on this one.</summary>
+    public void Need(double h)
     {
         if (_y + h > Bottom)
             NewPage();
@@ -170,10 +171,19 @@ internal sealed class PdfLayout
         }
     }
 
-    public void ResultsTable(IReadOnlyList<string[]> rows)
+    public void ResultsTable(IReadOnlyList<string[]> rows) =>
+        Table(
+            ["Measurement", "Value", "Unit", "U", "Limit", "Margin", "Verdict"],
+            [0.25, 0.13, 0.07, 0.08, 0.19, 0.11, 0.17],
+            rows,
+            verdicts: true
+        );
+
+    /// <summary>A table of text: a shaded head, then the rows, each column a share <paramref name="frac"/> of the
+    /// width, cells wrapped; with <paramref name="verdicts"/> the last column coloured by verdict.</summary>
+    public void Table(string[] head, double[] frac, IReadOnlyList<string[]> rows, bool verdicts, XFont? font = null)
     {
-        string[] head = ["Measurement", "Value", "Unit", "U", "Limit", "Margin", "Verdict"];
-        double[] frac = [0.25, 0.13, 0.07, 0.08, 0.19, 0.11, 0.17];
+        XFont body = font ?? Body;
         double[] widths = [.. frac.Select(f => f * ContentWidth)];
         void Row(string[] cells, XFont font, XBrush? fill, bool verdictColours)
         {
@@ -216,7 +226,7 @@ internal sealed class PdfLayout
         }
         Row(head, Bold, new XSolidBrush(XColor.FromArgb(232, 238, 245)), false);
         foreach (string[] r in rows)
-            Row(r, Body, null, true);
+            Row(r, body, null, verdicts);
     }
 
     /// <summary>A table whose first column is a small image (a spectrum thumbnail); the last column coloured by

@@ -18,7 +18,7 @@ namespace SignalInspect.Reporting;
 /// </summary>
 public static class PdfReportWriter
 {
-    private const double Dpi = 300;
+    internal const double Dpi = 300;
     private static readonly object FontGate = new();
     private static bool _fontsReady;
 
@@ -435,7 +435,7 @@ public static class PdfReportWriter
         );
     }
 
-    private static int Px(double pt) => (int)Math.Round(pt / 72 * Dpi);
+    internal static int Px(double pt) => (int)Math.Round(pt / 72 * Dpi);
 
     private static void MethodPage(PdfLayout l, MeasurementReport r)
     {

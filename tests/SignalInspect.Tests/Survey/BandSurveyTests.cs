@@ -35,6 +35,7 @@ public sealed class BandFixture : IDisposable
     public JsonElement Json { get; }
     public string Csv { get; }
     public string Copy { get; }
+    public string Pdf { get; }
     public (int Code, string Out, string Err) Run { get; }
 
     public BandFixture()
@@ -74,6 +75,7 @@ public sealed class BandFixture : IDisposable
         DataHashBefore = TestData.Sha256(Data);
         Directory.CreateDirectory(Tmp.File("out"));
         Copy = Tmp.File(Path.Combine("out", "annotated.sigmf-meta"));
+        Pdf = Tmp.File("survey.pdf");
         string json = Tmp.File("survey.json"),
             csv = Tmp.File("survey.csv");
         Run = CliRunner.Run(
@@ -85,6 +87,8 @@ public sealed class BandFixture : IDisposable
             csv,
             "--annotate",
             Copy,
+            "--report",
+            Pdf,
             "--channels",
             "449.99375M:12.5k:8"
         );
@@ -192,6 +196,21 @@ public class BandSurveyTests(BandFixture band) : IClassFixture<BandFixture>
         var (code, info, err) = CliRunner.Run("info", band.Copy);
         Assert.True(code == 0, err);
         Assert.Contains("annotations (5)", info);
+    }
+
+    [Fact]
+    public void The_report_holds_the_plots_the_emissions_the_occupancy_and_the_cautions()
+    {
+        using var doc = UglyToad.PdfPig.PdfDocument.Open(band.Pdf);
+        string text = string.Join("\n", doc.GetPages().Select(p => string.Join(" ", p.GetWords().Select(w => w.Text))));
+        Assert.Contains("Survey of band.sigmf-meta", text);
+        foreach (string cls in new[] { "fm", "cw", "am", "fsk" })
+            Assert.Contains($" {cls} ", text);
+        Assert.Contains("Channel occupancy", text);
+        Assert.Contains("40.", text); // the keyed channel's occupancy
+        Assert.Contains("RF exposure", text);
+        // Three plots: the spectrum, the spectrogram and the occupancy bars.
+        Assert.Equal(3, doc.GetPages().Sum(p => p.GetImages().Count()));
     }
 
     /// <summary>SigMF 1.x core fields (the specification's tables, sigmf-spec.md: global core:datatype and

@@ -19,6 +19,14 @@ public static class SpectrumPlot
 
         /// <summary>Legend text of the limit trace.</summary>
         public string LimitLabel { get; init; } = "limit";
+
+        /// <summary>A second spectrum of the same axis drawn under the first (e.g. the max-hold under the mean), null
+        /// for none.</summary>
+        public PowerSpectrum? Overlay { get; init; }
+
+        /// <summary>Short labels written near the top at frequencies in Hz on the plot's axis (e.g. emission
+        /// numbers).</summary>
+        public IReadOnlyList<(double FrequencyHz, string Text)> Labels { get; init; } = [];
     }
 
     /// <summary>Renders the spectrum to PNG bytes.</summary>
@@ -53,10 +61,19 @@ public static class SpectrumPlot
             xs[i] = (spectrum.FrequenciesHz[i] + offset) / div;
             ys[i] = spectrum.Db(i);
         }
+        double overTop = double.NegativeInfinity;
+        if (marks?.Overlay is { } over && over.Count == spectrum.Count)
+        {
+            double[] oy = [.. Enumerable.Range(0, over.Count).Select(over.Db)];
+            overTop = oy.Max();
+            var under = plot.Add.ScatterLine(xs, oy, PlotStyle.Edge.WithAlpha(0.55));
+            under.LineWidth = 1;
+            under.LegendText = over.Averaging == SpectrumAveraging.MaxHold ? "max hold" : "mean (Welch)";
+        }
         var trace = plot.Add.ScatterLine(xs, ys, PlotStyle.Trace);
         trace.LineWidth = 1;
         trace.LegendText = spectrum.Averaging == SpectrumAveraging.MaxHold ? "max hold" : "mean (Welch)";
-        double top = ys.Max(),
+        double top = Math.Max(ys.Max(), overTop),
             floor = Percentile(ys, 0.05);
         plot.Axes.SetLimitsY(Math.Max(floor - 15, top - 140), top + 8);
         plot.Axes.SetLimitsX(xs[0], xs[^1]);
@@ -76,6 +93,12 @@ public static class SpectrumPlot
                 );
                 l.LineWidth = 1.5f;
                 l.LegendText = marks.LimitLabel;
+            }
+            foreach (var (f, text) in marks.Labels)
+            {
+                var t = plot.Add.Text(text, f / div, top + 4);
+                t.LabelFontSize = 11;
+                t.LabelAlignment = Alignment.LowerCenter;
             }
             plot.ShowLegend(Alignment.UpperLeft);
         }
