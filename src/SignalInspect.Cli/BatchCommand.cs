@@ -60,6 +60,13 @@ internal static class BatchCommand
                 + "a scheduler; join them with 'batch merge'.",
             HelpName = "I/N",
         };
+        var surveyFlag = new Option<bool>("--survey")
+        {
+            Description =
+                "Survey each capture: one row per emission found (its measurements and time on air) instead of one "
+                + "per capture; the survey options (--channels ...) apply. Rows are measured, not judged.",
+        };
+        var survey = new SurveyOptionSet();
         var reader = new ReaderOptionSet();
         var measure = new MeasurementOptionSet();
         var cmd = new Command(
@@ -78,7 +85,9 @@ internal static class BatchCommand
             resume,
             force,
             shard,
+            surveyFlag,
         };
+        survey.AddTo(cmd);
         measure.AddTo(cmd);
         reader.AddTo(cmd);
         cmd.Add(MergeCommand(stdout, stderr));
@@ -86,6 +95,14 @@ internal static class BatchCommand
         {
             var (index, count) = ParseShard(r.GetValue(shard));
             string? profilePath = r.GetValue(limits);
+            bool surveying = r.GetValue(surveyFlag);
+            if (!surveying && survey.FirstGiven(r) is { } alone)
+                throw new UsageException($"{alone}: a survey option; add --survey");
+            if (surveying && profilePath is not null)
+                throw new UsageException(
+                    "--limits: a profile judges one emission on its assigned channel, a survey lists every emission; "
+                        + "judge one with 'analyze --signal FREQ --limits'"
+                );
             LimitProfile? profile = profilePath is null ? null : LimitProfile.Load(profilePath);
             profile = DecisionRuleOption.Apply(profile, r.GetValue(decisionRule));
             int j = r.GetValue(jobs) ?? Math.Max(1, Environment.ProcessorCount);
@@ -117,6 +134,7 @@ internal static class BatchCommand
                 },
                 Jobs = j,
                 Reports = r.GetValue(reports),
+                Survey = surveying ? survey.Read(r, new()) : null,
                 Resume = r.GetValue(resume),
                 ShardIndex = index,
                 ShardCount = count,
@@ -151,16 +169,20 @@ internal static class BatchCommand
                 outcome = BatchRunner.Run(
                     found,
                     options,
-                    (rec, input) =>
+                    (recs, input) =>
                     {
+                        BatchRecord rec = recs[0];
                         doneFiles++;
                         doneBytes += input.Bytes;
                         double mbs = doneBytes / 1e6 / Math.Max(clock.Elapsed.TotalSeconds, 1e-3);
                         double left = mbs > 0 ? (bytes - doneBytes) / 1e6 / mbs : 0;
                         string what =
-                            rec.Status != "error"
-                                ? $"{rec.Modulation}{(rec.Verdict is { } v ? " " + v : string.Empty)}"
-                                : "error: " + rec.Error;
+                            rec.Status == "error" ? "error: " + rec.Error
+                            : rec.Emission is null && options.Survey is not null ? "no emission"
+                            : options.Survey is not null
+                                ? $"{recs.Count} emission(s): "
+                                    + string.Join(", ", recs.Select(x => x.Modulation ?? "?"))
+                            : $"{rec.Modulation}{(rec.Verdict is { } v ? " " + v : string.Empty)}";
                         stderr.WriteLine(
                             string.Create(
                                 CultureInfo.InvariantCulture,
@@ -243,8 +265,15 @@ internal static class BatchCommand
 
     private static void WriteCounts(TextWriter o, IReadOnlyList<BatchRecord> records)
     {
+        bool survey = records.Any(r => r.Emission is not null);
+        if (survey)
+            o.WriteLine(
+                $"emissions             {records.Count(r => r.Emission is not null)} in "
+                    + $"{records.Select(r => (r.File, r.ContentSha256)).Distinct().Count()} capture(s)"
+            );
         o.WriteLine(
-            $"captures              {records.Count} ({records.Count(r => r.Status == "ok")} ok, "
+            (survey ? "rows                  " : "captures              ")
+                + $"{records.Count} ({records.Count(r => r.Status == "ok")} ok, "
                 + (records.Count(r => r.Status == "warn") is > 0 and var warned ? $"{warned} with warnings, " : "")
                 + $"{records.Count(r => r.Status == "error")} could not be read)"
         );

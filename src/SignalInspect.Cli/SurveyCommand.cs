@@ -39,41 +39,7 @@ internal static class SurveyCommand
                 + "table of emissions and the channels' occupancy.",
             HelpName = "OUT.pdf",
         };
-        var channels = new Option<string?>("--channels")
-        {
-            Description =
-                "Channel grid for occupancy, START:STEP:COUNT: COUNT channels STEP Hz wide, the first centred at "
-                + "START (absolute RF when the centre is known), e.g. 462.5625M:12.5k:8.",
-            HelpName = "START:STEP:COUNT",
-        };
-        var minSnr = new Option<double>("--min-snr")
-        {
-            Description = "Least SNR of an emission in its own bins while on, dB.",
-            DefaultValueFactory = _ => 6,
-            HelpName = "DB",
-        };
-        var threshold = new Option<double>("--occupancy-threshold")
-        {
-            Description = "A channel is occupied in a time step when its power exceeds its noise by this much, dB.",
-            DefaultValueFactory = _ => 6,
-            HelpName = "DB",
-        };
-        var steps = new Option<int>("--time-steps")
-        {
-            Description = "Time steps of the time-resolved pass (the time resolution is the window over this).",
-            DefaultValueFactory = _ => 512,
-            HelpName = "N",
-        };
-        var listOnly = new Option<bool>("--list-only")
-        {
-            Description = "List the emissions without measuring each (faster: one pass over the capture).",
-        };
-        var maxMeasured = new Option<int>("--max-measured")
-        {
-            Description = "Measure at most this many emissions (the strongest); the rest are listed.",
-            DefaultValueFactory = _ => 64,
-            HelpName = "N",
-        };
+        var survey = new SurveyOptionSet();
         var force = new Option<bool>("--force") { Description = "Replace existing output files." };
         var measure = new MeasurementOptionSet();
         var reader = new ReaderOptionSet();
@@ -89,14 +55,9 @@ internal static class SurveyCommand
             csv,
             annotate,
             report,
-            channels,
-            minSnr,
-            threshold,
-            steps,
-            listOnly,
-            maxMeasured,
             force,
         };
+        survey.AddTo(cmd);
         measure.AddTo(cmd);
         reader.AddTo(cmd);
         cmd.SetAction(r =>
@@ -111,24 +72,13 @@ internal static class SurveyCommand
             foreach (string? o in new[] { jsonOut == "-" ? null : jsonOut, csvOut, metaOut, pdfOut })
                 if (o is not null)
                     AtomicFile.CheckWritable(o, overwrite);
-            ChannelGrid? grid = r.GetValue(channels) is { } g ? ParseGrid(g) : null;
             CaptureSource source = CaptureSource.Open(r.GetValue(capture)!, reader.Read(r));
             AnalysisOptions options = measure.Read(r, source.Info);
             if (options.Signal is not null)
                 throw new UsageException(
                     "--signal: a survey measures every emission; measure one with 'analyze --signal'"
                 );
-            var settings = new SurveySettings
-            {
-                Analysis = options with { KeepSpectrogram = false },
-                MinSnrDb = r.GetValue(minSnr),
-                OccupancyThresholdDb = r.GetValue(threshold),
-                Rows = r.GetValue(steps),
-                ChannelGrid = grid,
-                MeasureEach = !r.GetValue(listOnly),
-                MaxMeasured = r.GetValue(maxMeasured),
-            };
-            settings.Validate();
+            SurveySettings settings = survey.Read(r, options with { KeepSpectrogram = false });
             SurveyResult result = CliProgress.Run(stderr, "survey", source.Info.SampleCount, report =>
                 BandSurvey.Run(source, settings, progress: report)
             );
@@ -161,19 +111,5 @@ internal static class SurveyCommand
             return ExitCodes.Success;
         });
         return cmd;
-    }
-
-    /// <summary>Parses START:STEP:COUNT (START and STEP with optional SI suffixes).</summary>
-    private static ChannelGrid ParseGrid(string text)
-    {
-        string[] p = text.Split(':');
-        if (
-            p.Length == 3
-            && Units.TryParseSi(p[0], out double start)
-            && Units.TryParseSi(p[1], out double step)
-            && int.TryParse(p[2], System.Globalization.CultureInfo.InvariantCulture, out int count)
-        )
-            return new ChannelGrid(start, step, count);
-        throw new UsageException($"--channels: '{text}' is not START:STEP:COUNT (e.g. 462.5625M:12.5k:8)");
     }
 }

@@ -14,6 +14,13 @@ public sealed record BatchRecord
     /// not be read).</summary>
     public required string Status { get; init; }
 
+    /// <summary>The emission's number in a surveyed capture (batch --survey: one record per emission, strongest
+    /// first); null for a capture measured whole.</summary>
+    public long? Emission { get; init; }
+
+    /// <summary>Share of the capture the emission was on air, percent (surveyed captures only).</summary>
+    public double? OnAirPercent { get; init; }
+
     /// <summary>SHA-256 of the file's content (with its .sigmf-data for a SigMF pair); null when it could not be
     /// read.</summary>
     public string? ContentSha256 { get; init; }
@@ -100,6 +107,8 @@ public sealed record BatchRecord
     [
         "file",
         "status",
+        "emission",
+        "onAirPercent",
         "modulation",
         "carrierFrequencyHz",
         "offsetHz",
@@ -132,6 +141,8 @@ public sealed record BatchRecord
         [
             File,
             Status,
+            Emission,
+            OnAirPercent,
             Modulation,
             CarrierFrequencyHz,
             OffsetHz,
@@ -259,6 +270,8 @@ public sealed record BatchRecord
             {
                 File = S("file") ?? throw new FormatException("no file"),
                 Status = S("status") ?? throw new FormatException("no status"),
+                Emission = D("emission") is { } em ? (long)em : null,
+                OnAirPercent = D("onAirPercent"),
                 ContentSha256 = S("contentSha256"),
                 Bytes = (long)(D("bytes") ?? 0),
                 Modulation = S("modulation"),

@@ -7,6 +7,7 @@ using SignalInspect.Inspection;
 using SignalInspect.Measure;
 using SignalInspect.Reporting;
 using SignalInspect.Reporting.Plots;
+using SignalInspect.Survey;
 
 namespace SignalInspect.Batch;
 
@@ -35,6 +36,11 @@ public sealed record BatchOptions
     /// <summary>How a user error becomes a record's error text (the command line names its options); null for the
     /// message as it is.</summary>
     public Func<UserInputException, string>? DescribeError { get; init; }
+
+    /// <summary>Survey each capture (one record per emission found, each measured and judged as one capture
+    /// is) with these settings (their analysis options are replaced by <see cref="Inspection"/>'s); null to measure
+    /// the strongest emission of each capture.</summary>
+    public SurveySettings? Survey { get; init; }
 
     /// <summary>This shard (1-based) of <see cref="ShardCount"/>.</summary>
     public int ShardIndex { get; init; } = 1;
@@ -199,7 +205,7 @@ public static class BatchRunner
     public static BatchOutcome Run(
         IReadOnlyList<BatchInput> inputs,
         BatchOptions options,
-        Action<BatchRecord, BatchInput>? onRecord = null,
+        Action<IReadOnlyList<BatchRecord>, BatchInput>? onRecord = null,
         CancellationToken cancel = default
     )
     {
@@ -208,7 +214,7 @@ public static class BatchRunner
         using FileStream outLock = LockOutput(options.OutDir);
         // Resume: a capture is done when its path and its content are (the same bytes at two paths are two
         // captures); one that ended in an error is tried again (the error may have been the machine's).
-        var done = new Dictionary<string, BatchRecord>(StringComparer.Ordinal);
+        var done = new Dictionary<string, List<BatchRecord>>(StringComparer.Ordinal);
         string settings = SettingsHash(options);
         if (options.Resume && File.Exists(jsonl))
             foreach (BatchRecord r in ReadJsonlForResume(jsonl))
@@ -222,7 +228,12 @@ public static class BatchRunner
                             + "them; replace the summary or write to another folder"
                     );
                 if (r.Status != "error")
-                    done[ResumeKey(r.ContentSha256, r.File)] = r;
+                {
+                    string key = ResumeKey(r.ContentSha256, r.File);
+                    if (!done.TryGetValue(key, out List<BatchRecord>? rows))
+                        done[key] = rows = [];
+                    rows.Add(r);
+                }
             }
         if (File.Exists(jsonl))
         {
@@ -230,7 +241,7 @@ public static class BatchRunner
             File.Delete(jsonl);
         }
         List<BatchInput> mine = [.. inputs.Where(i => ShardOf(i.Key, options.ShardCount) == options.ShardIndex - 1)];
-        var records = new ConcurrentBag<BatchRecord>(done.Values);
+        var records = new ConcurrentBag<BatchRecord>(done.Values.SelectMany(v => v));
         object gate = new();
         int analysed = 0,
             skipped = 0;
@@ -243,7 +254,7 @@ public static class BatchRunner
             AutoFlush = true,
             NewLine = "\n",
         };
-        foreach (BatchRecord kept in done.Values)
+        foreach (BatchRecord kept in done.Values.SelectMany(v => v))
             append.WriteLine(kept.ToJsonLine());
         try
         {
@@ -264,13 +275,18 @@ public static class BatchRunner
                         Interlocked.Increment(ref skipped);
                         return;
                     }
-                    BatchRecord rec = AnalyseOne(input, hash, options, settings);
+                    IReadOnlyList<BatchRecord> recs = options.Survey is null
+                        ? [AnalyseOne(input, hash, options, settings)]
+                        : BatchSurveyRows.Survey(input, hash, options, settings);
                     lock (gate)
                     {
-                        append.WriteLine(rec.ToJsonLine());
-                        records.Add(rec);
+                        foreach (BatchRecord rec in recs)
+                        {
+                            append.WriteLine(rec.ToJsonLine());
+                            records.Add(rec);
+                        }
                         analysed++;
-                        onRecord?.Invoke(rec, input);
+                        onRecord?.Invoke(recs, input);
                     }
                 }
             );
@@ -284,7 +300,8 @@ public static class BatchRunner
         [
             .. records
                 .OrderBy(r => r.File, StringComparer.Ordinal)
-                .ThenBy(r => r.ContentSha256, StringComparer.Ordinal),
+                .ThenBy(r => r.ContentSha256, StringComparer.Ordinal)
+                .ThenBy(r => r.Emission ?? 0),
         ];
         WriteOutputs(options.OutDir, all, options.Inspection.Profile?.Name);
         return new BatchOutcome(all, analysed, skipped, cancelled);
@@ -302,7 +319,6 @@ public static class BatchRunner
             };
             MeasurementReport model = CaptureInspection.Inspect(source, settings);
             AnalysisResult r = model.Analysis;
-            Verdict? overall = model.Overall;
             string stem = (hash ?? r.Sha256)[..16];
             string thumbRel = Path.Combine("thumbs", stem + ".png");
             Directory.CreateDirectory(Path.Combine(o.OutDir, "thumbs"));
@@ -322,60 +338,87 @@ public static class BatchRunner
                 string pdf = Path.Combine(o.OutDir, reportRel);
                 CaptureInspection.WriteReport(model, pdf, overwrite: true);
             }
-            return new BatchRecord
+            return FromAnalysis(input, hash, source.Info, model, settingsHash) with
             {
-                File = file,
-                Status = r.Warnings.Count > 0 || source.Info.Warnings.Count > 0 ? "warn" : "ok",
-                ContentSha256 = hash,
-                Bytes = input.Bytes,
-                Modulation = r.Classification.Kind.Name(),
-                Confidence = Math.Round(r.Classification.Confidence, 3),
-                ChannelSnrDb = Math.Round(r.ChannelSnrDb, 2),
-                SampleRateHz = source.Info.SampleRateHz,
-                DurationS = source.Info.DurationS,
-                CarrierFrequencyHz = r.Carrier?.FrequencyHz.Value,
-                OffsetHz = r.Carrier?.OffsetHz,
-                OccupiedHz = r.Bandwidth.OccupiedHz,
-                PeakDeviationHz = r.Fm?.PeakDeviationHz.Value ?? r.Fsk?.DeviationHz,
-                DepthPercent = r.Am?.DepthPercent.Value,
-                CarrierUncertaintyHz = 2 * r.Carrier?.FrequencyHz.StandardUncertainty,
-                OccupiedUncertaintyHz = 2 * r.OccupiedUncertaintyHz,
-                PeakDeviationUncertaintyHz =
-                    r.Fm is { } fm ? 2 * fm.PeakDeviationHz.StandardUncertainty
-                    : r.Fsk is { } fsk ? fsk.ShiftHz.StandardUncertainty
-                    : null,
-                DepthUncertaintyPercent = 2 * r.Am?.DepthPercent.StandardUncertainty,
-                EmissionDesignator = r.EmissionDesignator,
-                CenterFrequencyHz = source.Info.CenterFrequencyHz,
-                StartTime = source.Info.StartTime?.UtcDateTime.ToString(
-                    "yyyy-MM-dd'T'HH:mm:ss.FFFFFFF'Z'",
-                    System.Globalization.CultureInfo.InvariantCulture
-                ),
-                FirstIssue = model
-                    .Checks.Where(c => c.Verdict != Verdict.Pass)
-                    .OrderByDescending(c => c.Verdict == Verdict.Fail)
-                    .Select(c => $"{c.Verdict.Text()}: {c.Measurement}" + (c.Reason is { } why ? $" ({why})" : ""))
-                    .FirstOrDefault(),
-                Verdict = overall?.Text(),
-                Settings = settingsHash,
-                Warnings = r.Warnings.Count > 0 ? string.Join("; ", r.Warnings) : null,
                 Report = reportRel?.Replace('\\', '/'),
                 Thumbnail = thumbRel.Replace('\\', '/'),
             };
         }
         catch (Exception e) when (e is UserInputException or IOException or UnauthorizedAccessException)
         {
-            string message = e is UserInputException u && o.DescribeError is { } describe ? describe(u) : e.Message;
-            return new BatchRecord
-            {
-                File = file,
-                Status = "error",
-                ContentSha256 = hash,
-                Bytes = input.Bytes,
-                Error = message.ReplaceLineEndings(" ").Trim(),
-                Settings = settingsHash,
-            };
+            return ErrorRecord(input, hash, o, settingsHash, e);
         }
+    }
+
+    /// <summary>The record of a capture that could not be measured.</summary>
+    internal static BatchRecord ErrorRecord(
+        BatchInput input,
+        string? hash,
+        BatchOptions o,
+        string settings,
+        Exception e
+    )
+    {
+        string message = e is UserInputException u && o.DescribeError is { } describe ? describe(u) : e.Message;
+        return new BatchRecord
+        {
+            File = input.Path,
+            Status = "error",
+            ContentSha256 = hash,
+            Bytes = input.Bytes,
+            Error = message.ReplaceLineEndings(" ").Trim(),
+            Settings = settings,
+        };
+    }
+
+    /// <summary>The record of one measured (and judged) analysis of a capture.</summary>
+    internal static BatchRecord FromAnalysis(
+        BatchInput input,
+        string? hash,
+        CaptureInfo info,
+        MeasurementReport model,
+        string settings
+    )
+    {
+        AnalysisResult r = model.Analysis;
+        return new BatchRecord
+        {
+            File = input.Path,
+            Status = r.Warnings.Count > 0 || info.Warnings.Count > 0 ? "warn" : "ok",
+            ContentSha256 = hash,
+            Bytes = input.Bytes,
+            Modulation = r.Classification.Kind.Name(),
+            Confidence = Math.Round(r.Classification.Confidence, 3),
+            ChannelSnrDb = Math.Round(r.ChannelSnrDb, 2),
+            SampleRateHz = info.SampleRateHz,
+            DurationS = info.DurationS,
+            CarrierFrequencyHz = r.Carrier?.FrequencyHz.Value,
+            OffsetHz = r.Carrier?.OffsetHz,
+            OccupiedHz = r.Bandwidth.OccupiedHz,
+            PeakDeviationHz = r.Fm?.PeakDeviationHz.Value ?? r.Fsk?.DeviationHz,
+            DepthPercent = r.Am?.DepthPercent.Value,
+            CarrierUncertaintyHz = 2 * r.Carrier?.FrequencyHz.StandardUncertainty,
+            OccupiedUncertaintyHz = 2 * r.OccupiedUncertaintyHz,
+            PeakDeviationUncertaintyHz =
+                r.Fm is { } fm ? 2 * fm.PeakDeviationHz.StandardUncertainty
+                : r.Fsk is { } fsk ? fsk.ShiftHz.StandardUncertainty
+                : null,
+            DepthUncertaintyPercent = 2 * r.Am?.DepthPercent.StandardUncertainty,
+            EmissionDesignator = r.EmissionDesignator,
+            CenterFrequencyHz = info.CenterFrequencyHz,
+            StartTime = info.StartTime?.UtcDateTime.ToString(
+                "yyyy-MM-dd'T'HH:mm:ss.FFFFFFF'Z'",
+                System.Globalization.CultureInfo.InvariantCulture
+            ),
+            FirstIssue = model
+                .Checks.Where(c => c.Verdict != Verdict.Pass)
+                .OrderByDescending(c => c.Verdict == Verdict.Fail)
+                .Select(c => $"{c.Verdict.Text()}: {c.Measurement}" + (c.Reason is { } why ? $" ({why})" : ""))
+                .FirstOrDefault(),
+            Verdict = model.Overall?.Text(),
+            Settings = settings,
+            Warnings = r.Warnings.Count > 0 ? string.Join("; ", r.Warnings) : null,
+        };
     }
 
     private static string ResumeKey(string? hash, string file) => (hash ?? "-") + "|" + file;
@@ -397,6 +440,7 @@ public static class BatchRunner
             a.ToString(),
             a.SpectrumBase.ToString(),
             a.Signal?.ToString() ?? "",
+            o.Survey is { } survey ? (survey with { Analysis = new() }).ToString() : "",
             o.Reader.ToString(),
             profile,
             o.Inspection.Profile?.Rule.ToString() ?? ""

@@ -36,6 +36,10 @@ internal static class EmissionSelection
     /// <summary>Least margin either side of the selected emission, bins (the window's main lobe and more).</summary>
     public const int MarginBins = 8;
 
+    /// <summary>How the warning naming another emission of the capture begins (a survey, which lists them all,
+    /// leaves these out of each emission's warnings).</summary>
+    internal const string OtherEmission = "another emission at ";
+
     /// <summary>An emission mirrored about 0 Hz within this share of the measured one's width is taken as the
     /// receiver's IQ image.</summary>
     public const double ImageTolerance = 0.1;
@@ -189,7 +193,8 @@ internal static class EmissionSelection
                 ? string.Create(c, $"a mirror of the measured emission at {axis.ToReported(o.CentreHz):0.#} Hz, ")
                     + string.Create(c, $"{db:0.0} dB relative to it: the receiver's IQ image (not measured, not a ")
                     + "second emission)"
-                : string.Create(c, $"another emission at {axis.ToReported(o.CentreHz):0.#} Hz ")
+                : OtherEmission
+                    + string.Create(c, $"{axis.ToReported(o.CentreHz):0.#} Hz ")
                     + string.Create(c, $"({o.WidthHz:0} Hz wide, {db:+0.0;-0.0} dB relative to the measured one) ")
                     + "was not measured and did not widen the channel; select it to measure it";
         }

@@ -239,6 +239,14 @@ public static class BandSurvey
             : r.Classification.Kind != ModulationKind.Noise
                 ? FrequencyAxis.Of(r.Capture).ToReported((r.Bandwidth.LowerEdgeHz + r.Bandwidth.UpperEdgeHz) / 2)
             : row.CentreHz;
+        // The survey lists every emission: each one's warnings need not name the others.
+        r = r with
+        {
+            Warnings =
+            [
+                .. r.Warnings.Where(w => !w.StartsWith(EmissionSelection.OtherEmission, StringComparison.Ordinal)),
+            ],
+        };
         return row with { Analysis = r, CentreHz = centreHz };
     }
 

@@ -88,7 +88,8 @@ public class BatchCommandTests
         Assert.All(errors, e => Assert.False(string.IsNullOrEmpty(e.GetProperty("error").GetString())));
         Assert.Contains(errors, e => e.GetProperty("error").GetString()!.Contains("not valid JSON at line"));
         Assert.StartsWith(
-            "file,status,modulation,carrierFrequencyHz,offsetHz,occupiedHz,peakDeviationHz,depthPercent,verdict,error",
+            "file,status,emission,onAirPercent,modulation,carrierFrequencyHz,offsetHz,occupiedHz,peakDeviationHz,"
+                + "depthPercent,verdict,error",
             Csv(outDir)
         );
         Assert.True(new FileInfo(Path.Combine(outDir, "summary.pdf")).Length > 1000);
