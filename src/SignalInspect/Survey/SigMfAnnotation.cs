@@ -54,17 +54,22 @@ public static class SigMfAnnotation
         CaptureInfo info = survey.Capture;
         JsonObject global =
             root["global"] as JsonObject ?? throw OutputException.ForFile(info.Path, "has no global object");
-        var ext = global["core:extensions"] as JsonArray ?? [];
-        if (!ext.Any(e => e?["name"]?.GetValue<string>() == Namespace))
+        if (global["core:extensions"] is not JsonArray ext)
+            global["core:extensions"] = ext = [];
+        if (
+            !ext.Any(e =>
+                e is JsonObject o && o["name"] is JsonValue v && v.TryGetValue(out string? n) && n == Namespace
+            )
+        )
             ext.Add(
-                new JsonObject
-                {
-                    ["name"] = Namespace,
-                    ["version"] = "1.0.0",
-                    ["optional"] = true,
-                }
+                (JsonNode)
+                    new JsonObject
+                    {
+                        ["name"] = Namespace,
+                        ["version"] = "1.0.0",
+                        ["optional"] = true,
+                    }
             );
-        global["core:extensions"] = ext;
         string outStem = Path.GetFullPath(outPath)[..^".sigmf-meta".Length];
         string dataFull = Path.GetFullPath(dataPath);
         if (outStem + ".sigmf-data" != dataFull)
@@ -101,7 +106,10 @@ public static class SigMfAnnotation
         }
         var sorted = new JsonArray([.. list.OrderBy(n => n!["core:sample_start"]?.GetValue<long>() ?? 0)]);
         root["annotations"] = sorted;
-        return JsonSerializer.SerializeToUtf8Bytes(root, new JsonSerializerOptions { WriteIndented = true });
+        using var ms = new MemoryStream();
+        using (var w = new Utf8JsonWriter(ms, new JsonWriterOptions { Indented = true }))
+            root.WriteTo(w);
+        return ms.ToArray();
     }
 
     /// <summary>An edge of the emission: its measured occupied band when measured, else the band it was detected

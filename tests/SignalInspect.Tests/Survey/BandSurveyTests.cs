@@ -322,6 +322,68 @@ public class SurveyEdgeTests
         Assert.Equal("", o);
     }
 
+    /// <summary>The copy adds to what the recording's metadata held: its own annotations and extension
+    /// namespaces stay (SigMF asks readers to keep what they do not know).</summary>
+    [Fact]
+    public void The_copy_keeps_the_inputs_annotations_and_extensions()
+    {
+        using var tmp = new TempDir();
+        string meta = tmp.File("p.sigmf-meta");
+        var (code, _, err) = CliRunner.Run(
+            "synth",
+            meta,
+            "--kind",
+            "cw",
+            "--sample-rate",
+            "48k",
+            "--snr",
+            "30",
+            "--center-frequency",
+            "155M"
+        );
+        Assert.True(code == 0, err);
+        var root = System.Text.Json.Nodes.JsonNode.Parse(File.ReadAllText(meta))!;
+        root["global"]!["core:extensions"] = new System.Text.Json.Nodes.JsonArray(
+            new System.Text.Json.Nodes.JsonObject
+            {
+                ["name"] = "fieldlog",
+                ["version"] = "0.1.0",
+                ["optional"] = true,
+            }
+        );
+        root["annotations"] = new System.Text.Json.Nodes.JsonArray(
+            new System.Text.Json.Nodes.JsonObject
+            {
+                ["core:sample_start"] = 0,
+                ["core:sample_count"] = 1000,
+                ["core:label"] = "operator note",
+                ["fieldlog:mark"] = 3,
+            }
+        );
+        File.WriteAllText(meta, root.ToJsonString());
+        string copy = tmp.File("q.sigmf-meta");
+        (code, _, err) = CliRunner.Run("survey", meta, "--annotate", copy);
+        Assert.True(code == 0, err);
+        using var doc = JsonDocument.Parse(File.ReadAllText(copy));
+        string[] names =
+        [
+            .. doc
+                .RootElement.GetProperty("global")
+                .GetProperty("core:extensions")
+                .EnumerateArray()
+                .Select(e => e.GetProperty("name").GetString()!),
+        ];
+        Assert.Equal(["fieldlog", SigMfAnnotation.Namespace], names);
+        JsonElement[] ann = [.. doc.RootElement.GetProperty("annotations").EnumerateArray()];
+        Assert.Equal(2, ann.Length);
+        JsonElement note = Assert.Single(ann, a => a.GetProperty("core:label").GetString() == "operator note");
+        Assert.Equal(3, note.GetProperty("fieldlog:mark").GetInt32());
+        Assert.Single(ann, a => a.GetProperty("core:label").GetString() == "cw");
+        // Beside the data under another name: core:dataset names the data file, and the copy reads through it.
+        Assert.Equal("p.sigmf-data", doc.RootElement.GetProperty("global").GetProperty("core:dataset").GetString());
+        Assert.Equal(2, SignalInspect.Capture.CaptureSource.Open(copy).Info.Annotations.Count);
+    }
+
     [Fact]
     public void Annotations_need_a_SigMF_pair_and_never_overwrite_the_input()
     {
