@@ -13,9 +13,10 @@ namespace SignalInspect.Survey;
 /// N0 chi-square(nu) / nu (nu the step's equivalent degrees of freedom, <see cref="NoiseFloor.EquivalentDof"/>), its
 /// maximum over R steps exceeds the (1 - Pfa)^(1/R) quantile with probability Pfa (constant false-alarm rate per bin,
 /// Pfa = <see cref="EmissionFinder.FalseAlarm"/>). An emission is on in a time step when the power in its band
-/// stands over both the noise's own detection threshold and half its on-level above the noise (a step half keyed
-/// counts half the time: the edge errors of several bursts average out). Each emission is then measured by the same
-/// analysis as <c>analyze</c>, with it selected.
+/// stands over both the noise's own detection threshold and half its on-level above the noise (its median over the
+/// steps it is detected in; a step half keyed counts half the time: the edge errors of several bursts average out).
+/// A weaker emission mirrored about 0 Hz from a stronger one is named as the receiver's suspected IQ image. Each
+/// emission is then measured by the same analysis as <c>analyze</c>, with it selected.
 /// </summary>
 public static class BandSurvey
 {
@@ -105,7 +106,11 @@ public static class BandSurvey
             double nuBand = nu * Math.Max(1, nb / 2.0);
             double detect = noise * ChiSquared.InvCDF(nuBand, 1 - EmissionFinder.FalseAlarm) / nuBand;
             double top = band.Max();
-            double half = noise + 0.5 * (top - noise);
+            // Its on-level: the median of the steps it is detected in (the highest step would set the bar by the
+            // luckiest step of a keyed signal whose power wanders from step to step, as random on-off data does).
+            double[] detected = [.. band.Where(p => p > detect).Order()];
+            double level = detected.Length > 0 ? detected[detected.Length / 2] : top;
+            double half = noise + 0.5 * (level - noise);
             bool[] on = [.. band.Select(p => p > detect && p > half)];
             double onShare = steps.Share(on);
             double meanOn = Enumerable
@@ -119,6 +124,7 @@ public static class BandSurvey
             var row = new SurveyEmission
             {
                 Number = i + 1,
+                ImageOf = info.IsComplex ? ImageOf(found, i, bw) : null,
                 LowHz = axis.ToReported(e.LowHz),
                 HighHz = axis.ToReported(e.HighHz),
                 CentreHz = axis.ToReported(e.CentreHz),
@@ -188,6 +194,27 @@ public static class BandSurvey
             Warnings = warnings,
         };
     }
+
+    /// <summary>An emission mirrored about 0 Hz from a stronger one (within a tenth of that one's width, at least two
+    /// bins), of like width and at least <see cref="ImageBelowDb"/> weaker: the receiver's IQ image of it, named by
+    /// its number (from 1); null otherwise.</summary>
+    internal static int? ImageOf(IReadOnlyList<Emission> found, int i, double binHz)
+    {
+        Emission e = found[i];
+        for (int k = 0; k < i; k++)
+        {
+            Emission s = found[k];
+            bool mirrored = Math.Abs(e.CentreHz + s.CentreHz) <= Math.Max(0.1 * s.WidthHz, 2 * binHz);
+            bool alike = e.WidthHz <= 2 * s.WidthHz && s.WidthHz <= 2 * e.WidthHz;
+            if (mirrored && alike && 10 * Math.Log10(s.Power / e.Power) >= ImageBelowDb && Math.Abs(s.CentreHz) > binHz)
+                return k + 1;
+        }
+        return null;
+    }
+
+    /// <summary>A suspected IQ image is at least this much weaker than its emission, dB (a receiver's image
+    /// rejection is some 25 to 60 dB: common practice).</summary>
+    public const double ImageBelowDb = 10;
 
     /// <summary>Measures one emission with the analysis of <c>analyze</c>, selected by its centre (the analysis
     /// finds its extent); when the analysis's own spectrum does not show it (a short burst in a long capture), by

@@ -91,6 +91,7 @@ public static class SurveyJson
         CaptureInfoJson.WriteNumberOrNull(w, "symbolRateBd", r?.Fsk?.SymbolRateBd?.Value);
         CaptureInfoJson.WriteNumberOrNull(w, "modulatingFrequencyHz", r?.ModulatingFrequencyHz?.Value);
         w.WriteString("emissionDesignator", r?.EmissionDesignator);
+        CaptureInfoJson.WriteNumberOrNull(w, "imageOf", e.ImageOf);
         w.WriteString("notMeasuredReason", e.NotMeasuredReason);
         w.WritePropertyName("analysis");
         if (r is null)

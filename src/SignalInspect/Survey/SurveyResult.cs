@@ -41,6 +41,10 @@ public sealed record SurveyEmission
     /// <summary>End of the last time step it was on, s.</summary>
     public required double LastSeenS { get; init; }
 
+    /// <summary>The number of the stronger emission whose mirror about 0 Hz this one is (the receiver's suspected IQ
+    /// image of it), null when it mirrors none.</summary>
+    public int? ImageOf { get; init; }
+
     /// <summary>Its analysis (class, carrier, bandwidth, deviation ...), null when not measured.</summary>
     public AnalysisResult? Analysis { get; init; }
 

@@ -14,7 +14,7 @@ public static class SurveyText
     public const string CsvHeader =
         "number,frequencyHz,class,occupiedBandwidthHz,peakPowerDb,meanPowerDb,snrDb,onAirPercent,firstSeenS,"
         + "lastSeenS,peakDeviationHz,amDepthPercent,fskShiftHz,symbolRateBd,modulatingFrequencyHz,"
-        + "emissionDesignator,detectedLowHz,detectedHighHz,notMeasuredReason";
+        + "emissionDesignator,detectedLowHz,detectedHighHz,imageOf,notMeasuredReason";
 
     /// <summary>One CSV row per emission, after <see cref="CsvHeader"/>.</summary>
     public static void WriteCsv(TextWriter w, SurveyResult s)
@@ -43,6 +43,7 @@ public static class SurveyText
                 r?.EmissionDesignator ?? "",
                 F(e.LowHz, 1),
                 F(e.HighHz, 1),
+                e.ImageOf?.ToString(C) ?? "",
                 Cell(e.NotMeasuredReason ?? ""),
             ];
             w.WriteLine(string.Join(',', cells));
@@ -92,8 +93,9 @@ public static class SurveyText
     /// <summary>The key measurements of an emission, or why it was not measured.</summary>
     public static string Key(SurveyEmission e)
     {
+        string image = e.ImageOf is { } of ? $"suspected IQ image of #{of}; " : "";
         if (e.Analysis is not { } r)
-            return "not measured: " + e.NotMeasuredReason;
+            return image + "not measured: " + e.NotMeasuredReason;
         var parts = new List<string>();
         if (r.Fm is { } fm)
             parts.Add(string.Create(C, $"deviation {fm.PeakDeviationHz.Value:0} Hz"));
@@ -112,7 +114,7 @@ public static class SurveyText
             parts.Add(string.Create(C, $"tone {fm2.Value:0.0} Hz"));
         if (r.EmissionDesignator is { } d)
             parts.Add(d);
-        return string.Join(", ", parts);
+        return image + string.Join(", ", parts);
     }
 
     private static string Seen(SurveyEmission e) =>

@@ -267,6 +267,57 @@ public class SurveyEdgeTests
         Near.Equal(h, BandSurvey.ExpectedMaximum(2, rows), 1e-4 * h, $"E[max] of {rows}");
     }
 
+    /// <summary>A wideband capture as an SDR gives it: a handheld with the receiver's IQ image 30 dB down at minus its
+    /// offset, a short burst of on-off keyed data (0.15 s of 3 s: 5 % of the time, random bits within it), a weak
+    /// FM carrier. The image is listed and named as such; the burst's time on air is its keyed window (its zeros
+    /// inside are data, not silence).</summary>
+    [Fact]
+    public void The_IQ_image_is_named_and_a_short_keyed_burst_timed()
+    {
+        using var tmp = new TempDir();
+        string path = tmp.File("wide.sigmf");
+        var (code, _, err) = CliRunner.Run(
+            "synth",
+            path,
+            "--kind",
+            "fm",
+            "--sample-rate",
+            "1M",
+            "--duration",
+            "3",
+            "--center-frequency",
+            "460M",
+            "--offset",
+            "300k",
+            "--amplitude",
+            "0.5",
+            "--snr",
+            "25",
+            "--image",
+            "-30",
+            "--also",
+            "ook:-400k:-10:rate=1000:on=0.6-0.75",
+            "--also",
+            "fm:200k:-35:dev=2k"
+        );
+        Assert.True(code == 0, err);
+        var (c, json, e) = CliRunner.Run("survey", path, "--json", "-");
+        Assert.True(c == 0, e);
+        using var doc = JsonDocument.Parse(json);
+        JsonElement[] em = [.. doc.RootElement.GetProperty("emissions").EnumerateArray()];
+        Assert.Equal(4, em.Length);
+        JsonElement main = Assert.Single(em, x => Math.Abs(x.GetProperty("frequencyHz").GetDouble() - 460.3e6) < 1000);
+        JsonElement image = Assert.Single(em, x => Math.Abs(x.GetProperty("frequencyHz").GetDouble() - 459.7e6) < 1000);
+        Assert.Equal(main.GetProperty("number").GetInt32(), image.GetProperty("imageOf").GetInt32());
+        Assert.All(em.Where(x => !x.Equals(image)), x =>
+            Assert.Equal(JsonValueKind.Null, x.GetProperty("imageOf").ValueKind)
+        );
+        JsonElement ook = Assert.Single(em, x => Math.Abs(x.GetProperty("frequencyHz").GetDouble() - 459.6e6) < 1000);
+        Assert.Equal("ook", ook.GetProperty("class").GetString());
+        Near.Equal(5, ook.GetProperty("onAirPercent").GetDouble(), 1.5, "OOK burst on air");
+        Near.Equal(0.6, ook.GetProperty("firstSeenS").GetDouble(), 0.02, "OOK first seen");
+    }
+
     [Fact]
     public void A_capture_of_noise_lists_no_emission_and_says_so()
     {
