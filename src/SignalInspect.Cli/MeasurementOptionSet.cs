@@ -20,6 +20,8 @@ internal sealed class MeasurementOptionSet
     private readonly Option<double?> hp;
     private readonly Option<double?> deemph;
     private readonly Option<double?> interval;
+    private readonly Option<double?> discriminator;
+    private readonly Option<double?> discriminatorU;
     private readonly ReferenceOptionSet _reference = new();
     private readonly SpectrumCommand.SpectrumOptionSet _spectrum = new();
 
@@ -81,12 +83,41 @@ internal sealed class MeasurementOptionSet
                 + "on the worst window.",
             HelpName = "S",
         };
+        discriminator = Units.SiOption(
+            "--discriminator",
+            "The capture is real audio from a receiver's FM discriminator, HZ of deviation per full scale (from a "
+                + "calibration with a known deviation): deviation, modulating tones and transmissions are read from "
+                + "it; carrier and occupied bandwidth are not measurable and their limits NOT TESTED.",
+            "HZ"
+        );
+        discriminatorU = new Option<double?>("--discriminator-uncertainty")
+        {
+            Description =
+                "Standard uncertainty (k = 1) of the --discriminator scale, percent (default: not stated, 0).",
+            HelpName = "PERCENT",
+        };
     }
 
     /// <summary>Adds the options to a command.</summary>
     public void AddTo(Command cmd)
     {
-        foreach (Option o in new Option[] { signal, nominal, expect, obw, xdb, obwNoise, lp, hp, deemph, interval })
+        foreach (
+            Option o in new Option[]
+            {
+                signal,
+                nominal,
+                expect,
+                obw,
+                xdb,
+                obwNoise,
+                lp,
+                hp,
+                deemph,
+                interval,
+                discriminator,
+                discriminatorU,
+            }
+        )
             cmd.Options.Add(o);
         _reference.AddTo(cmd);
         _spectrum.AddTo(cmd);
@@ -127,6 +158,8 @@ internal sealed class MeasurementOptionSet
             StartS = r.GetValue(_spectrum.Start) ?? 0,
             DurationS = r.GetValue(_spectrum.Duration),
             Threads = r.GetValue(_spectrum.Threads),
+            DiscriminatorHzPerFullScale = r.GetValue(discriminator),
+            DiscriminatorUncertaintyPercent = r.GetValue(discriminatorU),
         };
         return _reference.Apply(r, options);
     }

@@ -39,6 +39,8 @@ internal static class OptionNames
             ["ReceiverErrorPpm"] = "--receiver-error",
             ["ReceiverErrorUncertaintyPpm"] = "--receiver-error-uncertainty",
             ["ReferenceCarrierHz"] = "--reference-carrier",
+            ["DiscriminatorHzPerFullScale"] = "--discriminator",
+            ["DiscriminatorUncertaintyPercent"] = "--discriminator-uncertainty",
             // Synthesis (SignalSpec)
             ["Amplitude"] = "--amplitude",
             ["CarrierOffsetHz"] = "--offset",

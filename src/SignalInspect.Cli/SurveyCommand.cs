@@ -74,6 +74,11 @@ internal static class SurveyCommand
                     AtomicFile.CheckWritable(o, overwrite);
             CaptureSource source = CaptureSource.Open(r.GetValue(capture)!, reader.Read(r));
             AnalysisOptions options = measure.Read(r, source.Info);
+            if (options.DiscriminatorHzPerFullScale is not null)
+                throw new UsageException(
+                    "--discriminator: a survey finds emissions in an RF capture; measure discriminator audio with "
+                        + "'analyze --discriminator'"
+                );
             if (options.Signal is not null)
                 throw new UsageException(
                     "--signal: a survey measures every emission; measure one with 'analyze --signal'"

@@ -108,6 +108,12 @@ internal static class SynthCommand
             HelpName = "KIND:OFFSET:DBC[:NAME=VALUE...]",
             AllowMultipleArgumentsPerToken = false,
         };
+        var discriminator = Units.SiOption(
+            "--discriminator",
+            "Write an FM signal's discriminator audio instead of the signal: real audio, the deviation over HZ per "
+                + "full scale (with --kind fm and --real; the noise only while keyed: a squelch between bursts).",
+            "HZ"
+        );
         var keyUp = new Option<string?>("--key-up")
         {
             Description =
@@ -195,6 +201,7 @@ internal static class SynthCommand
             spur,
             burst,
             also,
+            discriminator,
             keyUp,
             image,
             noiseBand,
@@ -244,6 +251,7 @@ internal static class SynthCommand
                 Spurs = [.. (r.GetValue(spur) ?? []).Select(t => Pair("--spur", t)).Select(p => new Spur(p.A, p.B))],
                 ImageDbc = r.GetValue(image),
                 NoiseBandHz = r.GetValue(noiseBand),
+                DiscriminatorHzPerFullScale = r.GetValue(discriminator),
                 Bursts = [.. (r.GetValue(burst) ?? []).Select(t => ParseBurst(t, r.GetValue(kind) == "am"))],
                 KeyUp = r.GetValue(keyUp) is { } ku
                     ? Pair("--key-up", ku) is var (e, tau)

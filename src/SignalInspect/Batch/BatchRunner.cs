@@ -394,11 +394,11 @@ public static class BatchRunner
             DurationS = info.DurationS,
             CarrierFrequencyHz = r.Carrier?.FrequencyHz.Value,
             OffsetHz = r.Carrier?.OffsetHz,
-            OccupiedHz = r.Bandwidth.OccupiedHz,
+            OccupiedHz = r.DiscriminatorHzPerFullScale is null ? r.Bandwidth.OccupiedHz : null,
             PeakDeviationHz = r.Fm?.PeakDeviationHz.Value ?? r.Fsk?.DeviationHz,
             DepthPercent = r.Am?.DepthPercent.Value,
             CarrierUncertaintyHz = 2 * r.Carrier?.FrequencyHz.StandardUncertainty,
-            OccupiedUncertaintyHz = 2 * r.OccupiedUncertaintyHz,
+            OccupiedUncertaintyHz = r.DiscriminatorHzPerFullScale is null ? 2 * r.OccupiedUncertaintyHz : null,
             PeakDeviationUncertaintyHz =
                 r.Fm is { } fm ? 2 * fm.PeakDeviationHz.StandardUncertainty
                 : r.Fsk is { } fsk ? fsk.ShiftHz.StandardUncertainty

@@ -192,9 +192,10 @@ public static partial class Judgement
         ModulationKind kind = r.Classification.Kind;
         // Without a carrier: no signal, or a signal of no known class (whose mean frequency is no carrier).
         string noSignal =
-            kind == ModulationKind.Unknown
+            r.DiscriminatorHzPerFullScale is not null ? DiscriminatorAnalysis.NoRf
+            : kind == ModulationKind.Unknown
                 ? "the class found (unknown: neither AM nor angle modulation) has no carrier to measure against it"
-                : string.Create(c, $"no signal was found (SNR in band {r.ChannelSnrDb:0.#} dB): nothing to measure");
+            : string.Create(c, $"no signal was found (SNR in band {r.ChannelSnrDb:0.#} dB): nothing to measure");
         string Unlike(string what) =>
             kind == ModulationKind.Noise ? noSignal : $"{what} does not apply to the class found ({kind.Name()})";
         if (p.Modulation.Count > 0)
@@ -257,7 +258,7 @@ public static partial class Judgement
             string what = string.Create(c, $"occupied bandwidth ({100 * (1 - r.Bandwidth.Beta):0.#} %)");
             string text = string.Create(c, $"<= {maxObw:0.###} Hz");
             checks.Add(
-                kind == ModulationKind.Noise
+                kind == ModulationKind.Noise || r.DiscriminatorHzPerFullScale is not null
                     ? LimitCheck.NotTested(what, "Hz", text, src, noSignal)
                     : Upper(what, r.Bandwidth.OccupiedHz, "Hz", k * r.OccupiedUncertaintyHz, maxObw, text, src)
             );

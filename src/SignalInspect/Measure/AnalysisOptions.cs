@@ -71,6 +71,14 @@ public sealed record AnalysisOptions
     /// frequency; null for none.</summary>
     public double? ReferenceCarrierHz { get; init; }
 
+    /// <summary>The capture is real audio from a receiver's FM discriminator, this many Hz of deviation per full scale
+    /// (from a calibration with a known deviation); null for a capture of the signal itself.</summary>
+    public double? DiscriminatorHzPerFullScale { get; init; }
+
+    /// <summary>Standard uncertainty (k = 1) of <see cref="DiscriminatorHzPerFullScale"/>, percent; null when not
+    /// stated (taken as 0, and said so).</summary>
+    public double? DiscriminatorUncertaintyPercent { get; init; }
+
     /// <summary>Worker threads for the spectrum; null for one per core.</summary>
     public int? Threads { get; init; }
 
@@ -123,6 +131,34 @@ public sealed record AnalysisOptions
                 nameof(ReceiverErrorUncertaintyPpm),
                 ReceiverErrorUncertaintyPpm,
                 "is the uncertainty of a declared receiver error, and none was declared"
+            );
+        if (DiscriminatorHzPerFullScale is { } dk && !(dk > 0 && dk <= 1e7))
+            throw new SettingException(
+                nameof(DiscriminatorHzPerFullScale),
+                dk,
+                "must be a positive number of Hz per full scale (at most 10 MHz)"
+            );
+        if (DiscriminatorUncertaintyPercent is { } du && !(du >= 0 && du <= 100))
+            throw new SettingException(nameof(DiscriminatorUncertaintyPercent), du, "must be from 0 to 100 percent");
+        if (DiscriminatorUncertaintyPercent is not null && DiscriminatorHzPerFullScale is null)
+            throw new SettingException(
+                nameof(DiscriminatorUncertaintyPercent),
+                DiscriminatorUncertaintyPercent,
+                "is the uncertainty of a discriminator's scale, and none was given"
+            );
+        if (
+            DiscriminatorHzPerFullScale is not null
+            && (
+                ReferenceCarrierHz is not null
+                || ReceiverErrorPpm is not null
+                || Signal is not null
+                || Expect is not null
+            )
+        )
+            throw new SettingException(
+                nameof(DiscriminatorHzPerFullScale),
+                DiscriminatorHzPerFullScale,
+                "reads discriminator audio: it has no carrier to correct or select and is FM by nature"
             );
         if (ReferenceCarrierHz is { } rc && !(rc > 0 && double.IsFinite(rc)))
             throw new SettingException(nameof(ReferenceCarrierHz), rc, "must be a positive RF frequency in Hz");

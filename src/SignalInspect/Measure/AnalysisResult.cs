@@ -139,6 +139,11 @@ public sealed record AnalysisResult
                 .ToAxis(FrequencyReference is { } f ? f.Read(c.FrequencyHz.Value) : c.FrequencyHz.Value)
             : null;
 
+    /// <summary>The scale of discriminator audio, Hz per full scale, when the capture was one (the deviation read from
+    /// it; no carrier, and <see cref="Bandwidth"/> is the audio's, not an RF occupied bandwidth); null for a capture
+    /// of the signal itself.</summary>
+    public double? DiscriminatorHzPerFullScale { get; init; }
+
     /// <summary>How the figures were obtained, beyond the method record (one line each).</summary>
     public IReadOnlyList<string> Notes { get; init; } = [];
 }

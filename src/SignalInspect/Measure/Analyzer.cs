@@ -38,6 +38,8 @@ public static class Analyzer
     {
         options ??= new AnalysisOptions();
         options.Validate();
+        if (options.DiscriminatorHzPerFullScale is not null)
+            return DiscriminatorAnalysis.Analyze(source, options, progress, cancel);
         CaptureInfo info = source.Info;
         Task<string> hash = Task.Run(() => FileHash.Sha256(info.DataPath ?? info.Path), cancel);
         FrequencyReference? reference = null;
@@ -453,10 +455,7 @@ public static class Analyzer
                 }
             );
         }
-        int longest = 0;
-        for (int i = 1; i < measured.Count; i++)
-            if (measured[i].DurationS > measured[longest].DurationS)
-                longest = i;
+        int longest = TransmissionFinder.Longest(measured);
         AnalysisResult top = measured[longest].Result!;
         CultureInfo c = CultureInfo.InvariantCulture;
         Transmission l = measured[longest];

@@ -1,3 +1,5 @@
+using SignalInspect.Spectrum;
+
 namespace SignalInspect.Measure;
 
 /// <summary>FM measurements from the post-detection instantaneous frequency.</summary>
@@ -48,31 +50,44 @@ internal static class FmMeasurement
     }
 
     /// <summary>Measures an FM signal.</summary>
-    public static (FmResult Result, MeasurementExtras Extras) Measure(MeasurementInputs m)
-    {
-        DemodulatedFeatures f = m.Features;
-        double pPos = f.PositivePeakHz,
-            pNeg = f.NegativePeakHz;
-        bool corrected =
-            m.Tone is { } tone
-            && TonePeaks.TryCorrect(
+    public static (FmResult Result, MeasurementExtras Extras) Measure(MeasurementInputs m) =>
+        Measure(
+            new FmStream(
                 m.Pass.ToneSpectrum,
                 m.Components,
-                tone.Value,
+                m.Tone,
                 m.MinToneHz,
                 m.Channel.PostLowPassHz,
-                ref pPos,
-                ref pNeg
-            );
+                m.Pass.Freq,
+                m.Features.PositivePeakHz,
+                m.Features.NegativePeakHz,
+                m.Pass.FreqMean,
+                m.Pass.FreqRms,
+                m.Pass.Samples,
+                DiscriminatorNoiseHz(m),
+                m.Channel.DecimatedRateHz,
+                m.NoiseGrowth
+            )
+        );
+
+    /// <summary>Measures FM from its instantaneous frequency stream, however it was obtained (demodulated here or
+    /// recorded at a receiver's discriminator).</summary>
+    public static (FmResult Result, MeasurementExtras Extras) Measure(FmStream m)
+    {
+        double pPos = m.PositivePeakHz,
+            pNeg = m.NegativePeakHz;
+        bool corrected =
+            m.Tone is { } tone
+            && TonePeaks.TryCorrect(m.ToneSpectrum, m.Components, tone.Value, m.MinToneHz, m.TopHz, ref pPos, ref pNeg);
         // Several components: the peak of their sum is rare (tones align seldom) and a percentile reads it low (eight
         // tones: 2825 Hz for 3720). Each side's peak is then the larger of the percentile and the extreme less what
         // the noise can add to an extreme (sqrt(2 ln N) of its rms, from the channel's SNR alone).
         double extremeLift = 0;
         if (!corrected && m.Components.Count >= 2)
         {
-            double lift = TonePeaks.ExtremeLift(DiscriminatorNoiseHz(m), m.Pass.Samples);
-            double xPos = m.Pass.Freq.Max - m.Pass.FreqMean - lift,
-                xNeg = m.Pass.FreqMean - m.Pass.Freq.Min - lift;
+            double lift = TonePeaks.ExtremeLift(m.NoiseHz, m.Samples);
+            double xPos = m.Freq.Max - m.MeanHz - lift,
+                xNeg = m.MeanHz - m.Freq.Min - lift;
             // The budget carries the extreme's terms only where the extreme decides.
             if (Math.Max(xPos, xNeg) > Math.Max(pPos, pNeg))
                 extremeLift = lift;
@@ -84,7 +99,7 @@ internal static class FmMeasurement
             peak,
             TypeB.FmPeakFraction,
             m.NoiseGrowth,
-            m.Pass.Freq.BinWidth,
+            m.Freq.BinWidth,
             "TypeB.FmPeakFraction"
         );
         if (corrected && m.Tone is { } tc)
@@ -94,7 +109,7 @@ internal static class FmMeasurement
                 new(
                     "noise under the corrected peak",
                     TypeB.FmCorrectedPeakNoiseShare
-                        * Math.Sqrt(m.Pass.ToneSpectrum.Split(tc.Value, m.MinToneHz, m.Channel.PostLowPassHz).Noise),
+                        * Math.Sqrt(m.ToneSpectrum.Split(tc.Value, m.MinToneHz, m.TopHz).Noise),
                     "TypeB.FmCorrectedPeakNoiseShare x rms of the demodulated noise"
                 ),
             ];
@@ -104,19 +119,12 @@ internal static class FmMeasurement
                 .. budget,
                 new(
                     "noise on the raw peak",
-                    TonePeaks.RawPeakNoise(
-                        m.Pass.ToneSpectrum,
-                        m.Components,
-                        raw.Value,
-                        m.MinToneHz,
-                        m.Channel.PostLowPassHz,
-                        1
-                    ),
+                    TonePeaks.RawPeakNoise(m.ToneSpectrum, m.Components, raw.Value, m.MinToneHz, m.TopHz, 1),
                     "rms of the demodulated noise (band power less the modulating components')"
                 ),
             ];
         if (extremeLift > 0)
-            budget = [.. budget, .. TonePeaks.ExtremeBudget(extremeLift, m.Components, m.Channel.DecimatedRateHz)];
+            budget = [.. budget, .. TonePeaks.ExtremeBudget(extremeLift, m.Components, m.RateHz)];
         if (!corrected && m.Components.Count >= 2)
             budget =
             [
@@ -131,6 +139,8 @@ internal static class FmMeasurement
                         + "2 pi 0.001 sqrt(A B) below A + B (the cap of the torus above the level)"
                 ),
             ];
+        if (m.Extra is { } extra)
+            budget = [.. budget, extra(peak)];
 
         var result = new FmResult
         {
@@ -138,7 +148,7 @@ internal static class FmMeasurement
             PositivePeakHz = pPos,
             NegativePeakHz = pNeg,
             HalfPeakToPeakHz = (pPos + pNeg) / 2,
-            RmsDeviationHz = m.Pass.FreqRms,
+            RmsDeviationHz = m.RmsHz,
             ModulationIndex = m.Tone is { } t ? peak / t.Value : null,
             PeakPhaseRad =
                 m.Components.Count > 0 ? m.Components.Sum(c => c.PeakAmount / c.FrequencyHz)
@@ -149,3 +159,38 @@ internal static class FmMeasurement
         return (result, new MeasurementExtras(necessary, corrected));
     }
 }
+
+/// <summary>An instantaneous frequency stream's statistics, all FM is measured from.</summary>
+/// <param name="ToneSpectrum">Its line spectrum (Hz).</param>
+/// <param name="Components">The modulating components found in it.</param>
+/// <param name="Tone">The modulating frequency, or null.</param>
+/// <param name="MinToneHz">Lowest modulating frequency searched, Hz.</param>
+/// <param name="TopHz">Highest frequency of the stream taken as modulation (its post-detection band), Hz.</param>
+/// <param name="Freq">Its histogram, Hz.</param>
+/// <param name="PositivePeakHz">Its upper percentile less its mean, Hz.</param>
+/// <param name="NegativePeakHz">Its mean less its lower percentile, Hz.</param>
+/// <param name="MeanHz">Its mean, Hz.</param>
+/// <param name="RmsHz">Its rms about the mean, Hz.</param>
+/// <param name="Samples">Samples in it.</param>
+/// <param name="NoiseHz">Rms of the noise on it, Hz (what noise can add to an extreme).</param>
+/// <param name="RateHz">Its sample rate, Hz.</param>
+/// <param name="NoiseGrowth">How the type-B peak figures grow with the noise (<see cref="TypeB.NoiseGrowth"/>).</param>
+/// <param name="Extra">One more budget component of the peak, from the peak (e.g. a scale's calibration); null for
+/// none.</param>
+internal sealed record FmStream(
+    LineSpectrum ToneSpectrum,
+    IReadOnlyList<ModulatingComponent> Components,
+    Measured? Tone,
+    double MinToneHz,
+    double TopHz,
+    Dsp.Histogram Freq,
+    double PositivePeakHz,
+    double NegativePeakHz,
+    double MeanHz,
+    double RmsHz,
+    long Samples,
+    double NoiseHz,
+    double RateHz,
+    double NoiseGrowth,
+    Func<double, UncertaintyComponent>? Extra = null
+);

@@ -26,7 +26,14 @@ internal static class ModulatingTone
             _ => null,
         };
         double top = kind == ModulationKind.Am ? envelopeTopHz : postLowPassHz;
-        if (source?.Peak(minHz, top) is not { } peak)
+        return source is null ? null : Find(source, minHz, top);
+    }
+
+    /// <summary>The strongest line of <paramref name="source"/> between <paramref name="minHz"/> and
+    /// <paramref name="topHz"/>, with its resolution as its uncertainty; null when none stands out.</summary>
+    public static Measured? Find(LineSpectrum source, double minHz, double topHz)
+    {
+        if (source.Peak(minHz, topHz) is not { } peak)
             return null;
         double resolution = Math.Max(source.BinWidthHz / TypeB.ToneBinDivisor, TypeB.ToneFraction * peak.FrequencyHz);
         return Measured.FromBudget(

@@ -253,13 +253,13 @@ internal static class TonePeaks
     /// <summary>The method record's words for the peak statistic of a measurement of <paramref name="kind"/>.</summary>
     public static string Describe(
         ModulationKind kind,
-        Demodulation.PassResult pass,
+        Demodulation.PassResult? pass,
         bool corrected,
         IReadOnlyList<ModulatingComponent> components
     )
     {
         bool freq = kind is ModulationKind.Fm or ModulationKind.Fsk;
-        bool jitter = freq ? pass.JitterFrequency : pass.JitterEnvelope;
+        bool jitter = pass is not null && (freq ? pass.JitterFrequency : pass.JitterEnvelope);
         string cutoff = freq ? "the post-detection cutoff" : "the channel filter's cutoff";
         string how = jitter
             ? "read at a pseudo-random instant in each sample interval (64-phase band-limited interpolation; "

@@ -138,6 +138,17 @@ public static class TransmissionFinder
         ];
     }
 
+    /// <summary>The index of the longest of <paramref name="list"/> (the first among equals); its figures stand for a
+    /// capture measured transmission by transmission.</summary>
+    public static int Longest(IReadOnlyList<Transmission> list)
+    {
+        int longest = 0;
+        for (int i = 1; i < list.Count; i++)
+            if (list[i].DurationS > list[longest].DurationS)
+                longest = i;
+        return longest;
+    }
+
     private static int FirstCounted(IReadOnlyList<double> p)
     {
         for (int b = 0; b < p.Count; b++)

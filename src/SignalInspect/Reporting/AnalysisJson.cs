@@ -12,7 +12,7 @@ namespace SignalInspect.Reporting;
 public static class AnalysisJson
 {
     /// <summary>Format version of this JSON.</summary>
-    public const string SchemaVersion = "3";
+    public const string SchemaVersion = "4";
 
     /// <summary>Serialises the result to UTF-8 JSON bytes.</summary>
     public static byte[] ToBytes(AnalysisResult r, bool indented = true)
@@ -120,16 +120,18 @@ public static class AnalysisJson
             w.WriteEndObject();
         }
         var b = r.Bandwidth;
+        // Discriminator audio holds no RF spectrum: its bandwidths are not written.
+        bool rf = r.DiscriminatorHzPerFullScale is null;
         w.WriteStartObject("bandwidth");
-        w.WriteNumber("occupiedHz", b.OccupiedHz);
-        w.WriteNumber("occupiedUncertaintyHz", r.OccupiedUncertaintyHz);
+        CaptureInfoJson.WriteNumberOrNull(w, "occupiedHz", rf ? b.OccupiedHz : null);
+        CaptureInfoJson.WriteNumberOrNull(w, "occupiedUncertaintyHz", rf ? r.OccupiedUncertaintyHz : null);
         w.WriteNumber("occupiedPercent", 100 * (1 - b.Beta));
-        w.WriteNumber("lowerEdgeHz", Abs(b.LowerEdgeHz));
-        w.WriteNumber("upperEdgeHz", Abs(b.UpperEdgeHz));
-        w.WriteNumber("xdbHz", b.XdbHz);
+        CaptureInfoJson.WriteNumberOrNull(w, "lowerEdgeHz", rf ? Abs(b.LowerEdgeHz) : null);
+        CaptureInfoJson.WriteNumberOrNull(w, "upperEdgeHz", rf ? Abs(b.UpperEdgeHz) : null);
+        CaptureInfoJson.WriteNumberOrNull(w, "xdbHz", rf ? b.XdbHz : null);
         w.WriteNumber("xdb", b.Xdb);
-        w.WriteNumber("xdbLowerEdgeHz", Abs(b.XdbLowerEdgeHz));
-        w.WriteNumber("xdbUpperEdgeHz", Abs(b.XdbUpperEdgeHz));
+        CaptureInfoJson.WriteNumberOrNull(w, "xdbLowerEdgeHz", rf ? Abs(b.XdbLowerEdgeHz) : null);
+        CaptureInfoJson.WriteNumberOrNull(w, "xdbUpperEdgeHz", rf ? Abs(b.XdbUpperEdgeHz) : null);
         w.WriteNumber("rbwHz", r.Method.RbwHz);
         w.WriteString("noiseFloor", b.Treatment == NoiseFloorTreatment.Subtract ? "subtracted" : "kept");
         w.WriteNumber(
@@ -271,6 +273,7 @@ public static class AnalysisJson
         CaptureInfoJson.WriteNumberOrNull(w, "deEmphasisUs", m.DeEmphasisUs);
         w.WriteString("peakStatistic", m.PeakStatistic);
         w.WriteBoolean("dcSuppressed", r.Spectrum.DcBinsSuppressed > 0);
+        CaptureInfoJson.WriteNumberOrNull(w, "discriminatorHzPerFullScale", r.DiscriminatorHzPerFullScale);
         w.WriteEndObject();
         w.WriteStartArray("notes");
         foreach (string n in info.Notes.Concat(r.Notes))

@@ -29,13 +29,17 @@ public static class ConsoleReport
                 + (cls.Expected ? ", as asked" : string.Empty)
                 + $"): {cls.Reason}"
         );
-        Line("SNR in band", a.ChannelSnrDb.ToString("0.0", C) + " dB");
+        Line(
+            a.DiscriminatorHzPerFullScale is null ? "SNR in band" : "SNR (demodulated)",
+            a.ChannelSnrDb.ToString("0.0", C) + " dB"
+        );
         IReadOnlyList<string> transmissions = ResultRows.Transmissions(a, k);
         for (int i = 0; i < transmissions.Count; i++)
             Line(i == 0 ? "transmissions" : "", transmissions[i]);
         if (ResultRows.TimelineSummary(a, k) is { } timeline)
             Line("carrier against time", timeline);
-        Line("frequency reference", a.FrequencyReference?.Text ?? "not corrected (as the receiver read)");
+        if (a.DiscriminatorHzPerFullScale is null)
+            Line("frequency reference", a.FrequencyReference?.Text ?? "not corrected (as the receiver read)");
         foreach (string n in a.Notes)
             Line("note", n);
         foreach (ResultRow row in ResultRows.For(a, [], k))

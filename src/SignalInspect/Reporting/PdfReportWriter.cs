@@ -243,11 +243,14 @@ public static class PdfReportWriter
         var psd = a.Spectrum.Mean;
         bool abs = FrequencyAxis.Of(a.Capture).IsAbsolute;
         double shift = abs ? a.Capture.CenterFrequencyHz!.Value : 0;
-        var lines = new List<(double, string)>
-        {
-            (a.Bandwidth.LowerEdgeHz + shift, $"OBW {100 * (1 - a.Bandwidth.Beta):0.#} % edges"),
-            (a.Bandwidth.UpperEdgeHz + shift, ""),
-        };
+        // Discriminator audio: its spectrum is the demodulated audio's, with no RF occupied band to mark.
+        var lines = a.DiscriminatorHzPerFullScale is null
+            ? new List<(double, string)>
+            {
+                (a.Bandwidth.LowerEdgeHz + shift, $"OBW {100 * (1 - a.Bandwidth.Beta):0.#} % edges"),
+                (a.Bandwidth.UpperEdgeHz + shift, ""),
+            }
+            : [];
         IReadOnlyList<(double, double)>? limit = null;
         string limitLabel = "limit";
         if (r.Profile?.Mask is { } mask && a.Carrier is { } car)
@@ -274,7 +277,7 @@ public static class PdfReportWriter
         double hSpec = 210;
         byte[] spec = SpectrumPlot.RenderPng(
             a.Spectrum.MaxHold is { } hold && limit is not null ? hold : psd,
-            "Spectrum ("
+            (a.DiscriminatorHzPerFullScale is null ? "Spectrum (" : "Discriminator audio spectrum (")
                 + psd.Window.Name
                 + ", RBW "
                 + psd.RbwHz.ToString("0.##", C)

@@ -243,23 +243,27 @@ public static class ResultRows
             if (car.OffsetPpm is { } ppm)
                 Info("carrier.offsetPpm", "carrier offset", ppm, "ppm", null, "0.####");
         }
-        Info(
-            "bandwidth.occupied",
-            $"occupied bandwidth ({100 * (1 - a.Bandwidth.Beta):0.#} %)",
-            a.Bandwidth.OccupiedHz,
-            "Hz",
-            a.OccupiedUncertaintyHz,
-            "0.#",
-            a.Am is null && a.Fsk is null ? "OBW" : null
-        );
-        Info(
-            "bandwidth.xdb",
-            $"{a.Bandwidth.Xdb:0.#} dB bandwidth",
-            a.Bandwidth.XdbHz,
-            "Hz",
-            a.Method.RbwHz / Math.Sqrt(3),
-            "0.#"
-        );
+        // Discriminator audio holds no RF spectrum: no bandwidth row (its notes say why).
+        if (a.DiscriminatorHzPerFullScale is null)
+        {
+            Info(
+                "bandwidth.occupied",
+                $"occupied bandwidth ({100 * (1 - a.Bandwidth.Beta):0.#} %)",
+                a.Bandwidth.OccupiedHz,
+                "Hz",
+                a.OccupiedUncertaintyHz,
+                "0.#",
+                a.Am is null && a.Fsk is null ? "OBW" : null
+            );
+            Info(
+                "bandwidth.xdb",
+                $"{a.Bandwidth.Xdb:0.#} dB bandwidth",
+                a.Bandwidth.XdbHz,
+                "Hz",
+                a.Method.RbwHz / Math.Sqrt(3),
+                "0.#"
+            );
+        }
         if (a.Fm is { } fm)
         {
             Info(

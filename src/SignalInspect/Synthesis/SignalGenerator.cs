@@ -169,6 +169,21 @@ public sealed class SignalGenerator
                     a = 0;
                     break;
             }
+            if (s.DiscriminatorHzPerFullScale is { } scale)
+            {
+                // The discriminator's output: the deviation, noise only while the carrier is on (squelch).
+                double dev = 0;
+                if (a > 0)
+                {
+                    dev =
+                        (amount ?? s.PeakDeviationHz) * Math.Cos(2 * Math.PI * Frac(s.ModulatingFrequencyHz * _n / fs));
+                    foreach (ExtraTone x in s.ExtraTones)
+                        dev += x.Amount * Math.Cos(2 * Math.PI * Frac(x.FrequencyHz * _n / fs));
+                    dev = dev / scale + (_noiseSigma > 0 ? Gaussian() * _noiseSigma : 0);
+                }
+                destination[i] = dev;
+                continue;
+            }
             double theta = 2 * Math.PI * cycles + phi;
             double zi = a * Math.Cos(theta),
                 zq = a * Math.Sin(theta);

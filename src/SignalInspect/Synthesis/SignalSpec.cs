@@ -168,6 +168,12 @@ public sealed record SignalSpec
     /// complex or real output as this one.</summary>
     public IReadOnlyList<SignalSpec> Others { get; init; } = [];
 
+    /// <summary>Write what a receiver's FM discriminator gives instead of the signal: real audio, the instantaneous
+    /// frequency's deviation (D cos(2 pi fm t) + sum D_i cos(2 pi f_i t)) over this many Hz per full scale, the noise
+    /// added only while the carrier is on (the squelch closes between bursts: silence); null for the signal
+    /// itself. FM and real output only.</summary>
+    public double? DiscriminatorHzPerFullScale { get; init; }
+
     /// <summary>Pulse width, s (pulse trains).</summary>
     public double PulseWidthS { get; init; } = 0.001;
 
@@ -212,6 +218,8 @@ public sealed record SignalSpec
                     * Math.Min(1, PulseWidthS / PulsePeriodS),
                 _ => Amplitude * Amplitude,
             };
+            if (DiscriminatorHzPerFullScale is { } k)
+                return (PeakDeviationHz * PeakDeviationHz + ExtraTones.Sum(t => t.Amount * t.Amount)) / (2 * k * k);
             return IsComplex ? p : p / 2;
         }
     }
@@ -261,7 +269,7 @@ public sealed record SignalSpec
                 CarrierOffsetHz,
                 "must lie inside +/- half the sample rate"
             );
-        if (!IsComplex && CarrierOffsetHz <= 0)
+        if (!IsComplex && CarrierOffsetHz <= 0 && DiscriminatorHzPerFullScale is null)
             throw new SettingException(
                 nameof(CarrierOffsetHz),
                 CarrierOffsetHz,
@@ -366,6 +374,15 @@ public sealed record SignalSpec
             throw new SettingException(nameof(DriftHzPerS), DriftHzPerS, "must be a number");
         if (SnrDb is { } s && !double.IsFinite(s))
             throw new SettingException(nameof(SnrDb), s, "must be a number in dB");
+        if (
+            DiscriminatorHzPerFullScale is { } dk
+            && (!(dk > 0) || Kind != SignalKind.Fm || IsComplex || Others.Count > 0)
+        )
+            throw new SettingException(
+                nameof(DiscriminatorHzPerFullScale),
+                dk,
+                "writes an FM signal's discriminator audio: needs a positive scale, FM, real output and one emission"
+            );
         foreach (SignalSpec o in Others)
         {
             if (o.SampleRateHz != SampleRateHz || o.DurationS != DurationS || o.IsComplex != IsComplex)

@@ -65,6 +65,8 @@ public static class Synthesizer
             mod += string.Format(c, ", an IQ image at {0:R} dBc", image);
         if (s.NoiseBandHz is { } nb)
             mod += string.Format(c, ", noise within +/-{0:R} Hz only (a band-limited receiver)", nb);
+        if (s.DiscriminatorHzPerFullScale is { } dk)
+            mod += string.Format(c, ", written as discriminator audio at {0:R} Hz per full scale", dk);
         foreach (SignalSpec o in s.Others)
             mod += "; beside it " + Describe(o).Replace("synthesised: ", "").Replace(", no noise", "");
         string snr = s.SnrDb is { } db ? string.Format(c, ", SNR {0:R} dB", db) : ", no noise";

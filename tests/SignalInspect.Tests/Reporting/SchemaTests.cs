@@ -59,6 +59,15 @@ public class SchemaTests
             Assert.True(code == 0, err);
             Valid(info, json, "info " + Path.GetFileName(c));
         }
+        // Discriminator audio: no carrier, no RF bandwidths (nulls where the schema allows them).
+        string disc = tmp.File("disc.wav");
+        Assert.Equal(
+            0,
+            CliRunner.Run("synth", disc, "--real", "--kind", "fm", "--discriminator", "5k", "--snr", "40").Code
+        );
+        var (dc, discJson, discErr) = CliRunner.Run("analyze", disc, "--discriminator", "5k", "--json", "-");
+        Assert.True(dc == 0, discErr);
+        Valid(analyze, discJson, "discriminator audio");
         string fm = captures[0];
         // Judged: the keyed capture against the land-mobile profile has checks of every kind, transients included.
         string profile = TestData.Repo("profiles", "land-mobile-12k5-vhf.json");
