@@ -7,6 +7,7 @@ public class HelpTests
     [InlineData("info")]
     [InlineData("spectrum")]
     [InlineData("analyze")]
+    [InlineData("survey")]
     [InlineData("synth")]
     [InlineData("batch")]
     [InlineData("demo")]
