@@ -22,6 +22,7 @@ internal sealed class MeasurementOptionSet
     private readonly Option<double?> interval;
     private readonly Option<double?> discriminator;
     private readonly Option<double?> discriminatorU;
+    private readonly Option<double?> referenceDeviation;
     private readonly ReferenceOptionSet _reference = new();
     private readonly SpectrumCommand.SpectrumOptionSet _spectrum = new();
 
@@ -90,6 +91,11 @@ internal sealed class MeasurementOptionSet
                 + "it; carrier and occupied bandwidth are not measurable and their limits NOT TESTED.",
             "HZ"
         );
+        referenceDeviation = Units.SiOption(
+            "--reference-deviation",
+            "Reference deviation in Hz for the hum-and-noise ratio of an unmodulated carrier (its rms over the "
+                + "residual FM), e.g. 60 % of the channel's maximum."
+        );
         discriminatorU = new Option<double?>("--discriminator-uncertainty")
         {
             Description =
@@ -116,6 +122,7 @@ internal sealed class MeasurementOptionSet
                 interval,
                 discriminator,
                 discriminatorU,
+                referenceDeviation,
             }
         )
             cmd.Options.Add(o);
@@ -160,6 +167,7 @@ internal sealed class MeasurementOptionSet
             Threads = r.GetValue(_spectrum.Threads),
             DiscriminatorHzPerFullScale = r.GetValue(discriminator),
             DiscriminatorUncertaintyPercent = r.GetValue(discriminatorU),
+            ReferenceDeviationHz = r.GetValue(referenceDeviation),
         };
         return _reference.Apply(r, options);
     }

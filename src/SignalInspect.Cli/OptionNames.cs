@@ -63,6 +63,8 @@ internal static class OptionNames
             ["ImageDbc"] = "--image",
             ["NoiseBandHz"] = "--noise-band",
             ["Others"] = "--also",
+            ["ResidualFmHz"] = "--residual-fm",
+            ["ReferenceDeviationHz"] = "--reference-deviation",
             // Survey (SurveySettings)
             ["MinSnrDb"] = "--min-snr",
             ["Rows"] = "--time-steps",

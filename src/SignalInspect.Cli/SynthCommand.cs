@@ -114,6 +114,12 @@ internal static class SynthCommand
                 + "full scale (with --kind fm and --real; the noise only while keyed: a squelch between bursts).",
             "HZ"
         );
+        var residualFm = Units.SiOption(
+            "--residual-fm",
+            "Residual FM: Gaussian frequency noise of HZ rms within 300-3000 Hz on the carrier (a transmitter's hum "
+                + "and noise; complex output).",
+            "HZ"
+        );
         var keyUp = new Option<string?>("--key-up")
         {
             Description =
@@ -202,6 +208,7 @@ internal static class SynthCommand
             burst,
             also,
             discriminator,
+            residualFm,
             keyUp,
             image,
             noiseBand,
@@ -252,6 +259,7 @@ internal static class SynthCommand
                 ImageDbc = r.GetValue(image),
                 NoiseBandHz = r.GetValue(noiseBand),
                 DiscriminatorHzPerFullScale = r.GetValue(discriminator),
+                ResidualFmHz = r.GetValue(residualFm),
                 Bursts = [.. (r.GetValue(burst) ?? []).Select(t => ParseBurst(t, r.GetValue(kind) == "am"))],
                 KeyUp = r.GetValue(keyUp) is { } ku
                     ? Pair("--key-up", ku) is var (e, tau)

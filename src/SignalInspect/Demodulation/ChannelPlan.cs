@@ -120,6 +120,10 @@ public sealed record ChannelPlan
         double reach = Math.Max(Math.Max(upperEdgeHz - coarse, coarse - lowerEdgeHz), 0) * OccupiedReach;
         reach = Math.Max(reach, SpectralReach(psd, coarse, noiseFloorDensity));
         double passEdge = Math.Max(reach + PassEdgeBins * bin, MinPassBins * bin);
+        // A post-detection band asked for is kept by the channel too (a carrier's residual FM up to 3 kHz needs a
+        // channel of +/-3 kHz, wider than the carrier's own line).
+        if (postLowPassHz is { } asked)
+            passEdge = Math.Max(passEdge, asked);
         double nyquist = fs / 2;
         double usable = complex ? nyquist : Math.Min(coarse, nyquist - coarse);
         bool filter = FilterRoom * passEdge < UsableShare * usable;

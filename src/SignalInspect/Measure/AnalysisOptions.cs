@@ -79,6 +79,10 @@ public sealed record AnalysisOptions
     /// stated (taken as 0, and said so).</summary>
     public double? DiscriminatorUncertaintyPercent { get; init; }
 
+    /// <summary>The hum-and-noise ratio's reference deviation, Hz (e.g. 60 % of the channel's maximum); null for no
+    /// ratio.</summary>
+    public double? ReferenceDeviationHz { get; init; }
+
     /// <summary>Worker threads for the spectrum; null for one per core.</summary>
     public int? Threads { get; init; }
 
@@ -132,6 +136,8 @@ public sealed record AnalysisOptions
                 ReceiverErrorUncertaintyPpm,
                 "is the uncertainty of a declared receiver error, and none was declared"
             );
+        if (ReferenceDeviationHz is { } rd && !(rd > 0 && rd <= 1e7))
+            throw new SettingException(nameof(ReferenceDeviationHz), rd, "must be a positive deviation in Hz");
         if (DiscriminatorHzPerFullScale is { } dk && !(dk > 0 && dk <= 1e7))
             throw new SettingException(
                 nameof(DiscriminatorHzPerFullScale),

@@ -83,6 +83,10 @@ public sealed record AnalysisResult
     /// <summary>The modulating components (tones) of AM, FM and PM, strongest first; empty otherwise.</summary>
     public IReadOnlyList<ModulatingComponent> ModulatingComponents { get; init; } = [];
 
+    /// <summary>The demodulated audio's quality (distortion, SINAD, residual modulation, sub-audible tone); null for
+    /// classes without demodulated audio.</summary>
+    public AudioQualityResult? Audio { get; init; }
+
     /// <summary>Necessary bandwidth by the 47 CFR 2.202 formulas, Hz; null when none applies.</summary>
     public double? NecessaryBandwidthHz { get; init; }
 

@@ -394,6 +394,16 @@ public static class Analyzer
             Ook = ook,
             ModulatingFrequencyHz = kind is ModulationKind.Am or ModulationKind.Fm or ModulationKind.Pm ? tone : null,
             ModulatingComponents = inputs.Components,
+            Audio = AudioQuality.Measure(
+                kind,
+                b.ToneSpectrum,
+                b.EnvelopeSpectrum,
+                features.EnvelopeMean,
+                tone,
+                inputs.Components,
+                channel.PostLowPassHz,
+                options.ReferenceDeviationHz
+            ),
             NecessaryBandwidthHz = extras.NecessaryBandwidthHz,
             EmissionDesignator = EmissionDesignator.Format(kind, extras.NecessaryBandwidthHz),
             Spectrum = spectrum,

@@ -271,6 +271,16 @@ internal static class DiscriminatorAnalysis
             Fm = fm,
             ModulatingFrequencyHz = tone,
             ModulatingComponents = components,
+            Audio = AudioQuality.Measure(
+                ModulationKind.Fm,
+                lines,
+                lines,
+                0,
+                tone,
+                components,
+                top,
+                o.ReferenceDeviationHz
+            ),
             Spectrum = sp,
             Method = method,
             Warnings = [],

@@ -252,6 +252,7 @@ public static class AnalysisJson
             w.WriteEndObject();
         }
         w.WriteEndArray();
+        AudioJson.Write(w, r.Audio);
         CaptureInfoJson.WriteNumberOrNull(w, "necessaryBandwidthHz", r.NecessaryBandwidthHz);
         if (r.EmissionDesignator is { } d)
             w.WriteString("emissionDesignator", d);

@@ -373,6 +373,37 @@ public static class ResultRows
                 ""
             );
         }
+        if (a.Audio is { } au)
+        {
+            string band = string.Create(C, $"{au.BandLowHz:0}-{au.BandHighHz:0} Hz");
+            if (au.ThdPercent is { } thd)
+                Info("audio.thd", "THD (harmonics 2-10)", thd.Value, "%", thd.StandardUncertainty, "0.##");
+            if (au.ThdNPercent is { } thdn)
+                Info("audio.thdN", $"THD+N ({band})", thdn.Value, "%", thdn.StandardUncertainty, "0.##");
+            if (au.SinadDb is { } sinad)
+                Info("audio.sinad", $"SINAD ({band})", sinad.Value, "dB", sinad.StandardUncertainty, "0.##");
+            if (au.ResidualFmHz is { } rfm)
+                Info(
+                    "audio.residualFm",
+                    $"residual FM ({band}, rms)",
+                    rfm.Value,
+                    "Hz",
+                    rfm.StandardUncertainty,
+                    "0.##"
+                );
+            if (au.ResidualAmPercent is { } ram)
+                Info("audio.residualAm", $"residual AM ({band}, rms)", ram, "%", null, "0.###");
+            if (au.HumNoiseDb is { } hn)
+                Info("audio.humNoise", "hum and noise ratio", hn, "dB", null, "0.#");
+            if (au.SubAudible is { } sub)
+                Words(
+                    "audio.subAudible",
+                    "sub-audible tone",
+                    string.Create(C, $"{sub.FrequencyHz.Value:0.0} Hz, deviation {sub.DeviationHz:0} Hz"),
+                    "",
+                    sub.StandardHz is { } std ? string.Create(C, $"standard tone {std:0.0} Hz") : "non-standard"
+                );
+        }
         if (a.EmissionDesignator is { } d)
             Words(
                 "emissionDesignator",

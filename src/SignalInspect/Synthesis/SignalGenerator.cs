@@ -19,6 +19,12 @@ public sealed class SignalGenerator
     private readonly double[] _noiseRing = [];
     private int _noiseAt;
     private readonly SignalGenerator[] _others;
+    private readonly Random _fmRandom;
+    private readonly double[] _fmTaps = [];
+    private readonly double[] _fmRing = [];
+    private int _fmAt;
+    private double _fmScale,
+        _fmCycles;
     private double[] _otherBuffer = [];
 
     /// <summary>Creates a generator at sample 0.</summary>
@@ -31,6 +37,23 @@ public sealed class SignalGenerator
         _noiseSigma = spec.SnrDb is { } snr ? Math.Sqrt(spec.SignalPower / Math.Pow(10, snr / 10)) : 0;
         if (spec.Kind == SignalKind.Noise)
             _noiseSigma = Math.Sqrt(spec.SignalPower);
+        _fmRandom = new Random(spec.Seed + 7919);
+        if (spec.ResidualFmHz is { } rfm)
+        {
+            // Band-pass 300-3000 Hz as the difference of two low-passes of one length; white noise scaled so that
+            // the output's rms is the residual asked for (its variance is sum h^2 times the input's).
+            double fs = spec.SampleRateHz;
+            double[] hi = Dsp.FirDesign.LowPass(3000, fs, 200, 80, 4095),
+                lo = Dsp.FirDesign.LowPass(300, fs, 200, 80, 4095);
+            int n = Math.Max(hi.Length, lo.Length);
+            _fmTaps = new double[n];
+            for (int i = 0; i < hi.Length; i++)
+                _fmTaps[i + (n - hi.Length) / 2] += hi[i];
+            for (int i = 0; i < lo.Length; i++)
+                _fmTaps[i + (n - lo.Length) / 2] -= lo[i];
+            _fmRing = new double[n];
+            _fmScale = rfm / Math.Sqrt(_fmTaps.Sum(h => h * h));
+        }
         _others = [.. spec.Others.Select(o => new SignalGenerator(o with { SnrDb = null, NoiseBandHz = null }))];
         if (spec.NoiseBandHz is { } band)
         {
@@ -60,6 +83,21 @@ public sealed class SignalGenerator
             nq += h[k] * _noiseRing[2 * j + 1];
         }
         return (ni, nq);
+    }
+
+    /// <summary>The residual FM's phase so far in cycles: band-limited Gaussian frequency noise, integrated.</summary>
+    private double NextResidualCycles(double fs)
+    {
+        int l = _fmTaps.Length;
+        _fmAt = (_fmAt + 1) % l;
+        double u1 = 1 - _fmRandom.NextDouble(),
+            u2 = _fmRandom.NextDouble();
+        _fmRing[_fmAt] = Math.Sqrt(-2 * Math.Log(u1)) * Math.Cos(2 * Math.PI * u2) * _fmScale;
+        double f = 0;
+        for (int k = 0; k < l; k++)
+            f += _fmTaps[k] * _fmRing[(_fmAt - k + l) % l];
+        _fmCycles = Frac(_fmCycles + f / fs);
+        return _fmCycles;
     }
 
     /// <summary>Values per sample: 2 for complex, 1 for real.</summary>
@@ -106,6 +144,8 @@ public sealed class SignalGenerator
                     a = 0;
             }
             double cycles = Frac(offset * _n / fs) + Frac(0.5 * s.DriftHzPerS * t * t);
+            if (_fmTaps.Length > 0)
+                cycles += NextResidualCycles(fs);
             if (s.KeyUp is { } ku && a > 0)
                 cycles += Frac(ku.ExcursionHz * ku.TauS * (1 - Math.Exp(-(t - keyedAt) / ku.TauS)));
             double phi = 0;

@@ -174,6 +174,10 @@ public sealed record SignalSpec
     /// itself. FM and real output only.</summary>
     public double? DiscriminatorHzPerFullScale { get; init; }
 
+    /// <summary>Residual FM: Gaussian frequency noise of this rms, Hz, within 300-3000 Hz (a transmitter's hum and
+    /// noise), added to the carrier's phase; null for none. Complex output only.</summary>
+    public double? ResidualFmHz { get; init; }
+
     /// <summary>Pulse width, s (pulse trains).</summary>
     public double PulseWidthS { get; init; } = 0.001;
 
@@ -382,6 +386,12 @@ public sealed record SignalSpec
                 nameof(DiscriminatorHzPerFullScale),
                 dk,
                 "writes an FM signal's discriminator audio: needs a positive scale, FM, real output and one emission"
+            );
+        if (ResidualFmHz is { } rf && !(rf > 0 && rf < SampleRateHz / 4 && IsComplex && SampleRateHz > 8000))
+            throw new SettingException(
+                nameof(ResidualFmHz),
+                rf,
+                "needs complex output at more than 8 kHz and a positive rms below a quarter of the sample rate"
             );
         foreach (SignalSpec o in Others)
         {

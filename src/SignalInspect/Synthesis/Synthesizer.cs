@@ -65,6 +65,8 @@ public static class Synthesizer
             mod += string.Format(c, ", an IQ image at {0:R} dBc", image);
         if (s.NoiseBandHz is { } nb)
             mod += string.Format(c, ", noise within +/-{0:R} Hz only (a band-limited receiver)", nb);
+        if (s.ResidualFmHz is { } rfm)
+            mod += string.Format(c, ", residual FM {0:R} Hz rms in 300-3000 Hz", rfm);
         if (s.DiscriminatorHzPerFullScale is { } dk)
             mod += string.Format(c, ", written as discriminator audio at {0:R} Hz per full scale", dk);
         foreach (SignalSpec o in s.Others)

@@ -1,0 +1,328 @@
+using SignalInspect.Spectrum;
+
+namespace SignalInspect.Measure;
+
+/// <summary>A sub-audible tone found under the modulation (tone squelch).</summary>
+/// <param name="FrequencyHz">Its frequency, Hz, with its resolution as uncertainty.</param>
+/// <param name="DeviationHz">Its peak deviation, Hz.</param>
+/// <param name="StandardHz">The standard tone it matches (within <see cref="AudioQuality.ToneMatchPercent"/>), or
+/// null for a non-standard one.</param>
+public sealed record SubAudibleTone(Measured FrequencyHz, double DeviationHz, double? StandardHz);
+
+/// <summary>The demodulated audio's quality: distortion of the test tone, SINAD, residual modulation of an
+/// unmodulated carrier, the sub-audible tone.</summary>
+public sealed record AudioQualityResult
+{
+    /// <summary>Lower edge of the audio band the distortion-plus-noise and residual figures are taken in, Hz.</summary>
+    public required double BandLowHz { get; init; }
+
+    /// <summary>Upper edge of that band, Hz.</summary>
+    public required double BandHighHz { get; init; }
+
+    /// <summary>The weighting applied within the band.</summary>
+    public string Weighting { get; init; } = "none (flat within the band)";
+
+    /// <summary>The test tone the distortion is of, Hz; null when none was measured.</summary>
+    public double? ToneHz { get; init; }
+
+    /// <summary>Total harmonic distortion (harmonics 2 to 10 that the stream holds, over the fundamental), percent
+    /// of amplitude.</summary>
+    public Measured? ThdPercent { get; init; }
+
+    /// <summary>Distortion plus noise in the band over everything in the band (fundamental included), percent of
+    /// amplitude: 100 x 10^(-SINAD / 20).</summary>
+    public Measured? ThdNPercent { get; init; }
+
+    /// <summary>SINAD in the band, dB: (signal + noise + distortion) / (noise + distortion).</summary>
+    public Measured? SinadDb { get; init; }
+
+    /// <summary>Each harmonic found (2 to 10), percent of the fundamental's amplitude.</summary>
+    public IReadOnlyList<(int Harmonic, double Percent)> Harmonics { get; init; } = [];
+
+    /// <summary>Residual FM of an unmodulated carrier: rms deviation in the band, Hz.</summary>
+    public Measured? ResidualFmHz { get; init; }
+
+    /// <summary>Residual AM of an unmodulated carrier: rms of the envelope in the band over its mean,
+    /// percent.</summary>
+    public double? ResidualAmPercent { get; init; }
+
+    /// <summary>Hum-and-noise ratio, dB: the reference deviation's rms (a sine: D / sqrt 2) over the residual FM;
+    /// null without a reference deviation.</summary>
+    public double? HumNoiseDb { get; init; }
+
+    /// <summary>The sub-audible tone, or null.</summary>
+    public SubAudibleTone? SubAudible { get; init; }
+
+    /// <summary>Why the tone's distortion is not given (no tone, a tone outside the band ...), or null.</summary>
+    public string? DistortionNotTested { get; init; }
+}
+
+/// <summary>
+/// Audio quality from the demodulated signal's line spectrum (post-detection, the modulation's unit): the test
+/// tone's harmonics (THD), distortion plus noise and SINAD in the land-mobile audio band, residual FM and AM of an
+/// unmodulated carrier, and the sub-audible tone matched against the standard list. The band is 300-3000 Hz (the
+/// land-mobile audio band of the TIA-603 and ETSI transmitter methods: common practice), flat within it.
+/// </summary>
+internal static class AudioQuality
+{
+    /// <summary>The audio band's edges, Hz.</summary>
+    public const double BandLowHz = 300,
+        BandHighHz = 3000;
+
+    /// <summary>Sub-audible tones are looked for below this, Hz.</summary>
+    public const double SubAudibleTopHz = 260;
+
+    /// <summary>A sub-audible tone matches a standard one within this share of it, percent (decoders open within a few
+    /// percent; neighbouring standard tones are about 3.5 % apart: common practice).</summary>
+    public const double ToneMatchPercent = 1;
+
+    /// <summary>The standard sub-audible (CTCSS) tones, Hz: 67.0 to 254.1 Hz (from memory; the range and the
+    /// examples 67.0, 71.9, 77.0, 88.5, 100.0, 118.8, 131.8, 151.4, 203.5, 250.3 are checked in
+    /// testdata/REFERENCE-VALUES.md).</summary>
+    public static readonly double[] StandardTones =
+    [
+        67.0,
+        69.3,
+        71.9,
+        74.4,
+        77.0,
+        79.7,
+        82.5,
+        85.4,
+        88.5,
+        91.5,
+        94.8,
+        97.4,
+        100.0,
+        103.5,
+        107.2,
+        110.9,
+        114.8,
+        118.8,
+        123.0,
+        127.3,
+        131.8,
+        136.5,
+        141.3,
+        146.2,
+        150.0,
+        151.4,
+        156.7,
+        159.8,
+        162.2,
+        165.5,
+        167.9,
+        171.3,
+        173.8,
+        177.3,
+        179.9,
+        183.5,
+        186.2,
+        189.9,
+        192.8,
+        196.6,
+        199.5,
+        203.5,
+        206.5,
+        210.7,
+        218.1,
+        225.7,
+        229.1,
+        233.6,
+        241.8,
+        250.3,
+        254.1,
+    ];
+
+    private const int Guard = ModulatingComponents.Guard;
+
+    /// <summary>The audio quality of a stream (<paramref name="s"/>, in Hz for FM, envelope units for AM) whose
+    /// modulation the analysis found; null for classes without demodulated audio.</summary>
+    /// <param name="kind">The class.</param>
+    /// <param name="s">The post-detection stream's line spectrum.</param>
+    /// <param name="envelope">The envelope's line spectrum (residual AM).</param>
+    /// <param name="envelopeMean">The envelope's mean (AM depth's and residual AM's reference).</param>
+    /// <param name="tone">The test tone found, or null.</param>
+    /// <param name="components">The modulating components.</param>
+    /// <param name="topHz">The stream's highest frequency (its post-detection band), Hz.</param>
+    /// <param name="referenceDeviationHz">The hum-and-noise ratio's reference deviation, or null.</param>
+    public static AudioQualityResult? Measure(
+        ModulationKind kind,
+        LineSpectrum s,
+        LineSpectrum envelope,
+        double envelopeMean,
+        Measured? tone,
+        IReadOnlyList<ModulatingComponent> components,
+        double topHz,
+        double? referenceDeviationHz
+    )
+    {
+        if (kind is not (ModulationKind.Fm or ModulationKind.Am or ModulationKind.Cw) || s.Segments == 0)
+            return null;
+        double high = Math.Min(BandHighHz, topHz);
+        var result = new AudioQualityResult { BandLowHz = BandLowHz, BandHighHz = high };
+        LineSpectrum audio = kind == ModulationKind.Am ? envelope : s;
+        if (kind == ModulationKind.Cw)
+        {
+            double fm = Math.Sqrt(BandVariance(s, BandLowHz, high));
+            double am = envelopeMean > 0 ? 100 * Math.Sqrt(BandVariance(envelope, BandLowHz, high)) / envelopeMean : 0;
+            Measured residual = Measured.FromBudget(
+                fm,
+                new UncertaintyComponent(
+                    "estimate's spread",
+                    fm / Math.Sqrt(2 * Math.Max(1, s.Segments * BandBins(s, BandLowHz, high))),
+                    "a variance summed over B bins of K segments: relative spread 1 / sqrt(2 K B)"
+                )
+            );
+            return result with
+            {
+                ResidualFmHz = residual,
+                ResidualAmPercent = am,
+                HumNoiseDb =
+                    referenceDeviationHz is { } dref && fm > 0 ? 20 * Math.Log10(dref / Math.Sqrt(2) / fm) : null,
+                DistortionNotTested = "an unmodulated carrier: no tone to measure the distortion of",
+            };
+        }
+        result = result with { SubAudible = kind == ModulationKind.Fm ? FindSubAudible(s, components) : null };
+        if (tone is not { } t)
+            return result with { DistortionNotTested = "no modulating tone was found" };
+        double f0 = t.Value;
+        if (!(f0 >= BandLowHz && f0 <= high))
+            return result with
+            {
+                ToneHz = f0,
+                DistortionNotTested = FormattableString.Invariant(
+                    $"the tone ({f0:0.#} Hz) lies outside the audio band ({BandLowHz:0}-{high:0} Hz)"
+                ),
+            };
+        double floor = FloorPerBin(audio, BandLowHz, high, f0);
+        double p1 = LineVariance(audio, f0, floor);
+        if (!(p1 > 0))
+            return result with { ToneHz = f0, DistortionNotTested = "the tone's line holds no power over the noise" };
+        var harmonics = new List<(int, double)>();
+        double pd = 0,
+            pn = 0;
+        for (int k = 2; k <= 10 && k * f0 < Math.Min(topHz, 0.45 * audio.BinWidthHz * audio.FftSize); k++)
+        {
+            double ph = LineVariance(audio, k * f0, floor);
+            pd += ph;
+            pn += floor * (2 * Guard + 1) * ToVariance(audio);
+            harmonics.Add((k, 100 * Math.Sqrt(ph / p1)));
+        }
+        double thd = 100 * Math.Sqrt(pd / p1);
+        double thdNoisy = 100 * Math.Sqrt((pd + pn) / p1);
+        double total = BandVariance(audio, BandLowHz, high);
+        double rest = Math.Max(total - p1, 1e-30);
+        double sinad = 10 * Math.Log10(total / rest);
+        double spread = 1 / Math.Sqrt(2 * Math.Max(1, audio.Segments * BandBins(audio, BandLowHz, high)));
+        return result with
+        {
+            ToneHz = f0,
+            Harmonics = harmonics,
+            ThdPercent = Measured.FromBudget(
+                thd,
+                new UncertaintyComponent(
+                    "noise in the harmonics' bins",
+                    (thdNoisy - thd) / 2,
+                    "half of what the noise under the harmonics' lines would add had it not been taken off"
+                )
+            ),
+            ThdNPercent = Measured.FromBudget(
+                100 * Math.Sqrt(rest / total),
+                new UncertaintyComponent(
+                    "estimate's spread",
+                    100 * Math.Sqrt(rest / total) * spread,
+                    "a variance summed over B bins of K segments: relative spread 1 / sqrt(2 K B)"
+                )
+            ),
+            SinadDb = Measured.FromBudget(
+                sinad,
+                new UncertaintyComponent(
+                    "estimate's spread",
+                    10 / Math.Log(10) * spread,
+                    "the noise and distortion's power summed over B bins of K segments: 4.34 / sqrt(2 K B) dB"
+                )
+            ),
+        };
+    }
+
+    /// <summary>The strongest component below <see cref="SubAudibleTopHz"/> (and above 60 Hz), matched against
+    /// <see cref="StandardTones"/>.</summary>
+    private static SubAudibleTone? FindSubAudible(LineSpectrum s, IReadOnlyList<ModulatingComponent> components)
+    {
+        ModulatingComponent? c = components
+            .Where(x => x.FrequencyHz is >= 60 and < SubAudibleTopHz)
+            .OrderByDescending(x => x.PeakAmount)
+            .FirstOrDefault();
+        if (c is null)
+            return null;
+        double resolution = Math.Max(s.BinWidthHz / TypeB.ToneBinDivisor, TypeB.ToneFraction * c.FrequencyHz);
+        double nearest = StandardTones.MinBy(t => Math.Abs(t - c.FrequencyHz));
+        return new SubAudibleTone(
+            Measured.FromBudget(
+                c.FrequencyHz,
+                new UncertaintyComponent(
+                    "resolution (interpolated line)",
+                    resolution,
+                    "TypeB.ToneBinDivisor, ToneFraction"
+                )
+            ),
+            c.PeakAmount,
+            Math.Abs(nearest - c.FrequencyHz) <= ToneMatchPercent / 100 * nearest ? nearest : null
+        );
+    }
+
+    private static double ToVariance(LineSpectrum s) => 2.0 / (s.FftSize * s.WindowSumOfSquares);
+
+    private static (int A, int B) Bins(LineSpectrum s, double lowHz, double highHz) =>
+        (
+            Math.Max(Guard + 1, (int)Math.Ceiling(lowHz / s.BinWidthHz)),
+            Math.Min(s.FftSize / 2 - 1, (int)Math.Floor(highHz / s.BinWidthHz))
+        );
+
+    private static int BandBins(LineSpectrum s, double lowHz, double highHz)
+    {
+        var (a, b) = Bins(s, lowHz, highHz);
+        return Math.Max(0, b - a + 1);
+    }
+
+    /// <summary>The stream's variance between the edges (everything: lines and noise).</summary>
+    private static double BandVariance(LineSpectrum s, double lowHz, double highHz)
+    {
+        var (a, b) = Bins(s, lowHz, highHz);
+        double v = 0;
+        for (int k = a; k <= b; k++)
+            v += s.Power(k);
+        return v * ToVariance(s);
+    }
+
+    /// <summary>The median bin power in the band away from the tone's harmonics: the noise per bin.</summary>
+    private static double FloorPerBin(LineSpectrum s, double lowHz, double highHz, double toneHz)
+    {
+        var (a, b) = Bins(s, lowHz, highHz);
+        var p = new List<double>();
+        for (int k = a; k <= b; k++)
+        {
+            double f = k * s.BinWidthHz;
+            double h = Math.Round(f / toneHz);
+            if (h >= 1 && Math.Abs(f - h * toneHz) <= Guard * s.BinWidthHz)
+                continue;
+            p.Add(s.Power(k));
+        }
+        if (p.Count == 0)
+            return 0;
+        p.Sort();
+        return p[p.Count / 2];
+    }
+
+    /// <summary>The variance of the line at <paramref name="hz"/> (its bins within the guard, less the
+    /// noise).</summary>
+    private static double LineVariance(LineSpectrum s, double hz, double floor)
+    {
+        int k = (int)Math.Round(hz / s.BinWidthHz);
+        double v = 0;
+        for (int j = Math.Max(1, k - Guard); j <= Math.Min(s.FftSize / 2 - 1, k + Guard); j++)
+            v += Math.Max(0, s.Power(j) - floor);
+        return v * ToVariance(s);
+    }
+}

@@ -1,0 +1,54 @@
+using System.Text.Json;
+using SignalInspect.Measure;
+
+namespace SignalInspect.Reporting;
+
+/// <summary>The <c>audio</c> object of the analysis JSON: the demodulated audio's quality, every key always written
+/// (null where it does not apply).</summary>
+internal static class AudioJson
+{
+    public static void Write(Utf8JsonWriter w, AudioQualityResult? a)
+    {
+        w.WriteStartObject("audio");
+        CaptureInfoJson.WriteNumberOrNull(w, "bandLowHz", a?.BandLowHz);
+        CaptureInfoJson.WriteNumberOrNull(w, "bandHighHz", a?.BandHighHz);
+        w.WriteString("weighting", a?.Weighting);
+        CaptureInfoJson.WriteNumberOrNull(w, "toneHz", a?.ToneHz);
+        Pair(w, "thdPercent", "thdUncertaintyPercent", a?.ThdPercent);
+        Pair(w, "thdNPercent", "thdNUncertaintyPercent", a?.ThdNPercent);
+        Pair(w, "sinadDb", "sinadUncertaintyDb", a?.SinadDb);
+        w.WriteStartArray("harmonics");
+        foreach (var (k, pct) in a?.Harmonics ?? [])
+        {
+            w.WriteStartObject();
+            w.WriteNumber("harmonic", k);
+            w.WriteNumber("percent", pct);
+            w.WriteEndObject();
+        }
+        w.WriteEndArray();
+        Pair(w, "residualFmHz", "residualFmUncertaintyHz", a?.ResidualFmHz);
+        CaptureInfoJson.WriteNumberOrNull(w, "residualAmPercent", a?.ResidualAmPercent);
+        CaptureInfoJson.WriteNumberOrNull(w, "humNoiseDb", a?.HumNoiseDb);
+        w.WritePropertyName("subAudibleTone");
+        if (a?.SubAudible is { } t)
+        {
+            w.WriteStartObject();
+            w.WriteNumber("frequencyHz", t.FrequencyHz.Value);
+            w.WriteNumber("frequencyUncertaintyHz", t.FrequencyHz.StandardUncertainty);
+            w.WriteNumber("deviationHz", t.DeviationHz);
+            CaptureInfoJson.WriteNumberOrNull(w, "standardHz", t.StandardHz);
+            w.WriteEndObject();
+        }
+        else
+            w.WriteNullValue();
+        w.WriteString("distortionNotTested", a?.DistortionNotTested);
+        w.WriteEndObject();
+    }
+
+    /// <summary>A value and its standard uncertainty (k = 1), or two nulls.</summary>
+    private static void Pair(Utf8JsonWriter w, string value, string uncertainty, Measured? m)
+    {
+        CaptureInfoJson.WriteNumberOrNull(w, value, m?.Value);
+        CaptureInfoJson.WriteNumberOrNull(w, uncertainty, m?.StandardUncertainty);
+    }
+}
