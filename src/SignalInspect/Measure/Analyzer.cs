@@ -183,7 +183,6 @@ public static class Analyzer
             warnings.Add(MeasurementWarnings.MirrorKept);
         if (channel.Crowded)
             warnings.Add(MeasurementWarnings.Crowded);
-        warnings.AddRange(EmissionSelection.Warnings(info, selection));
         int threads = Math.Max(1, options.Threads ?? Environment.ProcessorCount);
         PassPlan plan = channel.ForPass(source, first, count, options.PostHighPassHz, options.DeEmphasisUs, threads);
 
@@ -239,6 +238,7 @@ public static class Analyzer
         };
         if (MeasurementWarnings.FewTonePeriods(tone, count / fs) is { } fewPeriods)
             warnings.Add(fewPeriods);
+        warnings.AddRange(EmissionSelection.Warnings(info, selection, carrierAxisHz, inputs.Components));
 
         // The carrier against time; a drifting FM carrier's deviation is measured about the local carrier (a second
         // demodulation pass: the drift would otherwise widen the deviation's percentiles).

@@ -161,15 +161,59 @@ internal static class EmissionSelection
         );
     }
 
+    /// <summary>Whether <paramref name="offsetHz"/> is n1 f1 + n2 f2 + n3 f3 of the three strongest components (of
+    /// order |n1| + |n2| + |n3| at most <see cref="ProductOrder"/>) to within <paramref name="toleranceHz"/>.</summary>
+    internal static bool ModulationProduct(
+        double offsetHz,
+        IReadOnlyList<ModulatingComponent> components,
+        double toleranceHz
+    )
+    {
+        double[] f = [.. components.Take(3).Select(x => x.FrequencyHz), 0, 0, 0];
+        for (int i = -ProductOrder; i <= ProductOrder; i++)
+            for (int j = -ProductOrder; j <= ProductOrder; j++)
+                for (int k = -ProductOrder; k <= ProductOrder; k++)
+                    if (
+                        Math.Abs(i) + Math.Abs(j) + Math.Abs(k) is > 0 and <= ProductOrder
+                        && Math.Abs(i * f[0] + j * f[1] + k * f[2] - offsetHz) <= toleranceHz
+                    )
+                        return components.Count > 0;
+        return false;
+    }
+
+    /// <summary>A line on a modulation product is left unnamed only this far below the emission (30 dB): the
+    /// lopsidedness of FM by harmonically related tones is that weak, while a carrier strong enough to move a
+    /// reading is named wherever it stands.</summary>
+    public const double ProductBelow = 1e-3;
+
+    /// <summary>Highest order of a modulation product (FM's sidebands of index up to about 10 reach it).</summary>
+    public const int ProductOrder = 16;
+
     /// <summary>One warning per other emission: its frequency, width and level relative to the measured one, and
     /// whether it looks like the measured one's IQ image (a mirror about 0 Hz of an IQ capture).</summary>
-    public static IEnumerable<string> Warnings(CaptureInfo info, Selection s)
+    /// <param name="info">The capture.</param>
+    /// <param name="s">The selection.</param>
+    /// <param name="carrierAxisHz">The measured carrier on the capture's axis.</param>
+    /// <param name="components">The modulating components found: a line at the carrier plus a sum of their
+    /// multiples is a modulation product (harmonically related tones make an FM spectrum lopsided), not a
+    /// spur.</param>
+    public static IEnumerable<string> Warnings(
+        CaptureInfo info,
+        Selection s,
+        double carrierAxisHz,
+        IReadOnlyList<ModulatingComponent> components
+    )
     {
         if (s.Measured is not { } m)
             yield break;
         var axis = FrequencyAxis.Of(info);
         CultureInfo c = CultureInfo.InvariantCulture;
-        foreach (var (hz, power) in m.UnmirroredLines)
+        foreach (
+            var (hz, power) in m.UnmirroredLines.Where(l =>
+                l.Power > ProductBelow * m.Power
+                || !ModulationProduct(l.Hz - carrierAxisHz, components, 2 * s.Spectrum.BinWidthHz)
+            )
+        )
             yield return string.Create(c, $"a line at {axis.ToReported(hz):0.#} Hz inside the measured emission ")
                 + string.Create(c, $"({10 * Math.Log10(power / m.Power):+0.0;-0.0} dB relative to it) has no mirror ")
                 + "about its centre: a spur or another carrier within the channel, which no filter takes out; "

@@ -106,6 +106,33 @@ public class EmissionSelectionTests
         Assert.DoesNotContain(clean.Warnings, w => w.Contains("no mirror"));
     }
 
+    /// <summary>FM by harmonically related tones (1 kHz at 2.5 kHz with its second harmonic at 75 Hz, the standard
+    /// distortion test, under a 118.8 Hz sub-audible tone) has a lopsided spectrum (an odd phase function with even
+    /// and odd harmonics: |c_n| differs from |c_-n|): its weak unmirrored lines (41-46 dB down) lie on modulation
+    /// products n1 f1 + n2 f2 + n3 f3 and are not named as spurs. A carrier 25 dB down off every product (2730 Hz
+    /// from the carrier) is, where the lines stand apart (without the sub-audible tone's dense products).</summary>
+    [Theory]
+    [InlineData(true, null, false)]
+    [InlineData(false, 2730.0, true)]
+    public void Lines_on_modulation_products_are_not_taken_for_spurs(bool subAudible, double? spurHz, bool warned)
+    {
+        using var tmp = new TempDir();
+        AnalysisResult r = Measuring.Analyze(
+            tmp,
+            Handheld(48000, 0, 40) with
+            {
+                Amplitude = 0.5,
+                Seed = 1,
+                ExtraTones = subAudible
+                    ? [new ExtraTone(2000, 75), new ExtraTone(118.8, 600)]
+                    : [new ExtraTone(2000, 75)],
+                Spurs = spurHz is { } hz ? [new Spur(hz, -25)] : [],
+                DurationS = 2,
+            }
+        );
+        Assert.Equal(warned, r.Warnings.Any(w => w.Contains("no mirror")));
+    }
+
     /// <summary>Lines 60 dB and more below the emission move an FM reading by less than a thousandth of their
     /// distance: the rounding spurs of an undithered 16-bit recording (testdata nbfm-ci16, 105-112 dB down) are
     /// neither split off as emissions nor warned of as spurs inside the channel.</summary>
