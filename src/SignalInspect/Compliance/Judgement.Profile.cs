@@ -75,4 +75,58 @@ public static partial class Judgement
             reason
         );
     }
+
+    /// <summary>The profile's audio limits: the test tone's distortion (THD, an upper limit) and the unmodulated
+    /// carrier's hum-and-noise ratio (a lower limit: the margin is the reading less the limit).</summary>
+    private static IEnumerable<LimitCheck> AudioChecks(AnalysisResult r, LimitProfile p, double k, string noSignal)
+    {
+        CultureInfo c = CultureInfo.InvariantCulture;
+        string src = p.SourceOf("audio");
+        AudioQualityResult? a = r.Audio;
+        if (p.MaxAudioDistortionPercent is { } maxThd)
+        {
+            string text = string.Create(c, $"<= {maxThd:0.##} %");
+            const string what = "audio distortion (THD)";
+            yield return a?.ThdPercent is { } thd
+                ? Upper(what, thd.Value, "%", k * thd.StandardUncertainty, maxThd, text, src)
+                : LimitCheck.NotTested(
+                    what,
+                    "%",
+                    text,
+                    src,
+                    a?.DistortionNotTested
+                        ?? (r.Classification.Kind == ModulationKind.Noise ? noSignal : "no demodulated audio tone")
+                );
+        }
+        if (p.MinHumNoiseDb is { } minHn)
+        {
+            string text = string.Create(c, $">= {minHn:0.#} dB");
+            const string what = "hum and noise ratio";
+            if (a?.HumNoiseDb is { } hn && a.ResidualFmHz is { } rfm && rfm.Value > 0)
+            {
+                // The ratio's U from the residual's: 20 / ln 10 x u(residual) / residual.
+                double u = k * 20 / Math.Log(10) * rfm.StandardUncertainty / rfm.Value;
+                Verdict v = UpperVerdict(-hn, u, -minHn);
+                string? reason =
+                    v == Verdict.Inconclusive
+                        ? string.Create(c, $"the reading is within its expanded uncertainty ({u:0.###} dB) of the ")
+                            + "limit: neither met nor missed is shown"
+                        : null;
+                yield return new LimitCheck(what, hn, "dB", u, minHn, text, hn - minHn, v, src, reason)
+                {
+                    ByUncertainty = v == Verdict.Inconclusive,
+                };
+            }
+            else
+                yield return LimitCheck.NotTested(
+                    what,
+                    "dB",
+                    text,
+                    src,
+                    r.Classification.Kind != ModulationKind.Cw
+                        ? "needs an unmodulated carrier (the class found is " + r.Classification.Kind.Name() + ")"
+                        : "needs the reference deviation the ratio is taken against (given at analysis)"
+                );
+        }
+    }
 }

@@ -281,6 +281,7 @@ public static partial class Judgement
                     : LimitCheck.NotTested(what, "%", text, src, Unlike("an AM modulation limit"))
             );
         }
+        checks.AddRange(AudioChecks(r, p, k, noSignal));
         if (p.Transient is { } transient)
             checks.AddRange(TransientChecks(r, p, transient, tx, k, noSignal));
         if (p.Mask is { } mask)

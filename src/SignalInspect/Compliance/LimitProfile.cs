@@ -134,6 +134,13 @@ public sealed record LimitProfile
     /// <summary>Maximum AM negative-peak modulation, percent.</summary>
     public double? MaxAmNegativePeakPercent { get; init; }
 
+    /// <summary>Maximum audio distortion of the test tone (THD), percent; null for none.</summary>
+    public double? MaxAudioDistortionPercent { get; init; }
+
+    /// <summary>Minimum hum-and-noise ratio of the unmodulated carrier, dB (its reference deviation given at
+    /// analysis); null for none.</summary>
+    public double? MinHumNoiseDb { get; init; }
+
     /// <summary>Emission mask, null for none.</summary>
     public EmissionMask? Mask { get; init; }
 
@@ -161,6 +168,7 @@ public sealed record LimitProfile
         "maxPeakDeviationHz",
         "maxOccupiedBandwidthHz",
         "am",
+        "audio",
         "mask",
         "transient",
         "modulation",
@@ -219,6 +227,7 @@ public sealed record LimitProfile
             "maxPeakDeviationHz",
             "maxOccupiedBandwidthHz",
             "am",
+            "audio",
             "mask",
             "coverageFactor",
             "notes",
@@ -291,6 +300,16 @@ public sealed record LimitProfile
                 throw Bad("frequencyTolerance", "needs \"ppm\" or \"hz\"");
             if (tolPpm is not null && tolHz is not null)
                 throw Bad("frequencyTolerance", "takes \"ppm\" or \"hz\", not both (which would decide?)");
+        }
+        double? maxThd = null,
+            minHn = null;
+        if (root.TryGetProperty("audio", out JsonElement audio))
+        {
+            if (audio.ValueKind != JsonValueKind.Object)
+                throw Bad("audio", "must be an object");
+            Only(audio, "audio", "maxDistortionPercent", "minHumNoiseDb");
+            maxThd = Num(audio, "maxDistortionPercent", "audio.maxDistortionPercent");
+            minHn = Num(audio, "minHumNoiseDb", "audio.minHumNoiseDb");
         }
         double? pos = null,
             neg = null;
@@ -423,6 +442,8 @@ public sealed record LimitProfile
             MaxOccupiedBandwidthHz = Num(root, "maxOccupiedBandwidthHz", "maxOccupiedBandwidthHz"),
             MaxAmPositivePeakPercent = pos,
             MaxAmNegativePeakPercent = neg,
+            MaxAudioDistortionPercent = maxThd,
+            MinHumNoiseDb = minHn,
             Mask = mask,
             CoverageFactor = Num(root, "coverageFactor", "coverageFactor") ?? 2,
         };

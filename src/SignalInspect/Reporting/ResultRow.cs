@@ -377,7 +377,7 @@ public static class ResultRows
         {
             string band = string.Create(C, $"{au.BandLowHz:0}-{au.BandHighHz:0} Hz");
             if (au.ThdPercent is { } thd)
-                Info("audio.thd", "THD (harmonics 2-10)", thd.Value, "%", thd.StandardUncertainty, "0.##");
+                Info("audio.thd", "audio distortion (THD)", thd.Value, "%", thd.StandardUncertainty, "0.##");
             if (au.ThdNPercent is { } thdn)
                 Info("audio.thdN", $"THD+N ({band})", thdn.Value, "%", thdn.StandardUncertainty, "0.##");
             if (au.SinadDb is { } sinad)

@@ -144,3 +144,71 @@ public class AudioQualityTests
         Assert.Contains("outside the audio band", audio.GetProperty("distortionNotTested").GetString());
     }
 }
+
+/// <summary>The profile's audio limits (issue 26 item 4) judged with U like every other limit. The limits here are
+/// chosen for the test (4 % distortion, 30 dB hum and noise), not a rule's.</summary>
+public class AudioLimitTests
+{
+    private static string Profile(TempDir tmp)
+    {
+        string path = tmp.File("audio-test.json");
+        File.WriteAllText(
+            path,
+            "{ \"name\": \"audio test\", \"source\": \"chosen for the test\", "
+                + "\"audio\": { \"maxDistortionPercent\": 4, \"minHumNoiseDb\": 30 } }"
+        );
+        return path;
+    }
+
+    private static (string Verdict, string? Reason) Check(string json, string measurement)
+    {
+        using var doc = JsonDocument.Parse(json);
+        JsonElement c = doc
+            .RootElement.GetProperty("checks")
+            .EnumerateArray()
+            .Single(x => x.GetProperty("measurement").GetString() == measurement);
+        return (c.GetProperty("verdict").GetString()!, c.GetProperty("reason").GetString());
+    }
+
+    [Theory]
+    [InlineData("2000:75", "PASS")] // 3 %
+    [InlineData("2000:125", "FAIL")] // 5 %
+    public void Distortion_is_judged_against_the_limit(string harmonic, string verdict)
+    {
+        using var tmp = new TempDir();
+        string path = tmp.File("t.sigmf");
+        string[] synth = ["synth", path, "--kind", "fm", "--deviation", "2.5k", "--add-tone", harmonic, "--snr", "40"];
+        Assert.Equal(0, CliRunner.Run(synth).Code);
+        var (_, json, err) = CliRunner.Run("analyze", path, "--limits", Profile(tmp), "--json", "-");
+        Assert.True(json.Length > 0, err);
+        Assert.Equal(verdict, Check(json, "audio distortion (THD)").Verdict);
+        // The hum-and-noise limit needs an unmodulated carrier: NOT TESTED, with the reason.
+        var (hn, why) = Check(json, "hum and noise ratio");
+        Assert.Equal("NOT TESTED", hn);
+        Assert.Contains("unmodulated carrier", why);
+    }
+
+    /// <summary>20 Hz rms of residual FM against 1.5 kHz: 34.5 dB, above the 30 dB limit by more than U.</summary>
+    [Fact]
+    public void Hum_and_noise_is_judged_as_a_lower_limit()
+    {
+        using var tmp = new TempDir();
+        string path = tmp.File("c.sigmf");
+        Assert.Equal(0, CliRunner.Run("synth", path, "--kind", "cw", "--residual-fm", "20", "--snr", "60").Code);
+        var (_, json, _) = CliRunner.Run(
+            "analyze",
+            path,
+            "--post-lowpass",
+            "3.4k",
+            "--reference-deviation",
+            "1.5k",
+            "--limits",
+            Profile(tmp),
+            "--json",
+            "-"
+        );
+        Assert.Equal("PASS", Check(json, "hum and noise ratio").Verdict);
+        var (_, thdWhy) = Check(json, "audio distortion (THD)");
+        Assert.Contains("unmodulated carrier", thdWhy);
+    }
+}
