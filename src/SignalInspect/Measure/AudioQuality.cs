@@ -53,6 +53,10 @@ public sealed record AudioQualityResult
     /// <summary>The sub-audible tone, or null.</summary>
     public SubAudibleTone? SubAudible { get; init; }
 
+    /// <summary>The demodulated audio's line spectrum for the report: (frequency Hz, dB of the stream's unit squared
+    /// per bin), at most <see cref="AudioQuality.PlotPoints"/> points (the largest of each group of bins).</summary>
+    public IReadOnlyList<(double Hz, double Db)> Spectrum { get; init; } = [];
+
     /// <summary>Why the tone's distortion is not given (no tone, a tone outside the band ...), or null.</summary>
     public string? DistortionNotTested { get; init; }
 }
@@ -160,8 +164,14 @@ internal static class AudioQuality
         if (kind is not (ModulationKind.Fm or ModulationKind.Am or ModulationKind.Cw) || s.Segments == 0)
             return null;
         double high = Math.Min(BandHighHz, topHz);
-        var result = new AudioQualityResult { BandLowHz = BandLowHz, BandHighHz = high };
         LineSpectrum audio = kind == ModulationKind.Am ? envelope : s;
+        double plotTop = Math.Min(topHz, Math.Max(3500, tone is { } pt ? 10.5 * pt.Value : 0));
+        var result = new AudioQualityResult
+        {
+            BandLowHz = BandLowHz,
+            BandHighHz = high,
+            Spectrum = PlotSpectrum(audio, plotTop),
+        };
         if (kind == ModulationKind.Cw)
         {
             double fm = Math.Sqrt(BandVariance(s, BandLowHz, high));
@@ -270,6 +280,25 @@ internal static class AudioQuality
             c.PeakAmount,
             Math.Abs(nearest - c.FrequencyHz) <= ToneMatchPercent / 100 * nearest ? nearest : null
         );
+    }
+
+    /// <summary>Most points of <see cref="AudioQualityResult.Spectrum"/>.</summary>
+    public const int PlotPoints = 2000;
+
+    private static IReadOnlyList<(double, double)> PlotSpectrum(LineSpectrum s, double topHz)
+    {
+        int last = Math.Min(s.FftSize / 2 - 1, (int)(topHz / s.BinWidthHz));
+        int group = Math.Max(1, (last + PlotPoints - 1) / PlotPoints);
+        var points = new List<(double, double)>();
+        double toVar = ToVariance(s);
+        for (int k = 1; k + group - 1 <= last; k += group)
+        {
+            double p = 0;
+            for (int j = k; j < k + group; j++)
+                p = Math.Max(p, s.Power(j));
+            points.Add(((k + group / 2) * s.BinWidthHz, p > 0 ? 10 * Math.Log10(p * toVar) : -300));
+        }
+        return points;
     }
 
     private static double ToVariance(LineSpectrum s) => 2.0 / (s.FftSize * s.WindowSumOfSquares);

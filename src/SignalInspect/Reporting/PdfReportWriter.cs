@@ -312,6 +312,27 @@ public static class PdfReportWriter
         );
         l.Image(gram, w, hGram);
         l.Gap(6);
+        if (a.Audio is { Spectrum.Count: > 1 } au)
+        {
+            var marks = new List<(double, string)>();
+            if (au.ToneHz is { } f0)
+                for (int k = 1; k <= 10 && k * f0 <= au.Spectrum[^1].Hz; k++)
+                    marks.Add((k * f0, k == 1 ? "tone" : k.ToString(C)));
+            if (au.SubAudible is { } sub)
+                marks.Add((sub.FrequencyHz.Value, "sub-audible"));
+            string unit = a.Am is not null ? "dB (FS^2)" : "dB (Hz^2)";
+            byte[] audio = AudioSpectrumPlot.Png(
+                au.Spectrum,
+                marks,
+                "Demodulated audio (the tone's harmonics and a sub-audible tone marked)",
+                unit,
+                Px(w),
+                Px(150),
+                Dpi / 96
+            );
+            l.Image(audio, w, 150);
+            l.Gap(6);
+        }
         if (a.Waveform.Count > 1)
         {
             double hWave = 135;
