@@ -278,8 +278,8 @@ public static class BandSurvey
     }
 
     /// <summary>The survey's FFT size: the analysis options' when given (size, or the RBW wanted), else the power of
-    /// two giving bins of at most 300 Hz (a narrowband channel of 6.25 kHz spans 20 or more), from 256 to 65 536
-    /// points, and at most a sixteenth of the window.</summary>
+    /// two giving bins of at most 300 Hz (a narrowband channel of 6.25 kHz spans 20 or more), at most 65 536
+    /// points, halved (down to 16) until the window holds sixteen of them.</summary>
     internal static int FftSize(double fs, AnalysisOptions a, long count)
     {
         if (a.FftSize is { } n)
@@ -288,7 +288,7 @@ public static class BandSurvey
         int size = 256;
         while (size < 65_536 && fs / size > binHz)
             size *= 2;
-        while (size > 256 && size * 16L > count)
+        while (size > 16 && size * 16L > count)
             size /= 2;
         return size;
     }
