@@ -24,6 +24,14 @@ internal static class AnalyzeCommand
             Description = "Test conditions for the report (temperature, supply voltage, set-up).",
             HelpName = "TEXT",
         };
+        var steps = new Option<string?>("--steps")
+        {
+            Description =
+                "A tone series in the capture for the audio response: a text file, one step per line as START,END"
+                + "[,TONE] (seconds, Hz; '#' starts a comment). Each step's deviation (or depth) is given relative to "
+                + "the step nearest 1 kHz, beside the 6 dB/octave pre-emphasis curve.",
+            HelpName = "FILE",
+        };
         var force = new Option<bool>("--force") { Description = "Replace existing output files." };
         var report = new Option<string?>("--report")
         {
@@ -64,6 +72,7 @@ internal static class AnalyzeCommand
             capture,
             json,
             force,
+            steps,
             report,
             limits,
             decisionRule,
@@ -94,7 +103,11 @@ internal static class AnalyzeCommand
             LimitProfile? profile = profilePath is null ? null : LimitProfile.Load(profilePath);
             profile = DecisionRuleOption.Apply(profile, r.GetValue(decisionRule));
             CaptureSource source = CaptureSource.Open(r.GetValue(capture)!, reader.Read(r));
-            AnalysisOptions options = measure.Read(r, source.Info) with { KeepSpectrogram = pdfOut is not null };
+            AnalysisOptions options = measure.Read(r, source.Info) with
+            {
+                KeepSpectrogram = pdfOut is not null,
+                ToneSteps = r.GetValue(steps) is { } stepFile ? ReadSteps(stepFile) : [],
+            };
             var settings = new InspectionSettings
             {
                 Analysis = options,
@@ -146,6 +159,42 @@ internal static class AnalyzeCommand
             return ExitCodes.ForVerdict(model.Overall);
         });
         return cmd;
+    }
+
+    /// <summary>Reads a step list: START,END[,TONE] per line (SI suffixes allowed), '#' comments, blank lines
+    /// skipped.</summary>
+    private static IReadOnlyList<ToneStep> ReadSteps(string path)
+    {
+        if (!File.Exists(path))
+            throw new UsageException($"--steps: {path}: file not found");
+        var list = new List<ToneStep>();
+        int n = 0;
+        foreach (string raw in File.ReadLines(path))
+        {
+            n++;
+            string line = (raw.Split('#')[0]).Trim();
+            if (line.Length == 0)
+                continue;
+            string[] p = line.Split(',', StringSplitOptions.TrimEntries);
+            double a = 0,
+                b = 0,
+                t = 0;
+            if (
+                p.Length is < 2 or > 3
+                || !Units.TryParseSi(p[0], out a)
+                || !Units.TryParseSi(p[1], out b)
+                || (p.Length == 3 && !Units.TryParseSi(p[2], out t))
+                || !(b > a && a >= 0)
+                || (p.Length == 3 && !(t > 0))
+            )
+                throw new UsageException(
+                    $"--steps: {path} line {n}: '{line}' is not START,END[,TONE] with 0 <= START < END (e.g. 2,4,1k)"
+                );
+            list.Add(new ToneStep(a, b, p.Length == 3 ? t : null));
+        }
+        if (list.Count == 0)
+            throw new UsageException($"--steps: {path} holds no step");
+        return list;
     }
 
     /// <summary>Writes JSON <paramref name="bytes"/> to <paramref name="jsonOut"/> (atomically, saying so on

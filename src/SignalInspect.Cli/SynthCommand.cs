@@ -91,11 +91,11 @@ internal static class SynthCommand
         var burst = new Option<string[]>("--burst")
         {
             Description =
-                "One transmission, START:END[:OFFSET[:AMOUNT]] in seconds (repeatable): the carrier is keyed on only "
-                + "inside the bursts (the noise stays between them), each with its own carrier offset in Hz and "
-                + "amount (FM deviation in Hz, AM depth in percent, PM phase in rad) when given; e.g. --burst "
-                + "0.5:2.5 --burst 3.5:5:150:3000.",
-            HelpName = "START:END[:OFFSET[:AMOUNT]]",
+                "One transmission, START:END[:OFFSET[:AMOUNT[:TONE]]] in seconds (repeatable): the carrier is keyed on "
+                + "only inside the bursts (the noise stays between them), each with its own carrier offset in Hz, "
+                + "amount (FM deviation in Hz, AM depth in percent, PM phase in rad) and tone in Hz when given (empty "
+                + "fields keep the signal's: 0:1:::300 is a 300 Hz step); e.g. --burst 0.5:2.5 --burst 3.5:5:150:3000.",
+            HelpName = "START:END[:OFFSET[:AMOUNT[:TONE]]]",
             AllowMultipleArgumentsPerToken = false,
         };
         var also = new Option<string[]>("--also")
@@ -336,10 +336,19 @@ internal static class SynthCommand
     {
         string[] p = text.Split(':');
         var v = new double[p.Length];
-        if (p.Length is >= 2 and <= 4 && p.Select((x, i) => Units.TryParseSi(x, out v[i])).All(ok => ok))
-            return new Burst(v[0], v[1], p.Length > 2 ? v[2] : null, p.Length > 3 ? (am ? v[3] / 100 : v[3]) : null);
+        if (
+            p.Length is >= 2 and <= 5
+            && p.Select((x, i) => x.Length == 0 || Units.TryParseSi(x, out v[i])).All(ok => ok)
+        )
+            return new Burst(
+                v[0],
+                v[1],
+                p.Length > 2 && p[2].Length > 0 ? v[2] : null,
+                p.Length > 3 && p[3].Length > 0 ? (am ? v[3] / 100 : v[3]) : null,
+                p.Length > 4 && p[4].Length > 0 ? v[4] : null
+            );
         throw new UsageException(
-            $"--burst: '{text}' is not START:END[:OFFSET[:AMOUNT]] (e.g. 0.5:2.5 or 3:5:150:3000)"
+            $"--burst: '{text}' is not START:END[:OFFSET[:AMOUNT[:TONE]]] (e.g. 0.5:2.5 or 3:5:150:3000 or 0:1:::300)"
         );
     }
 

@@ -83,6 +83,9 @@ public sealed record AnalysisOptions
     /// ratio.</summary>
     public double? ReferenceDeviationHz { get; init; }
 
+    /// <summary>A tone series the capture holds (the audio response is read from it); empty for none.</summary>
+    public IReadOnlyList<ToneStep> ToneSteps { get; init; } = [];
+
     /// <summary>Worker threads for the spectrum; null for one per core.</summary>
     public int? Threads { get; init; }
 

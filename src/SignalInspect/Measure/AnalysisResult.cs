@@ -87,6 +87,9 @@ public sealed record AnalysisResult
     /// classes without demodulated audio.</summary>
     public AudioQualityResult? Audio { get; init; }
 
+    /// <summary>The audio response read from a tone series (analysis options' tone steps); null without one.</summary>
+    public AudioResponseResult? Response { get; init; }
+
     /// <summary>Necessary bandwidth by the 47 CFR 2.202 formulas, Hz; null when none applies.</summary>
     public double? NecessaryBandwidthHz { get; init; }
 

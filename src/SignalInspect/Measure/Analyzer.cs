@@ -38,6 +38,14 @@ public static class Analyzer
     {
         options ??= new AnalysisOptions();
         options.Validate();
+        if (options.ToneSteps.Count > 0)
+        {
+            AnalysisOptions one = options with { ToneSteps = [] };
+            return Analyze(source, one, progress, cancel, timer) with
+            {
+                Response = AudioResponse.Measure(source, one, options.ToneSteps, cancel),
+            };
+        }
         if (options.DiscriminatorHzPerFullScale is not null)
             return DiscriminatorAnalysis.Analyze(source, options, progress, cancel);
         CaptureInfo info = source.Info;

@@ -253,6 +253,7 @@ public static class AnalysisJson
         }
         w.WriteEndArray();
         AudioJson.Write(w, r.Audio);
+        AudioJson.WriteResponse(w, r.Response);
         CaptureInfoJson.WriteNumberOrNull(w, "necessaryBandwidthHz", r.NecessaryBandwidthHz);
         if (r.EmissionDesignator is { } d)
             w.WriteString("emissionDesignator", d);

@@ -45,6 +45,32 @@ internal static class AudioJson
         w.WriteEndObject();
     }
 
+    /// <summary>The <c>response</c> object: the audio response from a tone series (null keys and no points
+    /// without one).</summary>
+    public static void WriteResponse(Utf8JsonWriter w, AudioResponseResult? r)
+    {
+        w.WriteStartObject("response");
+        CaptureInfoJson.WriteNumberOrNull(w, "referenceHz", r?.ReferenceHz);
+        w.WriteString("unit", r?.Unit);
+        w.WriteString("notTested", r?.NotTested);
+        w.WriteStartArray("steps");
+        foreach (ResponsePoint p in r?.Points ?? [])
+        {
+            w.WriteStartObject();
+            w.WriteNumber("startS", p.Step.StartS);
+            w.WriteNumber("endS", p.Step.EndS);
+            CaptureInfoJson.WriteNumberOrNull(w, "listedToneHz", p.Step.ToneHz);
+            CaptureInfoJson.WriteNumberOrNull(w, "toneHz", p.ToneHz);
+            CaptureInfoJson.WriteNumberOrNull(w, "amount", p.Amount);
+            CaptureInfoJson.WriteNumberOrNull(w, "responseDb", p.ResponseDb);
+            CaptureInfoJson.WriteNumberOrNull(w, "preEmphasisDb", p.PreEmphasisDb);
+            w.WriteString("problem", p.Problem);
+            w.WriteEndObject();
+        }
+        w.WriteEndArray();
+        w.WriteEndObject();
+    }
+
     /// <summary>A value and its standard uncertainty (k = 1), or two nulls.</summary>
     private static void Pair(Utf8JsonWriter w, string value, string uncertainty, Measured? m)
     {

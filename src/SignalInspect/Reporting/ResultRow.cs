@@ -404,6 +404,19 @@ public static class ResultRows
                     sub.StandardHz is { } std ? string.Create(C, $"standard tone {std:0.0} Hz") : "non-standard"
                 );
         }
+        foreach (ResponsePoint p in a.Response?.Points ?? [])
+            Words(
+                "audio.response",
+                string.Create(C, $"audio response, {p.Step.StartS:0.##}-{p.Step.EndS:0.##} s"),
+                p.ResponseDb is { } db
+                    ? string.Create(
+                        C,
+                        $"{p.ToneHz:0.#} Hz: {db:+0.00;-0.00} dB (6 dB/octave: {p.PreEmphasisDb:+0.00;-0.00})"
+                    )
+                    : "no reading: " + p.Problem,
+                "",
+                a.Response!.ReferenceHz is { } rf ? string.Create(C, $"relative to {rf:0.#} Hz") : "-"
+            );
         if (a.EmissionDesignator is { } d)
             Words(
                 "emissionDesignator",

@@ -135,11 +135,17 @@ public sealed class SignalGenerator
             double a = s.Amplitude;
             double offset = s.CarrierOffsetHz;
             double? amount = null;
-            double keyedAt = 0;
+            double keyedAt = 0,
+                tone = s.ModulatingFrequencyHz;
             if (s.Bursts.Count > 0)
             {
                 if (s.BurstAt(t) is { } burst)
-                    (offset, amount, keyedAt) = (burst.OffsetHz ?? offset, burst.Amount, burst.StartS);
+                    (offset, amount, keyedAt, tone) = (
+                        burst.OffsetHz ?? offset,
+                        burst.Amount,
+                        burst.StartS,
+                        burst.ToneHz ?? tone
+                    );
                 else
                     a = 0;
             }
@@ -152,21 +158,18 @@ public sealed class SignalGenerator
             switch (s.Kind)
             {
                 case SignalKind.Am when s.ExtraTones.Count == 0 && (amount ?? s.AmDepth) <= 1:
-                    a *= 1 + (amount ?? s.AmDepth) * Math.Cos(2 * Math.PI * Frac(s.ModulatingFrequencyHz * _n / fs));
+                    a *= 1 + (amount ?? s.AmDepth) * Math.Cos(2 * Math.PI * Frac(tone * _n / fs));
                     break;
                 case SignalKind.Am:
                     a *= s.Envelope(_n, amount ?? s.AmDepth);
                     break;
                 case SignalKind.Fm:
-                    phi =
-                        (amount ?? s.PeakDeviationHz)
-                        / s.ModulatingFrequencyHz
-                        * Math.Sin(2 * Math.PI * Frac(s.ModulatingFrequencyHz * _n / fs));
+                    phi = (amount ?? s.PeakDeviationHz) / tone * Math.Sin(2 * Math.PI * Frac(tone * _n / fs));
                     foreach (ExtraTone x in s.ExtraTones)
                         phi += x.Amount / x.FrequencyHz * Math.Sin(2 * Math.PI * Frac(x.FrequencyHz * _n / fs));
                     break;
                 case SignalKind.Pm:
-                    phi = (amount ?? s.PeakPhaseRad) * Math.Sin(2 * Math.PI * Frac(s.ModulatingFrequencyHz * _n / fs));
+                    phi = (amount ?? s.PeakPhaseRad) * Math.Sin(2 * Math.PI * Frac(tone * _n / fs));
                     foreach (ExtraTone x in s.ExtraTones)
                         phi += x.Amount * Math.Sin(2 * Math.PI * Frac(x.FrequencyHz * _n / fs));
                     break;

@@ -51,7 +51,15 @@ public readonly record struct Spur(double OffsetHz, double LevelDbc);
 /// <param name="OffsetHz">Its carrier offset (replaces the spec's), Hz; null for the spec's.</param>
 /// <param name="Amount">Its main tone's amount (replaces the spec's): peak deviation in Hz (FM), depth as a fraction
 /// (AM), peak phase in rad (PM); null for the spec's.</param>
-public readonly record struct Burst(double StartS, double EndS, double? OffsetHz = null, double? Amount = null);
+/// <param name="ToneHz">Its main modulating tone's frequency (replaces the spec's), Hz; null for the spec's (a tone
+/// series for an audio response: one burst per tone).</param>
+public readonly record struct Burst(
+    double StartS,
+    double EndS,
+    double? OffsetHz = null,
+    double? Amount = null,
+    double? ToneHz = null
+);
 
 /// <summary>A key-up transient: at each key-up the carrier starts <paramref name="ExcursionHz"/> away and settles
 /// exponentially with time constant <paramref name="TauS"/>.</summary>
@@ -365,6 +373,8 @@ public sealed record SignalSpec
                 throw new SettingException(nameof(Bursts), b.StartS, "bursts must not overlap");
             if (b.OffsetHz is { } bo && !(Math.Abs(bo) < SampleRateHz / 2 && (IsComplex || bo > 0)))
                 throw new SettingException(nameof(Bursts), bo, "a burst's offset must lie inside the sampled band");
+            if (b.ToneHz is { } bt && !(bt > 0 && bt < SampleRateHz / 2))
+                throw new SettingException(nameof(Bursts), bt, "a burst's tone must lie between 0 and half the rate");
             if (b.Amount is { } ba && !(double.IsFinite(ba) && ba >= 0))
                 throw new SettingException(nameof(Bursts), ba, "a burst's amount must be a number from 0 up");
         }

@@ -59,7 +59,8 @@ public static class Synthesizer
                 b.StartS,
                 b.EndS,
                 b.OffsetHz is { } bo ? string.Format(c, " at {0:R} Hz", bo) : "",
-                b.Amount is { } ba ? string.Format(c, " amount {0:R}", ba) : ""
+                (b.Amount is { } ba ? string.Format(c, " amount {0:R}", ba) : "")
+                    + (b.ToneHz is { } bt ? string.Format(c, " tone {0:R} Hz", bt) : "")
             );
         if (s.ImageDbc is { } image)
             mod += string.Format(c, ", an IQ image at {0:R} dBc", image);

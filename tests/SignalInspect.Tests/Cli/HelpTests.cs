@@ -50,7 +50,8 @@ public class HelpTests
     public void Batch_offers_every_measurement_option_of_analyze()
     {
         string[] oneFile = ["--json", "--report", "--title", "--operator", "--equipment", "--notes", "--conditions"];
-        string[] oneFileToo = ["--paper"];
+        // A step list's times belong to one capture.
+        string[] oneFileToo = ["--paper", "--steps"];
         HashSet<string> analyze = Options("analyze"),
             batch = Options("batch");
         Assert.Contains("--rbw", analyze);

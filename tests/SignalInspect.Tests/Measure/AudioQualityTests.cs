@@ -212,3 +212,90 @@ public class AudioLimitTests
         Assert.Contains("unmodulated carrier", thdWhy);
     }
 }
+
+/// <summary>The audio response from a tone series (issue 26 item 3): one-second steps of 300 Hz to 3 kHz made by
+/// synth bursts, each step's deviation set by the construction. Pre-emphasised (deviation in proportion to the tone:
+/// 6 dB/octave, common practice for land-mobile FM) the response reads the curve 20 log10(f / 1 kHz); flat (one
+/// deviation) it reads 0 dB. Within 0.3 dB of the construction (issue 26).</summary>
+public class AudioResponseTests
+{
+    private static readonly double[] Tones = [300, 500, 1000, 2000, 3000];
+
+    private static JsonElement Run(TempDir tmp, bool preEmphasised, string stepsText)
+    {
+        string path = tmp.File("series.sigmf"),
+            steps = tmp.File("steps.txt");
+        var args = new List<string> { "synth", path, "--kind", "fm", "--duration", "5", "--snr", "40" };
+        for (int i = 0; i < Tones.Length; i++)
+        {
+            double dev = preEmphasised ? Tones[i] : 1500;
+            args.Add("--burst");
+            args.Add(FormattableString.Invariant($"{i}:{i + 1}::{dev}:{Tones[i]}"));
+        }
+        var (code, _, err) = CliRunner.Run([.. args]);
+        Assert.True(code == 0, err);
+        File.WriteAllText(steps, stepsText);
+        var (c, json, e) = CliRunner.Run("analyze", path, "--steps", steps, "--json", "-");
+        Assert.True(c == 0, e);
+        return JsonDocument.Parse(json).RootElement.GetProperty("response").Clone();
+    }
+
+    private static string List(params string[] extra) =>
+        "# start, end, tone\n"
+        + string.Join("\n", Tones.Select((t, i) => FormattableString.Invariant($"{i},{i + 1},{t}")))
+        + "\n"
+        + string.Join("\n", extra)
+        + "\n";
+
+    [Theory]
+    [InlineData(true)]
+    [InlineData(false)]
+    public void The_response_follows_the_construction(bool preEmphasised)
+    {
+        using var tmp = new TempDir();
+        JsonElement r = Run(tmp, preEmphasised, List());
+        Near.Equal(1000, r.GetProperty("referenceHz").GetDouble(), 1, "reference");
+        JsonElement[] steps = [.. r.GetProperty("steps").EnumerateArray()];
+        Assert.Equal(Tones.Length, steps.Length);
+        for (int i = 0; i < Tones.Length; i++)
+        {
+            double expected = preEmphasised ? 20 * Math.Log10(Tones[i] / 1000) : 0;
+            Near.Equal(expected, steps[i].GetProperty("responseDb").GetDouble(), 0.3, $"response at {Tones[i]} Hz");
+            Near.Equal(
+                20 * Math.Log10(Tones[i] / 1000),
+                steps[i].GetProperty("preEmphasisDb").GetDouble(),
+                0.01,
+                "curve"
+            );
+        }
+    }
+
+    /// <summary>A step list that does not match the capture: a step beyond its end and a step listed with another
+    /// tone give no number, each with its reason; the others still read.</summary>
+    [Fact]
+    public void Steps_the_capture_does_not_hold_give_no_number()
+    {
+        using var tmp = new TempDir();
+        JsonElement r = Run(tmp, true, List("5,6,4000", "2,3,1500"));
+        JsonElement[] steps = [.. r.GetProperty("steps").EnumerateArray()];
+        Assert.Equal(Tones.Length + 2, steps.Length);
+        Assert.Contains("outside the capture", steps[^2].GetProperty("problem").GetString());
+        Assert.Contains("not the 1500 Hz listed", steps[^1].GetProperty("problem").GetString());
+        Assert.All(steps[^2..], s => Assert.Equal(JsonValueKind.Null, s.GetProperty("responseDb").ValueKind));
+        Assert.Equal(JsonValueKind.Number, steps[0].GetProperty("responseDb").ValueKind);
+    }
+
+    [Fact]
+    public void A_malformed_step_list_is_one_line_and_exit_2()
+    {
+        using var tmp = new TempDir();
+        string path = tmp.File("c.sigmf"),
+            steps = tmp.File("bad.txt");
+        Assert.Equal(0, CliRunner.Run("synth", path, "--kind", "fm", "--snr", "30").Code);
+        File.WriteAllText(steps, "0,1,1000\n2,1\n");
+        var (code, _, err) = CliRunner.Run("analyze", path, "--steps", steps);
+        Assert.Equal(2, code);
+        Assert.Contains("line 2", err);
+        Assert.Single(err.TrimEnd().Split('\n'));
+    }
+}
