@@ -254,6 +254,12 @@ public class BandSurveyTests(BandFixture band) : IClassFixture<BandFixture>
 
 public class SurveyEdgeTests
 {
+    private static void Synth(string path, params string[] args)
+    {
+        var (code, _, err) = CliRunner.Run(["synth", path, .. args]);
+        Assert.True(code == 0, err);
+    }
+
     /// <summary>The mean of the largest of R independent exponential variables of mean 1 is the harmonic number
     /// H_R = 1 + 1/2 + ... + 1/R (order statistics of the exponential distribution, Renyi's representation; a
     /// textbook result). Chi-square with 2 degrees of freedom over 2 is that exponential.</summary>
@@ -276,8 +282,7 @@ public class SurveyEdgeTests
     {
         using var tmp = new TempDir();
         string path = tmp.File("wide.sigmf");
-        var (code, _, err) = CliRunner.Run(
-            "synth",
+        Synth(
             path,
             "--kind",
             "fm",
@@ -300,7 +305,6 @@ public class SurveyEdgeTests
             "--also",
             "fm:200k:-35:dev=2k"
         );
-        Assert.True(code == 0, err);
         var (c, json, e) = CliRunner.Run("survey", path, "--json", "-");
         Assert.True(c == 0, e);
         using var doc = JsonDocument.Parse(json);
@@ -323,17 +327,7 @@ public class SurveyEdgeTests
     {
         using var tmp = new TempDir();
         string path = tmp.File("quiet.sigmf");
-        var (code, _, err) = CliRunner.Run(
-            "synth",
-            path,
-            "--kind",
-            "noise",
-            "--sample-rate",
-            "250k",
-            "--duration",
-            "2"
-        );
-        Assert.True(code == 0, err);
+        Synth(path, "--kind", "noise", "--sample-rate", "250k", "--duration", "2");
         var (c, o, e) = CliRunner.Run("survey", path, "--json", "-");
         Assert.True(c == 0, e);
         Assert.Contains("no emission stands out of the noise", e);
@@ -351,8 +345,7 @@ public class SurveyEdgeTests
     {
         using var tmp = new TempDir();
         string path = tmp.File("c.sigmf");
-        var (code, _, err) = CliRunner.Run(
-            "synth",
+        Synth(
             path,
             "--kind",
             "fm",
@@ -365,7 +358,6 @@ public class SurveyEdgeTests
             "--snr",
             "20"
         );
-        Assert.True(code == 0, err);
         var (c, o, e) = CliRunner.Run("survey", path, option, value);
         Assert.Equal(2, c);
         Assert.Contains(message, e);
@@ -380,19 +372,7 @@ public class SurveyEdgeTests
     {
         using var tmp = new TempDir();
         string meta = tmp.File("p.sigmf-meta");
-        var (code, _, err) = CliRunner.Run(
-            "synth",
-            meta,
-            "--kind",
-            "cw",
-            "--sample-rate",
-            "48k",
-            "--snr",
-            "30",
-            "--center-frequency",
-            "155M"
-        );
-        Assert.True(code == 0, err);
+        Synth(meta, "--kind", "cw", "--sample-rate", "48k", "--snr", "30", "--center-frequency", "155M");
         var root = System.Text.Json.Nodes.JsonNode.Parse(File.ReadAllText(meta))!;
         root["global"]!["core:extensions"] = new System.Text.Json.Nodes.JsonArray(
             new System.Text.Json.Nodes.JsonObject
@@ -413,7 +393,7 @@ public class SurveyEdgeTests
         );
         File.WriteAllText(meta, root.ToJsonString());
         string copy = tmp.File("q.sigmf-meta");
-        (code, _, err) = CliRunner.Run("survey", meta, "--annotate", copy);
+        var (code, _, err) = CliRunner.Run("survey", meta, "--annotate", copy);
         Assert.True(code == 0, err);
         using var doc = JsonDocument.Parse(File.ReadAllText(copy));
         string[] names =
