@@ -5,9 +5,11 @@ namespace SignalInspect.Measure;
 /// <summary>A sub-audible tone found under the modulation (tone squelch).</summary>
 /// <param name="FrequencyHz">Its frequency, Hz, with its resolution as uncertainty.</param>
 /// <param name="DeviationHz">Its peak deviation, Hz.</param>
-/// <param name="StandardHz">The standard tone it matches (within <see cref="AudioQuality.ToneMatchPercent"/>), or
-/// null for a non-standard one.</param>
-public sealed record SubAudibleTone(Measured FrequencyHz, double DeviationHz, double? StandardHz);
+/// <param name="StandardHz">The listed tone it matches (within <see cref="AudioQuality.ToneMatchPercent"/>), or
+/// null for one on neither list.</param>
+/// <param name="List">Which list holds it: "EIA" (<see cref="AudioQuality.EiaTones"/>), "common, not EIA"
+/// (<see cref="AudioQuality.OtherCommonTones"/>), or null.</param>
+public sealed record SubAudibleTone(Measured FrequencyHz, double DeviationHz, double? StandardHz, string? List = null);
 
 /// <summary>The demodulated audio's quality: distortion of the test tone, SINAD, residual modulation of an
 /// unmodulated carrier, the sub-audible tone.</summary>
@@ -64,8 +66,9 @@ public sealed record AudioQualityResult
 /// <summary>
 /// Audio quality from the demodulated signal's line spectrum (post-detection, the modulation's unit): the test
 /// tone's harmonics (THD), distortion plus noise and SINAD in the land-mobile audio band, residual FM and AM of an
-/// unmodulated carrier, and the sub-audible tone matched against the standard list. The band is 300-3000 Hz (the
-/// land-mobile audio band of the TIA-603 and ETSI transmitter methods: common practice), flat within it.
+/// unmodulated carrier, and the sub-audible tone matched against the EIA list (and the tones in common use beyond it).
+/// The band is 300-3000 Hz (the land-mobile audio band of the TIA-603 and ETSI transmitter methods: common practice),
+/// flat within it.
 /// </summary>
 internal static class AudioQuality
 {
@@ -80,13 +83,12 @@ internal static class AudioQuality
     /// percent; neighbouring standard tones are about 3.5 % apart: common practice).</summary>
     public const double ToneMatchPercent = 1;
 
-    /// <summary>The standard sub-audible (CTCSS) tones, Hz: 67.0 to 254.1 Hz (from memory; the range and the
-    /// examples 67.0, 71.9, 77.0, 88.5, 100.0, 118.8, 131.8, 151.4, 203.5, 250.3 are checked in
-    /// testdata/REFERENCE-VALUES.md).</summary>
-    public static readonly double[] StandardTones =
+    /// <summary>The EIA sub-audible (CTCSS) tones, Hz: groups A, B and C of the EIA list (37 tones, the EIA/TIA RS-220
+    /// list), as printed in a radio maker's programming manual and a tone-number chart (testdata/REFERENCE-VALUES.md
+    /// names both).</summary>
+    public static readonly double[] EiaTones =
     [
         67.0,
-        69.3,
         71.9,
         74.4,
         77.0,
@@ -96,7 +98,6 @@ internal static class AudioQuality
         88.5,
         91.5,
         94.8,
-        97.4,
         100.0,
         103.5,
         107.2,
@@ -109,32 +110,36 @@ internal static class AudioQuality
         136.5,
         141.3,
         146.2,
-        150.0,
         151.4,
         156.7,
-        159.8,
         162.2,
-        165.5,
         167.9,
-        171.3,
         173.8,
-        177.3,
         179.9,
-        183.5,
         186.2,
-        189.9,
         192.8,
-        196.6,
-        199.5,
         203.5,
-        206.5,
         210.7,
         218.1,
         225.7,
-        229.1,
         233.6,
         241.8,
         250.3,
+    ];
+
+    /// <summary>Tones in common use beyond the EIA list (a tone encoder-decoder chip's table of 47, named in
+    /// testdata/REFERENCE-VALUES.md).</summary>
+    public static readonly double[] OtherCommonTones =
+    [
+        69.3,
+        97.4,
+        159.8,
+        183.5,
+        189.9,
+        196.6,
+        199.5,
+        206.5,
+        229.1,
         254.1,
     ];
 
@@ -257,7 +262,7 @@ internal static class AudioQuality
     }
 
     /// <summary>The strongest component below <see cref="SubAudibleTopHz"/> (and above 60 Hz), matched against
-    /// <see cref="StandardTones"/>.</summary>
+    /// <see cref="EiaTones"/>, else <see cref="OtherCommonTones"/>.</summary>
     private static SubAudibleTone? FindSubAudible(LineSpectrum s, IReadOnlyList<ModulatingComponent> components)
     {
         ModulatingComponent? c = components
@@ -267,7 +272,8 @@ internal static class AudioQuality
         if (c is null)
             return null;
         double resolution = Math.Max(s.BinWidthHz / TypeB.ToneBinDivisor, TypeB.ToneFraction * c.FrequencyHz);
-        double nearest = StandardTones.MinBy(t => Math.Abs(t - c.FrequencyHz));
+        double? match = Match(EiaTones, c.FrequencyHz),
+            other = match is null ? Match(OtherCommonTones, c.FrequencyHz) : null;
         return new SubAudibleTone(
             Measured.FromBudget(
                 c.FrequencyHz,
@@ -278,8 +284,19 @@ internal static class AudioQuality
                 )
             ),
             c.PeakAmount,
-            Math.Abs(nearest - c.FrequencyHz) <= ToneMatchPercent / 100 * nearest ? nearest : null
+            match ?? other,
+            match is not null ? "EIA"
+                : other is not null ? "common, not EIA"
+                : null
         );
+    }
+
+    /// <summary>The tone of <paramref name="list"/> within <see cref="ToneMatchPercent"/> of
+    /// <paramref name="hz"/>, or null.</summary>
+    private static double? Match(double[] list, double hz)
+    {
+        double nearest = list.MinBy(t => Math.Abs(t - hz));
+        return Math.Abs(nearest - hz) <= ToneMatchPercent / 100 * nearest ? nearest : null;
     }
 
     /// <summary>Most points of <see cref="AudioQualityResult.Spectrum"/>.</summary>

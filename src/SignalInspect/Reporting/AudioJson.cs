@@ -37,6 +37,7 @@ internal static class AudioJson
             w.WriteNumber("frequencyUncertaintyHz", t.FrequencyHz.StandardUncertainty);
             w.WriteNumber("deviationHz", t.DeviationHz);
             CaptureInfoJson.WriteNumberOrNull(w, "standardHz", t.StandardHz);
+            w.WriteString("list", t.List);
             w.WriteEndObject();
         }
         else

@@ -401,7 +401,7 @@ public static class ResultRows
                     "sub-audible tone",
                     string.Create(C, $"{sub.FrequencyHz.Value:0.0} Hz, deviation {sub.DeviationHz:0} Hz"),
                     "",
-                    sub.StandardHz is { } std ? string.Create(C, $"standard tone {std:0.0} Hz") : "non-standard"
+                    sub.StandardHz is { } std ? string.Create(C, $"{sub.List} tone {std:0.0} Hz") : "on no tone list"
                 );
         }
         foreach (ResponsePoint p in a.Response?.Points ?? [])

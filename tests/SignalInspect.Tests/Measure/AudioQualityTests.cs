@@ -97,12 +97,14 @@ public class AudioQualityTests
         Near.Equal(34.5, Num(audio, "humNoiseDb"), 1, "hum and noise");
     }
 
-    /// <summary>A sub-audible tone under the test tone: 118.8 Hz (a standard tone, testdata/REFERENCE-VALUES.md) at
-    /// 600 Hz, within 0.1 Hz and 5 % (issue 26); 120.5 Hz is none of the standard tones.</summary>
+    /// <summary>A sub-audible tone under the test tone, within 0.1 Hz and 5 % (issue 26), matched against the lists
+    /// in testdata/REFERENCE-VALUES.md: 118.8 Hz is on the EIA list, 97.4 Hz only among the tones in common use beyond
+    /// it, 120.5 Hz on neither.</summary>
     [Theory]
-    [InlineData(118.8, true)]
-    [InlineData(120.5, false)]
-    public void The_sub_audible_tone_is_read_and_matched(double hz, bool standard)
+    [InlineData(118.8, "EIA")]
+    [InlineData(97.4, "common, not EIA")]
+    [InlineData(120.5, null)]
+    public void The_sub_audible_tone_is_read_and_matched(double hz, string? list)
     {
         using var tmp = new TempDir();
         JsonElement sub = Analyze(
@@ -126,10 +128,24 @@ public class AudioQualityTests
             .GetProperty("subAudibleTone");
         Near.Equal(hz, sub.GetProperty("frequencyHz").GetDouble(), 0.1, "tone frequency");
         Near.Equal(600, sub.GetProperty("deviationHz").GetDouble(), 30, "tone deviation");
-        if (standard)
-            Near.Equal(hz, sub.GetProperty("standardHz").GetDouble(), 1e-9, "standard tone");
+        Assert.Equal(list, sub.GetProperty("list").GetString());
+        if (list is not null)
+            Near.Equal(hz, sub.GetProperty("standardHz").GetDouble(), 1e-9, "listed tone");
         else
             Assert.Equal(JsonValueKind.Null, sub.GetProperty("standardHz").ValueKind);
+    }
+
+    /// <summary>The EIA list holds 37 tones and the common additions 10, none on both (REFERENCE-VALUES.md).</summary>
+    [Fact]
+    public void The_tone_lists_are_the_printed_ones()
+    {
+        Assert.Equal(37, SignalInspect.Measure.AudioQuality.EiaTones.Length);
+        Assert.Equal(10, SignalInspect.Measure.AudioQuality.OtherCommonTones.Length);
+        Assert.Empty(
+            SignalInspect.Measure.AudioQuality.EiaTones.Intersect(SignalInspect.Measure.AudioQuality.OtherCommonTones)
+        );
+        Assert.Equal(67.0, SignalInspect.Measure.AudioQuality.EiaTones[0]);
+        Assert.Equal(250.3, SignalInspect.Measure.AudioQuality.EiaTones[^1]);
     }
 
     /// <summary>A tone outside the audio band has no distortion figure: the reason, no number.</summary>
