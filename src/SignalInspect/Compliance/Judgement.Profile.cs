@@ -102,7 +102,18 @@ public static partial class Judgement
         {
             string text = string.Create(c, $">= {minHn:0.#} dB");
             const string what = "hum and noise ratio";
-            if (a?.HumNoiseDb is { } hn && a.ResidualFmHz is { } rfm && rfm.Value > 0)
+            // Over a band the channel cut short the residual reads low and the ratio high: no verdict from it.
+            if (a?.HumNoiseDb is not null && a.BandHighHz < AudioQuality.BandHighHz)
+                yield return LimitCheck.NotTested(
+                    what,
+                    "dB",
+                    text,
+                    src,
+                    string.Create(c, $"the channel kept audio up to {a.BandHighHz:0} Hz only, not the whole ")
+                        + string.Create(c, $"{AudioQuality.BandLowHz:0}-{AudioQuality.BandHighHz:0} Hz band (a ")
+                        + "post-detection low-pass of 3 kHz or more asked for keeps it)"
+                );
+            else if (a?.HumNoiseDb is { } hn && a.ResidualFmHz is { } rfm && rfm.Value > 0)
             {
                 // The ratio's U from the residual's: 20 / ln 10 x u(residual) / residual.
                 double u = k * 20 / Math.Log(10) * rfm.StandardUncertainty / rfm.Value;

@@ -226,6 +226,21 @@ public class AudioLimitTests
         Assert.Equal("PASS", Check(json, "hum and noise ratio").Verdict);
         var (_, thdWhy) = Check(json, "audio distortion (THD)");
         Assert.Contains("unmodulated carrier", thdWhy);
+        // Without the low-pass the carrier's narrow channel keeps about 1 kHz of audio: the residual reads low (about
+        // 10 Hz) and the ratio high; no verdict is drawn from it.
+        var (_, narrow, _) = CliRunner.Run(
+            "analyze",
+            path,
+            "--reference-deviation",
+            "1.5k",
+            "--limits",
+            Profile(tmp),
+            "--json",
+            "-"
+        );
+        var (verdict, why) = Check(narrow, "hum and noise ratio");
+        Assert.Equal("NOT TESTED", verdict);
+        Assert.Contains("kept audio up to", why);
     }
 }
 
