@@ -230,18 +230,29 @@ internal static class AudioQuality
         double rest = Math.Max(total - p1, 1e-30);
         double sinad = 10 * Math.Log10(total / rest);
         double spread = 1 / Math.Sqrt(2 * Math.Max(1, audio.Segments * BandBins(audio, BandLowHz, high)));
+        // No harmonic within the demodulated band: a THD of 0 would be no reading at all (the band, not the
+        // transmitter, took the harmonics away).
+        string? noHarmonic =
+            harmonics.Count == 0
+                ? FormattableString.Invariant(
+                    $"no harmonic of the {f0:0.#} Hz tone lies within the demodulated band (up to {topHz:0} Hz)"
+                )
+                : null;
         return result with
         {
             ToneHz = f0,
             Harmonics = harmonics,
-            ThdPercent = Measured.FromBudget(
-                thd,
-                new UncertaintyComponent(
-                    "noise in the harmonics' bins",
-                    (thdNoisy - thd) / 2,
-                    "half of what the noise under the harmonics' lines would add had it not been taken off"
-                )
-            ),
+            DistortionNotTested = noHarmonic,
+            ThdPercent = noHarmonic is not null
+                ? null
+                : Measured.FromBudget(
+                    thd,
+                    new UncertaintyComponent(
+                        "noise in the harmonics' bins",
+                        (thdNoisy - thd) / 2,
+                        "half of what the noise under the harmonics' lines would add had it not been taken off"
+                    )
+                ),
             ThdNPercent = Measured.FromBudget(
                 100 * Math.Sqrt(rest / total),
                 new UncertaintyComponent(

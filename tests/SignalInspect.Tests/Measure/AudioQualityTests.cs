@@ -148,6 +148,24 @@ public class AudioQualityTests
         Assert.Equal(250.3, SignalInspect.Measure.AudioQuality.EiaTones[^1]);
     }
 
+    /// <summary>A 2.8 kHz tone read through a 4 kHz post-detection low-pass: its second harmonic (5.6 kHz) lies
+    /// beyond the band, so no THD is given (a 0 % would be the filter's doing), while SINAD in the band is.</summary>
+    [Fact]
+    public void No_THD_without_a_harmonic_in_the_band()
+    {
+        using var tmp = new TempDir();
+        JsonElement audio = Analyze(
+                tmp,
+                ["--kind", "fm", "--deviation", "1k", "--tone", "2.8k", "--snr", "40"],
+                "--post-lowpass",
+                "4k"
+            )
+            .GetProperty("audio");
+        Assert.Equal(JsonValueKind.Null, audio.GetProperty("thdPercent").ValueKind);
+        Assert.Contains("no harmonic", audio.GetProperty("distortionNotTested").GetString());
+        Assert.Equal(JsonValueKind.Number, audio.GetProperty("sinadDb").ValueKind);
+    }
+
     /// <summary>A tone outside the audio band has no distortion figure: the reason, no number.</summary>
     [Fact]
     public void A_tone_outside_the_band_gives_no_distortion_figure()
