@@ -240,15 +240,12 @@ public sealed record BatchRecord
                                 ? d.ToString(CsvFixed, CultureInfo.InvariantCulture)
                                 : string.Empty,
                             long l => l.ToString(CultureInfo.InvariantCulture),
-                            string s => Quote(Diagnostics.SafeText.ForSpreadsheet(s)),
+                            string s => Diagnostics.SafeText.CsvCell(s),
                             _ => string.Empty,
                         }
             )
         );
     }
-
-    private static string Quote(string s) =>
-        s.IndexOfAny([',', '"', '\n', '\r']) >= 0 ? "\"" + s.Replace("\"", "\"\"") + "\"" : s;
 
     /// <summary>The CSV's format of a number written without an uncertainty: up to nine decimals, never
     /// e-notation (a spreadsheet reads either, a person only one).</summary>

@@ -301,26 +301,18 @@ public sealed record LimitProfile
             if (tolPpm is not null && tolHz is not null)
                 throw Bad("frequencyTolerance", "takes \"ppm\" or \"hz\", not both (which would decide?)");
         }
-        double? maxThd = null,
-            minHn = null;
-        if (root.TryGetProperty("audio", out JsonElement audio))
+        // An object of two numbers (each optional): its fields checked, then read.
+        (double?, double?) Two(string field, string a, string b)
         {
-            if (audio.ValueKind != JsonValueKind.Object)
-                throw Bad("audio", "must be an object");
-            Only(audio, "audio", "maxDistortionPercent", "minHumNoiseDb");
-            maxThd = Num(audio, "maxDistortionPercent", "audio.maxDistortionPercent");
-            minHn = Num(audio, "minHumNoiseDb", "audio.minHumNoiseDb");
+            if (!root.TryGetProperty(field, out JsonElement obj))
+                return (null, null);
+            if (obj.ValueKind != JsonValueKind.Object)
+                throw Bad(field, "must be an object");
+            Only(obj, field, a, b);
+            return (Num(obj, a, $"{field}.{a}"), Num(obj, b, $"{field}.{b}"));
         }
-        double? pos = null,
-            neg = null;
-        if (root.TryGetProperty("am", out JsonElement am))
-        {
-            if (am.ValueKind != JsonValueKind.Object)
-                throw Bad("am", "must be an object");
-            Only(am, "am", "maxPositivePeakPercent", "maxNegativePeakPercent");
-            pos = Num(am, "maxPositivePeakPercent", "am.maxPositivePeakPercent");
-            neg = Num(am, "maxNegativePeakPercent", "am.maxNegativePeakPercent");
-        }
+        var (maxThd, minHn) = Two("audio", "maxDistortionPercent", "minHumNoiseDb");
+        var (pos, neg) = Two("am", "maxPositivePeakPercent", "maxNegativePeakPercent");
         EmissionMask? mask = null;
         if (root.TryGetProperty("mask", out JsonElement m))
         {

@@ -30,6 +30,14 @@ public static class SafeText
     public static string ForSpreadsheet(string text) =>
         text.Length > 0 && text[0] is '=' or '+' or '-' or '@' or '\t' or '\r' ? "'" + text : text;
 
+    /// <summary>A CSV cell (RFC 4180): made safe for a spreadsheet (<see cref="ForSpreadsheet"/>), quoted with its
+    /// quotes doubled when it holds a comma, a quote or a line break.</summary>
+    public static string CsvCell(string text)
+    {
+        string t = ForSpreadsheet(text);
+        return t.IndexOfAny([',', '"', '\n', '\r']) >= 0 ? "\"" + t.Replace("\"", "\"\"") + "\"" : t;
+    }
+
     private static bool Unsafe(char c) =>
         c < ' '
         || (c >= '\u007f' && c <= '\u009f')

@@ -26,6 +26,9 @@ public static class Analyzer
     /// <param name="progress">Called with the samples read so far by the spectrum pass.</param>
     /// <param name="cancel">Stops the passes.</param>
     /// <param name="timer">Stage timings for profiling; null for none.</param>
+    /// <param name="knownHash">The file's SHA-256 already under way (<see cref="HashOf"/>), so that a caller analysing
+    /// one capture several times (a survey's emissions, a tone series' steps) reads the file for it once; null to
+    /// start it here.</param>
     /// <exception cref="CaptureException">The capture is too short or cannot be read.</exception>
     /// <exception cref="SettingException">A setting is out of range (named by its property).</exception>
     public static AnalysisResult Analyze(
@@ -33,23 +36,24 @@ public static class Analyzer
         AnalysisOptions? options = null,
         Action<long>? progress = null,
         CancellationToken cancel = default,
-        StageTimer? timer = null
+        StageTimer? timer = null,
+        Task<string>? knownHash = null
     )
     {
         options ??= new AnalysisOptions();
         options.Validate();
+        Task<string> hash = knownHash ?? HashOf(source, cancel);
         if (options.ToneSteps.Count > 0)
         {
             AnalysisOptions one = options with { ToneSteps = [] };
-            return Analyze(source, one, progress, cancel, timer) with
+            return Analyze(source, one, progress, cancel, timer, hash) with
             {
-                Response = AudioResponse.Measure(source, one, options.ToneSteps, cancel),
+                Response = AudioResponse.Measure(source, one, options.ToneSteps, hash, cancel),
             };
         }
         if (options.DiscriminatorHzPerFullScale is not null)
-            return DiscriminatorAnalysis.Analyze(source, options, progress, cancel);
+            return DiscriminatorAnalysis.Analyze(source, options, progress, hash, cancel);
         CaptureInfo info = source.Info;
-        Task<string> hash = Task.Run(() => FileHash.Sha256(info.DataPath ?? info.Path), cancel);
         FrequencyReference? reference = null;
         double? referenceAxisHz = null;
         if (options.ReceiverErrorPpm is { } e)
@@ -94,9 +98,13 @@ public static class Analyzer
             : r;
     }
 
-    /// <summary>The analysis of <see cref="Analyze"/>; <paramref name="split"/>: a capture of several transmissions
-    /// (or one with silence around it) is measured transmission by transmission (each a call without it), sharing
-    /// the file's <paramref name="hash"/>.</summary>
+    /// <summary>The file's SHA-256, read on another thread while the passes run.</summary>
+    internal static Task<string> HashOf(CaptureSource source, CancellationToken cancel) =>
+        Task.Run(() => FileHash.Sha256(source.Info.DataPath ?? source.Info.Path), cancel);
+
+    /// <summary>The analysis of <see cref="Analyze"/>; <paramref name="split"/>: a capture of several transmissions (or
+    /// one with silence around it) is measured transmission by transmission (each a call without it), sharing the
+    /// file's <paramref name="hash"/>.</summary>
     internal static AnalysisResult Run(
         CaptureSource source,
         AnalysisOptions options,

@@ -58,6 +58,7 @@ internal static class AudioResponse
         Capture.CaptureSource source,
         AnalysisOptions options,
         IReadOnlyList<ToneStep> steps,
+        Task<string> hash,
         CancellationToken cancel
     )
     {
@@ -85,7 +86,8 @@ internal static class AudioResponse
                         DurationS = s.EndS - s.StartS - 2 * edge,
                         KeepSpectrogram = false,
                     },
-                    cancel: cancel
+                    cancel: cancel,
+                    knownHash: hash
                 );
             }
             catch (UserInputException e)

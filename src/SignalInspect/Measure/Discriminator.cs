@@ -29,6 +29,7 @@ internal static class DiscriminatorAnalysis
         CaptureSource source,
         AnalysisOptions o,
         Action<long>? progress,
+        Task<string> hash,
         CancellationToken cancel
     )
     {
@@ -42,7 +43,6 @@ internal static class DiscriminatorAnalysis
                     + "without it",
                 info.Path
             );
-        Task<string> hash = Task.Run(() => FileHash.Sha256(info.DataPath ?? info.Path), cancel);
         double fs = info.SampleRateHz;
         long first = Math.Min(info.SampleCount, (long)Math.Round(o.StartS * fs));
         long count = Math.Min(

@@ -59,6 +59,8 @@ public static class BandSurvey
             SpectrogramAveraging = SpectrumAveraging.Mean,
             Threads = a.Threads,
         };
+        // One hash of the file serves every emission's analysis.
+        Task<string> hash = Analyzer.HashOf(source, cancel);
         stage?.Invoke("spectrum");
         SpectrumResult sp = WelchEstimator.Estimate(source, spec, first, count, progress, cancel);
         PowerSpectrum mean = sp.Mean;
@@ -148,7 +150,7 @@ public static class BandSurvey
                 continue;
             }
             stage?.Invoke($"emission {i + 1} of {found.Count}");
-            emissions.Add(Measure(source, a, row, e, bw, cancel));
+            emissions.Add(Measure(source, a, row, e, bw, hash, cancel));
         }
 
         var channels = settings.ChannelGrid is { } grid ? Occupancy(g, mean, grid, floor, settings, steps, axis) : [];
@@ -225,6 +227,7 @@ public static class BandSurvey
         SurveyEmission row,
         Emission e,
         double binHz,
+        Task<string> hash,
         CancellationToken cancel
     )
     {
@@ -233,7 +236,7 @@ public static class BandSurvey
         string? reason = null;
         try
         {
-            r = Analyzer.Analyze(source, asked, cancel: cancel);
+            r = Analyzer.Analyze(source, asked, cancel: cancel, knownHash: hash);
         }
         catch (SettingException ex) when (ex.Setting == nameof(AnalysisOptions.Signal))
         {
@@ -247,7 +250,8 @@ public static class BandSurvey
                     {
                         Signal = new SignalSelection(centre, width),
                     },
-                    cancel: cancel
+                    cancel: cancel,
+                    knownHash: hash
                 );
             }
             catch (UserInputException inner)

@@ -44,7 +44,7 @@ public static class SurveyText
                 F(e.LowHz, 1),
                 F(e.HighHz, 1),
                 e.ImageOf?.ToString(C) ?? "",
-                Cell(e.NotMeasuredReason ?? ""),
+                SafeText.CsvCell(e.NotMeasuredReason ?? ""),
             ];
             w.WriteLine(string.Join(',', cells));
         }
@@ -119,14 +119,6 @@ public static class SurveyText
 
     private static string Seen(SurveyEmission e) =>
         double.IsNaN(e.FirstSeenS) ? "-" : string.Create(C, $"{e.FirstSeenS:0.00}-{e.LastSeenS:0.00}");
-
-    /// <summary>A text cell: made safe for a spreadsheet, quoted (doubled quotes) when it holds a comma, quote or
-    /// line break.</summary>
-    private static string Cell(string text)
-    {
-        string t = SafeText.ForSpreadsheet(text);
-        return t.IndexOfAny([',', '"', '\n', '\r']) >= 0 ? "\"" + t.Replace("\"", "\"\"") + "\"" : t;
-    }
 
     private static double? NaNToNull(double v) => double.IsNaN(v) ? null : v;
 
