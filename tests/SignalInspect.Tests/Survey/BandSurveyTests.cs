@@ -155,6 +155,23 @@ public class BandSurveyTests(BandFixture band) : IClassFixture<BandFixture>
         Assert.Equal("fm", fm.GetProperty("analysis").GetProperty("modulation").GetString());
     }
 
+    /// <summary>Mean power while on, against the construction: a complex carrier of amplitude A (full scale 1) has
+    /// the power A^2, an AM one A^2 (1 + m^2 / 2) (the textbook power of full-carrier AM by one tone); amplitudes
+    /// 0.3 x 10^(dBc / 20). The noise in each band adds under 0.01 dB.</summary>
+    [Theory]
+    [InlineData(-80_000, 0.3, 0.0)]
+    [InlineData(-30_000, 0.15036, 0.0)]
+    [InlineData(20_000, 0.21238, 0.6)]
+    [InlineData(70_000, 0.15036, 0.0)]
+    public void Mean_power_while_on_is_the_emissions_own(double offset, double amplitude, double depth)
+    {
+        JsonElement e = Assert.Single(Emissions, x =>
+            Math.Abs(Num(x, "frequencyHz") - (BandFixture.Centre + offset)) < 5000
+        );
+        double expected = 10 * Math.Log10(amplitude * amplitude * (1 + depth * depth / 2));
+        Near.Equal(expected, Num(e, "meanPowerDb"), 0.2, $"mean power at {offset} Hz");
+    }
+
     [Fact]
     public void Channel_occupancy_reads_the_keyed_channel_busy_40_percent_and_an_empty_one_idle()
     {
