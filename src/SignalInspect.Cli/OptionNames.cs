@@ -64,6 +64,8 @@ internal static class OptionNames
             ["NoiseBandHz"] = "--noise-band",
             ["Others"] = "--also",
             ["ResidualFmHz"] = "--residual-fm",
+            ["CodeSquelch"] = "--code-squelch",
+            ["ReverseBurst"] = "--reverse-burst",
             ["ReferenceDeviationHz"] = "--reference-deviation",
             // Survey (SurveySettings)
             ["MinSnrDb"] = "--min-snr",

@@ -1,6 +1,7 @@
 using System.CommandLine;
 using System.Globalization;
 using SignalInspect.Capture;
+using SignalInspect.Dsp;
 using SignalInspect.Synthesis;
 
 namespace SignalInspect.Cli;
@@ -120,6 +121,23 @@ internal static class SynthCommand
                 + "and noise; complex output).",
             "HZ"
         );
+        var codeSquelch = new Option<string?>("--code-squelch")
+        {
+            Description =
+                "A digital code squelch word under the FM, CODE:DEV: three octal digits with N (normal, the "
+                + "default) or I (inverted), repeated at 134.4 bit/s from each key-up, each bit +/-DEV Hz "
+                + "(2 ms raised-cosine edges); e.g. "
+                + "--code-squelch 023N:600.",
+            HelpName = "CODE:DEV",
+        };
+        var reverseBurst = new Option<string?>("--reverse-burst")
+        {
+            Description =
+                "A reverse burst at each key-down, DEGREES:SECONDS: the added tones (--add-tone) shift their phase by "
+                + "DEGREES for the last SECONDS of each burst (of the capture without bursts); e.g. --reverse-burst "
+                + "180:0.18.",
+            HelpName = "DEGREES:SECONDS",
+        };
         var keyUp = new Option<string?>("--key-up")
         {
             Description =
@@ -209,6 +227,8 @@ internal static class SynthCommand
             also,
             discriminator,
             residualFm,
+            codeSquelch,
+            reverseBurst,
             keyUp,
             image,
             noiseBand,
@@ -260,6 +280,12 @@ internal static class SynthCommand
                 NoiseBandHz = r.GetValue(noiseBand),
                 DiscriminatorHzPerFullScale = r.GetValue(discriminator),
                 ResidualFmHz = r.GetValue(residualFm),
+                CodeSquelch = r.GetValue(codeSquelch) is { } cq ? ParseCodeSquelch(cq) : null,
+                ReverseBurst = r.GetValue(reverseBurst) is { } rb
+                    ? Pair("--reverse-burst", rb) is var (deg, secs)
+                        ? new ReverseBurstSpec(deg, secs)
+                        : null
+                    : null,
                 Bursts = [.. (r.GetValue(burst) ?? []).Select(t => ParseBurst(t, r.GetValue(kind) == "am"))],
                 KeyUp = r.GetValue(keyUp) is { } ku
                     ? Pair("--key-up", ku) is var (e, tau)
@@ -405,6 +431,16 @@ internal static class SynthCommand
             };
         }
         return o;
+    }
+
+    private static CodeSquelchSpec ParseCodeSquelch(string text)
+    {
+        string[] p = text.Split(':');
+        if (p.Length == 2 && DcsCode.Parse(p[0]) is var (code, inverted) && Units.TryParseSi(p[1], out double dev))
+            return new CodeSquelchSpec(code, inverted, dev);
+        throw new UsageException(
+            $"--code-squelch: '{text}' is not CODE:DEV with three octal digits and N or I (e.g. 023N:600)"
+        );
     }
 
     private static (double A, double B) Pair(string option, string text)

@@ -250,7 +250,14 @@ public static class Analyzer
         inputs = inputs with
         {
             Tone = tone,
-            Components = FindComponents(kind, b, features, minTone, inputs.EnvelopeTopHz, channel.PostLowPassHz),
+            Components = ModulatingComponents.ForKind(
+                kind,
+                b,
+                features,
+                minTone,
+                inputs.EnvelopeTopHz,
+                channel.PostLowPassHz
+            ),
         };
         if (MeasurementWarnings.FewTonePeriods(tone, count / fs) is { } fewPeriods)
             warnings.Add(fewPeriods);
@@ -259,10 +266,21 @@ public static class Analyzer
         // The carrier against time; a drifting FM carrier's deviation is measured about the local carrier (a second
         // demodulation pass: the drift would otherwise widen the deviation's percentiles).
         BlockStats track = b.Blocks;
-        double windowS = TimelineMeasurement.WindowS(options.TrackIntervalS, tone?.Value, blockS);
+        // A code squelch word is read before any detrending (its slow bits would pass for a wandering carrier).
+        DigitalCode? code = kind is ModulationKind.Fm or ModulationKind.Fsk
+            ? DcsDecoder.Decode(track, blockS, first / fs, transmissions)
+            : null;
+        if (code?.MeanShiftNote() is { } shift)
+            warnings.Add(shift);
+        double windowS = TimelineMeasurement.WindowS(
+            options.TrackIntervalS,
+            code is null ? tone?.Value : Dsp.DcsCode.WordRateHz,
+            blockS
+        );
         bool detrended = false;
         if (
             kind == ModulationKind.Fm
+            && code is null
             && TimelineMeasurement.Measure(track, blockS, first / fs, windowS, channelNoise, null, kind) is { } rough
             && TimelineMeasurement.Drifts(rough, channel.HalfWidthHz)
         )
@@ -418,7 +436,8 @@ public static class Analyzer
                 tone,
                 inputs.Components,
                 channel.PostLowPassHz,
-                options.ReferenceDeviationHz
+                options.ReferenceDeviationHz,
+                code
             ),
             NecessaryBandwidthHz = extras.NecessaryBandwidthHz,
             EmissionDesignator = EmissionDesignator.Format(kind, extras.NecessaryBandwidthHz),
@@ -537,34 +556,6 @@ public static class Analyzer
             fft *= 2;
         return fft > current.FftSize ? current with { FftSize = fft } : null;
     }
-
-    /// <summary>The modulating components of an AM (depth in %), FM (deviation in Hz) or PM (phase in rad)
-    /// signal.</summary>
-    private static IReadOnlyList<ModulatingComponent> FindComponents(
-        ModulationKind kind,
-        PassResult b,
-        DemodulatedFeatures f,
-        double minHz,
-        double envelopeTopHz,
-        double postLowPassHz
-    ) =>
-        kind switch
-        {
-            ModulationKind.Am when f.EnvelopeMean > 0 => ModulatingComponents.Find(
-                b.EnvelopeSpectrum,
-                minHz,
-                envelopeTopHz,
-                100 / f.EnvelopeMean
-            ),
-            ModulationKind.Fm => ModulatingComponents.Find(b.ToneSpectrum, minHz, postLowPassHz, 1),
-            ModulationKind.Pm =>
-            [
-                .. ModulatingComponents
-                    .Find(b.ToneSpectrum, minHz, postLowPassHz, 1)
-                    .Select(c => c with { PeakAmount = c.PeakAmount / c.FrequencyHz }),
-            ],
-            _ => [],
-        };
 
     /// <summary>The spectrum pass's settings: the FFT size asked for, or <see cref="DefaultFftSize"/> halved until
     /// the window holds eight segments (down to 64).</summary>

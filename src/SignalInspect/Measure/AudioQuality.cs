@@ -55,6 +55,9 @@ public sealed record AudioQualityResult
     /// <summary>The sub-audible tone, or null.</summary>
     public SubAudibleTone? SubAudible { get; init; }
 
+    /// <summary>The digital code squelch word read, or null (none read with confidence, or not looked for).</summary>
+    public DigitalCode? Code { get; init; }
+
     /// <summary>The demodulated audio's line spectrum for the report: (frequency Hz, dB of the stream's unit squared
     /// per bin), at most <see cref="AudioQuality.PlotPoints"/> points (the largest of each group of bins).</summary>
     public IReadOnlyList<(double Hz, double Db)> Spectrum { get; init; } = [];
@@ -155,6 +158,7 @@ internal static class AudioQuality
     /// <param name="components">The modulating components.</param>
     /// <param name="topHz">The stream's highest frequency (its post-detection band), Hz.</param>
     /// <param name="referenceDeviationHz">The hum-and-noise ratio's reference deviation, or null.</param>
+    /// <param name="code">The digital code squelch word read (<see cref="DcsDecoder"/>), or null.</param>
     public static AudioQualityResult? Measure(
         ModulationKind kind,
         LineSpectrum s,
@@ -163,9 +167,18 @@ internal static class AudioQuality
         Measured? tone,
         IReadOnlyList<ModulatingComponent> components,
         double topHz,
-        double? referenceDeviationHz
+        double? referenceDeviationHz,
+        DigitalCode? code = null
     )
     {
+        if (kind == ModulationKind.Fsk && code is not null)
+            return new AudioQualityResult
+            {
+                BandLowHz = BandLowHz,
+                BandHighHz = Math.Min(BandHighHz, topHz),
+                Code = code,
+                DistortionNotTested = "keyed by the code squelch word alone: no tone to measure the distortion of",
+            };
         if (kind is not (ModulationKind.Fm or ModulationKind.Am or ModulationKind.Cw) || s.Segments == 0)
             return null;
         double high = Math.Min(BandHighHz, topHz);
@@ -198,7 +211,12 @@ internal static class AudioQuality
                 DistortionNotTested = "an unmodulated carrier: no tone to measure the distortion of",
             };
         }
-        result = result with { SubAudible = kind == ModulationKind.Fm ? FindSubAudible(s, components) : null };
+        // A code word's lines (every 134.4 / 23 Hz) are not a tone: with a word read, no tone is looked for.
+        result = result with
+        {
+            Code = code,
+            SubAudible = kind == ModulationKind.Fm && code is null ? FindSubAudible(s, components) : null,
+        };
         if (tone is not { } t)
             return result with { DistortionNotTested = "no modulating tone was found" };
         double f0 = t.Value;

@@ -1,3 +1,4 @@
+using SignalInspect.Demodulation;
 using SignalInspect.Spectrum;
 
 namespace SignalInspect.Measure;
@@ -87,4 +88,31 @@ internal static class ModulatingComponents
         double[] sorted = [.. v.Order()];
         return sorted[sorted.Length / 2];
     }
+
+    /// <summary>The modulating components of an AM (depth in %), FM (deviation in Hz) or PM (phase in rad)
+    /// signal.</summary>
+    internal static IReadOnlyList<ModulatingComponent> ForKind(
+        ModulationKind kind,
+        PassResult b,
+        DemodulatedFeatures f,
+        double minHz,
+        double envelopeTopHz,
+        double postLowPassHz
+    ) =>
+        kind switch
+        {
+            ModulationKind.Am when f.EnvelopeMean > 0 => Find(
+                b.EnvelopeSpectrum,
+                minHz,
+                envelopeTopHz,
+                100 / f.EnvelopeMean
+            ),
+            ModulationKind.Fm => Find(b.ToneSpectrum, minHz, postLowPassHz, 1),
+            ModulationKind.Pm =>
+            [
+                .. Find(b.ToneSpectrum, minHz, postLowPassHz, 1)
+                    .Select(c => c with { PeakAmount = c.PeakAmount / c.FrequencyHz }),
+            ],
+            _ => [],
+        };
 }

@@ -42,6 +42,27 @@ internal static class AudioJson
         }
         else
             w.WriteNullValue();
+        w.WritePropertyName("codeSquelch");
+        if (a?.Code is { } c)
+        {
+            w.WriteStartObject();
+            w.WriteString("code", c.Name);
+            w.WriteString("polarity", c.Inverted ? "inverted" : "normal");
+            w.WriteBoolean("standard", c.Standard);
+            w.WriteStartArray("sameSignal");
+            foreach (string other in c.SameSignal)
+                w.WriteStringValue(other);
+            w.WriteEndArray();
+            w.WriteNumber("correlation", c.Correlation);
+            w.WriteNumber("words", c.Words);
+            w.WriteNumber("bitErrors", c.BitErrors);
+            w.WriteNumber("bits", c.Bits);
+            w.WriteNumber("levelHz", c.LevelHz);
+            w.WriteNumber("meanShiftHz", c.MeanShiftHz);
+            w.WriteEndObject();
+        }
+        else
+            w.WriteNullValue();
         w.WriteString("distortionNotTested", a?.DistortionNotTested);
         w.WriteEndObject();
     }

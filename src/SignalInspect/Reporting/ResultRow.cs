@@ -403,6 +403,16 @@ public static class ResultRows
                     "",
                     sub.StandardHz is { } std ? string.Create(C, $"{sub.List} tone {std:0.0} Hz") : "on no tone list"
                 );
+            if (au.Code is { } code)
+                Words(
+                    "audio.codeSquelch",
+                    "digital code squelch",
+                    code.Name + (code.Standard ? " (standard code)" : " (not a standard code)"),
+                    "",
+                    string.Create(C, $"{code.Words} words, correlation {code.Correlation:0.00}, ")
+                        + string.Create(C, $"{code.BitErrors} of {code.Bits} bits off; the same signal as ")
+                        + (code.SameSignal.Count > 0 ? string.Join(", ", code.SameSignal.Take(6)) : "no other code")
+                );
         }
         foreach (ResponsePoint p in a.Response?.Points ?? [])
             Words(

@@ -26,6 +26,8 @@ public sealed class SignalGenerator
     private double _fmScale,
         _fmCycles;
     private double[] _otherBuffer = [];
+    private double _codeCycles;
+    private readonly int _codeWord;
 
     /// <summary>Creates a generator at sample 0.</summary>
     /// <exception cref="SettingException">The spec is invalid (named by its property).</exception>
@@ -54,6 +56,8 @@ public sealed class SignalGenerator
             _fmRing = new double[n];
             _fmScale = rfm / Math.Sqrt(_fmTaps.Sum(h => h * h));
         }
+        if (spec.CodeSquelch is { } cs)
+            _codeWord = Dsp.DcsCode.Word(cs.Code, cs.Inverted);
         _others = [.. spec.Others.Select(o => new SignalGenerator(o with { SnrDb = null, NoiseBandHz = null }))];
         if (spec.NoiseBandHz is { } band)
         {
@@ -166,7 +170,15 @@ public sealed class SignalGenerator
                 case SignalKind.Fm:
                     phi = (amount ?? s.PeakDeviationHz) / tone * Math.Sin(2 * Math.PI * Frac(tone * _n / fs));
                     foreach (ExtraTone x in s.ExtraTones)
-                        phi += x.Amount / x.FrequencyHz * Math.Sin(2 * Math.PI * Frac(x.FrequencyHz * _n / fs));
+                        phi +=
+                            x.Amount
+                            / x.FrequencyHz
+                            * Math.Sin(2 * Math.PI * Frac(x.FrequencyHz * _n / fs) + ReverseShift(s, t));
+                    if (s.CodeSquelch is { } cs)
+                    {
+                        _codeCycles = Frac(_codeCycles + CodeLevel(t - keyedAt) * cs.DeviationHz / fs);
+                        cycles += _codeCycles;
+                    }
                     break;
                 case SignalKind.Pm:
                     phi = (amount ?? s.PeakPhaseRad) * Math.Sin(2 * Math.PI * Frac(tone * _n / fs));
@@ -221,7 +233,9 @@ public sealed class SignalGenerator
                     dev =
                         (amount ?? s.PeakDeviationHz) * Math.Cos(2 * Math.PI * Frac(s.ModulatingFrequencyHz * _n / fs));
                     foreach (ExtraTone x in s.ExtraTones)
-                        dev += x.Amount * Math.Cos(2 * Math.PI * Frac(x.FrequencyHz * _n / fs));
+                        dev += x.Amount * Math.Cos(2 * Math.PI * Frac(x.FrequencyHz * _n / fs) + ReverseShift(s, t));
+                    if (s.CodeSquelch is { } cs)
+                        dev += CodeLevel(t - keyedAt) * cs.DeviationHz;
                     dev = dev / scale + (_noiseSigma > 0 ? Gaussian() * _noiseSigma : 0);
                 }
                 destination[i] = dev;
@@ -257,6 +271,39 @@ public sealed class SignalGenerator
             }
         }
         return count;
+    }
+
+    /// <summary>The code word's level at <paramref name="sinceKeyUp"/> seconds after key-up: +1 for a 1 bit, -1 for a
+    /// 0, each change a raised-cosine edge of <see cref="CodeEdgeS"/> centred on the bits' boundary.</summary>
+    private double CodeLevel(double sinceKeyUp)
+    {
+        double u = Math.Max(0, sinceKeyUp) * Dsp.DcsCode.BitRateHz;
+        long k = (long)Math.Floor(u);
+        double Bit(long i) => (_codeWord >> (int)(i % Dsp.DcsCode.WordBits) & 1) != 0 ? 1 : -1;
+        double half = CodeEdgeS * Dsp.DcsCode.BitRateHz / 2,
+            into = u - k;
+        if (into < half && k > 0)
+            return Edge(Bit(k - 1), Bit(k), 0.5 + into / (2 * half));
+        if (1 - into < half)
+            return Edge(Bit(k), Bit(k + 1), 0.5 - (1 - into) / (2 * half));
+        return Bit(k);
+    }
+
+    /// <summary>Length of a code word bit's edge, s (a transmitter filters the word: no step in the
+    /// frequency).</summary>
+    public const double CodeEdgeS = 0.002;
+
+    private static double Edge(double from, double to, double x) =>
+        from + (to - from) * (1 - Math.Cos(Math.PI * Math.Clamp(x, 0, 1))) / 2;
+
+    /// <summary>The added tones' phase shift at time <paramref name="t"/>: the reverse burst's within its last
+    /// stretch before key-down, else 0 (rad).</summary>
+    private static double ReverseShift(SignalSpec s, double t)
+    {
+        if (s.ReverseBurst is not { } rb)
+            return 0;
+        double end = s.Bursts.Count > 0 ? (s.BurstAt(t) is { } b ? b.EndS : double.NaN) : s.DurationS;
+        return t >= end - rb.DurationS ? rb.ShiftDeg * Math.PI / 180 : 0;
     }
 
     /// <summary>The pulse train's amplitude factor at time <paramref name="t"/>: pulse k or its neighbour when either

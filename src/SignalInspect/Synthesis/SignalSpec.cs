@@ -61,6 +61,21 @@ public readonly record struct Burst(
     double? ToneHz = null
 );
 
+/// <summary>A digital code squelch word sent under FM: its 23 bits repeated at 134.4 bit/s from each burst's start
+/// (0 without bursts), least significant bit first (<see cref="Dsp.DcsCode.Word"/>), each bit adding
+/// +<paramref name="DeviationHz"/> (a 1) or -<paramref name="DeviationHz"/> (a 0) to the instantaneous frequency
+/// (non-return-to-zero, each change a 2 ms raised-cosine edge: a transmitter filters the word).</summary>
+/// <param name="Code">The code number, 0 to 511 (e.g. 0x13 for "023").</param>
+/// <param name="Inverted">Every bit complemented.</param>
+/// <param name="DeviationHz">Its deviation, Hz.</param>
+public readonly record struct CodeSquelchSpec(int Code, bool Inverted, double DeviationHz);
+
+/// <summary>A reverse burst at each key-down: for the last <paramref name="DurationS"/> seconds of each burst (of the
+/// capture without bursts) the added tones' phase is shifted by <paramref name="ShiftDeg"/>.</summary>
+/// <param name="ShiftDeg">The phase shift, degrees (180 in common use, 120 on some radios).</param>
+/// <param name="DurationS">How long before key-down, s.</param>
+public readonly record struct ReverseBurstSpec(double ShiftDeg, double DurationS);
+
 /// <summary>A key-up transient: at each key-up the carrier starts <paramref name="ExcursionHz"/> away and settles
 /// exponentially with time constant <paramref name="TauS"/>.</summary>
 /// <param name="ExcursionHz">Frequency difference at the key-up instant, Hz (signed).</param>
@@ -185,6 +200,13 @@ public sealed record SignalSpec
     /// <summary>Residual FM: Gaussian frequency noise of this rms, Hz, within 300-3000 Hz (a transmitter's hum and
     /// noise), added to the carrier's phase; null for none. Complex output only.</summary>
     public double? ResidualFmHz { get; init; }
+
+    /// <summary>A digital code squelch word under the FM (added to its instantaneous frequency); null for
+    /// none.</summary>
+    public CodeSquelchSpec? CodeSquelch { get; init; }
+
+    /// <summary>A reverse burst of the added tones at each key-down; null for none.</summary>
+    public ReverseBurstSpec? ReverseBurst { get; init; }
 
     /// <summary>Pulse width, s (pulse trains).</summary>
     public double PulseWidthS { get; init; } = 0.001;
@@ -402,6 +424,21 @@ public sealed record SignalSpec
                 nameof(ResidualFmHz),
                 rf,
                 "needs complex output at more than 8 kHz and a positive rms below a quarter of the sample rate"
+            );
+        if (CodeSquelch is { } cs && !(Kind == SignalKind.Fm && cs.Code is >= 0 and < 512 && cs.DeviationHz > 0))
+            throw new SettingException(
+                nameof(CodeSquelch),
+                cs.Code,
+                "needs FM, a code of three octal digits and a positive deviation"
+            );
+        if (
+            ReverseBurst is { } rb
+            && !(ExtraTones.Count > 0 && rb.DurationS > 0 && rb.DurationS < DurationS && double.IsFinite(rb.ShiftDeg))
+        )
+            throw new SettingException(
+                nameof(ReverseBurst),
+                rb.DurationS,
+                "needs an added (sub-audible) tone, a finite shift and a duration shorter than the capture"
             );
         foreach (SignalSpec o in Others)
         {
