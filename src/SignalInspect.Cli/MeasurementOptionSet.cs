@@ -23,6 +23,7 @@ internal sealed class MeasurementOptionSet
     private readonly Option<double?> discriminator;
     private readonly Option<double?> discriminatorU;
     private readonly Option<double?> referenceDeviation;
+    private readonly Option<string> weighting;
     private readonly ReferenceOptionSet _reference = new();
     private readonly SpectrumCommand.SpectrumOptionSet _spectrum = new();
 
@@ -96,6 +97,15 @@ internal sealed class MeasurementOptionSet
             "Reference deviation in Hz for the hum-and-noise ratio of an unmodulated carrier (its rms over the "
                 + "residual FM), e.g. 60 % of the channel's maximum."
         );
+        weighting = new Option<string>("--weighting")
+        {
+            Description =
+                "Noise weighting of SINAD, THD+N and the residual FM/AM: none (flat within 300-3000 Hz), c-message "
+                + "(IEEE 743 table) or psophometric (ITU-T O.41 table); a weighting replaces the 300-3000 Hz band.",
+            HelpName = "none|c-message|psophometric",
+            DefaultValueFactory = _ => "none",
+        };
+        weighting.AcceptOnlyFromAmong([.. NoiseWeighting.All.Select(w => w.Name)]);
         discriminatorU = new Option<double?>("--discriminator-uncertainty")
         {
             Description =
@@ -123,6 +133,7 @@ internal sealed class MeasurementOptionSet
                 discriminator,
                 discriminatorU,
                 referenceDeviation,
+                weighting,
             }
         )
             cmd.Options.Add(o);
@@ -168,6 +179,7 @@ internal sealed class MeasurementOptionSet
             DiscriminatorHzPerFullScale = r.GetValue(discriminator),
             DiscriminatorUncertaintyPercent = r.GetValue(discriminatorU),
             ReferenceDeviationHz = r.GetValue(referenceDeviation),
+            Weighting = NoiseWeighting.Named(r.GetValue(weighting) ?? "none"),
         };
         return _reference.Apply(r, options);
     }

@@ -83,6 +83,9 @@ public sealed record AnalysisOptions
     /// ratio.</summary>
     public double? ReferenceDeviationHz { get; init; }
 
+    /// <summary>The noise weighting of the audio figures (SINAD, THD+N, residual FM and AM); null for none.</summary>
+    public NoiseWeighting? Weighting { get; init; }
+
     /// <summary>A tone series the capture holds (the audio response is read from it); empty for none.</summary>
     public IReadOnlyList<ToneStep> ToneSteps { get; init; } = [];
 

@@ -437,7 +437,8 @@ public static class Analyzer
                 inputs.Components,
                 channel.PostLowPassHz,
                 options.ReferenceDeviationHz,
-                code
+                code,
+                options.Weighting
             ),
             NecessaryBandwidthHz = extras.NecessaryBandwidthHz,
             EmissionDesignator = EmissionDesignator.Format(kind, extras.NecessaryBandwidthHz),

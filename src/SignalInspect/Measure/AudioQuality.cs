@@ -159,6 +159,8 @@ internal static class AudioQuality
     /// <param name="topHz">The stream's highest frequency (its post-detection band), Hz.</param>
     /// <param name="referenceDeviationHz">The hum-and-noise ratio's reference deviation, or null.</param>
     /// <param name="code">The digital code squelch word read (<see cref="DcsDecoder"/>), or null.</param>
+    /// <param name="weighting">The noise weighting of SINAD, THD+N and the residual figures (it replaces the
+    /// 300-3000 Hz band); null for none.</param>
     public static AudioQualityResult? Measure(
         ModulationKind kind,
         LineSpectrum s,
@@ -168,7 +170,8 @@ internal static class AudioQuality
         IReadOnlyList<ModulatingComponent> components,
         double topHz,
         double? referenceDeviationHz,
-        DigitalCode? code = null
+        DigitalCode? code = null,
+        NoiseWeighting? weighting = null
     )
     {
         if (kind == ModulationKind.Fsk && code is not null)
@@ -181,24 +184,27 @@ internal static class AudioQuality
             };
         if (kind is not (ModulationKind.Fm or ModulationKind.Am or ModulationKind.Cw) || s.Segments == 0)
             return null;
-        double high = Math.Min(BandHighHz, topHz);
+        NoiseWeighting w = weighting ?? NoiseWeighting.None;
+        double low = w.IsNone ? BandLowHz : w.LowHz,
+            high = Math.Min(w.IsNone ? BandHighHz : w.HighHz, topHz);
         LineSpectrum audio = kind == ModulationKind.Am ? envelope : s;
         double plotTop = Math.Min(topHz, Math.Max(3500, tone is { } pt ? 10.5 * pt.Value : 0));
         var result = new AudioQualityResult
         {
-            BandLowHz = BandLowHz,
+            BandLowHz = low,
             BandHighHz = high,
+            Weighting = w.Description,
             Spectrum = PlotSpectrum(audio, plotTop),
         };
         if (kind == ModulationKind.Cw)
         {
-            double fm = Math.Sqrt(BandVariance(s, BandLowHz, high));
-            double am = envelopeMean > 0 ? 100 * Math.Sqrt(BandVariance(envelope, BandLowHz, high)) / envelopeMean : 0;
+            double fm = Math.Sqrt(BandVariance(s, low, high, w));
+            double am = envelopeMean > 0 ? 100 * Math.Sqrt(BandVariance(envelope, low, high, w)) / envelopeMean : 0;
             Measured residual = Measured.FromBudget(
                 fm,
                 new UncertaintyComponent(
                     "estimate's spread",
-                    fm / Math.Sqrt(2 * Math.Max(1, s.Segments * BandBins(s, BandLowHz, high))),
+                    fm / Math.Sqrt(2 * Math.Max(1, s.Segments * BandBins(s, low, high))),
                     "a variance summed over B bins of K segments: relative spread 1 / sqrt(2 K B)"
                 )
             );
@@ -220,15 +226,15 @@ internal static class AudioQuality
         if (tone is not { } t)
             return result with { DistortionNotTested = "no modulating tone was found" };
         double f0 = t.Value;
-        if (!(f0 >= BandLowHz && f0 <= high))
+        if (!(f0 >= low && f0 <= high))
             return result with
             {
                 ToneHz = f0,
                 DistortionNotTested = FormattableString.Invariant(
-                    $"the tone ({f0:0.#} Hz) lies outside the audio band ({BandLowHz:0}-{high:0} Hz)"
+                    $"the tone ({f0:0.#} Hz) lies outside the audio band ({low:0}-{high:0} Hz)"
                 ),
             };
-        double floor = FloorPerBin(audio, BandLowHz, high, f0);
+        double floor = FloorPerBin(audio, low, high, f0);
         double p1 = LineVariance(audio, f0, floor);
         if (!(p1 > 0))
             return result with { ToneHz = f0, DistortionNotTested = "the tone's line holds no power over the noise" };
@@ -244,10 +250,11 @@ internal static class AudioQuality
         }
         double thd = 100 * Math.Sqrt(pd / p1);
         double thdNoisy = 100 * Math.Sqrt((pd + pn) / p1);
-        double total = BandVariance(audio, BandLowHz, high);
-        double rest = Math.Max(total - p1, 1e-30);
+        // SINAD and THD+N weigh the band (the tone by its own weight); THD compares the harmonics unweighted.
+        double total = BandVariance(audio, low, high, w);
+        double rest = Math.Max(total - LineVariance(audio, f0, floor, w), 1e-30);
         double sinad = 10 * Math.Log10(total / rest);
-        double spread = 1 / Math.Sqrt(2 * Math.Max(1, audio.Segments * BandBins(audio, BandLowHz, high)));
+        double spread = 1 / Math.Sqrt(2 * Math.Max(1, audio.Segments * BandBins(audio, low, high)));
         // No harmonic within the demodulated band: a THD of 0 would be no reading at all (the band, not the
         // transmitter, took the harmonics away).
         string? noHarmonic =
@@ -361,13 +368,14 @@ internal static class AudioQuality
         return Math.Max(0, b - a + 1);
     }
 
-    /// <summary>The stream's variance between the edges (everything: lines and noise).</summary>
-    private static double BandVariance(LineSpectrum s, double lowHz, double highHz)
+    /// <summary>The stream's variance between the edges (everything: lines and noise), each bin weighted by
+    /// <paramref name="w"/>.</summary>
+    private static double BandVariance(LineSpectrum s, double lowHz, double highHz, NoiseWeighting w)
     {
         var (a, b) = Bins(s, lowHz, highHz);
         double v = 0;
         for (int k = a; k <= b; k++)
-            v += s.Power(k);
+            v += s.Power(k) * w.PowerGain(k * s.BinWidthHz);
         return v * ToVariance(s);
     }
 
@@ -390,14 +398,15 @@ internal static class AudioQuality
         return p[p.Count / 2];
     }
 
-    /// <summary>The variance of the line at <paramref name="hz"/> (its bins within the guard, less the
-    /// noise).</summary>
-    private static double LineVariance(LineSpectrum s, double hz, double floor)
+    /// <summary>The variance of the line at <paramref name="hz"/> (its bins within the guard, less the noise), each
+    /// bin weighted by <paramref name="w"/> when given (a tone at a weighting's peak loses its own skirts, not the
+    /// peak's weight).</summary>
+    private static double LineVariance(LineSpectrum s, double hz, double floor, NoiseWeighting? w = null)
     {
         int k = (int)Math.Round(hz / s.BinWidthHz);
         double v = 0;
         for (int j = Math.Max(1, k - Guard); j <= Math.Min(s.FftSize / 2 - 1, k + Guard); j++)
-            v += Math.Max(0, s.Power(j) - floor);
+            v += Math.Max(0, s.Power(j) - floor) * (w?.PowerGain(j * s.BinWidthHz) ?? 1);
         return v * ToVariance(s);
     }
 }

@@ -279,7 +279,8 @@ internal static class DiscriminatorAnalysis
                 tone,
                 components,
                 top,
-                o.ReferenceDeviationHz
+                o.ReferenceDeviationHz,
+                weighting: o.Weighting
             ),
             Spectrum = sp,
             Method = method,

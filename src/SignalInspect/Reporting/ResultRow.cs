@@ -375,7 +375,10 @@ public static class ResultRows
         }
         if (a.Audio is { } au)
         {
-            string band = string.Create(C, $"{au.BandLowHz:0}-{au.BandHighHz:0} Hz");
+            // A weighting replaces the band (its table's span): the label names it instead.
+            string band = au.Weighting.StartsWith("none", StringComparison.Ordinal)
+                ? string.Create(C, $"{au.BandLowHz:0}-{au.BandHighHz:0} Hz")
+                : au.Weighting.Split(' ')[0] + " weighted";
             if (au.ThdPercent is { } thd)
                 Info("audio.thd", "audio distortion (THD)", thd.Value, "%", thd.StandardUncertainty, "0.##");
             if (au.ThdNPercent is { } thdn)
