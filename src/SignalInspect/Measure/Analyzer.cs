@@ -438,7 +438,8 @@ public static class Analyzer
                 channel.PostLowPassHz,
                 options.ReferenceDeviationHz,
                 code,
-                options.Weighting
+                options.Weighting,
+                (track.Freq, blockS)
             ),
             NecessaryBandwidthHz = extras.NecessaryBandwidthHz,
             EmissionDesignator = EmissionDesignator.Format(kind, extras.NecessaryBandwidthHz),

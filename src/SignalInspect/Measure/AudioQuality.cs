@@ -58,6 +58,9 @@ public sealed record AudioQualityResult
     /// <summary>The digital code squelch word read, or null (none read with confidence, or not looked for).</summary>
     public DigitalCode? Code { get; init; }
 
+    /// <summary>The sub-audible tone's reverse burst at the window's end, or null (none, or no tone).</summary>
+    public ReverseBurstResult? ReverseBurst { get; init; }
+
     /// <summary>The demodulated audio's line spectrum for the report: (frequency Hz, dB of the stream's unit squared
     /// per bin), at most <see cref="AudioQuality.PlotPoints"/> points (the largest of each group of bins).</summary>
     public IReadOnlyList<(double Hz, double Db)> Spectrum { get; init; } = [];
@@ -161,6 +164,8 @@ internal static class AudioQuality
     /// <param name="code">The digital code squelch word read (<see cref="DcsDecoder"/>), or null.</param>
     /// <param name="weighting">The noise weighting of SINAD, THD+N and the residual figures (it replaces the
     /// 300-3000 Hz band); null for none.</param>
+    /// <param name="track">The block means of the frequency (Hz) and the block length (s), where a sub-audible tone's
+    /// reverse burst is looked for; null not to look.</param>
     public static AudioQualityResult? Measure(
         ModulationKind kind,
         LineSpectrum s,
@@ -171,7 +176,8 @@ internal static class AudioQuality
         double topHz,
         double? referenceDeviationHz,
         DigitalCode? code = null,
-        NoiseWeighting? weighting = null
+        NoiseWeighting? weighting = null,
+        (double[] Freq, double BlockS)? track = null
     )
     {
         if (kind == ModulationKind.Fsk && code is not null)
@@ -218,10 +224,15 @@ internal static class AudioQuality
             };
         }
         // A code word's lines (every 134.4 / 23 Hz) are not a tone: with a word read, no tone is looked for.
+        SubAudibleTone? sub = kind == ModulationKind.Fm && code is null ? FindSubAudible(s, components) : null;
         result = result with
         {
             Code = code,
-            SubAudible = kind == ModulationKind.Fm && code is null ? FindSubAudible(s, components) : null,
+            SubAudible = sub,
+            ReverseBurst =
+                sub is not null && track is { } tr
+                    ? ReverseBurstFinder.Find(tr.Freq, tr.BlockS, sub.FrequencyHz.Value)
+                    : null,
         };
         if (tone is not { } t)
             return result with { DistortionNotTested = "no modulating tone was found" };

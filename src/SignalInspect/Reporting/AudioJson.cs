@@ -63,6 +63,17 @@ internal static class AudioJson
         }
         else
             w.WriteNullValue();
+        w.WritePropertyName("reverseBurst");
+        if (a?.ReverseBurst is { } rb)
+        {
+            w.WriteStartObject();
+            w.WriteNumber("shiftDeg", rb.ShiftDeg);
+            w.WriteNumber("durationS", rb.DurationS);
+            w.WriteNumber("resolutionS", rb.ResolutionS);
+            w.WriteEndObject();
+        }
+        else
+            w.WriteNullValue();
         w.WriteString("distortionNotTested", a?.DistortionNotTested);
         w.WriteEndObject();
     }

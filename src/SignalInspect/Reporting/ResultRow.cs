@@ -406,6 +406,15 @@ public static class ResultRows
                     "",
                     sub.StandardHz is { } std ? string.Create(C, $"{sub.List} tone {std:0.0} Hz") : "on no tone list"
                 );
+            if (au.ReverseBurst is { } rb)
+                Words(
+                    "audio.reverseBurst",
+                    "reverse burst",
+                    string.Create(C, $"{rb.ShiftDeg:0} degrees, the last {1000 * rb.DurationS:0} ms read"),
+                    "",
+                    string.Create(C, $"+/- {1000 * rb.ResolutionS:0} ms; a transmission's window ends ")
+                        + string.Create(C, $"{1000 * TransmissionFinder.SteadyBeforeKeyDownS:0} ms before key-down")
+                );
             if (au.Code is { } code)
                 Words(
                     "audio.codeSquelch",

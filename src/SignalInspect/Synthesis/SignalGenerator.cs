@@ -170,10 +170,7 @@ public sealed class SignalGenerator
                 case SignalKind.Fm:
                     phi = (amount ?? s.PeakDeviationHz) / tone * Math.Sin(2 * Math.PI * Frac(tone * _n / fs));
                     foreach (ExtraTone x in s.ExtraTones)
-                        phi +=
-                            x.Amount
-                            / x.FrequencyHz
-                            * Math.Sin(2 * Math.PI * Frac(x.FrequencyHz * _n / fs) + ReverseShift(s, t));
+                        phi += x.Amount / x.FrequencyHz * ShiftedSine(s, x.FrequencyHz, t);
                     if (s.CodeSquelch is { } cs)
                     {
                         _codeCycles = Frac(_codeCycles + CodeLevel(t - keyedAt) * cs.DeviationHz / fs);
@@ -233,7 +230,8 @@ public sealed class SignalGenerator
                     dev =
                         (amount ?? s.PeakDeviationHz) * Math.Cos(2 * Math.PI * Frac(s.ModulatingFrequencyHz * _n / fs));
                     foreach (ExtraTone x in s.ExtraTones)
-                        dev += x.Amount * Math.Cos(2 * Math.PI * Frac(x.FrequencyHz * _n / fs) + ReverseShift(s, t));
+                        dev +=
+                            x.Amount * Math.Cos(2 * Math.PI * Frac(x.FrequencyHz * _n / fs) + ReverseShift(s, t).Rad);
                     if (s.CodeSquelch is { } cs)
                         dev += CodeLevel(t - keyedAt) * cs.DeviationHz;
                     dev = dev / scale + (_noiseSigma > 0 ? Gaussian() * _noiseSigma : 0);
@@ -297,13 +295,25 @@ public sealed class SignalGenerator
         from + (to - from) * (1 - Math.Cos(Math.PI * Math.Clamp(x, 0, 1))) / 2;
 
     /// <summary>The added tones' phase shift at time <paramref name="t"/>: the reverse burst's within its last
-    /// stretch before key-down, else 0 (rad).</summary>
-    private static double ReverseShift(SignalSpec s, double t)
+    /// stretch before key-down, else 0 (rad); and when it applies, the time the shift began.</summary>
+    private static (double Rad, double From) ReverseShift(SignalSpec s, double t)
     {
         if (s.ReverseBurst is not { } rb)
-            return 0;
+            return (0, 0);
         double end = s.Bursts.Count > 0 ? (s.BurstAt(t) is { } b ? b.EndS : double.NaN) : s.DurationS;
-        return t >= end - rb.DurationS ? rb.ShiftDeg * Math.PI / 180 : 0;
+        return t >= end - rb.DurationS ? (rb.ShiftDeg * Math.PI / 180, end - rb.DurationS) : (0, 0);
+    }
+
+    /// <summary>sin(2 pi f t + shift), the integral of a tone whose phase the reverse burst shifts: from the shift on,
+    /// the integral goes on from its value at the shift (the carrier's phase stays continuous, as a modulator
+    /// integrating the shifted tone gives).</summary>
+    private static double ShiftedSine(SignalSpec s, double hz, double t)
+    {
+        var (shift, from) = ReverseShift(s, t);
+        double now = Math.Sin(2 * Math.PI * Frac(hz * t) + shift);
+        return shift == 0
+            ? now
+            : now - Math.Sin(2 * Math.PI * Frac(hz * from) + shift) + Math.Sin(2 * Math.PI * Frac(hz * from));
     }
 
     /// <summary>The pulse train's amplitude factor at time <paramref name="t"/>: pulse k or its neighbour when either

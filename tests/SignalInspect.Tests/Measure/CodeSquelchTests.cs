@@ -205,3 +205,49 @@ public class CodeSquelchCaptureTests
         Assert.Contains(r.Warnings, w => w.Contains("11 ones and 12 zeros") && w.Contains("023N"));
     }
 }
+
+/// <summary>The reverse burst at key-down (issue 26 item 2): a 180 degree phase reversal of the sub-audible tone
+/// (a radio maker's manual: "a 180-degree phase reversal ... when the push-to-talk switch is released") and the
+/// 120 degree variant some radios offer, testdata/REFERENCE-VALUES.md.</summary>
+public class ReverseBurstTests
+{
+    /// <summary>Two calls with 131.8 Hz at 500 Hz under a 1 kHz tone, the burst in the last 180 or 150 ms of each:
+    /// shift within 15 degrees, duration (to the window's end, 10 ms before key-down) within the stated resolution
+    /// and 10 ms; none without a burst.</summary>
+    [Theory]
+    [InlineData(180.0, 0.18)]
+    [InlineData(120.0, 0.15)]
+    [InlineData(0.0, 0.0)]
+    public void The_burst_is_found_in_each_call(double degrees, double seconds)
+    {
+        using var tmp = new TempDir();
+        var spec = new SignalSpec
+        {
+            Kind = SignalKind.Fm,
+            SampleRateHz = 24_000,
+            DurationS = 4,
+            PeakDeviationHz = 1500,
+            SnrDb = 25,
+            ExtraTones = [new ExtraTone(131.8, 500)],
+            Bursts = [new Burst(0.3, 1.8), new Burst(2.3, 3.8)],
+            ReverseBurst = degrees > 0 ? new ReverseBurstSpec(degrees, seconds) : null,
+        };
+        AnalysisResult r = Measuring.Analyze(tmp, spec);
+        Assert.Equal(2, r.Transmissions.Count);
+        foreach (Transmission t in r.Transmissions)
+        {
+            ReverseBurstResult? rb = t.Result!.Audio!.ReverseBurst;
+            if (degrees == 0)
+            {
+                Assert.Null(rb);
+                continue;
+            }
+            Assert.NotNull(rb);
+            Near.Equal(degrees, rb.ShiftDeg, 15, "phase shift");
+            double expected = seconds - TransmissionFinder.SteadyBeforeKeyDownS;
+            Near.Equal(expected, rb.DurationS, rb.ResolutionS + 0.01, "burst duration to the window's end");
+        }
+        // The carrier's phase stays continuous through the shift: the peak deviation is the tones' sum.
+        Near.Equal(2000, r.Fm!.PeakDeviationHz.Value, 0.05 * 2000, "peak deviation");
+    }
+}
