@@ -124,11 +124,12 @@ internal static class SynthCommand
         var codeSquelch = new Option<string?>("--code-squelch")
         {
             Description =
-                "A digital code squelch word under the FM, CODE:DEV: three octal digits with N (normal, the "
+                "A digital code squelch word under the FM, CODE:DEV[:TURNOFF]: three octal digits with N (normal, the "
                 + "default) or I (inverted), repeated at 134.4 bit/s from each key-up, each bit +/-DEV Hz "
-                + "(2 ms raised-cosine edges); e.g. "
+                + "(2 ms raised-cosine edges); TURNOFF seconds of a 134.4 Hz turn-off tone replace it before each "
+                + "key-down; e.g. "
                 + "--code-squelch 023N:600.",
-            HelpName = "CODE:DEV",
+            HelpName = "CODE:DEV[:TURNOFF]",
         };
         var reverseBurst = new Option<string?>("--reverse-burst")
         {
@@ -436,10 +437,16 @@ internal static class SynthCommand
     private static CodeSquelchSpec ParseCodeSquelch(string text)
     {
         string[] p = text.Split(':');
-        if (p.Length == 2 && DcsCode.Parse(p[0]) is var (code, inverted) && Units.TryParseSi(p[1], out double dev))
-            return new CodeSquelchSpec(code, inverted, dev);
+        double turnOff = 0;
+        if (
+            p.Length is 2 or 3
+            && DcsCode.Parse(p[0]) is var (code, inverted)
+            && Units.TryParseSi(p[1], out double dev)
+            && (p.Length == 2 || Units.TryParseSi(p[2], out turnOff))
+        )
+            return new CodeSquelchSpec(code, inverted, dev, turnOff);
         throw new UsageException(
-            $"--code-squelch: '{text}' is not CODE:DEV with three octal digits and N or I (e.g. 023N:600)"
+            $"--code-squelch: '{text}' is not CODE:DEV[:TURNOFF] with three octal digits and N or I (e.g. 023N:600)"
         );
     }
 

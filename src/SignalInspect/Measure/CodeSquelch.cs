@@ -28,6 +28,10 @@ public sealed record DigitalCode(
     double LevelHz
 )
 {
+    /// <summary>How long the turn-off code (a 134.4 Hz tone in place of the word) lasts at the end of the last
+    /// stretch read, s; null when none was found.</summary>
+    public double? TurnOffS { get; init; }
+
     /// <summary>The word's ones less its zeros (the inverted word's when inverted).</summary>
     public int Balance => 2 * int.PopCount(DcsCode.Word(Code, Inverted)) - DcsCode.WordBits;
 
@@ -159,6 +163,14 @@ internal static class DcsDecoder
         var (code, inv) = same[0];
         int word = DcsCode.Word(code, inv);
         int errors = chunks.Sum(v => Errors(v, word));
+        var (lastFirst, lastLast) = segments[^1];
+        double? turnOff = TurnOff(
+            freq,
+            Math.Max(0, lastFirst),
+            Math.Min(freq.Length - 1, lastLast),
+            blockS,
+            level / bits
+        );
         return new DigitalCode(
             code,
             inv,
@@ -169,7 +181,47 @@ internal static class DcsDecoder
             errors,
             bits,
             level / bits
-        );
+        )
+        {
+            TurnOffS = turnOff,
+        };
+    }
+
+    /// <summary>Longest turn-off code looked for, s.</summary>
+    public const double TurnOffLookS = 0.5;
+
+    /// <summary>
+    /// The turn-off code at the end of a stretch: a 134.4 Hz tone in place of the word (a forum account of the
+    /// practice, testdata/REFERENCE-VALUES.md). A word of bits at 134.4 bit/s holds nothing at 134.4 Hz (its spectrum's
+    /// null at the bit rate), so the tone's level there, read over four of its periods, stands out: the stretch
+    /// reaching the end where that level holds at least a quarter of the word's bit level (a tone of half the word's
+    /// deviation), for at least 40 ms; null when none.
+    /// </summary>
+    private static double? TurnOff(double[] freq, int first, int last, double blockS, double wordLevelHz)
+    {
+        int m = Math.Max(1, (int)Math.Round(4 / DcsCode.BitRateHz / blockS)),
+            look = (int)(TurnOffLookS / blockS);
+        if (last - first < 2 * look || !(wordLevelHz > 0))
+            return null;
+        double mean = FiniteMean(freq, first, last);
+        int end = last;
+        for (int i = last; i > last - look && i - m + 1 >= first; i--)
+        {
+            double re = 0,
+                im = 0;
+            for (int j = i - m + 1; j <= i; j++)
+            {
+                double x = double.IsFinite(freq[j]) ? freq[j] - mean : 0,
+                    a = 2 * Math.PI * DcsCode.BitRateHz * j * blockS;
+                re += x * Math.Cos(a);
+                im += x * Math.Sin(a);
+            }
+            if (Math.Sqrt(re * re + im * im) / m < wordLevelHz / 4)
+                break;
+            end = i - m / 2; // the window's middle: the tone fills at least half of it
+        }
+        double duration = (freq.Length - end) * blockS;
+        return end < last && duration >= 0.04 ? duration : null;
     }
 
     /// <summary>The stretch's bit values (its mean taken off, each the mean over one bit) in chunks of
@@ -179,12 +231,7 @@ internal static class DcsDecoder
         int n = last - first + 1;
         if (n < 2 * bitBlocks)
             yield break;
-        double mean = 0;
-        int counted = 0;
-        for (int i = first; i <= last; i++)
-            if (double.IsFinite(freq[i]))
-                (mean, counted) = (mean + freq[i], counted + 1);
-        mean /= Math.Max(1, counted);
+        double mean = FiniteMean(freq, first, last);
         // Running integral of the piecewise-constant block values (a block not measured counts as the mean).
         double[] sum = new double[n + 1];
         for (int i = 0; i < n; i++)
@@ -218,6 +265,17 @@ internal static class DcsDecoder
             }
             yield return bestBits!;
         }
+    }
+
+    /// <summary>The mean of the measured blocks from <paramref name="first"/> to <paramref name="last"/>.</summary>
+    private static double FiniteMean(double[] freq, int first, int last)
+    {
+        double mean = 0;
+        int counted = 0;
+        for (int i = first; i <= last; i++)
+            if (double.IsFinite(freq[i]))
+                (mean, counted) = (mean + freq[i], counted + 1);
+        return mean / Math.Max(1, counted);
     }
 
     /// <summary>The bit values summed modulo 23.</summary>

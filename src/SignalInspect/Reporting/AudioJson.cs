@@ -59,6 +59,7 @@ internal static class AudioJson
             w.WriteNumber("bits", c.Bits);
             w.WriteNumber("levelHz", c.LevelHz);
             w.WriteNumber("meanShiftHz", c.MeanShiftHz);
+            CaptureInfoJson.WriteNumberOrNull(w, "turnOffS", c.TurnOffS);
             w.WriteEndObject();
         }
         else

@@ -424,6 +424,11 @@ public static class ResultRows
                     string.Create(C, $"{code.Words} words, correlation {code.Correlation:0.00}, ")
                         + string.Create(C, $"{code.BitErrors} of {code.Bits} bits off; the same signal as ")
                         + (code.SameSignal.Count > 0 ? string.Join(", ", code.SameSignal.Take(6)) : "no other code")
+                        + (
+                            code.TurnOffS is { } off
+                                ? string.Create(C, $"; turn-off code for the last {1000 * off:0} ms read")
+                                : ""
+                        )
                 );
         }
         foreach (ResponsePoint p in a.Response?.Points ?? [])

@@ -173,7 +173,7 @@ public sealed class SignalGenerator
                         phi += x.Amount / x.FrequencyHz * ShiftedSine(s, x.FrequencyHz, t);
                     if (s.CodeSquelch is { } cs)
                     {
-                        _codeCycles = Frac(_codeCycles + CodeLevel(t - keyedAt) * cs.DeviationHz / fs);
+                        _codeCycles = Frac(_codeCycles + CodeLevel(s, t, keyedAt) * cs.DeviationHz / fs);
                         cycles += _codeCycles;
                     }
                     break;
@@ -233,7 +233,7 @@ public sealed class SignalGenerator
                         dev +=
                             x.Amount * Math.Cos(2 * Math.PI * Frac(x.FrequencyHz * _n / fs) + ReverseShift(s, t).Rad);
                     if (s.CodeSquelch is { } cs)
-                        dev += CodeLevel(t - keyedAt) * cs.DeviationHz;
+                        dev += CodeLevel(s, t, keyedAt) * cs.DeviationHz;
                     dev = dev / scale + (_noiseSigma > 0 ? Gaussian() * _noiseSigma : 0);
                 }
                 destination[i] = dev;
@@ -271,9 +271,21 @@ public sealed class SignalGenerator
         return count;
     }
 
-    /// <summary>The code word's level at <paramref name="sinceKeyUp"/> seconds after key-up: +1 for a 1 bit, -1 for a
-    /// 0, each change a raised-cosine edge of <see cref="CodeEdgeS"/> centred on the bits' boundary.</summary>
-    private double CodeLevel(double sinceKeyUp)
+    /// <summary>The code word's level at <paramref name="t"/>, keyed up at <paramref name="keyedAt"/>: +1 for a 1 bit,
+    /// -1 for a 0, each change a raised-cosine edge of <see cref="CodeEdgeS"/> centred on the bits' boundary; in the
+    /// turn-off code's stretch before key-down, cos(2 pi 134.4 t).</summary>
+    private double CodeLevel(SignalSpec s, double t, double keyedAt)
+    {
+        if (s.CodeSquelch is { TurnOffS: > 0 } cs)
+        {
+            double end = s.Bursts.Count > 0 ? (s.BurstAt(t) is { } b ? b.EndS : double.NaN) : s.DurationS;
+            if (t >= end - cs.TurnOffS)
+                return Math.Cos(2 * Math.PI * Frac(Dsp.DcsCode.BitRateHz * t));
+        }
+        return WordLevel(t - keyedAt);
+    }
+
+    private double WordLevel(double sinceKeyUp)
     {
         double u = Math.Max(0, sinceKeyUp) * Dsp.DcsCode.BitRateHz;
         long k = (long)Math.Floor(u);

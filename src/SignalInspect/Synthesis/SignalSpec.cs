@@ -68,7 +68,9 @@ public readonly record struct Burst(
 /// <param name="Code">The code number, 0 to 511 (e.g. 0x13 for "023").</param>
 /// <param name="Inverted">Every bit complemented.</param>
 /// <param name="DeviationHz">Its deviation, Hz.</param>
-public readonly record struct CodeSquelchSpec(int Code, bool Inverted, double DeviationHz);
+/// <param name="TurnOffS">The turn-off code: for the last this many seconds of each burst (of the capture without
+/// bursts) a 134.4 Hz tone of the same deviation replaces the word; 0 for none.</param>
+public readonly record struct CodeSquelchSpec(int Code, bool Inverted, double DeviationHz, double TurnOffS = 0);
 
 /// <summary>A reverse burst at each key-down: for the last <paramref name="DurationS"/> seconds of each burst (of the
 /// capture without bursts) the added tones' phase is shifted by <paramref name="ShiftDeg"/>.</summary>

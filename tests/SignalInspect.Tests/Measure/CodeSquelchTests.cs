@@ -163,6 +163,38 @@ public class CodeSquelchCaptureTests
             Near.Equal(subAudibleHz, r.Audio!.SubAudible!.FrequencyHz.Value, 0.1, "sub-audible tone");
     }
 
+    /// <summary>Two calls sending 155N, each ending with the turn-off code (a 134.4 Hz tone,
+    /// testdata/REFERENCE-VALUES.md) for its last 200 ms, or without: the code is read and the turn-off code found in
+    /// each call, its length to the window's end (10 ms before key-down) within 20 ms; none without.</summary>
+    [Theory]
+    [InlineData(0.2)]
+    [InlineData(0.0)]
+    public void The_turn_off_code_is_found_at_key_down(double turnOffS)
+    {
+        using var tmp = new TempDir();
+        var spec = new SignalSpec
+        {
+            Kind = SignalKind.Fm,
+            SampleRateHz = 24_000,
+            DurationS = 4,
+            PeakDeviationHz = 1500,
+            SnrDb = 25,
+            Bursts = [new Burst(0.3, 1.8), new Burst(2.3, 3.8)],
+            CodeSquelch = new CodeSquelchSpec(0x6D, false, 600, turnOffS),
+        };
+        AnalysisResult r = Measuring.Analyze(tmp, spec);
+        Assert.Equal(2, r.Transmissions.Count);
+        foreach (Transmission t in r.Transmissions)
+        {
+            DigitalCode code = t.Result!.Audio!.Code!;
+            Assert.Equal("155N", code.Name);
+            if (turnOffS == 0)
+                Assert.Null(code.TurnOffS);
+            else
+                Near.Equal(turnOffS - TransmissionFinder.SteadyBeforeKeyDownS, code.TurnOffS!.Value, 0.02, "turn-off");
+        }
+    }
+
     /// <summary>Two calls with silence between them, each sending 754I from its key-up: read over both.</summary>
     [Fact]
     public void A_word_is_read_across_calls()
