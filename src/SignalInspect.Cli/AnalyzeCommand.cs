@@ -28,9 +28,11 @@ internal static class AnalyzeCommand
         {
             Description =
                 "A tone series in the capture for the audio response: a text file, one step per line as START,END"
-                + "[,TONE] (seconds, Hz; '#' starts a comment). Each step's deviation (or depth) is given relative to "
-                + "the step nearest 1 kHz, beside the 6 dB/octave pre-emphasis curve.",
-            HelpName = "FILE",
+                + "[,TONE[,LEVEL]] (seconds, Hz, input level in dB; '#' starts a comment), or 'auto' to take each "
+                + "transmission as a step. Each step's deviation (or depth) is given relative to the step nearest 1 "
+                + "kHz, beside the 6 dB/octave pre-emphasis curve; with levels, relative to the lowest level's step, "
+                + "with its compression (the limiter).",
+            HelpName = "FILE|auto",
         };
         var force = new Option<bool>("--force") { Description = "Replace existing output files." };
         var report = new Option<string?>("--report")
@@ -106,7 +108,8 @@ internal static class AnalyzeCommand
             AnalysisOptions options = measure.Read(r, source.Info) with
             {
                 KeepSpectrogram = pdfOut is not null,
-                ToneSteps = r.GetValue(steps) is { } stepFile ? ReadSteps(stepFile) : [],
+                ToneSteps = r.GetValue(steps) is { } stepFile && stepFile != "auto" ? ReadSteps(stepFile) : [],
+                StepsFromTransmissions = r.GetValue(steps) == "auto",
             };
             var settings = new InspectionSettings
             {
@@ -161,8 +164,8 @@ internal static class AnalyzeCommand
         return cmd;
     }
 
-    /// <summary>Reads a step list: START,END[,TONE] per line (SI suffixes allowed), '#' comments, blank lines
-    /// skipped.</summary>
+    /// <summary>Reads a step list: START,END[,TONE[,LEVEL]] per line (SI suffixes allowed; TONE may be left empty),
+    /// '#' comments, blank lines skipped.</summary>
     private static IReadOnlyList<ToneStep> ReadSteps(string path)
     {
         if (!File.Exists(path))
@@ -178,19 +181,25 @@ internal static class AnalyzeCommand
             string[] p = line.Split(',', StringSplitOptions.TrimEntries);
             double a = 0,
                 b = 0,
-                t = 0;
+                t = 0,
+                level = 0;
+            bool hasTone = p.Length >= 3 && p[2].Length > 0,
+                hasLevel = p.Length == 4;
             if (
-                p.Length is < 2 or > 3
+                p.Length is < 2 or > 4
                 || !Units.TryParseSi(p[0], out a)
                 || !Units.TryParseSi(p[1], out b)
-                || (p.Length == 3 && !Units.TryParseSi(p[2], out t))
+                || (hasTone && !Units.TryParseSi(p[2], out t))
+                || (hasLevel && !Units.TryParseSi(p[3], out level))
                 || !(b > a && a >= 0)
-                || (p.Length == 3 && !(t > 0))
+                || (hasTone && !(t > 0))
+                || (p.Length == 3 && !hasTone)
             )
                 throw new UsageException(
-                    $"--steps: {path} line {n}: '{line}' is not START,END[,TONE] with 0 <= START < END (e.g. 2,4,1k)"
+                    $"--steps: {path} line {n}: '{line}' is not START,END[,TONE[,LEVEL]] with 0 <= START < END "
+                        + "(e.g. 2,4,1k or 2,4,,-10)"
                 );
-            list.Add(new ToneStep(a, b, p.Length == 3 ? t : null));
+            list.Add(new ToneStep(a, b, hasTone ? t : null, hasLevel ? level : null));
         }
         if (list.Count == 0)
             throw new UsageException($"--steps: {path} holds no step");

@@ -139,5 +139,96 @@ public static partial class Judgement
                         : "needs the reference deviation the ratio is taken against (given at analysis)"
                 );
         }
+        if (ToneCheck(r, p, k, src) is { } tone)
+            yield return tone;
+    }
+
+    /// <summary>The sub-audible tone's frequency against the listed tone it matches; null without that limit.</summary>
+    private static LimitCheck? ToneCheck(AnalysisResult r, LimitProfile p, double k, string src)
+    {
+        CultureInfo c = CultureInfo.InvariantCulture;
+        AudioQualityResult? a = r.Audio;
+        if (p.SubAudibleTolerancePercent is not { } tol)
+            return null;
+        string text = string.Create(c, $"within {tol:0.###} % of the listed tone");
+        const string what = "sub-audible tone frequency";
+        if (a?.SubAudible is { StandardHz: { } std } sub)
+        {
+            double dev = 100 * (sub.FrequencyHz.Value - std) / std,
+                u = k * 100 * sub.FrequencyHz.StandardUncertainty / std;
+            Verdict v = UpperVerdict(Math.Abs(dev), u, tol);
+            return new LimitCheck(
+                what,
+                dev,
+                "%",
+                u,
+                tol,
+                text,
+                tol - Math.Abs(dev),
+                v,
+                src,
+                v == Verdict.Inconclusive ? "the reading is within its expanded uncertainty of the limit" : null
+            )
+            {
+                ByUncertainty = v == Verdict.Inconclusive,
+            };
+        }
+        return LimitCheck.NotTested(
+            what,
+            "%",
+            text,
+            src,
+            a?.SubAudible is not null ? "the tone matches no listed tone: there is no nominal to hold it to"
+                : a?.Code is not null ? "the capture carries a digital code squelch word, not a tone"
+                : "no sub-audible tone was found"
+        );
+    }
+
+    /// <summary>The audio response of a tone series against its curve within the profile's tolerance (the worst
+    /// step judged, with its U): judged once on the whole capture (the series spans transmissions); null without
+    /// that limit.</summary>
+    private static LimitCheck? ResponseCheck(AnalysisResult r, LimitProfile p, double k)
+    {
+        CultureInfo c = CultureInfo.InvariantCulture;
+        string src = p.SourceOf("audio");
+        if (p is not { ResponseAboveDb: { } up, ResponseBelowDb: { } down })
+            return null;
+        string curve = p.ResponseFlat ? "flat response" : "6 dB/octave pre-emphasis curve";
+        string limitText = string.Create(c, $"+{up:0.##} / -{down:0.##} dB about the {curve}");
+        const string whatR = "audio response";
+        var points = (r.Response?.Points ?? []).ToList();
+        var read = points.Where(x => x.ResponseDb is not null).ToList();
+        if (read.Count < 2)
+            return LimitCheck.NotTested(
+                whatR,
+                "dB",
+                limitText,
+                src,
+                r.Response is null
+                    ? "no tone series was given at analysis"
+                    : r.Response.NotTested ?? "fewer than two steps of the tone series gave a reading"
+            );
+        // Each step's departure from the curve, and how far inside the tolerance it stays (negative: outside).
+        var (e, margin, uDb) = read.Select(x =>
+            {
+                double dev = x.ResponseDb!.Value - (p.ResponseFlat ? 0 : x.PreEmphasisDb ?? 0);
+                return (dev, Math.Min(up - dev, dev + down), k * (x.ResponseUncertaintyDb ?? 0));
+            })
+            .MinBy(x => x.Item2);
+        Verdict verdict =
+            margin - uDb >= 0 ? Verdict.Pass
+            : margin + uDb < 0 ? Verdict.Fail
+            : Verdict.Inconclusive;
+        int missing = points.Count - read.Count;
+        string? why =
+            verdict == Verdict.Inconclusive
+                ? "the worst step is within its expanded uncertainty of the tolerance"
+                : null;
+        if (missing > 0 && verdict == Verdict.Pass)
+            (verdict, why) = (Verdict.Inconclusive, string.Create(c, $"{missing} step(s) gave no reading"));
+        return new LimitCheck(whatR, e, "dB", uDb, e >= 0 ? up : -down, limitText, margin, verdict, src, why)
+        {
+            ByUncertainty = verdict == Verdict.Inconclusive && missing == 0,
+        };
     }
 }

@@ -122,8 +122,14 @@ public static partial class Judgement
     /// judged on every transmission: each limit's check is the worst transmission's (FAIL, then INCONCLUSIVE, then
     /// NOT TESTED, then PASS; the smallest margin among equals), and names it.
     /// </remarks>
-    public static IReadOnlyList<LimitCheck> Check(AnalysisResult r, LimitProfile p) =>
-        p.Rule == DecisionRuleKind.Simple ? [.. Guarded(r, p).Select(Simple)] : Guarded(r, p);
+    public static IReadOnlyList<LimitCheck> Check(AnalysisResult r, LimitProfile p)
+    {
+        // The response of a tone series spans the transmissions: judged once, on the whole capture.
+        IReadOnlyList<LimitCheck> all = ResponseCheck(r, p, p.CoverageFactor) is { } response
+            ? [.. Guarded(r, p), response]
+            : Guarded(r, p);
+        return p.Rule == DecisionRuleKind.Simple ? [.. all.Select(Simple)] : all;
+    }
 
     /// <summary>A guarded check as simple acceptance: a reading within its U of the limit is judged by the reading
     /// alone.</summary>

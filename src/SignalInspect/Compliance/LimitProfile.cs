@@ -141,6 +141,21 @@ public sealed record LimitProfile
     /// analysis); null for none.</summary>
     public double? MinHumNoiseDb { get; init; }
 
+    /// <summary>The audio response's tolerance about its curve (a tone series given at analysis): at most this many dB
+    /// above it; null for no response limit (with <see cref="ResponseBelowDb"/>).</summary>
+    public double? ResponseAboveDb { get; init; }
+
+    /// <summary>The audio response's tolerance: at most this many dB below its curve.</summary>
+    public double? ResponseBelowDb { get; init; }
+
+    /// <summary>The curve the response is held to: true for flat, false for the 6 dB/octave pre-emphasis
+    /// curve.</summary>
+    public bool ResponseFlat { get; init; }
+
+    /// <summary>Largest difference of the sub-audible tone from the listed tone it matches, percent; null for
+    /// none.</summary>
+    public double? SubAudibleTolerancePercent { get; init; }
+
     /// <summary>Emission mask, null for none.</summary>
     public EmissionMask? Mask { get; init; }
 
@@ -311,7 +326,40 @@ public sealed record LimitProfile
             Only(obj, field, a, b);
             return (Num(obj, a, $"{field}.{a}"), Num(obj, b, $"{field}.{b}"));
         }
-        var (maxThd, minHn) = Two("audio", "maxDistortionPercent", "minHumNoiseDb");
+        string[] audioKeys =
+        [
+            "maxDistortionPercent",
+            "minHumNoiseDb",
+            "responseAboveDb",
+            "responseBelowDb",
+            "responseCurve",
+            "subAudibleTolerancePercent",
+        ];
+        double? maxThd = null,
+            minHn = null,
+            above = null,
+            below = null,
+            toneTol = null;
+        bool flat = false;
+        if (root.TryGetProperty("audio", out JsonElement au))
+        {
+            if (au.ValueKind != JsonValueKind.Object)
+                throw Bad("audio", "must be an object");
+            Only(au, "audio", audioKeys);
+            maxThd = Num(au, "maxDistortionPercent", "audio.maxDistortionPercent");
+            minHn = Num(au, "minHumNoiseDb", "audio.minHumNoiseDb");
+            above = Num(au, "responseAboveDb", "audio.responseAboveDb");
+            below = Num(au, "responseBelowDb", "audio.responseBelowDb");
+            toneTol = Num(au, "subAudibleTolerancePercent", "audio.subAudibleTolerancePercent");
+            string? curve = Str(au, "responseCurve", "audio.responseCurve");
+            if (curve is not (null or "pre-emphasis" or "flat"))
+                throw Bad("audio.responseCurve", $"'{curve}' is not \"pre-emphasis\" or \"flat\"");
+            flat = curve == "flat";
+            if ((above is null) != (below is null))
+                throw Bad("audio", "needs both responseAboveDb and responseBelowDb for a response limit");
+            if (above < 0 || below < 0)
+                throw Bad("audio", "responseAboveDb and responseBelowDb are tolerances: not negative");
+        }
         var (pos, neg) = Two("am", "maxPositivePeakPercent", "maxNegativePeakPercent");
         EmissionMask? mask = null;
         if (root.TryGetProperty("mask", out JsonElement m))
@@ -436,6 +484,10 @@ public sealed record LimitProfile
             MaxAmNegativePeakPercent = neg,
             MaxAudioDistortionPercent = maxThd,
             MinHumNoiseDb = minHn,
+            ResponseAboveDb = above,
+            ResponseBelowDb = below,
+            ResponseFlat = flat,
+            SubAudibleTolerancePercent = toneTol,
             Mask = mask,
             CoverageFactor = Num(root, "coverageFactor", "coverageFactor") ?? 2,
         };

@@ -89,6 +89,10 @@ public sealed record AnalysisOptions
     /// <summary>A tone series the capture holds (the audio response is read from it); empty for none.</summary>
     public IReadOnlyList<ToneStep> ToneSteps { get; init; } = [];
 
+    /// <summary>Take the capture's transmissions (carrier-off gaps between them) as the tone series' steps, when
+    /// <see cref="ToneSteps"/> is empty.</summary>
+    public bool StepsFromTransmissions { get; init; }
+
     /// <summary>Worker threads for the spectrum; null for one per core.</summary>
     public int? Threads { get; init; }
 

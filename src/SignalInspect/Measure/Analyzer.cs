@@ -43,13 +43,11 @@ public static class Analyzer
         options ??= new AnalysisOptions();
         options.Validate();
         Task<string> hash = knownHash ?? HashOf(source, cancel);
-        if (options.ToneSteps.Count > 0)
+        if (options.ToneSteps.Count > 0 || options.StepsFromTransmissions)
         {
-            AnalysisOptions one = options with { ToneSteps = [] };
-            return Analyze(source, one, progress, cancel, timer, hash) with
-            {
-                Response = AudioResponse.Measure(source, one, options.ToneSteps, hash, cancel),
-            };
+            AnalysisOptions one = options with { ToneSteps = [], StepsFromTransmissions = false };
+            AnalysisResult whole = Analyze(source, one, progress, cancel, timer, hash);
+            return whole with { Response = AudioResponse.Measure(source, one, options.ToneSteps, whole, hash, cancel) };
         }
         if (options.DiscriminatorHzPerFullScale is not null)
             return DiscriminatorAnalysis.Analyze(source, options, progress, hash, cancel);

@@ -6,7 +6,9 @@ namespace SignalInspect.Measure;
 /// <param name="StartS">Its start, s from the capture's first sample.</param>
 /// <param name="EndS">Its end, s.</param>
 /// <param name="ToneHz">The tone it should hold, Hz; null to take the one found.</param>
-public sealed record ToneStep(double StartS, double EndS, double? ToneHz = null);
+/// <param name="LevelDb">The audio input level of the step, dB on any fixed reference (a level series: the
+/// deviation against level shows the limiter); null for none.</param>
+public sealed record ToneStep(double StartS, double EndS, double? ToneHz = null, double? LevelDb = null);
 
 /// <summary>One step's reading.</summary>
 /// <param name="Step">The step as listed.</param>
@@ -16,13 +18,21 @@ public sealed record ToneStep(double StartS, double EndS, double? ToneHz = null)
 /// <param name="PreEmphasisDb">The 6 dB/octave pre-emphasis curve at the tone, 20 log10(f / f_ref), dB.</param>
 /// <param name="Problem">Why the step gives no reading (outside the capture, no tone, another tone than listed),
 /// or null.</param>
+/// <param name="AmountUncertainty">The amount's standard uncertainty (k = 1); null when not measured.</param>
+/// <param name="ResponseUncertaintyDb">The response's standard uncertainty, dB: the step's and the reference's
+/// relative uncertainties combined, 20 / ln 10 x sqrt((u/A)^2 + (u_ref/A_ref)^2); null when not measured.</param>
+/// <param name="CompressionDb">For a level series: the response less the level's rise over the reference step's,
+/// dB (0 where the deviation follows the level, negative where a limiter holds it); null otherwise.</param>
 public sealed record ResponsePoint(
     ToneStep Step,
     double? ToneHz,
     double? Amount,
     double? ResponseDb,
     double? PreEmphasisDb,
-    string? Problem
+    string? Problem,
+    double? AmountUncertainty = null,
+    double? ResponseUncertaintyDb = null,
+    double? CompressionDb = null
 );
 
 /// <summary>The audio response read from a tone series: each step's modulation relative to the step nearest
@@ -31,15 +41,23 @@ public sealed record ResponsePoint(
 /// <param name="Unit">The amount's unit: Hz (FM deviation) or % (AM depth).</param>
 /// <param name="Points">Every step, in the order listed.</param>
 /// <param name="NotTested">Why no response is given, or null.</param>
+/// <param name="ReferenceLevelDb">For a level series, the reference step's level (the lowest), dB; null
+/// otherwise.</param>
+/// <param name="LimitAmount">For a level series in which some step's deviation (or depth) falls 1 dB or more short of
+/// the level's rise, the largest amount read: the limiter's ceiling; null otherwise.</param>
 public sealed record AudioResponseResult(
     double? ReferenceHz,
     string Unit,
     IReadOnlyList<ResponsePoint> Points,
-    string? NotTested
+    string? NotTested,
+    double? ReferenceLevelDb = null,
+    double? LimitAmount = null
 );
 
 /// <summary>
-/// The audio response from a capture holding a tone series at one input level (a step list: start, end and the tone
+/// The audio response from a capture holding a tone series at one input level, or a level series at one tone (the
+/// limiter: each step's level given, the reference is the lowest level's step and each step's compression is its
+/// response less the level's rise) (a step list: start, end and the tone
 /// of each). Each step is measured on its own (its middle 80 %, the switching between tones left out) by the same
 /// analysis; the response is the step's FM peak deviation (or AM depth) over the reference step's (the one nearest
 /// 1 kHz), in dB, shown beside the 6 dB/octave pre-emphasis curve of land-mobile FM transmitters, 20 log10(f / f_ref)
@@ -58,20 +76,33 @@ internal static class AudioResponse
         Capture.CaptureSource source,
         AnalysisOptions options,
         IReadOnlyList<ToneStep> steps,
+        AnalysisResult whole,
         Task<string> hash,
         CancellationToken cancel
     )
     {
+        // Without a list, each transmission is a step (a tone series keyed step by step).
+        if (steps.Count == 0)
+        {
+            if (whole.Transmissions.Count < 2)
+                return new AudioResponseResult(
+                    null,
+                    whole.Am is not null ? "%" : "Hz",
+                    [],
+                    "no step list, and the capture does not hold two or more transmissions to take as steps"
+                );
+            steps = [.. whole.Transmissions.Select(t => new ToneStep(t.StartS, t.EndS))];
+        }
         CultureInfo c = CultureInfo.InvariantCulture;
         double length = source.Info.DurationS;
-        var read = new List<(ToneStep Step, double? Tone, double? Amount, string? Problem)>();
+        var read = new List<(ToneStep Step, double? Tone, double? Amount, double? U, string? Problem)>();
         string unit = "Hz";
         foreach (ToneStep s in steps)
         {
             cancel.ThrowIfCancellationRequested();
             if (!(s.StartS >= 0 && s.EndS <= length && s.EndS > s.StartS))
             {
-                read.Add((s, null, null, string.Create(c, $"lies outside the capture (0 to {length:0.###} s)")));
+                read.Add((s, null, null, null, string.Create(c, $"lies outside the capture (0 to {length:0.###} s)")));
                 continue;
             }
             double edge = EdgeShare * (s.EndS - s.StartS);
@@ -92,10 +123,11 @@ internal static class AudioResponse
             }
             catch (UserInputException e)
             {
-                read.Add((s, null, null, e.Message));
+                read.Add((s, null, null, null, e.Message));
                 continue;
             }
-            double? amount = r.Fm?.PeakDeviationHz.Value ?? r.Am?.DepthPercent.Value;
+            Measured? m = r.Fm?.PeakDeviationHz ?? r.Am?.DepthPercent;
+            double? amount = m?.Value;
             if (r.Am is not null)
                 unit = "%";
             double? tone = r.ModulatingFrequencyHz?.Value;
@@ -104,7 +136,7 @@ internal static class AudioResponse
                 : s.ToneHz is { } listed && Math.Abs(tone.Value - listed) > ToneMatchPercent / 100 * listed
                     ? string.Create(c, $"holds {tone:0.#} Hz, not the {listed:0.#} Hz listed")
                 : null;
-            read.Add((s, tone, problem is null ? amount : null, problem));
+            read.Add((s, tone, problem is null ? amount : null, m?.StandardUncertainty, problem));
         }
         var good = read.Where(x => x.Problem is null).ToList();
         if (good.Count == 0)
@@ -114,27 +146,42 @@ internal static class AudioResponse
                 [.. read.Select(x => new ResponsePoint(x.Step, x.Tone, null, null, null, x.Problem))],
                 "no step of the list gave a reading"
             );
-        var reference = good.MinBy(x => Math.Abs(Math.Log(x.Tone!.Value / 1000)));
+        bool levels = steps.Any(x => x.LevelDb is not null);
+        var reference = levels
+            ? good.Where(x => x.Step.LevelDb is not null).MinBy(x => x.Step.LevelDb!.Value)
+            : good.MinBy(x => Math.Abs(Math.Log(x.Tone!.Value / 1000)));
         double fRef = reference.Tone!.Value,
-            aRef = reference.Amount!.Value;
+            aRef = reference.Amount!.Value,
+            uRef = reference.U ?? 0;
+        double? lRef = levels ? reference.Step.LevelDb : null;
+        ResponsePoint Point((ToneStep Step, double? Tone, double? Amount, double? U, string? Problem) x)
+        {
+            if (x.Problem is not null || !(aRef > 0))
+                return new ResponsePoint(x.Step, x.Tone, null, null, null, x.Problem);
+            double a = x.Amount!.Value,
+                db = 20 * Math.Log10(a / aRef),
+                u = 20 / Math.Log(10) * Math.Sqrt(Math.Pow((x.U ?? 0) / a, 2) + Math.Pow(uRef / aRef, 2));
+            return new ResponsePoint(
+                x.Step,
+                x.Tone,
+                a,
+                db,
+                20 * Math.Log10(x.Tone!.Value / fRef),
+                null,
+                x.U,
+                u,
+                lRef is { } l0 && x.Step.LevelDb is { } l ? db - (l - l0) : null
+            );
+        }
+        var points = read.Select(Point).ToList();
+        bool limited = points.Any(p => p.CompressionDb <= -1);
         return new AudioResponseResult(
             fRef,
             unit,
-            [
-                .. read.Select(x =>
-                    x.Problem is null && aRef > 0
-                        ? new ResponsePoint(
-                            x.Step,
-                            x.Tone,
-                            x.Amount,
-                            20 * Math.Log10(x.Amount!.Value / aRef),
-                            20 * Math.Log10(x.Tone!.Value / fRef),
-                            null
-                        )
-                        : new ResponsePoint(x.Step, x.Tone, null, null, null, x.Problem)
-                ),
-            ],
-            aRef > 0 ? null : "the reference step's modulation is zero"
+            points,
+            aRef > 0 ? null : "the reference step's modulation is zero",
+            lRef,
+            limited ? points.Max(p => p.Amount) : null
         );
     }
 }

@@ -87,6 +87,8 @@ internal static class AudioJson
         CaptureInfoJson.WriteNumberOrNull(w, "referenceHz", r?.ReferenceHz);
         w.WriteString("unit", r?.Unit);
         w.WriteString("notTested", r?.NotTested);
+        CaptureInfoJson.WriteNumberOrNull(w, "referenceLevelDb", r?.ReferenceLevelDb);
+        CaptureInfoJson.WriteNumberOrNull(w, "limitAmount", r?.LimitAmount);
         w.WriteStartArray("steps");
         foreach (ResponsePoint p in r?.Points ?? [])
         {
@@ -95,8 +97,12 @@ internal static class AudioJson
             w.WriteNumber("endS", p.Step.EndS);
             CaptureInfoJson.WriteNumberOrNull(w, "listedToneHz", p.Step.ToneHz);
             CaptureInfoJson.WriteNumberOrNull(w, "toneHz", p.ToneHz);
+            CaptureInfoJson.WriteNumberOrNull(w, "levelDb", p.Step.LevelDb);
             CaptureInfoJson.WriteNumberOrNull(w, "amount", p.Amount);
+            CaptureInfoJson.WriteNumberOrNull(w, "amountUncertainty", p.AmountUncertainty);
             CaptureInfoJson.WriteNumberOrNull(w, "responseDb", p.ResponseDb);
+            CaptureInfoJson.WriteNumberOrNull(w, "responseUncertaintyDb", p.ResponseUncertaintyDb);
+            CaptureInfoJson.WriteNumberOrNull(w, "compressionDb", p.CompressionDb);
             CaptureInfoJson.WriteNumberOrNull(w, "preEmphasisDb", p.PreEmphasisDb);
             w.WriteString("problem", p.Problem);
             w.WriteEndObject();

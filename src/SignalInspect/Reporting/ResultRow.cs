@@ -436,13 +436,26 @@ public static class ResultRows
                 "audio.response",
                 string.Create(C, $"audio response, {p.Step.StartS:0.##}-{p.Step.EndS:0.##} s"),
                 p.ResponseDb is { } db
-                    ? string.Create(
-                        C,
-                        $"{p.ToneHz:0.#} Hz: {db:+0.00;-0.00} dB (6 dB/octave: {p.PreEmphasisDb:+0.00;-0.00})"
-                    )
+                    ? p.CompressionDb is { } cmp
+                        ? string.Create(C, $"{p.Step.LevelDb:+0.#;-0.#} dB in: {p.Amount:0.#} {a.Response!.Unit}, ")
+                            + string.Create(C, $"{db:+0.00;-0.00} dB, compression {cmp:+0.00;-0.00} dB")
+                        : string.Create(
+                            C,
+                            $"{p.ToneHz:0.#} Hz: {db:+0.00;-0.00} dB (6 dB/octave: {p.PreEmphasisDb:+0.00;-0.00})"
+                        )
                     : "no reading: " + p.Problem,
                 "",
                 a.Response!.ReferenceHz is { } rf ? string.Create(C, $"relative to {rf:0.#} Hz") : "-"
+            );
+        if (a.Response is { LimitAmount: { } limit } resp)
+            Info("audio.limit", "limiter ceiling (level series)", limit, resp.Unit, null, "0.#");
+        else if (a.Response is { ReferenceLevelDb: not null, NotTested: null })
+            Words(
+                "audio.limit",
+                "limiter ceiling (level series)",
+                "not reached",
+                "",
+                "no step 1 dB short of its level"
             );
         if (a.EmissionDesignator is { } d)
             Words(
