@@ -333,6 +333,21 @@ public static class PdfReportWriter
             l.Image(audio, w, 150);
             l.Gap(6);
         }
+        if (a.Response is { } resp && resp.Points.Count(p => p.ResponseDb is not null) >= 2)
+        {
+            LimitProfile? pr = r.Profile;
+            byte[] png = ResponsePlot.Png(
+                resp,
+                pr is { ResponseAboveDb: { } up, ResponseBelowDb: { } down } ? (up, down) : null,
+                pr?.ResponseFlat ?? false,
+                pr?.CoverageFactor ?? 2,
+                Px(w),
+                Px(150),
+                Dpi / 96
+            );
+            l.Image(png, w, 150);
+            l.Gap(6);
+        }
         if (a.Waveform.Count > 1)
         {
             double hWave = 135;

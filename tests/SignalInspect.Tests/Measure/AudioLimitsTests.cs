@@ -153,4 +153,33 @@ public class AudioLimitsTests
         Assert.Equal(2, code);
         Assert.Contains("audio.responseCurve", err);
     }
+
+    /// <summary>The report of a tone series carries one plot more (the response against its curve and tolerance) and
+    /// the response check's row.</summary>
+    [Fact]
+    public void The_report_plots_the_response()
+    {
+        using var tmp = new TempDir();
+        string path = tmp.File("series.sigmf");
+        Assert.Equal(0, CliRunner.Run(["synth", path, "--sample-rate", "24k", .. Series(true, 0.5)]).Code);
+        string profile = Write(
+            tmp,
+            "response.json",
+            "{ \"name\": \"response test\", \"source\": \"chosen for the test\", \"audio\": { \"responseAboveDb\": 1, "
+                + "\"responseBelowDb\": 3 } }"
+        );
+        int Images(string pdf, params string[] extra)
+        {
+            var (code, _, err) = CliRunner.Run(["analyze", path, "--report", pdf, "--limits", profile, .. extra]);
+            Assert.True(code is 0 or 1 or 4, err); // 4: a limit not shown (NOT TESTED)
+            using var doc = UglyToad.PdfPig.PdfDocument.Open(pdf);
+            if (extra.Length > 0)
+                Assert.Contains(
+                    "audio response",
+                    string.Join(" ", doc.GetPages().SelectMany(p => p.GetWords()).Select(w => w.Text))
+                );
+            return doc.GetPages().Sum(p => p.GetImages().Count());
+        }
+        Assert.Equal(Images(tmp.File("plain.pdf")) + 1, Images(tmp.File("steps.pdf"), "--steps", "auto"));
+    }
 }
