@@ -81,17 +81,22 @@ internal static class AudioResponse
         CancellationToken cancel
     )
     {
-        // Without a list, each transmission is a step (a tone series keyed step by step).
+        // Without a list, each transmission is a step (a tone series keyed step by step), else each stretch of one
+        // deviation (or depth) in the timeline.
         if (steps.Count == 0)
         {
-            if (whole.Transmissions.Count < 2)
+            steps =
+                whole.Transmissions.Count >= 2
+                    ? [.. whole.Transmissions.Select(t => new ToneStep(t.StartS, t.EndS))]
+                    : FromTimeline(whole.Timeline);
+            if (steps.Count < 2)
                 return new AudioResponseResult(
                     null,
                     whole.Am is not null ? "%" : "Hz",
                     [],
-                    "no step list, and the capture does not hold two or more transmissions to take as steps"
+                    "no step list, and no steps found: the capture holds neither two transmissions nor two stretches "
+                        + "of different deviation (or depth) in one"
                 );
-            steps = [.. whole.Transmissions.Select(t => new ToneStep(t.StartS, t.EndS))];
         }
         CultureInfo c = CultureInfo.InvariantCulture;
         double length = source.Info.DurationS;
@@ -183,5 +188,40 @@ internal static class AudioResponse
             lRef,
             limited ? points.Max(p => p.Amount) : null
         );
+    }
+
+    /// <summary>A step ends where the timeline's raw deviation (or depth) moves by more than this, dB.</summary>
+    public const double StepChangeDb = 1;
+
+    /// <summary>Fewest windows a stretch needs to be a step (shorter ones are the changes between steps).</summary>
+    public const int MinStepWindows = 3;
+
+    /// <summary>Steps from the timeline of one transmission: runs of windows whose raw deviation (or depth) stays
+    /// within <see cref="StepChangeDb"/> of the run's first, at least <see cref="MinStepWindows"/> long. A series
+    /// whose steps share one deviation (tones of a flat response at one level) shows no step.</summary>
+    private static IReadOnlyList<ToneStep> FromTimeline(Timeline? timeline)
+    {
+        var steps = new List<ToneStep>();
+        if (timeline is null)
+            return steps;
+        var w = timeline.Windows;
+        double? Amount(TrackWindow x) => x.RawPeakDeviationHz ?? x.RawDepthPercent;
+        int start = 0;
+        for (int i = 1; i <= w.Count; i++)
+        {
+            bool ends =
+                i == w.Count
+                || Amount(w[i]) is not { } a
+                || Amount(w[start]) is not { } a0
+                || !(a > 0 && a0 > 0)
+                || Math.Abs(20 * Math.Log10(a / a0)) > StepChangeDb
+                || w[i].StartS > w[i - 1].EndS + 1e-6;
+            if (!ends)
+                continue;
+            if (i - start >= MinStepWindows)
+                steps.Add(new ToneStep(w[start].StartS, w[i - 1].EndS));
+            start = i;
+        }
+        return steps;
     }
 }

@@ -87,6 +87,35 @@ public class AudioLimitsTests
             );
     }
 
+    /// <summary>One transmission whose tone steps every second without a gap: pre-emphasised (deviation in proportion
+    /// to the tone) the steps are found by the change of deviation and read the curve within 0.3 dB; flat (one
+    /// deviation for every tone) no step shows and no response is given, with the reason.</summary>
+    [Theory]
+    [InlineData(true)]
+    [InlineData(false)]
+    public void Steps_without_a_gap_are_found_by_their_deviation(bool preEmphasised)
+    {
+        using var tmp = new TempDir();
+        double[] tones = [300, 1000, 3000, 500, 2000];
+        var synth = new List<string> { "--kind", "fm", "--duration", "5", "--snr", "35" };
+        for (int i = 0; i < tones.Length; i++)
+        {
+            double d = preEmphasised ? tones[i] : 1500;
+            synth.AddRange(["--burst", FormattableString.Invariant($"{i}:{i + 1}:0:{d}:{tones[i]}")]);
+        }
+        JsonElement r = Analyze(tmp, [.. synth], "--steps", "auto").GetProperty("response");
+        JsonElement[] s = [.. r.GetProperty("steps").EnumerateArray()];
+        if (!preEmphasised)
+        {
+            Assert.Empty(s);
+            Assert.Contains("no steps found", r.GetProperty("notTested").GetString());
+            return;
+        }
+        Assert.Equal(tones.Length, s.Length);
+        for (int i = 0; i < tones.Length; i++)
+            Near.Equal(20 * Math.Log10(tones[i] / 1000), s[i].GetProperty("responseDb").GetDouble(), 0.3, "response");
+    }
+
     /// <summary>A response limit of +1 / -3 dB about the pre-emphasis curve: the pre-emphasised series passes, a flat
     /// one (10.5 dB above the curve at 300 Hz) fails; without a series the limit is NOT TESTED.</summary>
     [Theory]
