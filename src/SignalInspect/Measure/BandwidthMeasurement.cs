@@ -17,6 +17,8 @@ public enum NoiseFloorTreatment
 }
 
 /// <summary>Occupied and x-dB bandwidth of a spectrum, with their edges.</summary>
+/// <param name="EdgesOnLines">How many of the occupied band's edges (0 to 2) fell within a spectral line's main
+/// lobe and were set on the line itself (see <see cref="BandwidthMeasurement"/>).</param>
 /// <param name="OccupiedHz">Occupied bandwidth: the band outside which each side holds beta/2 of the total
 /// power.</param>
 /// <param name="LowerEdgeHz">Lower edge of the occupied bandwidth (spectrum axis: offset or audio frequency).</param>
@@ -42,7 +44,8 @@ public sealed record BandwidthResult(
     double NoiseFloorDensity,
     NoiseFloorTreatment Treatment,
     double SignalPower,
-    double CentroidHz
+    double CentroidHz,
+    int EdgesOnLines = 0
 );
 
 /// <summary>
@@ -95,8 +98,15 @@ public static class BandwidthMeasurement
             total = p.Sum();
         }
         double target = beta / 2 * total;
-        double lower = Edge(p, f, bw, target, fromLow: true);
-        double upper = Edge(p, f, bw, target, fromLow: false);
+        int lobe = (int)Math.Ceiling((double)psd.Window.MainLobeHalfWidthBins);
+        var lowEdge = Edge(p, f, bw, target, fromLow: true);
+        var upEdge = Edge(p, f, bw, target, fromLow: false);
+        var (lower, lowOnLine, lowLine) = OnLine(p, f, bw, lobe, lowEdge);
+        var (upper, upOnLine, upLine) = OnLine(p, f, bw, lobe, upEdge);
+        // Both edges on one line: the emission is narrower than the resolution shows (a carrier); it keeps the
+        // window's width rather than reading zero.
+        if (lowOnLine && upOnLine && lowLine == upLine)
+            (lower, lowOnLine, upper, upOnLine) = (lowEdge.Hz, false, upEdge.Hz, false);
         double num = 0,
             den = 0;
         for (int i = 0; i < n; i++)
@@ -128,11 +138,57 @@ public static class BandwidthMeasurement
             noise,
             treatment,
             total,
-            den > 0 ? num / den : f[peak]
+            den > 0 ? num / den : f[peak],
+            (lowOnLine ? 1 : 0) + (upOnLine ? 1 : 0)
         );
     }
 
-    private static double Edge(double[] p, ReadOnlySpan<double> f, double bw, double target, bool fromLow)
+    /// <summary>A line stands this many times above the spectrum just outside its main lobe (10 dB).</summary>
+    public const double LineProminence = 10;
+
+    /// <summary>
+    /// An edge that falls within the main lobe of a spectral line is set on the line's frequency: a line's power
+    /// sits at one frequency, so the cumulative power jumps there and the beta/2 point is the line itself (the
+    /// window only smears it over the lobe, and reading the crossing inside the lobe reads a line spectrum's
+    /// occupied bandwidth short). A line: the largest bin within the lobe of the crossing, at least
+    /// <see cref="LineProminence"/> times the mean of the bins one to two lobe widths beyond it on both sides; its
+    /// frequency by Gaussian (log-parabolic) interpolation of the three bins about it.
+    /// </summary>
+    private static (double Hz, bool OnLine, int Line) OnLine(
+        double[] p,
+        ReadOnlySpan<double> f,
+        double bw,
+        int lobe,
+        (double Hz, int Bin) edge
+    )
+    {
+        int n = p.Length,
+            i = edge.Bin;
+        if (i < 0 || lobe < 1)
+            return (edge.Hz, false, -1);
+        int k = i;
+        for (int j = Math.Max(1, i - lobe); j <= Math.Min(n - 2, i + lobe); j++)
+            if (p[j] > p[k])
+                k = j;
+        if (k <= 0 || k >= n - 1 || !(p[k] > 0))
+            return (edge.Hz, false, -1);
+        double ring = 0;
+        int count = 0;
+        for (int d = 2 * lobe; d <= 4 * lobe; d++)
+            foreach (int j in (int[])[k - d, k + d])
+                if (j >= 0 && j < n)
+                    (ring, count) = (ring + p[j], count + 1);
+        if (count == 0 || p[k] < LineProminence * ring / count)
+            return (edge.Hz, false, -1);
+        double a = Math.Log(Math.Max(p[k - 1], 1e-300)),
+            b = Math.Log(p[k]),
+            c = Math.Log(Math.Max(p[k + 1], 1e-300));
+        double den = a - 2 * b + c,
+            delta = den < 0 ? Math.Clamp(0.5 * (a - c) / den, -0.5, 0.5) : 0;
+        return (f[k] + delta * bw, true, k);
+    }
+
+    private static (double Hz, int Bin) Edge(double[] p, ReadOnlySpan<double> f, double bw, double target, bool fromLow)
     {
         int n = p.Length;
         double cum = 0;
@@ -142,11 +198,11 @@ public static class BandwidthMeasurement
             if (cum + p[i] >= target && p[i] > 0)
             {
                 double frac = (target - cum) / p[i];
-                return fromLow ? f[i] - bw / 2 + frac * bw : f[i] + bw / 2 - frac * bw;
+                return (fromLow ? f[i] - bw / 2 + frac * bw : f[i] + bw / 2 - frac * bw, i);
             }
             cum += p[i];
         }
-        return fromLow ? f[n - 1] : f[0];
+        return (fromLow ? f[n - 1] : f[0], -1);
     }
 
     /// <summary>Frequency where the level crosses <paramref name="limit"/> between an outer bin (below) and an inner
@@ -177,13 +233,21 @@ public static class BandwidthMeasurement
     }
 
     /// <summary>
-    /// Standard uncertainty of the occupied bandwidth, Hz: the root sum of squares of the edges' resolution
-    /// (each edge anywhere in the window's main lobe, +/- its half-width, a rectangular distribution: GUM 4.3.7;
-    /// two edges: sqrt 2 of one) and <see cref="TypeB.OccupiedFraction"/> of the reading.
+    /// Standard uncertainty of the occupied bandwidth, Hz, the root sum of squares of each edge's: an edge set on a
+    /// line (<see cref="BandwidthResult.EdgesOnLines"/>) is as good as the line's interpolated frequency
+    /// (<see cref="TypeB.LineEdgeBins"/> of a bin for the Hann window, <see cref="TypeB.LineEdgeBinsOther"/> for
+    /// the others); any other edge lies anywhere in the window's main lobe, +/- its half-width, a rectangular
+    /// distribution (GUM 4.3.7), with <see cref="TypeB.OccupiedFraction"/> of the reading beside it.
     /// </summary>
     public static double OccupiedUncertaintyHz(PowerSpectrum psd, BandwidthResult bw)
     {
-        double edges = Math.Sqrt(2) * psd.Window.MainLobeHalfWidthBins * psd.BinWidthHz / Math.Sqrt(3);
-        return Math.Sqrt(Math.Pow(edges, 2) + Math.Pow(TypeB.OccupiedFraction * bw.OccupiedHz, 2));
+        int onLines = bw.EdgesOnLines,
+            off = 2 - onLines;
+        double line =
+                (psd.Window.Kind == Dsp.WindowKind.Hann ? TypeB.LineEdgeBins : TypeB.LineEdgeBinsOther)
+                * psd.BinWidthHz,
+            lobe = psd.Window.MainLobeHalfWidthBins * psd.BinWidthHz / Math.Sqrt(3),
+            fraction = off > 0 ? TypeB.OccupiedFraction * bw.OccupiedHz : 0;
+        return Math.Sqrt(onLines * line * line + off * lobe * lobe + fraction * fraction);
     }
 }

@@ -117,10 +117,9 @@ internal static class FmMeasurement
             budget =
             [
                 .. budget,
-                new(
-                    "noise on the raw peak",
+                RawNoiseComponent(
                     TonePeaks.RawPeakNoise(m.ToneSpectrum, m.Components, raw.Value, m.MinToneHz, m.TopHz, 1),
-                    "rms of the demodulated noise (band power less the modulating components')"
+                    peak
                 ),
             ];
         if (extremeLift > 0)
@@ -158,6 +157,16 @@ internal static class FmMeasurement
         double? necessary = m.Tone is { } mt ? EmissionDesignator.AngleModulationBandwidthHz(mt.Value, peak) : null;
         return (result, new MeasurementExtras(necessary, corrected));
     }
+
+    /// <summary>The noise's share of a raw (uncorrected) peak's uncertainty: <paramref name="rms"/> times
+    /// <see cref="TypeB.RawPeakNoiseShare"/> + <see cref="TypeB.RawPeakNoiseGrowth"/> x rms / peak.</summary>
+    internal static UncertaintyComponent RawNoiseComponent(double rms, double peak) =>
+        new(
+            "noise on the raw peak",
+            rms * (TypeB.RawPeakNoiseShare + TypeB.RawPeakNoiseGrowth * rms / Math.Max(peak, 1e-30)),
+            "rms of the demodulated noise (band power less the modulating components') x (TypeB.RawPeakNoiseShare "
+                + "+ TypeB.RawPeakNoiseGrowth x rms / peak)"
+        );
 }
 
 /// <summary>An instantaneous frequency stream's statistics, all FM is measured from.</summary>

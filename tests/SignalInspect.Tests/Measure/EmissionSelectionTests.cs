@@ -50,10 +50,13 @@ public class EmissionSelectionTests
 
     /// <summary>A carrier a few kHz beyond the edge of FM 2 kHz by 1 kHz (99 % band +/-3 kHz, Bessel sums, [D]):
     /// within the 3.5 kHz that joins a modulated carrier's lines, but without a mirror about its centre, so it is
-    /// another emission and the channel filter stops before it. It read 3836-4159 Hz of deviation for 2000 when it
-    /// was joined to the emission and passed by the filter.</summary>
+    /// another emission and the channel filter stops before it (or, 2.95 kHz beyond the band's edge, says it cannot).
+    /// It read 3836-4159 Hz of deviation for 2000 when it was joined to the emission and passed by the filter. (With
+    /// the band's edges read inside the outer lines' main lobes the carrier at 6.5 kHz was also too near; the edges
+    /// are now set on the lines.)</summary>
     [Theory]
-    [InlineData(6500, true)]
+    [InlineData(5950, true)]
+    [InlineData(6500, false)]
     [InlineData(8000, false)]
     public void A_carrier_just_beyond_the_emission_is_kept_out_of_its_channel(double spurHz, bool crowded)
     {
