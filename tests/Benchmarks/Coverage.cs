@@ -155,6 +155,42 @@ internal static class Coverage
                         SnrDb = snr - 10 * Math.Log10(48000 / (2 * tone)),
                     }
                 );
+                AnalysisResult pm = Analyze(
+                    fm with
+                    {
+                        Kind = SignalKind.Pm,
+                        PeakPhaseRad = 1.2,
+                        SnrDb = snr - 10 * Math.Log10(48000 / (2 * 3 * tone)),
+                    },
+                    ModulationKind.Pm
+                );
+                trials.Add(
+                    new(
+                        "PM peak phase, rad",
+                        snr,
+                        1.2,
+                        pm.Pm!.PeakDeviationRad.Value,
+                        pm.Pm.PeakDeviationRad.StandardUncertainty
+                    )
+                    {
+                        Budget = pm.Pm.PeakDeviationRad.Budget,
+                    }
+                );
+                AnalysisResult fsk = Analyze(
+                    fm with
+                    {
+                        Kind = SignalKind.Fsk,
+                        FskShiftHz = 1000,
+                        SymbolRateBd = 1200,
+                        SnrDb = snr - 10 * Math.Log10(48000 / 3400.0),
+                    }
+                );
+                trials.Add(
+                    new("FSK shift, Hz", snr, 1000, fsk.Fsk!.ShiftHz.Value, fsk.Fsk.ShiftHz.StandardUncertainty)
+                    {
+                        Budget = fsk.Fsk.ShiftHz.Budget,
+                    }
+                );
                 trials.Add(
                     new("AM depth, %", snr, 70, c.Am!.DepthPercent.Value, c.Am.DepthPercent.StandardUncertainty)
                     {
@@ -215,13 +251,13 @@ internal static class Coverage
         return 2 * n;
     }
 
-    private static AnalysisResult Analyze(SignalSpec s)
+    private static AnalysisResult Analyze(SignalSpec s, ModulationKind? expect = null)
     {
         string path = Path.Combine(Path.GetTempPath(), $"si-cov-{Guid.NewGuid():N}.sigmf");
         try
         {
             Synthesizer.Write(s, path, SampleFormat.Parse("cf32_le"));
-            return Analyzer.Analyze(CaptureSource.Open(path), new AnalysisOptions { Threads = 1 });
+            return Analyzer.Analyze(CaptureSource.Open(path), new AnalysisOptions { Threads = 1, Expect = expect });
         }
         finally
         {

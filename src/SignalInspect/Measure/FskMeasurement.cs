@@ -69,13 +69,14 @@ internal static class FskMeasurement
             ToneFrequenciesHz = [.. onAxis.Select(axis.ToReported)],
             ShiftHz = Measured.FromBudget(
                 shift,
-                PeakBudget.Of(
-                    shift,
-                    TypeB.FskShiftFraction,
-                    m.NoiseGrowth,
-                    m.Pass.Freq.BinWidth,
-                    "TypeB.FskShiftFraction"
-                )
+                [
+                    .. PeakBudget.Of(shift, TypeB.FskShiftFraction, 1, m.Pass.Freq.BinWidth, "TypeB.FskShiftFraction"),
+                    new UncertaintyComponent(
+                        "noise",
+                        shift * TypeB.FskNoiseShare * Math.Pow(TypeB.CappedSnr(m.SnrDb), -TypeB.FskNoisePower),
+                        "TypeB.FskNoiseShare x reading x SNR^-TypeB.FskNoisePower (SNR in the occupied band)"
+                    ),
+                ]
             ),
             DeviationHz = shift / 2,
             SymbolRateBd = rate,

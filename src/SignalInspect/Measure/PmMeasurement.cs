@@ -47,10 +47,11 @@ internal static class PmMeasurement
         {
             PeakDeviationRad = Measured.FromBudget(
                 p,
+                new UncertaintyComponent("peak statistic", TypeB.PmPeakFraction * p, "TypeB.PmPeakFraction"),
                 new UncertaintyComponent(
-                    "peak statistic",
-                    TypeB.PmPeakFraction * p * m.NoiseGrowth,
-                    "TypeB.PmPeakFraction x TypeB.NoiseGrowth"
+                    "noise",
+                    TypeB.PmNoiseShare * p / Math.Sqrt(TypeB.CappedSnr(m.SnrDb)),
+                    "TypeB.PmNoiseShare x reading / sqrt(SNR in the occupied band)"
                 )
             ),
             PositivePeakRad = up,

@@ -40,11 +40,31 @@ public static class TypeB
     public const double RawPeakNoiseShare = 0.2,
         RawPeakNoiseGrowth = 8;
 
-    /// <summary>PM peak phase: 0.3 % of the reading.</summary>
+    /// <summary>PM peak phase: 0.3 % of the reading, beside the noise's share (<see cref="PmNoiseShare"/>).</summary>
     public const double PmPeakFraction = 0.003;
 
-    /// <summary>FSK shift: 0.3 % of the reading.</summary>
+    /// <summary>PM peak phase, the noise's share: the reading times this over sqrt(SNR) (linear, in the occupied band;
+    /// capped at <see cref="GrowthSnrCapDb"/>). Set from the Monte Carlo of docs/COVERAGE.md (PM of 1.2 rad by a tone
+    /// near 1 kHz, 20-60 dB SNR), where the readings scattered by 1.3 % at 20 dB and 0.6 % at 30 dB: the
+    /// growth of the peak figures below 30 dB alone (<see cref="NoiseGrowth"/>) covered 63-68 % there.</summary>
+    public const double PmNoiseShare = 0.12;
+
+    /// <summary>FSK shift: 0.3 % of the reading, beside the noise's share (<see cref="FskNoiseShare"/>).</summary>
     public const double FskShiftFraction = 0.003;
+
+    /// <summary>
+    /// FSK shift, the noise's share: the reading times <see cref="FskNoiseShare"/> x SNR^-<see cref="FskNoisePower"/>
+    /// (linear SNR in the occupied band, capped at <see cref="GrowthSnrCapDb"/>). The shift is read from the modes of
+    /// the instantaneous frequency's histogram, whose scatter falls more slowly than the noise's amplitude: the
+    /// Monte Carlo of docs/COVERAGE.md (1 kHz shift at 1200 Bd, 20-60 dB SNR) scattered it by 4 % at 20 dB, 1.6 % at
+    /// 30, 0.9 % at 40, 0.5 % at 50 and 0.3 % at 60; the 0.3 % fraction alone, grown below 30 dB, had covered 20-75 %
+    /// of trials below 50 dB.
+    /// </summary>
+    public const double FskNoiseShare = 0.2,
+        FskNoisePower = 0.35;
+
+    /// <summary>The linear SNR of <paramref name="snrDb"/>, capped at <see cref="GrowthSnrCapDb"/>.</summary>
+    public static double CappedSnr(double snrDb) => Math.Pow(10, Math.Min(snrDb, GrowthSnrCapDb) / 10);
 
     /// <summary>FSK carrier (the centre of the tones): 0.2 % of the shift.</summary>
     public const double FskCarrierFractionOfShift = 0.002;
