@@ -62,6 +62,10 @@ public sealed record AnalysisResult
     /// <summary>Standard uncertainty of the occupied bandwidth, Hz.</summary>
     public required double OccupiedUncertaintyHz { get; init; }
 
+    /// <summary>The components <see cref="OccupiedUncertaintyHz"/> is combined from; empty where none was
+    /// measured.</summary>
+    public IReadOnlyList<UncertaintyComponent> OccupiedBudget { get; init; } = [];
+
     /// <summary>AM results when the kind is AM.</summary>
     public AmResult? Am { get; init; }
 

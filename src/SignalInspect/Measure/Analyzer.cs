@@ -419,6 +419,7 @@ public static class Analyzer
             Carrier = carrier,
             Bandwidth = bw,
             OccupiedUncertaintyHz = BandwidthMeasurement.OccupiedUncertaintyHz(psd, bw),
+            OccupiedBudget = BandwidthMeasurement.OccupiedBudget(psd, bw),
             Am = am,
             Fm = fm,
             Pm = pm,

@@ -239,15 +239,38 @@ public static class BandwidthMeasurement
     /// the others); any other edge lies anywhere in the window's main lobe, +/- its half-width, a rectangular
     /// distribution (GUM 4.3.7), with <see cref="TypeB.OccupiedFraction"/> of the reading beside it.
     /// </summary>
-    public static double OccupiedUncertaintyHz(PowerSpectrum psd, BandwidthResult bw)
+    public static double OccupiedUncertaintyHz(PowerSpectrum psd, BandwidthResult bw) =>
+        Math.Sqrt(OccupiedBudget(psd, bw).Sum(c => c.StandardUncertainty * c.StandardUncertainty));
+
+    /// <summary>The components of <see cref="OccupiedUncertaintyHz"/>, each named with its source (zero ones
+    /// left out).</summary>
+    public static IReadOnlyList<UncertaintyComponent> OccupiedBudget(PowerSpectrum psd, BandwidthResult bw)
     {
         int onLines = bw.EdgesOnLines,
             off = 2 - onLines;
-        double line =
-                (psd.Window.Kind == Dsp.WindowKind.Hann ? TypeB.LineEdgeBins : TypeB.LineEdgeBinsOther)
-                * psd.BinWidthHz,
-            lobe = psd.Window.MainLobeHalfWidthBins * psd.BinWidthHz / Math.Sqrt(3),
-            fraction = off > 0 ? TypeB.OccupiedFraction * bw.OccupiedHz : 0;
-        return Math.Sqrt(onLines * line * line + off * lobe * lobe + fraction * fraction);
+        bool hann = psd.Window.Kind == Dsp.WindowKind.Hann;
+        double line = (hann ? TypeB.LineEdgeBins : TypeB.LineEdgeBinsOther) * psd.BinWidthHz,
+            lobe = psd.Window.MainLobeHalfWidthBins * psd.BinWidthHz / Math.Sqrt(3);
+        var list = new List<UncertaintyComponent>();
+        if (onLines > 0)
+            list.Add(
+                new(
+                    "edges on spectral lines (interpolated line)",
+                    Math.Sqrt(onLines) * line,
+                    hann ? "TypeB.LineEdgeBins of a bin, each edge on a line" : "TypeB.LineEdgeBinsOther"
+                )
+            );
+        if (off > 0)
+        {
+            list.Add(
+                new(
+                    "edges within the window's main lobe (resolution)",
+                    Math.Sqrt(off) * lobe,
+                    "the main lobe's half-width, rectangular (GUM 4.3.7), each edge not on a line"
+                )
+            );
+            list.Add(new("reading's share", TypeB.OccupiedFraction * bw.OccupiedHz, "TypeB.OccupiedFraction"));
+        }
+        return list;
     }
 }

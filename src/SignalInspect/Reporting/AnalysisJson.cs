@@ -471,12 +471,13 @@ public static class AnalysisJson
     private static void WriteBudgets(Utf8JsonWriter w, AnalysisResult r)
     {
         w.WriteStartObject("uncertaintyBudget");
-        void One(string key, Measured? m)
+        void One(string key, Measured? m) => Components(key, m?.Budget ?? []);
+        void Components(string key, IReadOnlyList<UncertaintyComponent> budget)
         {
-            if (m is not { } v || v.Budget.Count == 0)
+            if (budget.Count == 0)
                 return;
             w.WriteStartArray(key);
-            foreach (UncertaintyComponent c in v.Budget)
+            foreach (UncertaintyComponent c in budget)
             {
                 w.WriteStartObject();
                 w.WriteString("name", c.Name);
@@ -493,6 +494,7 @@ public static class AnalysisJson
         One("fsk.shiftHz", r.Fsk?.ShiftHz);
         One("fsk.symbolRateBd", r.Fsk?.SymbolRateBd);
         One("modulatingFrequencyHz", r.ModulatingFrequencyHz);
+        Components("bandwidth.occupiedHz", r.OccupiedBudget);
         w.WriteEndObject();
     }
 }
