@@ -119,7 +119,8 @@ internal static class FmMeasurement
                 .. budget,
                 RawNoiseComponent(
                     TonePeaks.RawPeakNoise(m.ToneSpectrum, m.Components, raw.Value, m.MinToneHz, m.TopHz, 1),
-                    peak
+                    peak,
+                    m.Components.Count
                 ),
             ];
         if (extremeLift > 0)
@@ -159,33 +160,25 @@ internal static class FmMeasurement
     }
 
     /// <summary>The noise's share of a raw (uncorrected) peak's uncertainty: <paramref name="rms"/> times
-    /// <see cref="TypeB.RawPeakNoiseShare"/> + <see cref="TypeB.RawPeakNoiseGrowth"/> x rms / peak.</summary>
-    internal static UncertaintyComponent RawNoiseComponent(double rms, double peak) =>
-        new(
-            "noise on the raw peak",
-            rms * (TypeB.RawPeakNoiseShare + TypeB.RawPeakNoiseGrowth * rms / Math.Max(peak, 1e-30)),
-            "rms of the demodulated noise (band power less the modulating components') x (TypeB.RawPeakNoiseShare "
-                + "+ TypeB.RawPeakNoiseGrowth x rms / peak)"
-        );
+    /// <see cref="TypeB.RawPeakNoiseShare"/> + <see cref="TypeB.RawPeakNoiseGrowth"/> x rms / peak for a sum of two
+    /// tones (what the Monte Carlo sampled); the whole rms for more components (a code word's many lines under a
+    /// tone keep the sum near its peak for long stretches, where the noise lifts a percentile by about its rms: FM
+    /// 2 kHz by 1 kHz with a 600 Hz word read 58 Hz high at 38 dB).</summary>
+    internal static UncertaintyComponent RawNoiseComponent(double rms, double peak, int components) =>
+        components <= 2
+            ? new(
+                "noise on the raw peak",
+                rms * (TypeB.RawPeakNoiseShare + TypeB.RawPeakNoiseGrowth * rms / Math.Max(peak, 1e-30)),
+                "rms of the demodulated noise (band power less the modulating components') x "
+                    + "(TypeB.RawPeakNoiseShare + TypeB.RawPeakNoiseGrowth x rms / peak)"
+            )
+            : new(
+                "noise on the raw peak",
+                rms,
+                "rms of the demodulated noise (more than two components: the whole rms)"
+            );
 }
 
-/// <summary>An instantaneous frequency stream's statistics, all FM is measured from.</summary>
-/// <param name="ToneSpectrum">Its line spectrum (Hz).</param>
-/// <param name="Components">The modulating components found in it.</param>
-/// <param name="Tone">The modulating frequency, or null.</param>
-/// <param name="MinToneHz">Lowest modulating frequency searched, Hz.</param>
-/// <param name="TopHz">Highest frequency of the stream taken as modulation (its post-detection band), Hz.</param>
-/// <param name="Freq">Its histogram, Hz.</param>
-/// <param name="PositivePeakHz">Its upper percentile less its mean, Hz.</param>
-/// <param name="NegativePeakHz">Its mean less its lower percentile, Hz.</param>
-/// <param name="MeanHz">Its mean, Hz.</param>
-/// <param name="RmsHz">Its rms about the mean, Hz.</param>
-/// <param name="Samples">Samples in it.</param>
-/// <param name="NoiseHz">Rms of the noise on it, Hz (what noise can add to an extreme).</param>
-/// <param name="RateHz">Its sample rate, Hz.</param>
-/// <param name="NoiseGrowth">How the type-B peak figures grow with the noise (<see cref="TypeB.NoiseGrowth"/>).</param>
-/// <param name="Extra">One more budget component of the peak, from the peak (e.g. a scale's calibration); null for
-/// none.</param>
 internal sealed record FmStream(
     LineSpectrum ToneSpectrum,
     IReadOnlyList<ModulatingComponent> Components,

@@ -204,7 +204,26 @@ internal static class TonePeaks
     {
         var (tone, noise) = spectrum.Split(toneHz, minHz, maxHz);
         double lines = components.Sum(c => Math.Pow(c.PeakAmount / unitsPerStream, 2) / 2);
-        return Math.Sqrt(Math.Max(0, tone + noise - lines));
+        // A spectrum of many lines (a code word's, every 5.8 Hz) outruns the components listed, and the band less
+        // their lines can read nothing: the median bin (lines are few among the band's bins) bounds the noise from
+        // below.
+        return Math.Sqrt(Math.Max(Math.Max(0, tone + noise - lines), MedianNoise(spectrum, minHz, maxHz)));
+    }
+
+    /// <summary>The noise variance between the edges from the median bin: median x bins, the median of a K-segment
+    /// average of chi-square(2) bins taken back to its mean by (1 - 1 / (9 K))^3 (Wilson-Hilferty).</summary>
+    private static double MedianNoise(LineSpectrum s, double minHz, double maxHz)
+    {
+        int k0 = Math.Max(7, (int)Math.Ceiling(minHz / s.BinWidthHz)),
+            k1 = Math.Min(s.FftSize / 2 - 1, (int)Math.Floor(maxHz / s.BinWidthHz));
+        if (k1 - k0 < 8 || s.Segments < 1)
+            return 0;
+        double[] p = new double[k1 - k0 + 1];
+        for (int k = k0; k <= k1; k++)
+            p[k - k0] = s.Power(k);
+        Array.Sort(p);
+        double median = p[p.Length / 2] / Math.Pow(1 - 1.0 / (9 * s.Segments), 3);
+        return median * p.Length * 2.0 / (s.FftSize * s.WindowSumOfSquares);
     }
 
     /// <summary>What noise of rms <paramref name="sigma"/> can add to the extreme of <paramref name="samples"/>

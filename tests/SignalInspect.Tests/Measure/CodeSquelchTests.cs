@@ -235,6 +235,14 @@ public class CodeSquelchCaptureTests
         Assert.Equal(-1, r.Audio!.Code!.Balance);
         Near.Equal(-600.0 / 23, r.Carrier!.OffsetHz, 1.5, "carrier offset (the mean frequency)");
         Assert.Contains(r.Warnings, w => w.Contains("11 ones and 12 zeros") && w.Contains("023N"));
+        // The peak deviation about that mean: 2000 + 600 + 26.1 Hz (construction). A tone under a word's many lines
+        // reads its raw percentile high by about the noise's rms (58 Hz here): the stated U must cover it.
+        double truth = 2600 + 600.0 / 23,
+            expanded = 2 * r.Fm!.PeakDeviationHz.StandardUncertainty;
+        Assert.True(
+            Math.Abs(r.Fm.PeakDeviationHz.Value - truth) <= expanded,
+            $"peak deviation {r.Fm.PeakDeviationHz.Value:0.#} +/- {expanded:0.#} Hz does not cover {truth:0.#} Hz"
+        );
     }
 }
 
