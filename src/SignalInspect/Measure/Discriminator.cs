@@ -170,6 +170,13 @@ internal static class DiscriminatorAnalysis
         long used = 0,
             index = 0;
         var y = new double[buf.Length];
+        // 1 ms block means of the deviation (NaN where the filters settle): the code squelch word and the reverse
+        // burst are read from them, as from a pass's blocks.
+        int blockLen = (int)Math.Max(1, Math.Round(fs / 1000));
+        var means = new List<double>();
+        double bSum = 0;
+        int bN = 0,
+            bAt = 0;
         using (CaptureReader r = source.OpenReader(first, count))
         {
             int got;
@@ -189,6 +196,13 @@ internal static class DiscriminatorAnalysis
                     fir.Process(y.AsSpan(0, got), y.AsSpan(0, got));
                 for (int i = 0; i < got; i++, index++)
                 {
+                    if (index >= settle)
+                        (bSum, bN) = (bSum + y[i], bN + 1);
+                    if (++bAt == blockLen)
+                    {
+                        means.Add(bN == blockLen ? bSum / bN : double.NaN);
+                        (bSum, bN, bAt) = (0, 0, 0);
+                    }
                     if (index < settle)
                         continue;
                     double v = y[i];
@@ -206,6 +220,8 @@ internal static class DiscriminatorAnalysis
                 }
             }
         }
+        double[] freq = [.. means];
+        double blockS = blockLen / fs;
         double avg = used > 0 ? sum / used : 0;
         double rms = used > 0 ? Math.Sqrt(Math.Max(0, sum2 / used - avg * avg)) : 0;
         double minTone = Math.Max(3 * lines.BinWidthHz, 2 * fs / Math.Max(count, 1));
@@ -280,7 +296,14 @@ internal static class DiscriminatorAnalysis
                 components,
                 top,
                 o.ReferenceDeviationHz,
-                weighting: o.Weighting
+                DcsDecoder.Decode(
+                    new Demodulation.BlockStats(blockLen, freq, freq, freq, freq, freq, freq, []),
+                    blockS,
+                    first / fs,
+                    []
+                ),
+                o.Weighting,
+                (freq, blockS)
             ),
             Spectrum = sp,
             Method = method,

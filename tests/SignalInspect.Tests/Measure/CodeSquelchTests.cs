@@ -290,4 +290,59 @@ public class ReverseBurstTests
         // The carrier's phase stays continuous through the shift: the peak deviation is the tones' sum.
         Near.Equal(2000, r.Fm!.PeakDeviationHz.Value, 0.05 * 2000, "peak deviation");
     }
+
+    /// <summary>Discriminator audio (a receiver's FM output, 5 kHz per full scale) holding two calls: the code word
+    /// and its turn-off code, or a tone's reverse burst, are read from the audio as from an I/Q capture.</summary>
+    [Theory]
+    [InlineData(true)]
+    [InlineData(false)]
+    public void Discriminator_audio_gives_the_word_or_the_burst(bool word)
+    {
+        using var tmp = new TempDir();
+        string path = tmp.File("calls.wav");
+        string[] signalling = word
+            ? ["--code-squelch", "754I:650:0.18"]
+            : ["--add-tone", "131.8:500", "--reverse-burst", "180:0.18"];
+        string[] synth =
+        [
+            "synth",
+            path,
+            "--real",
+            "--kind",
+            "fm",
+            "--discriminator",
+            "5k",
+            "--deviation",
+            "1.9k",
+            "--snr",
+            "35",
+            "--duration",
+            "5",
+            "--burst",
+            "0.5:2.5",
+            "--burst",
+            "3:4.8",
+            .. signalling,
+        ];
+        Assert.Equal(0, CliRunner.Run(synth).Code);
+        var (code, json, err) = CliRunner.Run("analyze", path, "--discriminator", "5k", "--json", "-");
+        Assert.True(code == 0, err);
+        using var doc = System.Text.Json.JsonDocument.Parse(json);
+        var audio = doc.RootElement.GetProperty("audio");
+        if (word)
+        {
+            var c = audio.GetProperty("codeSquelch");
+            var names = c.GetProperty("sameSignal")
+                .EnumerateArray()
+                .Select(x => x.GetString())
+                .Append(c.GetProperty("code").GetString());
+            Assert.Contains("754I", names);
+            Near.Equal(0.17, c.GetProperty("turnOffS").GetDouble(), 0.02, "turn-off code");
+        }
+        else
+        {
+            var rb = audio.GetProperty("reverseBurst");
+            Near.Equal(180, rb.GetProperty("shiftDeg").GetDouble(), 15, "reverse burst");
+        }
+    }
 }
