@@ -419,16 +419,12 @@ public static class ResultRows
                 Words(
                     "audio.codeSquelch",
                     "digital code squelch",
-                    code.Name + (code.Standard ? " (standard code)" : " (not a standard code)"),
+                    code.Name,
                     "",
-                    string.Create(C, $"{code.Words} words, correlation {code.Correlation:0.00}, ")
-                        + string.Create(C, $"{code.BitErrors} of {code.Bits} bits off; the same signal as ")
-                        + (code.SameSignal.Count > 0 ? string.Join(", ", code.SameSignal.Take(6)) : "no other code")
-                        + (
-                            code.TurnOffS is { } off
-                                ? string.Create(C, $"; turn-off code for the last {1000 * off:0} ms read")
-                                : ""
-                        )
+                    (code.Standard ? "standard code; " : "not a standard code; ")
+                        + string.Create(C, $"{code.Words} words, correlation {code.Correlation:0.00}")
+                        + (code.SameSignal.Count > 0 ? "; also " + string.Join(", ", code.SameSignal.Take(3)) : "")
+                        + (code.TurnOffS is { } off ? string.Create(C, $"; turn-off {1000 * off:0} ms") : "")
                 );
         }
         foreach (ResponsePoint p in a.Response?.Points ?? [])
