@@ -180,14 +180,19 @@ internal sealed class PdfLayout
         );
 
     /// <summary>A table of text: a shaded head, then the rows, each column a share <paramref name="frac"/> of the
-    /// width, cells wrapped; with <paramref name="verdicts"/> the last column coloured by verdict.</summary>
+    /// width, cells wrapped (a row of fewer cells spans its last one over the columns left); with
+    /// <paramref name="verdicts"/> the last column coloured by verdict.</summary>
     public void Table(string[] head, double[] frac, IReadOnlyList<string[]> rows, bool verdicts, XFont? font = null)
     {
         XFont body = font ?? Body;
         double[] widths = [.. frac.Select(f => f * ContentWidth)];
         void Row(string[] cells, XFont font, XBrush? fill, bool verdictColours)
         {
-            var wrapped = cells.Select((c, i) => Wrap(c, font, widths[i] - 6)).ToArray();
+            // A row of fewer cells than columns: its last cell spans the columns left (a text row with nothing to
+            // judge).
+            double[] cw = [.. cells.Select((_, i) => i < cells.Length - 1 ? widths[i] : widths.Skip(i).Sum())];
+            verdictColours &= cells.Length == widths.Length;
+            var wrapped = cells.Select((c, i) => Wrap(c, font, cw[i] - 6)).ToArray();
             double h = wrapped.Max(w => w.Count) * LineHeight(font) + 4;
             Need(h);
             if (fill is not null)
@@ -214,12 +219,12 @@ internal sealed class PdfLayout
                         line,
                         f,
                         brush,
-                        new XRect(x + 3, y, widths[i] - 6, LineHeight(font)),
+                        new XRect(x + 3, y, cw[i] - 6, LineHeight(font)),
                         XStringFormats.TopLeft
                     );
                     y += LineHeight(font);
                 }
-                x += widths[i];
+                x += cw[i];
             }
             _y += h;
             _g!.DrawLine(new XPen(XColor.FromArgb(210, 210, 210), 0.5), Margin, _y, Margin + ContentWidth, _y);

@@ -217,19 +217,22 @@ public static class PdfReportWriter
                 row.ExpandedUncertainty is not null ? rounded
                 : row.Text is not null && row.Unit.Length == 0 ? ""
                 : "-";
-            // The verdict column holds verdicts only: a text row's note goes with its value.
+            // A text row's note goes with its value; with no unit, limit or verdict it spans the columns left.
             string last = row.Verdict is { } v ? v.Text() : "-";
-            cells.Add([
-                row.Quantity,
-                row.Text is not null && row.Note is { } note ? $"{value} ({note})"
-                : row.Verdict is null || row.ExpandedUncertainty is { } ue && double.IsFinite(ue) && ue > 0 ? value
-                : F(row.Value ?? double.NaN, "0.###"),
-                row.Unit,
-                u,
-                row.LimitText ?? "-",
-                row.Margin is { } m ? F(m, "+0.##;-0.##") : "-",
-                last,
-            ]);
+            if (row.Text is not null && row.Unit.Length == 0 && row.Verdict is null && row.LimitText is null)
+                cells.Add([row.Quantity, row.Note is { } n ? $"{value} ({n})" : value]);
+            else
+                cells.Add([
+                    row.Quantity,
+                    row.Text is not null && row.Note is { } note ? $"{value} ({note})"
+                    : row.Verdict is null || row.ExpandedUncertainty is { } ue && double.IsFinite(ue) && ue > 0 ? value
+                    : F(row.Value ?? double.NaN, "0.###"),
+                    row.Unit,
+                    u,
+                    row.LimitText ?? "-",
+                    row.Margin is { } m ? F(m, "+0.##;-0.##") : "-",
+                    last,
+                ]);
         }
         return cells;
     }
