@@ -76,42 +76,15 @@ internal static class Coverage
                 };
                 // SNR in the occupied bandwidth: synth's SNR is over the sampled band (48 kHz).
                 AnalysisResult a = Analyze(fm with { SnrDb = snr - 10 * Math.Log10(48000 / 8000.0) });
-                trials.Add(
-                    new(
-                        "carrier offset, Hz",
-                        snr,
-                        offset,
-                        a.Carrier!.OffsetHz,
-                        a.Carrier.FrequencyHz.StandardUncertainty
-                    )
-                    {
-                        Budget = a.Carrier.FrequencyHz.Budget,
-                    }
-                );
-                trials.Add(
-                    new(
-                        "FM peak deviation (one tone), Hz",
-                        snr,
-                        2500,
-                        a.Fm!.PeakDeviationHz.Value,
-                        a.Fm.PeakDeviationHz.StandardUncertainty
-                    )
-                    {
-                        Budget = a.Fm.PeakDeviationHz.Budget,
-                    }
-                );
-                trials.Add(
-                    new(
-                        "modulating frequency, Hz",
-                        snr,
-                        tone,
-                        a.ModulatingFrequencyHz!.Value.Value,
-                        a.ModulatingFrequencyHz.Value.StandardUncertainty
-                    )
-                    {
-                        Budget = a.ModulatingFrequencyHz.Value.Budget,
-                    }
-                );
+                // A trial of a measured value: its truth, reading, u and budget (the carrier offset read beside the
+                // frequency's u).
+                void Add(string quantity, double truth, Measured m, double? reading = null) =>
+                    trials.Add(
+                        new(quantity, snr, truth, reading ?? m.Value, m.StandardUncertainty) { Budget = m.Budget }
+                    );
+                Add("carrier offset, Hz", offset, a.Carrier!.FrequencyHz, a.Carrier.OffsetHz);
+                Add("FM peak deviation (one tone), Hz", 2500, a.Fm!.PeakDeviationHz);
+                Add("modulating frequency, Hz", tone, a.ModulatingFrequencyHz!.Value);
                 trials.Add(
                     new(
                         "occupied bandwidth (Bessel 99 %), Hz",
@@ -129,18 +102,7 @@ internal static class Coverage
                         SnrDb = snr - 10 * Math.Log10(48000 / 7500.0),
                     }
                 );
-                trials.Add(
-                    new(
-                        "FM peak deviation (two tones), Hz",
-                        snr,
-                        2500,
-                        b.Fm!.PeakDeviationHz.Value,
-                        b.Fm.PeakDeviationHz.StandardUncertainty
-                    )
-                    {
-                        Budget = b.Fm.PeakDeviationHz.Budget,
-                    }
-                );
+                Add("FM peak deviation (two tones), Hz", 2500, b.Fm!.PeakDeviationHz);
                 AnalysisResult c = Analyze(
                     new SignalSpec
                     {
@@ -164,18 +126,7 @@ internal static class Coverage
                     },
                     ModulationKind.Pm
                 );
-                trials.Add(
-                    new(
-                        "PM peak phase, rad",
-                        snr,
-                        1.2,
-                        pm.Pm!.PeakDeviationRad.Value,
-                        pm.Pm.PeakDeviationRad.StandardUncertainty
-                    )
-                    {
-                        Budget = pm.Pm.PeakDeviationRad.Budget,
-                    }
-                );
+                Add("PM peak phase, rad", 1.2, pm.Pm!.PeakDeviationRad);
                 AnalysisResult fsk = Analyze(
                     fm with
                     {
@@ -185,18 +136,8 @@ internal static class Coverage
                         SnrDb = snr - 10 * Math.Log10(48000 / 3400.0),
                     }
                 );
-                trials.Add(
-                    new("FSK shift, Hz", snr, 1000, fsk.Fsk!.ShiftHz.Value, fsk.Fsk.ShiftHz.StandardUncertainty)
-                    {
-                        Budget = fsk.Fsk.ShiftHz.Budget,
-                    }
-                );
-                trials.Add(
-                    new("AM depth, %", snr, 70, c.Am!.DepthPercent.Value, c.Am.DepthPercent.StandardUncertainty)
-                    {
-                        Budget = c.Am.DepthPercent.Budget,
-                    }
-                );
+                Add("FSK shift, Hz", 1000, fsk.Fsk!.ShiftHz);
+                Add("AM depth, %", 70, c.Am!.DepthPercent);
             }
         Dump(trials);
         return trials;

@@ -256,7 +256,7 @@ internal static class AudioQuality
         {
             double ph = LineVariance(audio, k * f0, floor);
             pd += ph;
-            pn += floor * (2 * Guard + 1) * ToVariance(audio);
+            pn += floor * (2 * Guard + 1) * audio.VarianceScale;
             harmonics.Add((k, 100 * Math.Sqrt(ph / p1)));
         }
         double thd = 100 * Math.Sqrt(pd / p1);
@@ -354,7 +354,7 @@ internal static class AudioQuality
         int last = Math.Min(s.FftSize / 2 - 1, (int)(topHz / s.BinWidthHz));
         int group = Math.Max(1, (last + PlotPoints - 1) / PlotPoints);
         var points = new List<(double, double)>();
-        double toVar = ToVariance(s);
+        double toVar = s.VarianceScale;
         for (int k = 1; k + group - 1 <= last; k += group)
         {
             double p = 0;
@@ -364,8 +364,6 @@ internal static class AudioQuality
         }
         return points;
     }
-
-    private static double ToVariance(LineSpectrum s) => 2.0 / (s.FftSize * s.WindowSumOfSquares);
 
     private static (int A, int B) Bins(LineSpectrum s, double lowHz, double highHz) =>
         (
@@ -387,7 +385,7 @@ internal static class AudioQuality
         double v = 0;
         for (int k = a; k <= b; k++)
             v += s.Power(k) * w.PowerGain(k * s.BinWidthHz);
-        return v * ToVariance(s);
+        return v * s.VarianceScale;
     }
 
     /// <summary>The median bin power in the band away from the tone's harmonics: the noise per bin.</summary>
@@ -418,6 +416,6 @@ internal static class AudioQuality
         double v = 0;
         for (int j = Math.Max(1, k - Guard); j <= Math.Min(s.FftSize / 2 - 1, k + Guard); j++)
             v += Math.Max(0, s.Power(j) - floor) * (w?.PowerGain(j * s.BinWidthHz) ?? 1);
-        return v * ToVariance(s);
+        return v * s.VarianceScale;
     }
 }

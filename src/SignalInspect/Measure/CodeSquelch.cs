@@ -87,6 +87,10 @@ internal static class DcsDecoder
 
     private static readonly int[] Words = [.. Enumerable.Range(0, 512).Select(c => DcsCode.Word(c))];
 
+    /// <summary>Each code's rotation class, normal and inverted.</summary>
+    private static readonly int[] NormalClass = [.. Words.Select(DcsCode.Class)],
+        InvertedClass = [.. Enumerable.Range(0, 512).Select(c => DcsCode.Class(DcsCode.Word(c, true)))];
+
     /// <summary>The code read from the blocks' mean frequency (blocks of <paramref name="blockS"/> seconds, the first
     /// at <paramref name="startS"/>) while the transmissions <paramref name="on"/> last (throughout when none is
     /// given), or null when none is read with confidence.</summary>
@@ -146,13 +150,13 @@ internal static class DcsDecoder
             if (inverted[c] > bestScore)
                 (best, bestInv, bestScore) = (c, true, inverted[c]);
         }
-        int bestClass = DcsCode.Class(DcsCode.Word(best, bestInv));
+        int bestClass = bestInv ? InvertedClass[best] : NormalClass[best];
         double second = double.NegativeInfinity;
         for (int c = 0; c < 512; c++)
         {
-            if (normal[c] > second && DcsCode.Class(Words[c]) != bestClass)
+            if (normal[c] > second && NormalClass[c] != bestClass)
                 second = normal[c];
-            if (inverted[c] > second && DcsCode.Class(DcsCode.Word(c, true)) != bestClass)
+            if (inverted[c] > second && InvertedClass[c] != bestClass)
                 second = inverted[c];
         }
         double rho = bestScore / level,
@@ -203,20 +207,11 @@ internal static class DcsDecoder
             look = (int)(TurnOffLookS / blockS);
         if (last - first < 2 * look || !(wordLevelHz > 0))
             return null;
-        double mean = FiniteMean(freq, first, last);
+        var tone = new BlockTone(freq, first, last, blockS, DcsCode.BitRateHz);
         int end = last;
         for (int i = last; i > last - look && i - m + 1 >= first; i--)
         {
-            double re = 0,
-                im = 0;
-            for (int j = i - m + 1; j <= i; j++)
-            {
-                double x = double.IsFinite(freq[j]) ? freq[j] - mean : 0,
-                    a = 2 * Math.PI * DcsCode.BitRateHz * j * blockS;
-                re += x * Math.Cos(a);
-                im += x * Math.Sin(a);
-            }
-            if (Math.Sqrt(re * re + im * im) / m < wordLevelHz / 4)
+            if (tone.Over(i - m + 1, i + 1).Level < wordLevelHz / 4)
                 break;
             end = i - m / 2; // the window's middle: the tone fills at least half of it
         }
@@ -231,7 +226,7 @@ internal static class DcsDecoder
         int n = last - first + 1;
         if (n < 2 * bitBlocks)
             yield break;
-        double mean = FiniteMean(freq, first, last);
+        double mean = BlockTone.FiniteMean(freq, first, last);
         // Running integral of the piecewise-constant block values (a block not measured counts as the mean).
         double[] sum = new double[n + 1];
         for (int i = 0; i < n; i++)
@@ -265,17 +260,6 @@ internal static class DcsDecoder
             }
             yield return bestBits!;
         }
-    }
-
-    /// <summary>The mean of the measured blocks from <paramref name="first"/> to <paramref name="last"/>.</summary>
-    private static double FiniteMean(double[] freq, int first, int last)
-    {
-        double mean = 0;
-        int counted = 0;
-        for (int i = first; i <= last; i++)
-            if (double.IsFinite(freq[i]))
-                (mean, counted) = (mean + freq[i], counted + 1);
-        return mean / Math.Max(1, counted);
     }
 
     /// <summary>The bit values summed modulo 23.</summary>

@@ -45,7 +45,7 @@ internal static class ModulatingComponents
         double floor = Median(powers);
         double strongest = powers.Max();
         var lines = new List<(int Bin, double Variance)>();
-        double toVariance = 2.0 / (s.FftSize * s.WindowSumOfSquares);
+        double toVariance = s.VarianceScale;
         for (int k = k0 + 1; k < k1; k++)
         {
             double p = s.Power(k);

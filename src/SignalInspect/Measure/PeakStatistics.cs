@@ -22,7 +22,6 @@ public static class LineSpectrumVariance
     )
     {
         int n = s.FftSize;
-        double sumW2 = s.WindowSumOfSquares;
         // Bins within the guard of 0 Hz hold the leakage of the mean (for an envelope, the carrier): left out.
         int k0 = Math.Max(guard + 1, (int)Math.Ceiling(minHz / s.BinWidthHz)),
             k1 = Math.Min(n / 2 - 1, (int)Math.Floor(maxHz / s.BinWidthHz));
@@ -46,7 +45,7 @@ public static class LineSpectrumVariance
                 noiseBins++;
             }
         }
-        double scale = 2.0 / (n * sumW2);
+        double scale = s.VarianceScale;
         double noisePerBin = noiseBins > 0 ? noise / noiseBins : 0;
         double guardedNoise = noisePerBin * (all - noiseBins);
         return (Math.Max(0, tone - guardedNoise) * scale, (noise + guardedNoise) * scale);
@@ -223,7 +222,7 @@ internal static class TonePeaks
             p[k - k0] = s.Power(k);
         Array.Sort(p);
         double median = p[p.Length / 2] / Math.Pow(1 - 1.0 / (9 * s.Segments), 3);
-        return median * p.Length * 2.0 / (s.FftSize * s.WindowSumOfSquares);
+        return median * p.Length * s.VarianceScale;
     }
 
     /// <summary>What noise of rms <paramref name="sigma"/> can add to the extreme of <paramref name="samples"/>

@@ -10,11 +10,11 @@ public sealed record ReverseBurstResult(double ShiftDeg, double DurationS, doubl
 
 /// <summary>
 /// Finds a reverse burst: the sub-audible tone's phase, read from the block means of the demodulated frequency by
-/// complex demodulation at the tone and an average over whole periods (about 20 ms), is followed against the line
-/// fitted to it over the body of the window (which takes out the tone's frequency error); a burst is a stretch
-/// reaching the window's end over which the phase stands more than <see cref="MinShiftDeg"/> off the line, the tone
-/// still at half its level or more, for at least <see cref="MinDurationS"/>. Key-down itself is not in the window
-/// (the transmission's last 10 ms are left out), so the duration reads short by up to that.
+/// complex demodulation at the tone (<see cref="BlockTone"/>) and an average over whole periods (about 20 ms), is
+/// followed against the line fitted to it over the body of the window (which takes out the tone's frequency error); a
+/// burst is a stretch reaching the window's end over which the phase stands more than <see cref="MinShiftDeg"/> off the
+/// line, the tone still at half its level or more, for at least <see cref="MinDurationS"/>. Key-down itself is not in
+/// the window (the transmission's last 10 ms are left out), so the duration reads short by up to that.
 /// </summary>
 internal static class ReverseBurstFinder
 {
@@ -44,28 +44,13 @@ internal static class ReverseBurstFinder
         // Average over whole periods of the tone (about 20 ms), which removes the image at twice the tone.
         int periods = Math.Max(1, (int)Math.Round(0.02 * toneHz));
         int m = Math.Max(1, (int)Math.Round(periods / toneHz / blockS));
-        double mean = 0;
-        for (int i = first; i < n; i++)
-            mean += freq[i];
-        mean /= n - first;
-        double[] re = new double[n + 1],
-            im = new double[n + 1];
-        for (int i = first; i < n; i++)
-        {
-            double x = double.IsFinite(freq[i]) ? freq[i] - mean : 0,
-                a = -2 * Math.PI * toneHz * (i + 0.5) * blockS;
-            re[i + 1] = re[i] + x * Math.Cos(a);
-            im[i + 1] = im[i] + x * Math.Sin(a);
-        }
+        var tone = new BlockTone(freq, first, n - 1, blockS, toneHz);
         // The phase and level at each block, over the centred window of m blocks (clipped at the ends).
         (double Phase, double Level) At(int i)
         {
             int a = Math.Max(first, i - m / 2),
                 b = Math.Min(n, a + m);
-            a = Math.Max(first, b - m);
-            double r = re[b] - re[a],
-                q = im[b] - im[a];
-            return (Math.Atan2(q, r), Math.Sqrt(r * r + q * q) / (b - a));
+            return tone.Over(Math.Max(first, b - m), b);
         }
         // The body's phase line (unwrapped), from the start to LookS before the end.
         int bodyEnd = n - look;

@@ -29,23 +29,16 @@ internal static class AudioJson
         Pair(w, "residualFmHz", "residualFmUncertaintyHz", a?.ResidualFmHz);
         CaptureInfoJson.WriteNumberOrNull(w, "residualAmPercent", a?.ResidualAmPercent);
         CaptureInfoJson.WriteNumberOrNull(w, "humNoiseDb", a?.HumNoiseDb);
-        w.WritePropertyName("subAudibleTone");
-        if (a?.SubAudible is { } t)
+        ObjectOrNull(w, "subAudibleTone", a?.SubAudible, t =>
         {
-            w.WriteStartObject();
             w.WriteNumber("frequencyHz", t.FrequencyHz.Value);
             w.WriteNumber("frequencyUncertaintyHz", t.FrequencyHz.StandardUncertainty);
             w.WriteNumber("deviationHz", t.DeviationHz);
             CaptureInfoJson.WriteNumberOrNull(w, "standardHz", t.StandardHz);
             w.WriteString("list", t.List);
-            w.WriteEndObject();
-        }
-        else
-            w.WriteNullValue();
-        w.WritePropertyName("codeSquelch");
-        if (a?.Code is { } c)
+        });
+        ObjectOrNull(w, "codeSquelch", a?.Code, c =>
         {
-            w.WriteStartObject();
             w.WriteString("code", c.Name);
             w.WriteString("polarity", c.Inverted ? "inverted" : "normal");
             w.WriteBoolean("standard", c.Standard);
@@ -60,21 +53,13 @@ internal static class AudioJson
             w.WriteNumber("levelHz", c.LevelHz);
             w.WriteNumber("meanShiftHz", c.MeanShiftHz);
             CaptureInfoJson.WriteNumberOrNull(w, "turnOffS", c.TurnOffS);
-            w.WriteEndObject();
-        }
-        else
-            w.WriteNullValue();
-        w.WritePropertyName("reverseBurst");
-        if (a?.ReverseBurst is { } rb)
+        });
+        ObjectOrNull(w, "reverseBurst", a?.ReverseBurst, rb =>
         {
-            w.WriteStartObject();
             w.WriteNumber("shiftDeg", rb.ShiftDeg);
             w.WriteNumber("durationS", rb.DurationS);
             w.WriteNumber("resolutionS", rb.ResolutionS);
-            w.WriteEndObject();
-        }
-        else
-            w.WriteNullValue();
+        });
         w.WriteString("distortionNotTested", a?.DistortionNotTested);
         w.WriteEndObject();
     }
@@ -108,6 +93,21 @@ internal static class AudioJson
             w.WriteEndObject();
         }
         w.WriteEndArray();
+        w.WriteEndObject();
+    }
+
+    /// <summary>Property <paramref name="name"/>: an object written by <paramref name="body"/>, or null.</summary>
+    private static void ObjectOrNull<T>(Utf8JsonWriter w, string name, T? value, Action<T> body)
+        where T : class
+    {
+        w.WritePropertyName(name);
+        if (value is null)
+        {
+            w.WriteNullValue();
+            return;
+        }
+        w.WriteStartObject();
+        body(value);
         w.WriteEndObject();
     }
 

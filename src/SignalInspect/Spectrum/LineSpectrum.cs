@@ -52,6 +52,10 @@ public sealed class LineSpectrum
     /// <summary>Sum of the squared window coefficients.</summary>
     public double WindowSumOfSquares => _window.SumOfSquares;
 
+    /// <summary>A bin's power (<see cref="Power"/>) to the stream's variance: 2 / (N sum w^2) for a windowed
+    /// one-sided periodogram.</summary>
+    public double VarianceScale => 2.0 / (_n * _window.SumOfSquares);
+
     /// <summary>Segments accumulated.</summary>
     public long Segments => _segments;
 
